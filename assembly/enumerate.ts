@@ -1,0 +1,214 @@
+// Depth-first enumeration of the Terras tree of T(n) = n/2 | (q n + r)/2.
+//
+// The node at depth j is a class a mod 2^j together with (m, b) such that
+// T^j(a + 2^j x) = q^m x + b for every integer x (m = odd steps among the first j).
+// Its children extend a by one bit e chosen so that the next parity is 0 or 1:
+//   v = b + e q^m is T^j(a + e 2^j); parity 0 gives (m, v/2), parity 1 gives (m+1, (q v + r)/2).
+//
+// Overflow: the host proves |b| and the intermediate v fit the chosen width before calling
+// (src/map.ts, widthLimit); for r > 0 the width is u64, for r < 0 it is i64.
+// The drop test q^m < 2^j is exact: the host passes bitlen(q^m) per m, and q^m < 2^j iff j >= bitlen(q^m).
+
+import { flush } from "./buffers";
+
+export const MODE_SURVIVORS: i32 = 0;
+export const MODE_FULL: i32 = 1;
+
+/** Row stride of the tallies: entry (j, m) lives at index j * 64 + m. */
+const STRIDE_SHIFT: i32 = 6;
+
+let K: i32 = 0;
+let full: bool = false;
+let emit: bool = false;
+let Q: u64 = 0;
+let H: i64 = 0; // (q + r) / 2, exact since q and r are odd
+let qpowPtr: usize = 0; // u64[m] = q^m
+let thrPtr: usize = 0; // i32[m] = bitlen(q^m)
+let livePtr: usize = 0; // u64[j][m]: classes alive (not yet dropped) at depth j
+let stoppedPtr: usize = 0; // u64[j][m]: classes whose coefficient first drops at depth j
+let leafA: usize = 0;
+let leafB: usize = 0;
+let leafM: usize = 0;
+let leafCap: i32 = 0;
+let leafN: i32 = 0;
+let excPtr: usize = 0;
+let excCap: i32 = 0;
+let excN: i32 = 0;
+let nodes: u64 = 0;
+
+@inline function tally(base: usize, j: i32, m: i32): void {
+  const p = base + ((<usize>((j << STRIDE_SHIFT) + m)) << 3);
+  store<u64>(p, load<u64>(p) + 1);
+}
+
+@inline function qpow(m: i32): u64 {
+  return load<u64>(qpowPtr + (<usize>m << 3));
+}
+
+@inline function dropDepth(m: i32): i32 {
+  return load<i32>(thrPtr + (<usize>m << 2));
+}
+
+function pushLeaf(a: u64, b: u64, m: i32): void {
+  const i = <usize>leafN;
+  store<u64>(leafA + (i << 3), a);
+  store<u64>(leafB + (i << 3), b);
+  store<u8>(leafM + i, <u8>m);
+  if (++leafN == leafCap) {
+    flush(0, leafN);
+    leafN = 0;
+  }
+}
+
+/** A dropping class with b >= a: some members fail to descend at the drop depth (host expands). */
+function pushException(a: u64, b: u64, j: i32, m: i32): void {
+  const p = excPtr + (<usize>excN << 5);
+  store<u64>(p, a);
+  store<u64>(p, b, 8);
+  store<u64>(p, <u64>j, 16);
+  store<u64>(p, <u64>m, 24);
+  if (++excN == excCap) {
+    flush(1, excN);
+    excN = 0;
+  }
+}
+
+/** Leaf at the target depth, or one more level of the tree. */
+function visit<T>(a: u64, b: T, m: i32, j: i32, alive: bool): void {
+  if (j == K) {
+    if (emit) pushLeaf(a, <u64>b, m);
+  } else {
+    dfs<T>(a, b, m, j, alive);
+  }
+}
+
+function dfs<T>(a: u64, b: T, m: i32, j: i32, alive: bool): void {
+  const pm = <T>qpow(m);
+  const e0 = b & <T>1; // the extension bit that makes the next value even
+  const aEven = a | (<u64>e0 << j);
+  const aOdd = aEven ^ ((<u64>1) << j);
+  const bEven = (b + select<T>(pm, <T>0, e0 != 0)) >> 1;
+  const vOdd = b + select<T>(<T>0, pm, e0 != 0);
+  const bOdd = <T>Q * (vOdd >> 1) + <T>H;
+  const jj = j + 1;
+  const last = jj == K;
+  nodes += 2;
+  if (alive && jj >= dropDepth(m)) {
+    tally(stoppedPtr, jj, m);
+    if (bEven >= <T>aEven) pushException(aEven, <u64>bEven, jj, m);
+    if (!full) nodes--; // a cut class is not a visited node in survivors mode
+    if (full) {
+      if (last) {
+        if (emit) pushLeaf(aEven, <u64>bEven, m);
+      } else dfs<T>(aEven, bEven, m, jj, false);
+    }
+  } else {
+    if (alive) tally(livePtr, jj, m);
+    if (last) {
+      if (emit) pushLeaf(aEven, <u64>bEven, m);
+    } else dfs<T>(aEven, bEven, m, jj, alive);
+  }
+  // An odd step never drops a live class: q^m >= 2^j implies q^(m+1) > 2^(j+1).
+  if (alive) tally(livePtr, jj, m + 1);
+  if (last) {
+    if (emit) pushLeaf(aOdd, <u64>bOdd, m + 1);
+  } else dfs<T>(aOdd, bOdd, m + 1, jj, alive);
+}
+
+function run<T>(prefixBits: i32, prefix: u64, walkTallies: bool): void {
+  // Walk down to the prefix class; each ancestor is tallied by the one shard that is its
+  // extension by zero bits (prefix >> j == 0), so the shards of a split sum to the whole run.
+  // With walkTallies off the walk tallies nothing (the caller counted levels 0..prefixBits).
+  let a: u64 = 0;
+  let b: T = <T>0;
+  let m: i32 = 0;
+  let alive = true;
+  if (walkTallies && prefix == 0) {
+    tally(livePtr, 0, 0);
+    nodes = 1;
+  }
+  for (let j = 0; j < prefixBits; j++) {
+    const e = (prefix >> <u64>j) & 1;
+    const v = b + select<T>(<T>qpow(m), <T>0, e != 0);
+    const even = (v & <T>1) == <T>0;
+    if (even) {
+      b = v >> 1;
+    } else {
+      b = <T>Q * (v >> 1) + <T>H;
+      m++;
+    }
+    a |= e << <u64>j;
+    const jj = j + 1;
+    const owned = walkTallies && (prefix >> <u64>jj) == 0;
+    if (owned) nodes++;
+    if (alive && even && jj >= dropDepth(m)) {
+      if (owned) {
+        if (!full) nodes--;
+        tally(stoppedPtr, jj, m);
+        if (b >= <T>a) pushException(a, <u64>b, jj, m);
+      }
+      alive = false;
+      if (!full) return;
+    } else if (alive && owned) {
+      tally(livePtr, jj, m);
+    }
+  }
+  visit<T>(a, b, m, prefixBits, alive);
+}
+
+/**
+ * Enumerates every class extending `prefix` mod 2^prefixBits down to `depth`.
+ * tables: u64 q^m at [0, 512), i32 bitlen(q^m) at [512, 768), m = 0..63.
+ * tallies: u64 live[64][64] then u64 stopped[64][64]; zeroed here for rows 0..depth.
+ * leaves: u64 a[cap], u64 b[cap], u8 m[cap]; exceptions: 4 u64 (a, b, j, m) per class.
+ * walkTallies = 0: tally only the levels below the prefix (a plan that counted the top itself).
+ * Returns the number of tree nodes visited by this shard: the root and every live class in
+ * survivors mode (cut classes are not visited), every node in full mode (2^(depth+1) - 1 in all).
+ */
+export function enumerate(
+  q: u32,
+  r: i32,
+  depth: i32,
+  mode: i32,
+  prefixBits: i32,
+  prefix: u64,
+  tables: usize,
+  tallies: usize,
+  leaves: usize,
+  leavesCap: i32,
+  emitLeaves: i32,
+  exceptions: usize,
+  exceptionsCap: i32,
+  walkTallies: i32,
+): u64 {
+  assert(depth >= 0 && depth <= 63 && prefixBits >= 0 && prefixBits <= depth);
+  assert(leavesCap > 0 && exceptionsCap > 0 && (prefix >> <u64>prefixBits) == 0);
+  K = depth;
+  full = mode == MODE_FULL;
+  emit = emitLeaves != 0;
+  Q = <u64>q;
+  H = (<i64>q + <i64>r) >> 1;
+  qpowPtr = tables;
+  thrPtr = tables + 512;
+  livePtr = tallies;
+  stoppedPtr = tallies + (64 * 64 * 8);
+  const rowBytes = <usize>(depth + 1) * 64 * 8;
+  memory.fill(livePtr, 0, rowBytes);
+  memory.fill(stoppedPtr, 0, rowBytes);
+  leafA = leaves;
+  leafB = leaves + (<usize>leavesCap << 3);
+  leafM = leaves + (<usize>leavesCap << 4);
+  leafCap = leavesCap;
+  leafN = 0;
+  excPtr = exceptions;
+  excCap = exceptionsCap;
+  excN = 0;
+  nodes = 0;
+  if (r < 0) run<i64>(prefixBits, prefix, walkTallies != 0);
+  else run<u64>(prefixBits, prefix, walkTallies != 0);
+  if (leafN > 0) flush(0, leafN);
+  if (excN > 0) flush(1, excN);
+  leafN = 0;
+  excN = 0;
+  return nodes;
+}

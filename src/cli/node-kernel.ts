@@ -1,0 +1,44 @@
+// Node adapter: reads the wasm from build/, spawns worker_threads speaking comlink.
+import { createHash } from "node:crypto";
+import { readFile } from "node:fs/promises";
+import { availableParallelism } from "node:os";
+import { Worker } from "node:worker_threads";
+import nodeEndpoint from "comlink/dist/esm/node-adapter.mjs";
+import { compileKernel } from "../kernel.js";
+import { KernelPool } from "../pool.js";
+import type { SpawnWorker } from "../pool.js";
+
+export type Flavour = "release" | "debug";
+
+async function kernelBytes(flavour: Flavour): Promise<Uint8Array<ArrayBuffer>> {
+  const url = new URL(`../../build/${flavour}.wasm`, import.meta.url);
+  try {
+    return new Uint8Array(await readFile(url));
+  } catch {
+    throw new Error(`kernel ${url.pathname} is missing: run npm install (or npm run build) first`);
+  }
+}
+
+/** The compiled kernel module (build/release.wasm or build/debug.wasm), compiled once. */
+export async function loadKernelModule(flavour: Flavour = "release"): Promise<WebAssembly.Module> {
+  return compileKernel(flavour, await kernelBytes(flavour));
+}
+
+/** Content hash of the kernel build (16 hex digits), stamped into manifests. */
+export async function kernelBuildId(flavour: Flavour = "release"): Promise<string> {
+  return createHash("sha256").update(await kernelBytes(flavour)).digest("hex").slice(0, 16);
+}
+
+/** Worker entry compiled to lib/ (tsc), so it runs under plain node from src/ and lib/ alike. */
+const workerUrl = new URL("../../lib/cli/node-worker.js", import.meta.url);
+
+export const spawnNodeWorker: SpawnWorker = () => {
+  const w = new Worker(workerUrl);
+  w.unref();
+  return { endpoint: nodeEndpoint(w), terminate: () => void w.terminate() };
+};
+
+/** A pool of `workers` threads (default: the available cores). */
+export async function nodePool(workers = availableParallelism(), flavour: Flavour = "release"): Promise<KernelPool> {
+  return new KernelPool(spawnNodeWorker, await loadKernelModule(flavour), workers);
+}

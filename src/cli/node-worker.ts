@@ -1,0 +1,8 @@
+// worker_threads entry: the isomorphic worker API on Node's message port.
+import { parentPort } from "node:worker_threads";
+import { expose } from "comlink";
+import nodeEndpoint from "comlink/dist/esm/node-adapter.mjs";
+import { createWorkerApi } from "../worker.js";
+
+if (!parentPort) throw new Error("node-worker.js must run inside a worker thread");
+expose(createWorkerApi(), nodeEndpoint(parentPort));

@@ -1,0 +1,131 @@
+// glidepath sieve: the coefficient-stopping-time sieve mod 2^K on the kernel pool, with its report
+// and, on request, the class table of survivors (raw + manifest, or CSV).
+import { basename } from "node:path";
+import { UsageError } from "../errors.js";
+import { exactCounts } from "../exact.js";
+import { checkKernelDepth, MAX_KERNEL_DEPTH } from "../map.js";
+import type { CollatzMap } from "../map.js";
+import { runSieve } from "../sieve.js";
+import type { SieveResult } from "../sieve.js";
+import { collectRows, csvLines, CSV_ROW_GUARD, passPlan, ResidueSorter, tableManifest } from "../tables.js";
+import type { CsvRow, TableFormat } from "../tables.js";
+import { toExactJson } from "../json.js";
+import type { KernelPool } from "../pool.js";
+import { intOption, mapOption, parseOptions, workersOption } from "./args.js";
+import { AtomicFile, writeFileAtomic } from "./files.js";
+import { kernelBuildId, nodePool } from "./node-kernel.js";
+import { progressBar } from "./progress.js";
+import { group, levelTable } from "./report.js";
+import { toolVersion } from "./version.js";
+
+export const SIEVE_USAGE = "glidepath sieve [--map 3x+1] --depth K [--out FILE [--format raw|csv] [--force]] [--workers N] [--json]";
+
+export async function sieveCommand(argv: string[]): Promise<void> {
+  const o = parseOptions(argv, {
+    map: { type: "string" },
+    depth: { type: "string" },
+    out: { type: "string" },
+    format: { type: "string" },
+    force: { type: "boolean" },
+    workers: { type: "string" },
+    json: { type: "boolean" },
+  });
+  const map = mapOption(o.map);
+  const depth = intOption("depth", o.depth, 0, MAX_KERNEL_DEPTH);
+  checkKernelDepth(map, depth);
+  const workers = workersOption(o.workers);
+  const out = typeof o.out === "string" ? o.out : undefined;
+  if (o.format !== undefined && out === undefined) throw new UsageError("--format needs --out FILE");
+  if (o.force && out === undefined) throw new UsageError("--force needs --out FILE");
+  const format = tableFormat(o.format, out);
+  const rows = exactCounts(map, depth).levels[depth]!.survivors;
+  if (format === "csv" && rows > BigInt(CSV_ROW_GUARD) && !o.force) {
+    throw new UsageError(`a CSV of ${group(rows)} rows is over the ${group(BigInt(CSV_ROW_GUARD))}-row guard: use --format raw, or --force`);
+  }
+
+  const file = out ? await AtomicFile.create(out) : null;
+  const pool = await nodePool(workers);
+  const bar = progressBar(`sieve ${map.name} mod 2^${depth}`);
+  try {
+    const result = file ? await writeTable(pool, map, depth, format, file, rows, bar.update) : await runSieve(pool, { map, depth, mode: "survivors" }, { onProgress: bar.update });
+    bar.stop();
+    if (file) {
+      const sha256 = await file.commit();
+      const manifest = tableManifest(map, depth, rows, format, { file: basename(file.path), bytes: file.bytes, sha256 }, { version: toolVersion(), kernelBuild: await kernelBuildId() });
+      await writeFileAtomic(`${file.path}.json`, toExactJson(manifest, 2) + "\n");
+    }
+    process.stdout.write(o.json ? toExactJson(sieveJson(result)) + "\n" : sieveText(result, workers, file?.path));
+  } catch (e) {
+    bar.stop();
+    await file?.abort();
+    throw e;
+  } finally {
+    pool.terminate();
+  }
+}
+
+function tableFormat(v: string | boolean | undefined, out: string | undefined): TableFormat {
+  if (v === undefined) return out?.endsWith(".csv") ? "csv" : "raw";
+  if (v === "raw" || v === "csv") return v;
+  throw new UsageError(`--format must be raw or csv, got "${String(v)}"`);
+}
+
+/** Enumerates (once per memory pass) and streams the sorted table into `file`. */
+async function writeTable(
+  pool: KernelPool, map: CollatzMap, depth: number, format: TableFormat, file: AtomicFile, rows: bigint,
+  onProgress: (done: number, total: number) => void,
+): Promise<SieveResult> {
+  if (format === "csv") {
+    const collected: CsvRow[] = [];
+    const result = await runSieve(pool, { map, depth, mode: "survivors", onLeaves: (c) => collectRows(collected, c) }, { onProgress });
+    for (const line of csvLines(collected)) await file.write(line);
+    return result;
+  }
+  const plan = passPlan(depth, rows);
+  const buckets = 1 << plan.bucketBits;
+  let first: SieveResult | null = null;
+  let written = 0n;
+  for (let p = 0; p < plan.passes; p++) {
+    const from = Math.floor((p * buckets) / plan.passes);
+    const to = Math.floor(((p + 1) * buckets) / plan.passes);
+    const sorter = new ResidueSorter(depth, plan.bucketBits, from, to);
+    const result = await runSieve(pool, { map, depth, mode: "survivors", onLeaves: (c) => sorter.add(c) }, {
+      onProgress: (done, total) => onProgress(p * total + done, plan.passes * total),
+    });
+    first ??= result;
+    for (const part of sorter.sorted()) await file.write(new Uint8Array(part.buffer, part.byteOffset, part.byteLength));
+    written += BigInt(sorter.count);
+  }
+  if (written !== rows) throw new Error(`internal error: wrote ${written} residues, the exact counter says ${rows}`);
+  return first!;
+}
+
+export function sieveJson(r: SieveResult) {
+  return {
+    map: r.map.name,
+    depth: r.depth,
+    levels: r.levels.map((l) => ({ depth: l.depth, survivors: l.survivors, stopped: l.stopped })),
+    exceptions: r.exceptions.map((e) => ({ n: e.n, residue: e.residue, classDepth: e.classDepth })),
+    exceptionCount: r.exceptionCount,
+    nodes: r.nodes,
+    seconds: Number(r.seconds.toFixed(3)),
+  };
+}
+
+function sieveText(r: SieveResult, workers: number, out?: string): string {
+  const lines = [
+    `sieve of ${r.map.name} mod 2^${r.depth}: a class is cut when its coefficient q^m/2^j drops below 1`,
+    "(depth = steps of T; std steps = the same stopping time with odd steps counted twice)",
+    "",
+    levelTable(r.map, r.levels),
+    "",
+    `survivors mod 2^${r.depth}: ${group(r.levels[r.depth]!.survivors)}`,
+    `exceptions (positive members that do not descend at their class's stopping depth): ${group(r.exceptionCount)}`,
+    ...r.exceptions.slice(0, 50).map((e) => `  n = ${e.n}   class ${e.residue} mod 2^${e.classDepth}`),
+    ...(r.exceptionCount > 50n ? [`  ... ${group(r.exceptionCount - 50n)} more (use --json for the list)`] : []),
+    `nodes visited: ${group(r.nodes)} in ${r.seconds.toFixed(2)} s (${workers} worker${workers === 1 ? "" : "s"})`,
+    ...(out ? [`class table: ${out} (manifest ${out}.json)`] : []),
+    "",
+  ];
+  return lines.join("\n");
+}

@@ -1,0 +1,85 @@
+// Exact survivor counts by dynamic programming over lattice paths (BigInt, no wasm).
+// A class's coefficient q^m / 2^j depends only on its parity path's odd counts, so the number of
+// classes alive at (j, m) is a path count: live(j+1, m) += live(j, m) unless q^m < 2^(j+1) (then it
+// stops there), and live(j+1, m+1) += live(j, m). Independent of the kernels: their cross-check.
+import type { CollatzMap } from "./map.js";
+import { UsageError } from "./errors.js";
+
+export const MAX_EXACT_DEPTH = 10_000;
+
+export interface Level {
+  readonly depth: number;
+  /** Classes mod 2^depth whose coefficient has not yet dropped below 1. */
+  readonly survivors: bigint;
+  /** Classes whose coefficient first drops below 1 at exactly this depth. */
+  readonly stopped: bigint;
+}
+
+export interface ExactCounts {
+  readonly levels: Level[];
+  /** byOdd[j]: live counts at depth j for m = mLow[j] .. j (only when asked for). */
+  readonly byOdd?: { readonly mLow: number; readonly live: bigint[]; readonly stopped: bigint[] }[];
+}
+
+/**
+ * Survivors and stopped counts for depths 0..depth.
+ * @example exactCounts(makeMap(3, 1), 5).levels[5].survivors // 4n
+ */
+export function exactCounts(map: CollatzMap, depth: number, options: { byOdd?: boolean; onProgress?: (done: number) => void } = {}): ExactCounts {
+  if (!Number.isInteger(depth) || depth < 0 || depth > MAX_EXACT_DEPTH) {
+    throw new UsageError(`depth must be an integer from 0 to ${MAX_EXACT_DEPTH}`);
+  }
+  // drop[m] = bitlen(q^m), the least j with q^m < 2^j, kept incrementally: multiplying by q
+  // adds bitlen(q) - 1 or bitlen(q) bits (q^0 = 1 = 2^0 drops at j = 1).
+  const drop: number[] = [1];
+  const q = BigInt(map.q);
+  const qBits = bitLength(q);
+  let p = 1n;
+  let bits = 1;
+  for (let m = 1; m <= depth; m++) {
+    p *= q;
+    bits += qBits - 1;
+    if (p >> BigInt(bits) !== 0n) bits++;
+    drop.push(bits);
+  }
+  // live[m] for m in [lo, j]; entries below lo are zero (those paths have all stopped).
+  let live: bigint[] = [1n];
+  let lo = 0;
+  const levels: Level[] = [{ depth: 0, survivors: 1n, stopped: 0n }];
+  const byOdd: NonNullable<ExactCounts["byOdd"]> = [];
+  if (options.byOdd) byOdd.push({ mLow: 0, live: [1n], stopped: [0n] });
+  for (let j = 0; j < depth; j++) {
+    const jj = j + 1;
+    // next[m - lo]: even steps keep m, odd steps add one; index i stands for m = lo + i.
+    const next: bigint[] = new Array<bigint>(live.length + 1).fill(0n);
+    const stoppedRow: bigint[] = options.byOdd ? new Array<bigint>(live.length + 1).fill(0n) : [];
+    let stopped = 0n;
+    for (let i = 0; i < live.length; i++) {
+      const c = live[i]!;
+      if (c === 0n) continue;
+      const m = lo + i;
+      if (jj >= drop[m]!) {
+        stopped += c;
+        if (options.byOdd) stoppedRow[i] = c;
+      } else {
+        next[i] = next[i]! + c;
+      }
+      next[i + 1] = next[i + 1]! + c;
+    }
+    let survivors = 0n;
+    for (const c of next) survivors += c;
+    levels.push({ depth: jj, survivors, stopped });
+    if (options.byOdd) byOdd.push({ mLow: lo, live: next.slice(), stopped: stoppedRow });
+    // Trim the zero entries at the low end so the window stays [lo, jj].
+    let cut = 0;
+    while (cut < next.length - 1 && next[cut] === 0n) cut++;
+    live = cut > 0 ? next.slice(cut) : next;
+    lo += cut;
+    if (options.onProgress && (jj & 255) === 0) options.onProgress(jj);
+  }
+  return options.byOdd ? { levels, byOdd } : { levels };
+}
+
+function bitLength(n: bigint): number {
+  return n.toString(2).length;
+}

@@ -1,0 +1,150 @@
+// Loads the AssemblyScript kernels once and wraps their numeric exports in typed calls.
+// Isomorphic: the caller supplies the compiled module (Node reads the file, the browser fetches it).
+import type { CollatzMap } from "./map.js";
+import { dropDepth } from "./map.js";
+
+/** The raw exports of build/{debug,release}.wasm (assembly/index.ts). */
+interface KernelExports {
+  readonly memory: WebAssembly.Memory;
+  reserve(bytes: number): number;
+  enumerate(
+    q: number, r: number, depth: number, mode: number, prefixBits: number, prefix: bigint,
+    tables: number, tallies: number, leaves: number, leavesCap: number, emitLeaves: number,
+    exceptions: number, exceptionsCap: number, walkTallies: number,
+  ): bigint;
+}
+
+export type Mode = "survivors" | "full";
+export const TALLY_STRIDE = 64;
+/** Leaves per streamed chunk (fixed size, as the kernel's buffer). */
+export const LEAF_CHUNK = 1 << 16;
+const EXC_CHUNK = 1 << 10;
+
+/** One shard: every class extending `prefix` mod 2^prefixBits, enumerated to `depth`. */
+export interface ShardRequest {
+  readonly q: number;
+  readonly r: number;
+  readonly depth: number;
+  readonly mode: Mode;
+  readonly prefixBits: number;
+  readonly prefix: bigint;
+  /** Stream the leaves (a, m, b) at `depth`; tallies and exceptions always come back. */
+  readonly leaves: boolean;
+  /**
+   * false: tally only levels deeper than prefixBits (the plan counted levels 0..prefixBits in a top
+   * run); true: also the ancestors this shard owns, so the 2^prefixBits shards sum to the whole run.
+   */
+  readonly walkTallies: boolean;
+}
+
+/** Leaves in struct-of-arrays form; b holds the raw 64 bits, signed when r < 0. */
+export interface LeafChunk {
+  readonly a: BigUint64Array;
+  readonly b: BigInt64Array | BigUint64Array;
+  readonly m: Uint8Array;
+}
+
+export interface ShardResult {
+  readonly nodes: bigint;
+  /** live[j * 64 + m], j = 0..depth: classes at depth j whose coefficient has not dropped below 1. */
+  readonly live: BigUint64Array;
+  /** stopped[j * 64 + m]: classes whose coefficient q^m / 2^j first drops below 1 at depth j. */
+  readonly stopped: BigUint64Array;
+  /** Dropping classes with b >= a, 4 entries each: a, b (raw bits), j, m. */
+  readonly exceptionClasses: BigUint64Array;
+}
+
+export interface KernelInstance {
+  /** Runs one shard; leaves go to `onLeaves` chunk by chunk (copies, safe to keep). */
+  enumerate(req: ShardRequest, onLeaves?: (chunk: LeafChunk) => void): ShardResult;
+}
+
+const moduleCache = new Map<string, Promise<WebAssembly.Module>>();
+
+/** Compiles wasm bytes once per key. @example await compileKernel("release", bytes) */
+export function compileKernel(key: string, bytes: BufferSource): Promise<WebAssembly.Module> {
+  let mod = moduleCache.get(key);
+  if (!mod) {
+    mod = WebAssembly.compile(bytes);
+    moduleCache.set(key, mod);
+  }
+  return mod;
+}
+
+/** Instantiates a compiled kernel module with its buffers reserved once. */
+export async function instantiateKernel(module: WebAssembly.Module): Promise<KernelInstance> {
+  let sink: ((channel: number, count: number) => void) | null = null;
+  const imports = {
+    env: {
+      flush: (channel: number, count: number) => sink?.(channel, count),
+      abort: (_msg: number, _file: number, line: number, col: number) => {
+        throw new Error(`kernel assertion failed at line ${line}:${col}`);
+      },
+    },
+  };
+  const instance = await WebAssembly.instantiate(module, imports);
+  const k = instance.exports as unknown as KernelExports;
+  const tables = k.reserve(768);
+  const tallies = k.reserve(2 * TALLY_STRIDE * TALLY_STRIDE * 8);
+  const leaves = k.reserve(LEAF_CHUNK * 17);
+  const exceptions = k.reserve(EXC_CHUNK * 32);
+
+  return {
+    enumerate(req, onLeaves) {
+      const { q, r, depth } = req;
+      const mem = k.memory.buffer;
+      const qpow = new BigUint64Array(mem, tables, 64);
+      const thr = new Int32Array(mem, tables + 512, 64);
+      const Q = BigInt(q);
+      let p = 1n;
+      for (let m = 0; m <= depth; m++) {
+        // Entries past the proven width are never read: m <= depth <= kernelDepthLimit.
+        qpow[m] = BigInt.asUintN(64, p);
+        thr[m] = dropDepth(q, m);
+        p *= Q;
+      }
+      const excParts: BigUint64Array[] = [];
+      sink = (channel, count) => {
+        const buf = k.memory.buffer;
+        if (channel === 0) {
+          if (!onLeaves) return;
+          onLeaves({
+            a: new BigUint64Array(buf, leaves, count).slice(),
+            b: (r < 0 ? new BigInt64Array(buf, leaves + LEAF_CHUNK * 8, count) : new BigUint64Array(buf, leaves + LEAF_CHUNK * 8, count)).slice(),
+            m: new Uint8Array(buf, leaves + LEAF_CHUNK * 16, count).slice(),
+          });
+        } else {
+          excParts.push(new BigUint64Array(buf, exceptions, count * 4).slice());
+        }
+      };
+      try {
+        const nodes = k.enumerate(
+          q, r, depth, req.mode === "full" ? 1 : 0, req.prefixBits, req.prefix,
+          tables, tallies, leaves, LEAF_CHUNK, req.leaves && onLeaves ? 1 : 0, exceptions, EXC_CHUNK, req.walkTallies ? 1 : 0,
+        );
+        const rows = (depth + 1) * TALLY_STRIDE;
+        const buf = k.memory.buffer;
+        return {
+          nodes: BigInt.asUintN(64, nodes),
+          live: new BigUint64Array(buf, tallies, rows).slice(),
+          stopped: new BigUint64Array(buf, tallies + TALLY_STRIDE * TALLY_STRIDE * 8, rows).slice(),
+          exceptionClasses: concatU64(excParts),
+        };
+      } finally {
+        sink = null;
+      }
+    },
+  };
+}
+
+function concatU64(parts: BigUint64Array[]): BigUint64Array {
+  const out = new BigUint64Array(parts.reduce((s, x) => s + x.length, 0));
+  let o = 0;
+  for (const x of parts) {
+    out.set(x, o);
+    o += x.length;
+  }
+  return out;
+}
+
+export type { CollatzMap };

@@ -1,0 +1,99 @@
+// The map T(n) = n/2 for even n, (q n + r)/2 for odd n, with q and r odd.
+import { LimitError, UsageError } from "./errors.js";
+
+export interface CollatzMap {
+  readonly q: number;
+  readonly r: number;
+  /** Canonical text, e.g. "3x+1", "3x-1". */
+  readonly name: string;
+}
+
+export const MAX_Q = 99;
+export const MAX_ABS_R = 2 ** 20; // exclusive
+/** The kernels index tallies by depth and odd steps in 64 x 64 tables. */
+export const MAX_KERNEL_DEPTH = 63;
+
+/**
+ * Parses "qx+r" or "qx-r" (no spaces) with q odd in [3, 99] and r odd, |r| < 2^20.
+ * @example parseMap("3x+1") // { q: 3, r: 1, name: "3x+1" }
+ */
+export function parseMap(text: string): CollatzMap {
+  const match = /^(\d+)x([+-])(\d+)$/.exec(text);
+  if (!match) {
+    throw new UsageError(`map "${text}" is not of the form qx+r or qx-r (for example 3x+1, 5x-3), without spaces`);
+  }
+  const q = Number(match[1]);
+  const absR = Number(match[3]);
+  if (!Number.isSafeInteger(q) || q < 3 || q > MAX_Q) throw new UsageError(`map "${text}": q must be between 3 and ${MAX_Q}`);
+  if (q % 2 === 0) throw new UsageError(`map "${text}": q must be odd`);
+  if (!Number.isSafeInteger(absR) || absR >= MAX_ABS_R) throw new UsageError(`map "${text}": |r| must be below 2^20`);
+  if (absR % 2 === 0) throw new UsageError(`map "${text}": r must be odd`);
+  const r = match[2] === "-" ? -absR : absR;
+  return makeMap(q, r);
+}
+
+/** Builds a map from validated parts. @example makeMap(3, 1).name // "3x+1" */
+export function makeMap(q: number, r: number): CollatzMap {
+  if (!(Number.isInteger(q) && q % 2 === 1 && q >= 3 && q <= MAX_Q)) throw new UsageError(`q = ${q}: must be odd, 3 <= q <= ${MAX_Q}`);
+  if (!(Number.isInteger(r) && Math.abs(r) % 2 === 1 && Math.abs(r) < MAX_ABS_R)) throw new UsageError(`r = ${r}: must be odd with |r| < 2^20`);
+  return { q, r, name: `${q}x${r < 0 ? "-" : "+"}${Math.abs(r)}` };
+}
+
+/** One step of the map on a BigInt. @example step(makeMap(3, 1), 7n) // 11n */
+export function step(map: CollatzMap, n: bigint): bigint {
+  return (n & 1n) === 0n ? n >> 1n : (BigInt(map.q) * n + BigInt(map.r)) >> 1n;
+}
+
+/** bitlen(q^m): the least depth j with q^m < 2^j (q^m is odd, never a power of two past m = 0). */
+export function dropDepth(q: number, m: number): number {
+  const p = BigInt(q) ** BigInt(m);
+  return p === 1n ? 1 : p.toString(2).length;
+}
+
+/**
+ * Bound on |b| over all classes a mod 2^j (0 <= a < 2^j) with m odd steps:
+ * b = (q^m a + r S) / 2^j with 0 <= S / 2^j <= E(m) = (q^m - 2^m) / ((q - 2) 2^m).
+ * Returns [lower, upper] with lower <= b and b < upper for classes of size 2^j, any j.
+ */
+function imageBounds(map: CollatzMap, m: number, scale: bigint): [bigint, bigint] {
+  const q = BigInt(map.q);
+  const qm = q ** BigInt(m);
+  const twoM = 1n << BigInt(m);
+  const den = (q - 2n) * twoM;
+  const eCeil = ((qm - twoM) + den - 1n) / den; // ceil(E(m))
+  const r = BigInt(map.r);
+  // + |r| + q covers q (v >> 1) = b' - (q + r) / 2, the product formed before H is added.
+  const upper = scale * qm + (r > 0n ? r * eCeil : 0n) + (r < 0n ? -r : r) + q + 1n;
+  const lower = r < 0n ? r * eCeil - 1n : 0n;
+  return [lower, upper];
+}
+
+/**
+ * The deepest enumeration the 64-bit kernels can run for this map without any wraparound:
+ * every image b and every intermediate T^j(a + e 2^j) = b + e q^m (bounded by 2 q^m + ...) fits
+ * u64 when r > 0 and i64 when r < 0. For 3x+1 this is 40 (3^40 < 2^64 < 3^41).
+ * @example kernelDepthLimit(makeMap(3, 1)) // 40
+ */
+export function kernelDepthLimit(map: CollatzMap): number {
+  const top = map.r > 0 ? 1n << 64n : 1n << 63n;
+  const bottom = map.r > 0 ? 0n : -(1n << 63n);
+  let depth = 0;
+  for (let k = 1; k <= MAX_KERNEL_DEPTH; k++) {
+    // depth k needs images with m <= k, and intermediates with m <= k - 1 at scale 2.
+    const [lo, hi] = imageBounds(map, k, 1n);
+    const [lo2, hi2] = imageBounds(map, k - 1, 2n);
+    if (hi > top || hi2 > top || lo < bottom || lo2 < bottom) break;
+    depth = k;
+  }
+  return depth;
+}
+
+/** Refuses a depth the 64-bit kernels cannot run exactly. */
+export function checkKernelDepth(map: CollatzMap, depth: number): void {
+  const limit = kernelDepthLimit(map);
+  if (depth > limit) {
+    throw new LimitError(
+      `depth ${depth} is beyond the exact 64-bit range for ${map.name} (at most ${limit}: q^m and the class images must fit ${map.r > 0 ? "u64" : "i64"}); no wider kernel path exists yet`,
+    );
+  }
+}

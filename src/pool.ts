@@ -1,0 +1,115 @@
+// The worker pool: shards by residue prefix, runs them on N workers through comlink, hands each
+// result to the caller as it arrives, reports progress and cancels by terminating the workers.
+// Isomorphic: the caller passes a spawner (worker_threads in Node, Web Workers in the browser).
+import { releaseProxy, wrap } from "comlink";
+import type { Endpoint, Remote } from "comlink";
+import type { ShardRequest } from "./kernel.js";
+import type { KernelWorkerApi, ShardOutput } from "./messages.js";
+
+export interface WorkerHandle {
+  readonly endpoint: Endpoint;
+  terminate(): void;
+}
+export type SpawnWorker = () => WorkerHandle;
+
+export class CancelledError extends Error {
+  override name = "CancelledError";
+  constructor() {
+    super("run cancelled");
+  }
+}
+
+interface Slot {
+  readonly handle: WorkerHandle;
+  readonly api: Remote<KernelWorkerApi>;
+  ready: Promise<void>;
+}
+
+export interface RunOptions {
+  readonly signal?: AbortSignal;
+  /** Called after each shard with (shards done, shards in all). */
+  readonly onProgress?: (done: number, total: number) => void;
+}
+
+/**
+ * A fixed-size pool of kernel workers.
+ * @example const pool = new KernelPool(spawn, module, 2); await pool.run(shards, (req, out) => merge(out));
+ */
+export class KernelPool {
+  private slots: Slot[] = [];
+  private busy = false;
+
+  constructor(
+    private readonly spawn: SpawnWorker,
+    readonly module: WebAssembly.Module,
+    readonly size: number,
+  ) {
+    if (!Number.isInteger(size) || size < 1) throw new RangeError("pool size must be a positive integer");
+  }
+
+  private ensureSlots(): Slot[] {
+    while (this.slots.length < this.size) {
+      const handle = this.spawn();
+      const api = wrap<KernelWorkerApi>(handle.endpoint);
+      this.slots.push({ handle, api, ready: api.init(this.module) });
+    }
+    return this.slots;
+  }
+
+  /** Runs every shard; `onResult` sees each shard's output once, in completion order. */
+  async run(shards: readonly ShardRequest[], onResult: (req: ShardRequest, out: ShardOutput) => void, options: RunOptions = {}): Promise<void> {
+    if (this.busy) throw new Error("pool is already running");
+    this.busy = true;
+    const { signal, onProgress } = options;
+    let next = 0;
+    let done = 0;
+    let failure: unknown = null;
+    let cancel: () => void = () => {};
+    const cancelled = new Promise<never>((_, reject) => {
+      cancel = () => reject(new CancelledError());
+    });
+    cancelled.catch(() => {});
+    const onAbort = () => {
+      this.terminate();
+      cancel();
+    };
+    try {
+      if (signal?.aborted) throw new CancelledError();
+      signal?.addEventListener("abort", onAbort);
+      const slots = this.ensureSlots();
+      const loop = async (slot: Slot) => {
+        await slot.ready;
+        while (failure === null && next < shards.length) {
+          const req = shards[next++]!;
+          const out = await slot.api.runShard(req);
+          onResult(req, out);
+          done++;
+          onProgress?.(done, shards.length);
+        }
+      };
+      const loops = slots.map((s) =>
+        loop(s).catch((e: unknown) => {
+          failure ??= e;
+        }),
+      );
+      await Promise.race([Promise.all(loops), cancelled]);
+      if (failure !== null) {
+        // A worker that failed may be in any state: replace them all before the next run.
+        this.terminate();
+        throw failure;
+      }
+    } finally {
+      signal?.removeEventListener("abort", onAbort);
+      this.busy = false;
+    }
+  }
+
+  /** Stops every worker at once; the next run spawns fresh ones. */
+  terminate(): void {
+    for (const s of this.slots) {
+      s.api[releaseProxy]();
+      s.handle.terminate();
+    }
+    this.slots = [];
+  }
+}

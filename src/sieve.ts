@@ -1,0 +1,155 @@
+// The sieve mod 2^K: plan shards by residue prefix, run them on the pool, merge the tallies,
+// expand the exceptions. One-shot (`runSieve`) and per-shard results agree by construction:
+// the top levels 0..d are counted once by a top run, each live prefix at depth d is one shard.
+import type { CollatzMap } from "./map.js";
+import { checkKernelDepth } from "./map.js";
+import { exactCounts } from "./exact.js";
+import type { Level } from "./exact.js";
+import { instantiateKernel, TALLY_STRIDE } from "./kernel.js";
+import type { KernelInstance, LeafChunk, Mode, ShardRequest, ShardResult } from "./kernel.js";
+import type { KernelPool, RunOptions } from "./pool.js";
+import { decodeExceptionClasses, expandExceptions } from "./exceptions.js";
+import type { ExceptionClass, SieveException } from "./exceptions.js";
+import { UsageError } from "./errors.js";
+
+export interface SieveRequest {
+  readonly map: CollatzMap;
+  readonly depth: number;
+  readonly mode: Mode;
+  /** Receives the leaves at `depth` (survivors, or all 2^depth classes in full mode), shard by shard. */
+  readonly onLeaves?: (chunk: LeafChunk) => void;
+  /** Most exceptions listed (the count is always exact). */
+  readonly exceptionLimit?: number;
+}
+
+export interface SieveResult {
+  readonly map: CollatzMap;
+  readonly depth: number;
+  readonly mode: Mode;
+  readonly levels: Level[];
+  /** live[j][m] and stopped[j][m], m = 0..j. */
+  readonly live: bigint[][];
+  readonly stopped: bigint[][];
+  readonly exceptionClasses: ExceptionClass[];
+  readonly exceptions: SieveException[];
+  readonly exceptionCount: bigint;
+  readonly nodes: bigint;
+  readonly shards: number;
+  readonly seconds: number;
+}
+
+/** Live classes per shard and nodes per shard that the plan aims below. */
+const SHARD_NODES = 2n ** 22n;
+const SHARD_LEAVES = 2n ** 18n;
+const MAX_PREFIX_BITS = 20;
+
+/**
+ * The prefix depth d: the least d with at least 16 live prefixes per worker and shards of bounded
+ * size, using the exact counter's survivor counts (full mode: 2^d prefixes).
+ */
+export function choosePrefixBits(map: CollatzMap, depth: number, mode: Mode, workers: number, withLeaves: boolean): number {
+  const levels = exactCounts(map, depth).levels;
+  const live = (d: number) => (mode === "full" ? 1n << BigInt(d) : levels[d]!.survivors);
+  const nodes = mode === "full" ? (1n << BigInt(depth + 1)) - 1n : levels.reduce((s, l) => s + l.survivors, 0n);
+  const leaves = live(depth);
+  const top = Math.min(depth, MAX_PREFIX_BITS);
+  for (let d = 0; d < top; d++) {
+    const n = live(d);
+    if (n === 0n) return d;
+    if (n >= BigInt(16 * workers) && nodes / n <= SHARD_NODES && (!withLeaves || leaves / n <= SHARD_LEAVES)) return d;
+  }
+  return top;
+}
+
+/**
+ * Runs the sieve on the pool (the top levels on this thread's own kernel instance).
+ * @example const res = await runSieve(pool, { map: parseMap("3x+1"), depth: 30, mode: "survivors" });
+ */
+export async function runSieve(pool: KernelPool, req: SieveRequest, options: RunOptions = {}): Promise<SieveResult> {
+  const { map, depth, mode } = req;
+  if (!Number.isInteger(depth) || depth < 0) throw new UsageError("depth must be a non-negative integer");
+  checkKernelDepth(map, depth);
+  const started = performance.now();
+  const d = choosePrefixBits(map, depth, mode, pool.size, req.onLeaves !== undefined);
+  const kernel = await mainKernel(pool.module);
+
+  const base = { q: map.q, r: map.r, depth, mode } as const;
+  // Top run: levels 0..d exactly, and the live prefixes at depth d as its leaves.
+  const prefixes: bigint[] = [];
+  const top = kernel.enumerate({ ...base, depth: d, prefixBits: 0, prefix: 0n, leaves: true, walkTallies: true }, (c) => {
+    if (d === depth) req.onLeaves?.(c);
+    for (const a of c.a) prefixes.push(a);
+  });
+  const merged = new Merger(depth, map.r < 0);
+  merged.add(top, d);
+
+  if (d < depth) {
+    const shards: ShardRequest[] = prefixes.map((prefix) => ({ ...base, prefixBits: d, prefix, leaves: req.onLeaves !== undefined, walkTallies: false }));
+    await pool.run(
+      shards,
+      (_shard, out) => {
+        merged.add(out, depth);
+        if (out.leaves) req.onLeaves?.(out.leaves);
+      },
+      options,
+    );
+  }
+  const { list, count } = expandExceptions(map, merged.exceptionClasses, req.exceptionLimit);
+  return {
+    map, depth, mode,
+    ...merged.tables(),
+    exceptionClasses: merged.exceptionClasses,
+    exceptions: list,
+    exceptionCount: count,
+    nodes: merged.nodes,
+    shards: d < depth ? prefixes.length : 0,
+    seconds: (performance.now() - started) / 1000,
+  };
+}
+
+let mainInstance: { module: WebAssembly.Module; kernel: Promise<KernelInstance> } | null = null;
+function mainKernel(module: WebAssembly.Module): Promise<KernelInstance> {
+  if (mainInstance?.module !== module) mainInstance = { module, kernel: instantiateKernel(module) };
+  return mainInstance.kernel;
+}
+
+/** Sums shard tallies exactly: every sum is a class count at most 2^depth <= 2^63 (no u64 wrap). */
+class Merger {
+  readonly live: BigUint64Array;
+  readonly stopped: BigUint64Array;
+  readonly exceptionClasses: ExceptionClass[] = [];
+  nodes = 0n;
+
+  constructor(
+    private readonly depth: number,
+    private readonly signed: boolean,
+  ) {
+    this.live = new BigUint64Array((depth + 1) * TALLY_STRIDE);
+    this.stopped = new BigUint64Array((depth + 1) * TALLY_STRIDE);
+  }
+
+  /** Adds a shard's rows 0..rows (shorter for the top run). */
+  add(res: ShardResult, rows: number): void {
+    const n = (rows + 1) * TALLY_STRIDE;
+    for (let i = 0; i < n; i++) {
+      this.live[i] = this.live[i]! + res.live[i]!;
+      this.stopped[i] = this.stopped[i]! + res.stopped[i]!;
+    }
+    this.nodes += res.nodes;
+    this.exceptionClasses.push(...decodeExceptionClasses(res.exceptionClasses, this.signed));
+  }
+
+  tables(): { levels: Level[]; live: bigint[][]; stopped: bigint[][] } {
+    const levels: Level[] = [];
+    const live: bigint[][] = [];
+    const stopped: bigint[][] = [];
+    for (let j = 0; j <= this.depth; j++) {
+      const row = Array.from(this.live.subarray(j * TALLY_STRIDE, j * TALLY_STRIDE + j + 1));
+      const srow = Array.from(this.stopped.subarray(j * TALLY_STRIDE, j * TALLY_STRIDE + j + 1));
+      live.push(row);
+      stopped.push(srow);
+      levels.push({ depth: j, survivors: row.reduce((s, x) => s + x, 0n), stopped: srow.reduce((s, x) => s + x, 0n) });
+    }
+    return { levels, live, stopped };
+  }
+}

@@ -1,0 +1,46 @@
+// The worker side of the pool, isomorphic: Node's entry (src/cli/node-worker.ts) and the browser's
+// expose this same object through comlink on their own endpoints.
+import { transfer } from "comlink";
+import { instantiateKernel } from "./kernel.js";
+import type { KernelInstance, LeafChunk } from "./kernel.js";
+import type { KernelWorkerApi, ShardOutput } from "./messages.js";
+
+/** @example expose(createWorkerApi(), endpoint) */
+export function createWorkerApi(): KernelWorkerApi {
+  let kernel: KernelInstance | null = null;
+  return {
+    async init(module) {
+      kernel = await instantiateKernel(module);
+    },
+    async runShard(req) {
+      if (!kernel) throw new Error("worker used before init");
+      const chunks: LeafChunk[] = [];
+      const res = kernel.enumerate(req, req.leaves ? (c) => chunks.push(c) : undefined);
+      const out: ShardOutput = req.leaves ? { ...res, leaves: concatLeaves(chunks, req.r < 0) } : res;
+      const buffers: ArrayBuffer[] = [res.live.buffer, res.stopped.buffer, res.exceptionClasses.buffer].map(asArrayBuffer);
+      if (out.leaves) buffers.push(...[out.leaves.a.buffer, out.leaves.b.buffer, out.leaves.m.buffer].map(asArrayBuffer));
+      return transfer(out, buffers);
+    },
+  };
+}
+
+function asArrayBuffer(b: ArrayBufferLike): ArrayBuffer {
+  return b as ArrayBuffer;
+}
+
+/** Joins streamed chunks into one struct-of-arrays. */
+export function concatLeaves(chunks: LeafChunk[], signed: boolean): LeafChunk {
+  const n = chunks.reduce((s, c) => s + c.a.length, 0);
+  const a = new BigUint64Array(n);
+  const b = signed ? new BigInt64Array(n) : new BigUint64Array(n);
+  const m = new Uint8Array(n);
+  let o = 0;
+  for (const c of chunks) {
+    a.set(c.a, o);
+    if (b instanceof BigInt64Array) b.set(c.b as BigInt64Array, o);
+    else b.set(c.b as BigUint64Array, o);
+    m.set(c.m, o);
+    o += c.a.length;
+  }
+  return { a, b, m };
+}
