@@ -12,7 +12,7 @@ export function toExactJson(value: unknown, indent?: number): string {
 export function parseExactJson(text: string): unknown {
   // Wrap bare integers outside strings in a tagged string, then revive them.
   const tagged = text.replace(/"(?:[^"\\]|\\.)*"|-?\d+(?:\.\d+)?(?:[eE][+-]?\d+)?/g, (tok) =>
-    tok.startsWith('"') || /[.eE]/.test(tok) ? tok : `"${TAG}${tok}"`,
+    tok.startsWith('"') || /[.eE]/.test(tok) ? tok : `"\\u0000bigint:${tok}"`,
   );
   return JSON.parse(tagged, (_k, v: unknown) => (typeof v === "string" && v.startsWith(TAG) ? BigInt(v.slice(TAG.length)) : v));
 }
