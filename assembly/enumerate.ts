@@ -77,42 +77,68 @@ function pushException(a: u64, b: u64, j: i32, m: i32): void {
 function visit<T>(a: u64, b: T, m: i32, j: i32, alive: bool): void {
   if (j == K) {
     if (emit) pushLeaf(a, <u64>b, m);
+  } else if (alive) {
+    dfsLive<T>(a, b, m, j);
   } else {
-    dfs<T>(a, b, m, j, alive);
+    dfsDropped<T>(a, b, m, j);
   }
 }
 
-function dfs<T>(a: u64, b: T, m: i32, j: i32, alive: bool): void {
+/** Below a live class: tallies, the drop test, exceptions; survivors mode cuts dropped classes. */
+function dfsLive<T>(a: u64, b: T, m: i32, j: i32): void {
+  // children: e0 is the extension bit that makes the next value even (the Terras construction)
   const pm = <T>qpow(m);
-  const e0 = b & <T>1; // the extension bit that makes the next value even
+  const e0 = b & <T>1;
   const aEven = a | (<u64>e0 << j);
   const aOdd = aEven ^ ((<u64>1) << j);
   const bEven = (b + select<T>(pm, <T>0, e0 != 0)) >> 1;
-  const vOdd = b + select<T>(<T>0, pm, e0 != 0);
-  const bOdd = <T>Q * (vOdd >> 1) + <T>H;
+  const bOdd = <T>Q * ((b + select<T>(<T>0, pm, e0 != 0)) >> 1) + <T>H;
   const jj = j + 1;
   const last = jj == K;
-  nodes += 2;
-  if (alive && jj >= dropDepth(m)) {
+  if (jj >= dropDepth(m)) {
     tally(stoppedPtr, jj, m);
     if (bEven >= <T>aEven) pushException(aEven, <u64>bEven, jj, m);
-    if (!full) nodes--; // a cut class is not a visited node in survivors mode
     if (full) {
+      nodes++;
       if (last) {
         if (emit) pushLeaf(aEven, <u64>bEven, m);
-      } else dfs<T>(aEven, bEven, m, jj, false);
+      } else dfsDropped<T>(aEven, bEven, m, jj);
     }
   } else {
-    if (alive) tally(livePtr, jj, m);
+    nodes++;
+    tally(livePtr, jj, m);
     if (last) {
       if (emit) pushLeaf(aEven, <u64>bEven, m);
-    } else dfs<T>(aEven, bEven, m, jj, alive);
+    } else dfsLive<T>(aEven, bEven, m, jj);
   }
   // An odd step never drops a live class: q^m >= 2^j implies q^(m+1) > 2^(j+1).
-  if (alive) tally(livePtr, jj, m + 1);
+  nodes++;
+  tally(livePtr, jj, m + 1);
   if (last) {
     if (emit) pushLeaf(aOdd, <u64>bOdd, m + 1);
-  } else dfs<T>(aOdd, bOdd, m + 1, jj, alive);
+  } else dfsLive<T>(aOdd, bOdd, m + 1, jj);
+}
+
+/** Full mode below a dropped class: every vector is still visited, nothing more is tallied. */
+function dfsDropped<T>(a: u64, b: T, m: i32, j: i32): void {
+  // children: e0 is the extension bit that makes the next value even (the Terras construction)
+  const pm = <T>qpow(m);
+  const e0 = b & <T>1;
+  const aEven = a | (<u64>e0 << j);
+  const aOdd = aEven ^ ((<u64>1) << j);
+  const bEven = (b + select<T>(pm, <T>0, e0 != 0)) >> 1;
+  const bOdd = <T>Q * ((b + select<T>(<T>0, pm, e0 != 0)) >> 1) + <T>H;
+  const jj = j + 1;
+  nodes += 2;
+  if (jj == K) {
+    if (emit) {
+      pushLeaf(aEven, <u64>bEven, m);
+      pushLeaf(aOdd, <u64>bOdd, m + 1);
+    }
+  } else {
+    dfsDropped<T>(aEven, bEven, m, jj);
+    dfsDropped<T>(aOdd, bOdd, m + 1, jj);
+  }
 }
 
 function run<T>(prefixBits: i32, prefix: u64, walkTallies: bool): void {

@@ -33,7 +33,7 @@ export async function kernelBuildId(flavour: Flavour = "release"): Promise<strin
 const workerUrl = new URL("../../lib/cli/node-worker.js", import.meta.url);
 
 export const spawnNodeWorker: SpawnWorker = () => {
-  const w = new Worker(workerUrl);
+  const w = new Worker(workerUrl, { execArgv: [] }); // plain JS: no loaders or -e flags of the parent
   w.unref();
   return { endpoint: nodeEndpoint(w), terminate: () => void w.terminate() };
 };

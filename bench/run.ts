@@ -1,0 +1,75 @@
+// npm run bench: figures, not pass/fail. Kernel throughput (1 worker and all cores), the plain
+// TypeScript baseline, the exact counter at depth 10,000 and the peak memory of a depth-34 export.
+import { spawnSync } from "node:child_process";
+import { availableParallelism, cpus, tmpdir } from "node:os";
+import { mkdtempSync, rmSync, writeFileSync } from "node:fs";
+import { join } from "node:path";
+import { parseMap } from "../src/map.js";
+import { exactCounts } from "../src/exact.js";
+import { runSieve } from "../src/sieve.js";
+import type { Mode } from "../src/kernel.js";
+import { nodePool } from "../src/cli/node-kernel.js";
+import { enumeratePlain } from "./ts-enumerate.js";
+
+const map = parseMap("3x+1");
+const cores = availableParallelism();
+console.log(`machine: ${cpus()[0]?.model ?? "unknown cpu"}, ${cores} cores, node ${process.version}`);
+
+const rows: string[][] = [["what", "workers", "nodes", "seconds", "M nodes/s"]];
+const rate = (nodes: bigint | number, s: number) => (Number(nodes) / s / 1e6).toFixed(0);
+
+async function kernelRun(mode: Mode, depth: number, workers: number): Promise<number> {
+  const pool = await nodePool(workers);
+  try {
+    await runSieve(pool, { map, depth: Math.min(depth, 24), mode }); // warm the workers and the JIT
+    const t = performance.now();
+    const res = await runSieve(pool, { map, depth, mode });
+    const s = (performance.now() - t) / 1000;
+    rows.push([`kernel ${mode} depth ${depth}`, String(workers), res.nodes.toLocaleString("en-US"), s.toFixed(3), rate(res.nodes, s)]);
+    return Number(res.nodes) / s;
+  } finally {
+    pool.terminate();
+  }
+}
+
+const perWorker: number[] = [];
+for (const depth of [32, 34, 36]) {
+  perWorker.push(await kernelRun("survivors", depth, 1));
+  if (cores > 1) await kernelRun("survivors", depth, cores);
+}
+for (const depth of [28, 30]) {
+  await kernelRun("full", depth, 1);
+  if (cores > 1) await kernelRun("full", depth, cores);
+}
+
+const plainDepth = 30;
+enumeratePlain(3, 1, 20);
+let t = performance.now();
+const plainNodes = enumeratePlain(3, 1, plainDepth);
+let s = (performance.now() - t) / 1000;
+rows.push([`plain TypeScript survivors depth ${plainDepth}`, "1", plainNodes.toLocaleString("en-US"), s.toFixed(3), rate(plainNodes, s)]);
+const plainRate = plainNodes / s;
+
+t = performance.now();
+exactCounts(map, 10_000);
+s = (performance.now() - t) / 1000;
+rows.push(["exact counter depth 10,000", "1", "-", s.toFixed(3), "-"]);
+
+const widths = rows[0]!.map((_, i) => Math.max(...rows.map((r) => r[i]!.length)));
+for (const r of rows) console.log(r.map((c, i) => (i === 0 ? c.padEnd(widths[i]!) : c.padStart(widths[i]!))).join("  "));
+const best = Math.max(...perWorker);
+console.log(`kernel / plain TypeScript (survivors, 1 worker): ${(best / plainRate).toFixed(1)}x`);
+
+// Peak memory of a depth-34 raw export (the child reports its own max RSS, worker threads included).
+const dir = mkdtempSync(join(tmpdir(), "glidepath-bench-"));
+try {
+  const out = join(dir, "s34.u64");
+  const main = new URL("../lib/cli/main.js", import.meta.url).href;
+  const script = `const { main } = await import(${JSON.stringify(main)}); const t = performance.now(); const code = await main(["sieve", "--depth", "34", "--out", ${JSON.stringify(out)}]); console.error("export " + ((performance.now() - t) / 1000).toFixed(1) + " s, peak RSS " + (process.resourceUsage().maxRSS / 1024).toFixed(0) + " MiB"); process.exitCode = code;`;
+  const child = join(dir, "export.mjs");
+  writeFileSync(child, script);
+  const report = spawnSync("node", [child], { encoding: "utf8", stdio: ["ignore", "ignore", "pipe"] }).stderr;
+  console.log(`depth-34 raw export (151,917,636 residues, u64): ${report.trim()}`);
+} finally {
+  rmSync(dir, { recursive: true, force: true });
+}
