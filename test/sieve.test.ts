@@ -110,6 +110,18 @@ describe("sieve on the pool: special", () => {
     expect(again.levels[20]!.survivors).toBe(A076227[20]);
   });
 
+  it("a worker that fails rejects the run with a real Error, and the pool recovers (debug build assertions)", async () => {
+    const debugPool = await nodePool(2, "debug");
+    try {
+      const bad = { q: 3, r: 1, depth: 10, mode: "survivors" as const, prefixBits: 2, prefix: 7n, leaves: false, walkTallies: false };
+      await expect(debugPool.run([bad], () => {})).rejects.toThrow(/kernel assertion failed/);
+      const ok = await runSieve(debugPool, { map: parseMap("3x+1"), depth: 16, mode: "survivors" });
+      expect(ok.levels[16]!.survivors).toBe(A076227[16]);
+    } finally {
+      debugPool.terminate();
+    }
+  });
+
   // Width boundaries: 3^40 < 2^64 < 3^41 and 5^27 < 2^64 < 5^28 (common practice).
   for (const [text, limit] of [["3x+1", 40], ["5x+1", 27], ["3x-1", null], ["3x+5", null]] as const) {
     it(`${text}: the deepest exact depth runs the extreme all-odd classes exactly; one deeper is refused`, async () => {

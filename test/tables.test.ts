@@ -1,0 +1,75 @@
+// Sorting class tables in bounded memory: buckets, passes and the u64 path, against a plain sort.
+import { describe, expect, it } from "vitest";
+import { passPlan, ResidueSorter } from "../src/tables.js";
+import { radixSortU32 } from "../src/sort.js";
+import type { LeafChunk } from "../src/kernel.js";
+import { parseMap } from "../src/map.js";
+import { runSieve } from "../src/sieve.js";
+import { nodePool } from "../src/cli/node-kernel.js";
+import { toExactJson, parseExactJson } from "../src/json.js";
+import { sortBig } from "./helpers.js";
+
+function chunkOf(residues: bigint[]): LeafChunk {
+  return { a: BigUint64Array.from(residues), b: new BigUint64Array(residues.length), m: new Uint8Array(residues.length) };
+}
+
+function drain(s: ResidueSorter, wide: boolean): bigint[] {
+  const out: bigint[] = [];
+  for (const part of s.sorted()) {
+    if (!wide) for (const x of part) out.push(BigInt(x));
+    else for (let i = 0; i < part.length; i += 2) out.push((BigInt(part[i + 1]!) << 32n) + BigInt(part[i]!));
+  }
+  return out;
+}
+
+describe("tables: sorting", () => {
+  it("radix sort equals a comparison sort (sanity)", () => {
+    const xs = new Uint32Array(100_000);
+    let s = 12345;
+    for (let i = 0; i < xs.length; i++) xs[i] = s = (Math.imul(s, 1103515245) + 12345) >>> 0; // a fixed LCG stream
+    const expected = Array.from(xs).sort((a, b) => a - b);
+    expect(Array.from(radixSortU32(xs))).toEqual(expected);
+  });
+
+  it("3x+1 survivors mod 2^24 lifted to 34 bits sort as a BigInt sort does, in one pass or three (u64 path, special)", async () => {
+    // Real survivor residues streamed in tree order, lifted to 34 bits.
+    const pool = await nodePool(1);
+    try {
+      const leaves: bigint[] = [];
+      const chunks: LeafChunk[] = [];
+      const res = await runSieve(pool, { map: parseMap("3x+1"), depth: 24, mode: "survivors", onLeaves: (c) => chunks.push(c) });
+      for (const c of chunks) for (const a of c.a) leaves.push(a);
+      expect(BigInt(leaves.length)).toBe(res.levels[24]!.survivors);
+      // lift to 34 bits: a + 2^24 t for several t (distinct values above 2^32 when t is large)
+      const lifted = leaves.flatMap((a) => [a, a + (1023n << 24n), a + (777n << 24n)]);
+      const one = new ResidueSorter(34, 10, 0, 1024);
+      one.add(chunkOf(lifted));
+      expect(drain(one, true)).toEqual(sortBig(lifted.slice()));
+      // in three passes over bucket ranges: the concatenation is the same list
+      const passes = [0, 341, 682, 1024];
+      const joined: bigint[] = [];
+      for (let p = 0; p < 3; p++) {
+        const s = new ResidueSorter(34, 10, passes[p]!, passes[p + 1]!);
+        s.add(chunkOf(lifted));
+        for (const x of drain(s, true)) joined.push(x);
+      }
+      expect(joined).toEqual(sortBig(lifted.slice()));
+    } finally {
+      pool.terminate();
+    }
+  });
+
+  it("pass plans keep 4 bytes a row under the budget (depth 34: one pass at 768 MiB; depth 36: several)", () => {
+    expect(passPlan(34, 151_917_636n)).toEqual({ bucketBits: 10, passes: 1 });
+    expect(passPlan(36, 527_682_754n).passes).toBe(3);
+    expect(passPlan(5, 4n)).toEqual({ bucketBits: 5, passes: 1 });
+  });
+});
+
+describe("json: exact integers", () => {
+  it("writes BigInt as bare digits and reads them back exactly (special: 2^70, negative)", () => {
+    const text = toExactJson({ n: 2n ** 70n, m: -5n, s: "a\"b", f: 0.5 });
+    expect(text).toBe('{"n":1180591620717411303424,"m":-5,"s":"a\\"b","f":0.5}');
+    expect(parseExactJson(text)).toEqual({ n: 2n ** 70n, m: -5n, s: 'a"b', f: 0.5 });
+  });
+});
