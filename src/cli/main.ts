@@ -2,6 +2,7 @@
 import { LimitError, UsageError } from "../errors.js";
 import { countsCommand, COUNTS_USAGE } from "./counts.js";
 import { removePendingFiles } from "./files.js";
+import { classCommand, CLASS_USAGE, periodicCommand, PERIODIC_USAGE } from "./inspect.js";
 import { sieveCommand, SIEVE_USAGE } from "./sieve.js";
 import { toolVersion } from "./version.js";
 
@@ -12,6 +13,11 @@ const HELP = `glidepath ${"{version}"}: parity vectors, residue-class sieves and
       kernel in worker threads); report survivors, stopped classes and exceptions; export the table
   ${COUNTS_USAGE}
       the same counts by exact dynamic programming (BigInt), any depth up to 10,000
+  ${CLASS_USAGE}
+      the class card: residue, parity word, affine form T^k(a + 2^k x) = q^m x + b, stopping times,
+      2-adic digits; for a number, its trajectory to the cycle it reaches
+  ${PERIODIC_USAGE}
+      the 2-adic point whose parity vector is w (or u then w) repeated forever, and its cycle
 
 Maps are written qx+r or qx-r with q odd (3..99) and r odd, |r| < 2^20; the default is 3x+1.
 Exit codes: 0 done, 1 failed at run time, 2 bad usage.
@@ -32,6 +38,12 @@ export async function main(argv: string[]): Promise<number> {
         return 0;
       case "counts":
         countsCommand(rest);
+        return 0;
+      case "class":
+        classCommand(rest);
+        return 0;
+      case "periodic":
+        periodicCommand(rest);
         return 0;
       case "help":
       case "--help":

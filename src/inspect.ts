@@ -1,0 +1,85 @@
+// The class inspector: one input (parity word, number, or residue a mod 2^k) to a class card.
+import type { CollatzMap } from "./map.js";
+import { UsageError } from "./errors.js";
+import { classFromResidue, classFromWord, digitsOf, iterate, MAX_INSPECT_STEPS, parityWord, trajectory } from "./padic.js";
+import type { ClassForm, Trajectory } from "./padic.js";
+
+export type InspectInput =
+  | { readonly kind: "word"; readonly word: string }
+  | { readonly kind: "number"; readonly n: bigint }
+  | { readonly kind: "residue"; readonly a: bigint; readonly k: number };
+
+/**
+ * Reads "w:1101000" (a parity word, first step first), "27" (a number, any size, may be negative)
+ * or "27 mod 2^5" / "27 mod 32" (a residue class).
+ * @example parseInspectInput("3 mod 16") // { kind: "residue", a: 3n, k: 4 }
+ */
+export function parseInspectInput(text: string): InspectInput {
+  const t = text.trim().replace(/\s+/g, " ");
+  let m = /^w:(.*)$/.exec(t);
+  if (m) return { kind: "word", word: m[1]! };
+  m = /^(\d+) mod (?:2\^(\d+)|(\d+))$/.exec(t);
+  if (m) {
+    let k: number;
+    if (m[2] !== undefined) k = Number(m[2]);
+    else {
+      const mod = BigInt(m[3]!);
+      if (mod < 2n || (mod & (mod - 1n)) !== 0n) throw new UsageError(`modulus ${m[3]} is not a power of two (write a mod 2^k)`);
+      k = mod.toString(2).length - 1;
+    }
+    return { kind: "residue", a: BigInt(m[1]!), k };
+  }
+  if (/^-?\d+$/.test(t)) return { kind: "number", n: BigInt(t) };
+  throw new UsageError(`cannot read "${text}": give a number (27), a residue (27 mod 2^5) or a parity word (w:1101000)`);
+}
+
+export interface ClassCard {
+  readonly form: ClassForm;
+  /** The least member's own trajectory facts within the word's length. */
+  readonly leastMember: { readonly n: bigint; readonly descent: number | null; readonly imageAtStop: bigint | null };
+}
+
+export interface NumberCard {
+  readonly n: bigint;
+  readonly trajectory: Trajectory;
+  /** The class given by the first min(steps, 64+) parities: its coefficient stopping time. */
+  readonly form: ClassForm | null;
+}
+
+export type Card = { readonly kind: "class"; readonly card: ClassCard } | { readonly kind: "number"; readonly card: NumberCard };
+
+function classCard(form: ClassForm): ClassCard {
+  const n = form.residue;
+  let descent: number | null = null;
+  let v = n;
+  for (let j = 1; j <= form.k && n > 0n; j++) {
+    v = iterate(form.map, v, 1);
+    if (v < n) {
+      descent = j;
+      break;
+    }
+  }
+  const imageAtStop = form.stoppingTime === null ? null : iterate(form.map, n, form.stoppingTime);
+  return { form, leastMember: { n, descent, imageAtStop } };
+}
+
+/**
+ * The card for an input: a class (word or residue) or a number's trajectory, `steps` at most.
+ * @example inspect(parseMap("3x+1"), parseInspectInput("3 mod 16")).card.form.stoppingTime // 4
+ */
+export function inspect(map: CollatzMap, input: InspectInput, steps = MAX_INSPECT_STEPS): Card {
+  if (!Number.isInteger(steps) || steps < 1 || steps > MAX_INSPECT_STEPS) throw new UsageError(`steps must be between 1 and ${MAX_INSPECT_STEPS}`);
+  switch (input.kind) {
+    case "word":
+      return { kind: "class", card: classCard(classFromWord(map, input.word)) };
+    case "residue":
+      return { kind: "class", card: classCard(classFromResidue(map, input.a, input.k)) };
+    case "number": {
+      const t = trajectory(map, input.n, steps);
+      const form = t.steps > 0 ? classFromWord(map, parityWord(map, input.n, t.steps)) : null;
+      return { kind: "number", card: { n: input.n, trajectory: t, form } };
+    }
+  }
+}
+
+export { digitsOf };
