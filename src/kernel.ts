@@ -12,6 +12,10 @@ interface KernelExports {
     tables: number, tallies: number, leaves: number, leavesCap: number, emitLeaves: number,
     exceptions: number, exceptionsCap: number, walkTallies: number,
   ): bigint;
+  cycleSearch(
+    q: number, r: number, depth: number, wide: number, prefixBits: number, prefix: bigint,
+    tables: number, dTable: number, candidates: number, candidatesCap: number, walkTallies: number,
+  ): bigint;
 }
 
 export type Mode = "survivors" | "full";
@@ -54,9 +58,29 @@ export interface ShardResult {
   readonly exceptionClasses: BigUint64Array;
 }
 
+/** One shard of the cycle search: every node of depth 1..depth below the prefix is a candidate. */
+export interface CycleShard {
+  readonly q: number;
+  readonly r: number;
+  readonly depth: number;
+  /** Signed 128-bit arithmetic (the host proved 64 bits insufficient and 128 sufficient). */
+  readonly wide: boolean;
+  readonly prefixBits: number;
+  readonly prefix: bigint;
+  readonly walkTallies: boolean;
+}
+
+export interface CycleShardResult {
+  readonly nodes: bigint;
+  /** 4 u64 per candidate: a, b low word, b high word (b signed 128-bit), (j << 32) | m. */
+  readonly candidates: BigUint64Array;
+}
+
 export interface KernelInstance {
   /** Runs one shard; leaves go to `onLeaves` chunk by chunk (copies, safe to keep). */
   enumerate(req: ShardRequest, onLeaves?: (chunk: LeafChunk) => void): ShardResult;
+  /** Runs one shard of the cycle search. */
+  cycles(req: CycleShard): CycleShardResult;
 }
 
 const moduleCache = new Map<string, Promise<WebAssembly.Module>>();
@@ -88,6 +112,9 @@ export async function instantiateKernel(module: WebAssembly.Module): Promise<Ker
   const tallies = k.reserve(2 * TALLY_STRIDE * TALLY_STRIDE * 8);
   const leaves = k.reserve(LEAF_CHUNK * 17);
   const exceptions = k.reserve(EXC_CHUNK * 32);
+  const qTables = k.reserve(1024);
+  const dTable = k.reserve(TALLY_STRIDE * TALLY_STRIDE * 32);
+  let dTableKey = "";
 
   return {
     enumerate(req, onLeaves) {
@@ -134,7 +161,61 @@ export async function instantiateKernel(module: WebAssembly.Module): Promise<Ker
         sink = null;
       }
     },
+
+    cycles(req) {
+      const { q, r, depth, wide } = req;
+      const key = `${q},${depth},${wide}`;
+      if (key !== dTableKey) {
+        writeCycleTables(k.memory.buffer, qTables, dTable, q, depth, wide ? 128 : 64);
+        dTableKey = key;
+      }
+      const parts: BigUint64Array[] = [];
+      sink = (channel, count) => {
+        if (channel === 2) parts.push(new BigUint64Array(k.memory.buffer, exceptions, count * 4).slice());
+      };
+      try {
+        const nodes = k.cycleSearch(q, r, depth, wide ? 1 : 0, req.prefixBits, req.prefix, qTables, dTable, exceptions, EXC_CHUNK, req.walkTallies ? 1 : 0);
+        return { nodes: BigInt.asUintN(64, nodes), candidates: concatU64(parts) };
+      } finally {
+        sink = null;
+      }
+    },
   };
+}
+
+/**
+ * q^m as two u64 words, and per (j, m) with 1 <= j <= depth the exact divisibility data for
+ * |D| = |2^j - q^m| (odd): its inverse mod 2^w and floor((2^w - 1) / |D|), low word then high word.
+ */
+function writeCycleTables(mem: ArrayBuffer, qTables: number, dTable: number, q: number, depth: number, w: 64 | 128): void {
+  const lo = new BigUint64Array(mem, qTables, 64);
+  const hi = new BigUint64Array(mem, qTables + 512, 64);
+  const d = new BigUint64Array(mem, dTable, TALLY_STRIDE * TALLY_STRIDE * 4);
+  const mask64 = (1n << 64n) - 1n;
+  const mod = 1n << BigInt(w);
+  let p = 1n;
+  for (let m = 0; m <= depth; m++) {
+    lo[m] = p & mask64;
+    hi[m] = (p >> 64n) & mask64;
+    p *= BigInt(q);
+  }
+  for (let j = 1; j <= depth; j++) {
+    let qm = 1n;
+    for (let m = 0; m <= j; m++) {
+      let D = (1n << BigInt(j)) - qm;
+      if (D < 0n) D = -D;
+      let inv = 1n; // Newton: each step doubles the correct low bits of D^-1 mod 2^w
+      for (let bits = 1; bits < w; bits *= 2) inv = (inv * (2n - D * inv)) % mod;
+      inv = ((inv % mod) + mod) % mod;
+      const lim = (mod - 1n) / D;
+      const at = ((j << 6) + m) * 4;
+      d[at] = inv & mask64;
+      d[at + 1] = inv >> 64n;
+      d[at + 2] = lim & mask64;
+      d[at + 3] = lim >> 64n;
+      qm *= BigInt(q);
+    }
+  }
 }
 
 function concatU64(parts: BigUint64Array[]): BigUint64Array {

@@ -69,14 +69,16 @@ function imageBounds(map: CollatzMap, m: number, scale: bigint): [bigint, bigint
 }
 
 /**
- * The deepest enumeration the 64-bit kernels can run for this map without any wraparound:
+ * The deepest enumeration the 64-bit kernels (or, with width 128, the 128-bit path) can run for
+ * this map without any wraparound:
  * every image b and every intermediate T^j(a + e 2^j) = b + e q^m (bounded by 2 q^m + ...) fits
  * u64 when r > 0 and i64 when r < 0. For 3x+1 this is 40 (3^40 < 2^64 < 3^41).
  * @example kernelDepthLimit(makeMap(3, 1)) // 40
  */
-export function kernelDepthLimit(map: CollatzMap): number {
-  const top = map.r > 0 ? 1n << 64n : 1n << 63n;
-  const bottom = map.r > 0 ? 0n : -(1n << 63n);
+export function kernelDepthLimit(map: CollatzMap, width: 64 | 128 = 64): number {
+  // 64 bits: u64 when r > 0, i64 when r < 0; 128 bits: always signed (two u64 words).
+  const top = width === 128 ? 1n << 127n : map.r > 0 ? 1n << 64n : 1n << 63n;
+  const bottom = width === 128 ? -(1n << 127n) : map.r > 0 ? 0n : -(1n << 63n);
   let depth = 0;
   for (let k = 1; k <= MAX_KERNEL_DEPTH; k++) {
     // depth k needs images with m <= k, and intermediates with m <= k - 1 at scale 2.

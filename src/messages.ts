@@ -1,5 +1,5 @@
 // What crosses the worker boundary: one typed surface (comlink), plain data and typed arrays.
-import type { LeafChunk, ShardRequest, ShardResult } from "./kernel.js";
+import type { CycleShard, CycleShardResult, LeafChunk, ShardRequest, ShardResult } from "./kernel.js";
 
 export interface ShardOutput extends ShardResult {
   /** The shard's leaves at the target depth, when asked for (concatenated chunks). */
@@ -11,4 +11,5 @@ export interface KernelWorkerApi {
   /** Instantiates the kernel from a compiled module (compiled once by the pool's owner). */
   init(module: WebAssembly.Module): Promise<void>;
   runShard(req: ShardRequest): Promise<ShardOutput>;
+  runCycles(req: CycleShard): Promise<CycleShardResult>;
 }

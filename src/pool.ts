@@ -3,8 +3,7 @@
 // Isomorphic: the caller passes a spawner (worker_threads in Node, Web Workers in the browser).
 import { releaseProxy, wrap } from "comlink";
 import type { Endpoint, Remote } from "comlink";
-import type { ShardRequest } from "./kernel.js";
-import type { KernelWorkerApi, ShardOutput } from "./messages.js";
+import type { KernelWorkerApi } from "./messages.js";
 
 export interface WorkerHandle {
   readonly endpoint: Endpoint;
@@ -33,7 +32,8 @@ export interface RunOptions {
 
 /**
  * A fixed-size pool of kernel workers.
- * @example const pool = new KernelPool(spawn, module, 2); await pool.run(shards, (req, out) => merge(out));
+ * @example const pool = new KernelPool(spawn, module, 2);
+ *   await pool.run(shards, (api, s) => api.runShard(s), (s, out) => merge(out));
  */
 export class KernelPool {
   private slots: Slot[] = [];
@@ -56,8 +56,13 @@ export class KernelPool {
     return this.slots;
   }
 
-  /** Runs every shard; `onResult` sees each shard's output once, in completion order. */
-  async run(shards: readonly ShardRequest[], onResult: (req: ShardRequest, out: ShardOutput) => void, options: RunOptions = {}): Promise<void> {
+  /** Runs every task through `call` on some worker; `onResult` sees each output once, in completion order. */
+  async run<T, O>(
+    tasks: readonly T[],
+    call: (api: Remote<KernelWorkerApi>, task: T) => Promise<O>,
+    onResult: (task: T, out: O) => void,
+    options: RunOptions = {},
+  ): Promise<void> {
     if (this.busy) throw new Error("pool is already running");
     this.busy = true;
     const { signal, onProgress } = options;
@@ -79,12 +84,12 @@ export class KernelPool {
       const slots = this.ensureSlots();
       const loop = async (slot: Slot) => {
         await slot.ready;
-        while (failure === null && next < shards.length) {
-          const req = shards[next++]!;
-          const out = await slot.api.runShard(req);
-          onResult(req, out);
+        while (failure === null && next < tasks.length) {
+          const task = tasks[next++]!;
+          const out = await call(slot.api, task);
+          onResult(task, out);
           done++;
-          onProgress?.(done, shards.length);
+          onProgress?.(done, tasks.length);
         }
       };
       const loops = slots.map((s) =>

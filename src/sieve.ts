@@ -87,6 +87,7 @@ export async function runSieve(pool: KernelPool, req: SieveRequest, options: Run
     const shards: ShardRequest[] = prefixes.map((prefix) => ({ ...base, prefixBits: d, prefix, leaves: req.onLeaves !== undefined, walkTallies: false }));
     await pool.run(
       shards,
+      (api, shard) => api.runShard(shard),
       (_shard, out) => {
         merged.add(out, depth);
         if (out.leaves) req.onLeaves?.(out.leaves);

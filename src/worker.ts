@@ -21,6 +21,11 @@ export function createWorkerApi(): KernelWorkerApi {
       if (out.leaves) buffers.push(...[out.leaves.a.buffer, out.leaves.b.buffer, out.leaves.m.buffer].map(asArrayBuffer));
       return transfer(out, buffers);
     },
+    async runCycles(req) {
+      if (!kernel) throw new Error("worker used before init");
+      const res = kernel.cycles(req);
+      return transfer(res, [asArrayBuffer(res.candidates.buffer)]);
+    },
   };
 }
 

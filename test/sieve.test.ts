@@ -114,7 +114,7 @@ describe("sieve on the pool: special", () => {
     const debugPool = await nodePool(2, "debug");
     try {
       const bad = { q: 3, r: 1, depth: 10, mode: "survivors" as const, prefixBits: 2, prefix: 7n, leaves: false, walkTallies: false };
-      await expect(debugPool.run([bad], () => {})).rejects.toThrow(/kernel assertion failed/);
+      await expect(debugPool.run([bad], (api, s) => api.runShard(s), () => {})).rejects.toThrow(/kernel assertion failed/);
       const ok = await runSieve(debugPool, { map: parseMap("3x+1"), depth: 16, mode: "survivors" });
       expect(ok.levels[16]!.survivors).toBe(A076227[16]);
     } finally {

@@ -1,0 +1,131 @@
+// The complete cycle search: every integer cycle of period <= K, positive and negative, each once.
+// Complete by construction (not a scan of start values): the elements of a cycle of period p have
+// periodic parity vectors, so each element's class at depth p is a node where 2^p - q^m divides
+// b - a (assembly/cycles.ts tests every node). The host solves for the periodic point, walks the
+// cycle in BigInt, and keeps each cycle once, with its minimal period.
+import type { CollatzMap } from "./map.js";
+import { kernelDepthLimit } from "./map.js";
+import { instantiateKernel } from "./kernel.js";
+import type { CycleShard, KernelInstance } from "./kernel.js";
+import type { KernelPool, RunOptions } from "./pool.js";
+import { choosePrefixBits } from "./sieve.js";
+import { cycleRepresentative, iterate } from "./padic.js";
+import { LimitError, UsageError } from "./errors.js";
+
+export const MAX_CYCLE_PERIOD = 63;
+
+export interface IntegerCycle {
+  /** The element of least absolute value (the minimum for a positive cycle). */
+  readonly representative: bigint;
+  readonly min: bigint;
+  readonly max: bigint;
+  /** Minimal period in steps of T. */
+  readonly period: number;
+  readonly odd: number;
+  /** The elements in orbit order, starting at the representative. */
+  readonly elements: bigint[];
+}
+
+export interface CycleSearchResult {
+  readonly map: CollatzMap;
+  readonly maxPeriod: number;
+  readonly width: 64 | 128;
+  /** Sorted: positive cycles by minimum, then negative cycles by |representative|. */
+  readonly cycles: IntegerCycle[];
+  readonly candidates: number;
+  readonly nodes: bigint;
+  readonly seconds: number;
+}
+
+/** The arithmetic width a search to `maxPeriod` needs, or a refusal. */
+export function cycleWidth(map: CollatzMap, maxPeriod: number): 64 | 128 {
+  if (maxPeriod <= kernelDepthLimit(map, 64)) return 64;
+  const wide = Math.min(kernelDepthLimit(map, 128), MAX_CYCLE_PERIOD);
+  if (maxPeriod <= wide) return 128;
+  throw new LimitError(`period ${maxPeriod} is beyond the exact 128-bit range for ${map.name} (at most ${wide})`);
+}
+
+/** Decodes candidates into their cycles, keeping each cycle once (keyed by its representative). */
+export class CycleCollector {
+  private readonly found = new Map<bigint, IntegerCycle>();
+  candidates = 0;
+
+  constructor(private readonly map: CollatzMap) {}
+
+  add(raw: BigUint64Array): void {
+    const q = BigInt(this.map.q);
+    for (let i = 0; i < raw.length; i += 4) {
+      this.candidates++;
+      const a = raw[i]!;
+      const b = BigInt.asIntN(128, (raw[i + 2]! << 64n) | raw[i + 1]!);
+      const j = Number(raw[i + 3]! >> 32n);
+      const m = Number(raw[i + 3]! & 0xffffffffn);
+      const D = (1n << BigInt(j)) - q ** BigInt(m);
+      const x = (b - a) / D; // exact: the kernel tested divisibility
+      if (x * D !== b - a) throw new Error(`internal error: candidate ${a} mod 2^${j} is not a periodic integer`);
+      const n = a + (1n << BigInt(j)) * x;
+      if (n === 0n) continue; // the fixed point 0 is not a cycle of interest
+      this.addCycleThrough(n, j);
+    }
+  }
+
+  private addCycleThrough(n: bigint, j: number): void {
+    const elements = [n];
+    let odd = (n & 1n) === 1n ? 1 : 0;
+    for (let v = iterate(this.map, n, 1); v !== n; v = iterate(this.map, v, 1)) {
+      if (elements.length >= j) throw new Error(`internal error: ${n} does not return within ${j} steps`);
+      elements.push(v);
+      if ((v & 1n) === 1n) odd++;
+    }
+    const rep = cycleRepresentative(elements);
+    if (this.found.has(rep)) return;
+    const k = elements.indexOf(rep);
+    const ordered = [...elements.slice(k), ...elements.slice(0, k)];
+    let min = rep, max = rep;
+    for (const v of ordered) {
+      if (v < min) min = v;
+      if (v > max) max = v;
+    }
+    this.found.set(rep, { representative: rep, min, max, period: elements.length, odd, elements: ordered });
+  }
+
+  sorted(): IntegerCycle[] {
+    const all = [...this.found.values()];
+    const pos = all.filter((c) => c.representative > 0n).sort((u, v) => (u.min < v.min ? -1 : 1));
+    const neg = all.filter((c) => c.representative < 0n).sort((u, v) => (u.representative > v.representative ? -1 : 1));
+    return [...pos, ...neg];
+  }
+}
+
+let mainInstance: { module: WebAssembly.Module; kernel: Promise<KernelInstance> } | null = null;
+function mainKernel(module: WebAssembly.Module): Promise<KernelInstance> {
+  if (mainInstance?.module !== module) mainInstance = { module, kernel: instantiateKernel(module) };
+  return mainInstance.kernel;
+}
+
+/**
+ * Every integer cycle of period <= maxPeriod.
+ * @example (await searchCycles(pool, parseMap("3x+1"), 12)).cycles.map((c) => c.representative) // [1n, -1n, -5n, -17n]
+ */
+export async function searchCycles(pool: KernelPool, map: CollatzMap, maxPeriod: number, options: RunOptions = {}): Promise<CycleSearchResult> {
+  if (!Number.isInteger(maxPeriod) || maxPeriod < 1 || maxPeriod > MAX_CYCLE_PERIOD) throw new UsageError(`maximum period must be between 1 and ${MAX_CYCLE_PERIOD}`);
+  const width = cycleWidth(map, maxPeriod);
+  const started = performance.now();
+  const kernel = await mainKernel(pool.module);
+  const d = Math.min(choosePrefixBits(map, maxPeriod, "full", pool.size, false), maxPeriod);
+  const base = { q: map.q, r: map.r, wide: width === 128 } as const;
+  const collector = new CycleCollector(map);
+  // the top of the tree (depths 1..d) here, then one shard per prefix for depths d+1..maxPeriod
+  const top = kernel.cycles({ ...base, depth: d, prefixBits: 0, prefix: 0n, walkTallies: true });
+  collector.add(top.candidates);
+  let nodes = top.nodes + 1n;
+  if (d < maxPeriod) {
+    const shards: CycleShard[] = [];
+    for (let s = 0n; s < 1n << BigInt(d); s++) shards.push({ ...base, depth: maxPeriod, prefixBits: d, prefix: s, walkTallies: false });
+    await pool.run(shards, (api, shard) => api.runCycles(shard), (_s, out) => {
+      collector.add(out.candidates);
+      nodes += out.nodes;
+    }, options);
+  }
+  return { map, maxPeriod, width, cycles: collector.sorted(), candidates: collector.candidates, nodes, seconds: (performance.now() - started) / 1000 };
+}
