@@ -12,6 +12,10 @@ interface KernelExports {
     tables: number, tallies: number, leaves: number, leavesCap: number, emitLeaves: number,
     exceptions: number, exceptionsCap: number, walkTallies: number,
   ): bigint;
+  census(
+    q: number, r: number, depth: number, prefixBits: number, prefix: bigint,
+    tables: number, tallies: number, channels: number, channelCap: number, vectors: number,
+  ): bigint;
   cycleSearch(
     q: number, r: number, depth: number, wide: number, prefixBits: number, prefix: bigint,
     tables: number, dTable: number, candidates: number, candidatesCap: number, walkTallies: number,
@@ -76,11 +80,48 @@ export interface CycleShardResult {
   readonly candidates: BigUint64Array;
 }
 
+/** One shard of the census: every vector extending the prefix, tallies of assembly/census.ts. */
+export interface CensusShard {
+  readonly q: number;
+  readonly r: number;
+  readonly depth: number;
+  readonly prefixBits: number;
+  readonly prefix: bigint;
+  /** Also stream (a, parity vector as bits) for every leaf (the conjugacy permutation). */
+  readonly vectors: boolean;
+}
+
+export interface CensusShardResult {
+  readonly nodes: bigint;
+  /** [j * 64 + m], j = 0..depth. */
+  readonly live: BigUint64Array;
+  readonly stopped: BigUint64Array;
+  readonly vectors: BigUint64Array;
+  readonly peak: BigUint64Array;
+  /** bins[k + 512]: least members with floor(4 log2(T^K(a)/a)) = k (f64-decided away from edges). */
+  readonly bins: BigUint64Array;
+  /** [nonpositive images, differing members, early descents]. */
+  readonly counts: BigUint64Array;
+  /** 4 u64 per entry, (a, b raw bits, -, -): least members whose bin the host decides exactly. */
+  readonly ambiguous: BigUint64Array;
+  /** 4 u64 per entry, (a, kind, -, -): kind 1 early descent, 2 no descent at the drop. */
+  readonly differ: BigUint64Array;
+  /** 4 u64 per entry, (member, T^j(member) raw bits, j, -): may hold the largest ratio. */
+  readonly ratio: BigUint64Array;
+  /** (a, parity vector as bits) as u32 pairs, when asked for (depth <= 32). */
+  readonly leafVectors?: Uint32Array;
+}
+
+export const BIN_OFFSET = 512;
+export const BIN_COUNT = 1024;
+
 export interface KernelInstance {
   /** Runs one shard; leaves go to `onLeaves` chunk by chunk (copies, safe to keep). */
   enumerate(req: ShardRequest, onLeaves?: (chunk: LeafChunk) => void): ShardResult;
   /** Runs one shard of the cycle search. */
   cycles(req: CycleShard): CycleShardResult;
+  /** Runs one shard of the census. */
+  census(req: CensusShard): CensusShardResult;
 }
 
 const moduleCache = new Map<string, Promise<WebAssembly.Module>>();
@@ -115,6 +156,9 @@ export async function instantiateKernel(module: WebAssembly.Module): Promise<Ker
   const qTables = k.reserve(1024);
   const dTable = k.reserve(TALLY_STRIDE * TALLY_STRIDE * 32);
   let dTableKey = "";
+  const censusTables = k.reserve(1792);
+  const censusTallies = k.reserve(4 * TALLY_STRIDE * TALLY_STRIDE * 8 + BIN_COUNT * 8 + 32);
+  const censusChannels = k.reserve(4 * EXC_CHUNK * 32);
 
   return {
     enumerate(req, onLeaves) {
@@ -162,6 +206,42 @@ export async function instantiateKernel(module: WebAssembly.Module): Promise<Ker
       }
     },
 
+    census(req) {
+      const { q, r, depth } = req;
+      const mem = k.memory.buffer;
+      const qpow = new BigUint64Array(mem, censusTables, 64);
+      const thr = new Int32Array(mem, censusTables + 512, 64);
+      const pow2 = new Float64Array(mem, censusTables + 768, 128);
+      let p = 1n;
+      for (let m = 0; m < 64; m++) {
+        qpow[m] = m <= depth ? BigInt.asUintN(64, p) : 0n;
+        thr[m] = m <= depth ? dropDepth(q, m) : 0x7fffffff;
+        p *= BigInt(q);
+      }
+      for (let e = -64; e < 64; e++) pow2[e + 64] = 2 ** e; // exact powers of two
+      const region = (i: number) => censusChannels + i * EXC_CHUNK * 32;
+      const memOf = () => k.memory.buffer;
+      const ch = { 3: collector(memOf, region(0)), 4: collector(memOf, region(1)), 5: collector(memOf, region(2)), 0: pairCollector(memOf, region(3)) };
+      sink = (channel, count) => ch[channel as 0 | 3 | 4 | 5]?.take(count);
+      try {
+        const nodes = k.census(q, r, depth, req.prefixBits, req.prefix, censusTables, censusTallies, censusChannels, EXC_CHUNK, req.vectors ? 1 : 0);
+        const buf = k.memory.buffer;
+        const rows = (depth + 1) * TALLY_STRIDE;
+        const table = (i: number) => new BigUint64Array(buf, censusTallies + i * TALLY_STRIDE * TALLY_STRIDE * 8, rows).slice();
+        const binsAt = censusTallies + 4 * TALLY_STRIDE * TALLY_STRIDE * 8;
+        return {
+          nodes: BigInt.asUintN(64, nodes),
+          live: table(0), stopped: table(1), vectors: table(2), peak: table(3),
+          bins: new BigUint64Array(buf, binsAt, BIN_COUNT).slice(),
+          counts: new BigUint64Array(buf, binsAt + BIN_COUNT * 8, 4).slice(),
+          ambiguous: ch[3].all(), differ: ch[4].all(), ratio: ch[5].all(),
+          ...(req.vectors ? { leafVectors: ch[0].all() } : {}),
+        };
+      } finally {
+        sink = null;
+      }
+    },
+
     cycles(req) {
       const { q, r, depth, wide } = req;
       const key = `${q},${depth},${wide}`;
@@ -179,6 +259,42 @@ export async function instantiateKernel(module: WebAssembly.Module): Promise<Ker
       } finally {
         sink = null;
       }
+    },
+  };
+}
+
+/** Channel chunks (4 u64 per entry) copied out of wasm memory. */
+function collector(mem: () => ArrayBuffer, base: number) {
+  const parts: BigUint64Array[] = [];
+  return {
+    take(count: number) {
+      parts.push(new BigUint64Array(mem(), base, count * 4).slice());
+    },
+    all: () => concatU64(parts),
+  };
+}
+
+/** Channel-0 chunks of (a, vector) with both below 2^32, as u32 pairs. */
+function pairCollector(mem: () => ArrayBuffer, base: number) {
+  const parts: Uint32Array[] = [];
+  return {
+    take(count: number) {
+      const words = new Uint32Array(mem(), base, count * 8);
+      const out = new Uint32Array(count * 2);
+      for (let i = 0; i < count; i++) {
+        out[2 * i] = words[8 * i]!;
+        out[2 * i + 1] = words[8 * i + 2]!;
+      }
+      parts.push(out);
+    },
+    all(): Uint32Array {
+      const out = new Uint32Array(parts.reduce((n, x) => n + x.length, 0));
+      let o = 0;
+      for (const x of parts) {
+        out.set(x, o);
+        o += x.length;
+      }
+      return out;
     },
   };
 }

@@ -75,10 +75,12 @@ function imageBounds(map: CollatzMap, m: number, scale: bigint): [bigint, bigint
  * u64 when r > 0 and i64 when r < 0. For 3x+1 this is 40 (3^40 < 2^64 < 3^41).
  * @example kernelDepthLimit(makeMap(3, 1)) // 40
  */
-export function kernelDepthLimit(map: CollatzMap, width: 64 | 128 = 64): number {
-  // 64 bits: u64 when r > 0, i64 when r < 0; 128 bits: always signed (two u64 words).
-  const top = width === 128 ? 1n << 127n : map.r > 0 ? 1n << 64n : 1n << 63n;
-  const bottom = width === 128 ? -(1n << 127n) : map.r > 0 ? 0n : -(1n << 63n);
+export function kernelDepthLimit(map: CollatzMap, width: 64 | 128 | "i64" = 64): number {
+  // 64: u64 when r > 0, i64 when r < 0; "i64": signed whatever r; 128: signed (two u64 words).
+  const signed = width !== 64 || map.r < 0;
+  const bits = width === 128 ? 127n : signed ? 63n : 64n;
+  const top = 1n << bits;
+  const bottom = signed ? -top : 0n;
   let depth = 0;
   for (let k = 1; k <= MAX_KERNEL_DEPTH; k++) {
     // depth k needs images with m <= k, and intermediates with m <= k - 1 at scale 2.

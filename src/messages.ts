@@ -1,5 +1,5 @@
 // What crosses the worker boundary: one typed surface (comlink), plain data and typed arrays.
-import type { CycleShard, CycleShardResult, LeafChunk, ShardRequest, ShardResult } from "./kernel.js";
+import type { CensusShard, CensusShardResult, CycleShard, CycleShardResult, LeafChunk, ShardRequest, ShardResult } from "./kernel.js";
 
 export interface ShardOutput extends ShardResult {
   /** The shard's leaves at the target depth, when asked for (concatenated chunks). */
@@ -12,4 +12,5 @@ export interface KernelWorkerApi {
   init(module: WebAssembly.Module): Promise<void>;
   runShard(req: ShardRequest): Promise<ShardOutput>;
   runCycles(req: CycleShard): Promise<CycleShardResult>;
+  runCensus(req: CensusShard): Promise<CensusShardResult>;
 }

@@ -21,6 +21,13 @@ export function createWorkerApi(): KernelWorkerApi {
       if (out.leaves) buffers.push(...[out.leaves.a.buffer, out.leaves.b.buffer, out.leaves.m.buffer].map(asArrayBuffer));
       return transfer(out, buffers);
     },
+    async runCensus(req) {
+      if (!kernel) throw new Error("worker used before init");
+      const res = kernel.census(req);
+      const arrays: ArrayBufferView[] = [res.live, res.stopped, res.vectors, res.peak, res.bins, res.counts, res.ambiguous, res.differ, res.ratio];
+      if (res.leafVectors) arrays.push(res.leafVectors);
+      return transfer(res, arrays.map((x) => asArrayBuffer(x.buffer)));
+    },
     async runCycles(req) {
       if (!kernel) throw new Error("worker used before init");
       const res = kernel.cycles(req);

@@ -1,0 +1,322 @@
+// Census of all 2^K parity vectors (full tree), with the tallies the host turns into tables:
+//   live / stopped [j][m]  as in enumerate.ts (first drop of q^m / 2^j below 1);
+//   vectors [j][m]         nodes at depth j with m odd steps (binomial: a sanity check);
+//   peak [j][m]            per vector, the (j, m) where q^m / 2^j is largest (exact comparison:
+//                          q^d > 2^e iff e < bitlen(q^d), from the host's table);
+//   bins [k]               per least member a in [1, 2^K): floor(4 log2(T^K(a) / a)), offset 512;
+//                          decided in f64 only when at least 1e-12 away from a bin edge, otherwise
+//                          sent to the host (channel 3) for an exact BigInt decision;
+//   differ                 least members whose first descent differs from the coefficient stopping
+//                          time: early descent (before the drop) or no descent at the drop (channel 4);
+//   ratio candidates       (member, T^j(member), j) that may be the largest T^j(a)/a (channel 5):
+//                          by monotonicity in x, the extremes of each class within [1, 2^K) suffice;
+//                          a conservative f64 filter keeps the channel short, the host decides exactly.
+// Width: every value is i64; the host proves T^j(a) and the class images fit below 2^63 in magnitude.
+
+import { flush } from "./buffers";
+
+let K: i32 = 0;
+let Q: u64 = 0;
+let H: i64 = 0;
+let qpowPtr: usize = 0;
+let thrPtr: usize = 0;
+let livePtr: usize = 0;
+let stoppedPtr: usize = 0;
+let vectorsPtr: usize = 0;
+let peakPtr: usize = 0;
+let binsPtr: usize = 0;
+let countsPtr: usize = 0; // u64: [0] nonpositive images, [1] differ, [2] early descents
+let pow2Ptr: usize = 0; // f64[e + 64] = 2^e, e = -64..63
+let chanPtr: usize = 0; // channels 3, 4, 5 and 0: base address each, cap entries of 32 bytes
+let chanCap: i32 = 0;
+let n0: i32 = 0;
+let n3: i32 = 0;
+let n4: i32 = 0;
+let n5: i32 = 0;
+let emitVectors: bool = false;
+let best: f64 = 0;
+let nodes: u64 = 0;
+
+const BIN_OFFSET: i32 = 512;
+// The quarter-unit bin edges 2^(i/4 - 1), i = 0..8, from 1/2 to 2.
+const EDGES: StaticArray<f64> = [
+  0.5, 0.5946035575013605, 0.7071067811865476, 0.8408964152537145, 1.0,
+  1.189207115002721, 1.4142135623730951, 1.681792830507429, 2.0,
+];
+@inline function edge(i: i32): f64 {
+  return unchecked(EDGES[i]); // i in [0, 8] by construction
+}
+const NEAR: f64 = 1e-12;
+
+@inline function tally(base: usize, j: i32, m: i32): void {
+  const p = base + ((<usize>((j << 6) + m)) << 3);
+  store<u64>(p, load<u64>(p) + 1);
+}
+
+@inline function bump(index: i32): void {
+  const p = countsPtr + (<usize>index << 3);
+  store<u64>(p, load<u64>(p) + 1);
+}
+
+function push(ch: i32, x0: u64, x1: u64, x2: u64, x3: u64): void {
+  const slot = ch == 0 ? 3 : ch - 3; // channel 0 uses the fourth region
+  const n = ch == 0 ? n0 : ch == 3 ? n3 : ch == 4 ? n4 : n5;
+  const p = chanPtr + (<usize>slot * <usize>chanCap << 5) + (<usize>n << 5);
+  store<u64>(p, x0);
+  store<u64>(p, x1, 8);
+  store<u64>(p, x2, 16);
+  store<u64>(p, x3, 24);
+  const next = n + 1;
+  if (next == chanCap) {
+    flush(ch, next);
+    setCount(ch, 0);
+  } else setCount(ch, next);
+}
+
+@inline function setCount(ch: i32, v: i32): void {
+  if (ch == 0) n0 = v;
+  else if (ch == 3) n3 = v;
+  else if (ch == 4) n4 = v;
+  else n5 = v;
+}
+
+@inline function qpow(m: i32): u64 {
+  return load<u64>(qpowPtr + (<usize>m << 3));
+}
+
+@inline function dropDepth(m: i32): i32 {
+  return load<i32>(thrPtr + (<usize>m << 2));
+}
+
+/** A member u in [1, 2^K) with T^j(u) = v: report it if it may beat the largest ratio so far. */
+@inline function ratioCandidate(u: u64, v: i64, j: i32): void {
+  // values < 2^63 (host-proven), so the signed conversions are exact up to rounding
+  if (v > 0 && <f64>v >= best * <f64><i64>u) {
+    push(5, u, <u64>v, <u64>j, 0);
+    const r = (<f64>v / <f64><i64>u) * (1.0 - 1e-12);
+    if (r > best) best = r;
+  }
+}
+
+/** The extremes of the class a mod 2^j within [1, 2^K): a itself, and a + 2^j (2^(K-j) - 1). */
+@inline function extremes(a: u64, b: i64, m: i32, j: i32): void {
+  if (a > 0) ratioCandidate(a, b, j);
+  if (j < K) {
+    const span = ((<u64>1) << <u64>(K - j)) - 1;
+    ratioCandidate(a + (span << <u64>j), <i64>qpow(m) * <i64>span + b, j);
+  }
+}
+
+/** Early descent at j (before the drop): the new bound below which members descend, or `early`. */
+@inline function earlyBound(a: u64, b: i64, m: i32, j: i32, early: u64): u64 {
+  // members a + 2^j y with (q^m - 2^j) y < a - b, i.e. y < ceil((a - b) / (q^m - 2^j))
+  if (b >= <i64>a) return early;
+  const gap = qpow(m) - ((<u64>1) << j);
+  const y = (<u64>(<i64>a - b) + gap - 1) / gap;
+  const bound = y >= ((<u64>1) << <u64>(K - j)) ? (<u64>1) << <u64>K : a + (y << j);
+  return bound > early ? bound : early;
+}
+
+/** The largest member a + 2^j y below 2^K that does not descend at the drop: D y <= b - a. */
+function exceptionBound(a: u64, b: i64, m: i32, j: i32): i64 {
+  const D = ((<u64>1) << j) - qpow(m);
+  const y = <u64>(b - <i64>a) / D;
+  return y >= ((<u64>1) << <u64>(K - j)) ? (<i64>1) << K : <i64>(a + (y << j));
+}
+
+@inline function near(x: f64, edge: f64): bool {
+  return abs(x - edge) < NEAR * edge;
+}
+
+@inline function leaf(a: u64, b: i64, v: u64, early: u64, excMax: i64): void {
+  if (emitVectors) push(0, a, v, 0, 0);
+  if (a == 0) return; // the least member 0 is not positive
+  // bins of log2(T^K(a) / a): with e = floor(log2 b) - floor(log2 a) and s = a 2^e, b / s is in (1/2, 2)
+  if (b <= 0) bump(0);
+  else {
+    const e = (63 - <i32>clz(<u64>b)) - (63 - <i32>clz(a));
+    const s = <f64><i64>a * load<f64>(pow2Ptr + (<usize>(e + 64) << 3));
+    const x = <f64>b;
+    // t = floor(4 log2(x / s)) in [-4, 3] by binary search over the edges s 2^(i/4 - 1), i = 0..8
+    // (branch-free: the comparisons are data-dependent and would mispredict)
+    let t = select<i32>(0, -4, x >= s);
+    t += select<i32>(2, 0, x >= s * edge(t + 6));
+    t += select<i32>(1, 0, x >= s * edge(t + 5));
+    // only the two edges around x can be within rounding of it: decide those cases exactly
+    if (near(x, s * edge(t + 4)) || near(x, s * edge(t + 5))) push(3, a, <u64>b, 0, 0);
+    else {
+      const p = binsPtr + (<usize>(4 * e + t + BIN_OFFSET) << 3);
+      store<u64>(p, load<u64>(p) + 1);
+    }
+  }
+  // first descent versus coefficient stopping time
+  const isEarly = a < early;
+  if (isEarly || <i64>a <= excMax) {
+    bump(1);
+    if (isEarly) bump(2);
+    push(4, a, isEarly ? 1 : 2, 0, 0);
+  }
+}
+
+/**
+ * The node (a, b, m) at depth j, not yet dropped: its own ratio candidates and early-descent bound,
+ * then its children (tallied here, where the drop is known). (pj, pm) is the peak of q^m / 2^j on the
+ * path so far, v the parity vector so far as bits.
+ */
+function dfsLive(a: u64, b: i64, m: i32, j: i32, pj: i32, pm: i32, v: u64, early0: u64): void {
+  extremes(a, b, m, j);
+  const early = earlyBound(a, b, m, j, early0);
+  if (j == K) {
+    tally(peakPtr, pj, pm);
+    leaf(a, b, v, early, -1);
+    return;
+  }
+  const pm0 = <i64>qpow(m);
+  const e0 = b & 1;
+  const aEven = a | (<u64>e0 << j);
+  const aOdd = aEven ^ ((<u64>1) << j);
+  const bEven = (b + select<i64>(pm0, 0, e0 != 0)) >> 1;
+  const bOdd = <i64>Q * ((b + select<i64>(0, pm0, e0 != 0)) >> 1) + H;
+  const jj = j + 1;
+  nodes += 2;
+  tally(vectorsPtr, jj, m);
+  tally(vectorsPtr, jj, m + 1);
+  tally(livePtr, jj, m + 1); // an odd step never drops a live class
+  const oddPeak = jj - pj < dropDepth(m + 1 - pm);
+  const last = jj == K;
+  if (last) atLeaf(aOdd, bOdd, m + 1, oddPeak ? jj : pj, oddPeak ? m + 1 : pm, v | ((<u64>1) << j), earlyBound(aOdd, bOdd, m + 1, jj, early), -1);
+  else dfsLive(aOdd, bOdd, m + 1, jj, oddPeak ? jj : pj, oddPeak ? m + 1 : pm, v | ((<u64>1) << j), early);
+  if (jj >= dropDepth(m)) {
+    tally(stoppedPtr, jj, m);
+    const excMax = bEven >= <i64>aEven ? exceptionBound(aEven, bEven, m, jj) : -1;
+    if (last) atLeaf(aEven, bEven, m, pj, pm, v, early, excMax);
+    else dfsDropped(aEven, bEven, m, jj, pj, pm, v, early, excMax);
+  } else {
+    tally(livePtr, jj, m);
+    if (last) atLeaf(aEven, bEven, m, pj, pm, v, earlyBound(aEven, bEven, m, jj, early), -1);
+    else dfsLive(aEven, bEven, m, jj, pj, pm, v, early);
+  }
+}
+
+/** A leaf (depth K): its ratio candidate, its peak, and the leaf tallies. */
+@inline function atLeaf(a: u64, b: i64, m: i32, pj: i32, pm: i32, v: u64, early: u64, excMax: i64): void {
+  if (a > 0) ratioCandidate(a, b, K);
+  tally(peakPtr, pj, pm);
+  leaf(a, b, v, early, excMax);
+}
+
+/** A node at or below its drop: ratio candidates, vectors, peaks and the leaf tallies; excMax from the drop. */
+function dfsDropped(a: u64, b: i64, m: i32, j: i32, pj: i32, pm: i32, v: u64, early: u64, excMax: i64): void {
+  extremes(a, b, m, j);
+  if (j == K) {
+    tally(peakPtr, pj, pm);
+    leaf(a, b, v, early, excMax);
+    return;
+  }
+  const pm0 = <i64>qpow(m);
+  const e0 = b & 1;
+  const aEven = a | (<u64>e0 << j);
+  const aOdd = aEven ^ ((<u64>1) << j);
+  const bEven = (b + select<i64>(pm0, 0, e0 != 0)) >> 1;
+  const bOdd = <i64>Q * ((b + select<i64>(0, pm0, e0 != 0)) >> 1) + H;
+  const jj = j + 1;
+  nodes += 2;
+  tally(vectorsPtr, jj, m);
+  tally(vectorsPtr, jj, m + 1);
+  const oddPeak = jj - pj < dropDepth(m + 1 - pm);
+  if (jj == K) {
+    atLeaf(aOdd, bOdd, m + 1, oddPeak ? jj : pj, oddPeak ? m + 1 : pm, v | ((<u64>1) << j), early, excMax);
+    atLeaf(aEven, bEven, m, pj, pm, v, early, excMax);
+  } else {
+    dfsDropped(aOdd, bOdd, m + 1, jj, oddPeak ? jj : pj, oddPeak ? m + 1 : pm, v | ((<u64>1) << j), early, excMax);
+    dfsDropped(aEven, bEven, m, jj, pj, pm, v, early, excMax);
+  }
+}
+
+/**
+ * The census of every vector extending `prefix` mod 2^prefixBits, to `depth` (full tree).
+ * tables: u64 q^m at [0, 512), i32 bitlen(q^m) at [512, 768), f64 2^e (e = -64..63) at [768, 1792).
+ * tallies: u64 live, stopped, vectors, peak [64][64] each, then u64 bins[1024], then u64 counts[4];
+ * zeroed here. channels: 4 regions of cap entries (32 bytes): 3 (ambiguous bins), 4 (differ),
+ * 5 (ratio candidates), 0 (a, parity vector, when emitVectors).
+ */
+export function census(
+  q: u32, r: i32, depth: i32, prefixBits: i32, prefix: u64,
+  tables: usize, tallies: usize, channels: usize, channelCap: i32, vectors: i32,
+): u64 {
+  assert(depth >= 1 && depth <= 63 && prefixBits >= 0 && prefixBits <= depth && channelCap > 0);
+  assert((prefix >> <u64>prefixBits) == 0);
+  K = depth;
+  Q = <u64>q;
+  H = (<i64>q + <i64>r) >> 1;
+  qpowPtr = tables;
+  thrPtr = tables + 512;
+  pow2Ptr = tables + 768;
+  livePtr = tallies;
+  stoppedPtr = tallies + 32768;
+  vectorsPtr = tallies + 2 * 32768;
+  peakPtr = tallies + 3 * 32768;
+  binsPtr = tallies + 4 * 32768;
+  countsPtr = binsPtr + 1024 * 8;
+  memory.fill(tallies, 0, 4 * 32768 + 1024 * 8 + 32);
+  chanPtr = channels;
+  chanCap = channelCap;
+  n0 = n3 = n4 = n5 = 0;
+  emitVectors = vectors != 0;
+  best = 0;
+  nodes = 0;
+  walk(prefixBits, prefix);
+  if (n0 > 0) flush(0, n0);
+  if (n3 > 0) flush(3, n3);
+  if (n4 > 0) flush(4, n4);
+  if (n5 > 0) flush(5, n5);
+  return nodes;
+}
+
+function walk(prefixBits: i32, prefix: u64): void {
+  // The state at the prefix node, tracked exactly as the full walk would. Each ancestor is tallied
+  // by the one shard that is its extension by zero bits (prefix >> j == 0), so the 2^prefixBits
+  // shards of a split sum to the whole census. The prefix node itself is handled by the dfs.
+  let a: u64 = 0, b: i64 = 0, m: i32 = 0, pj: i32 = 0, pm: i32 = 0, v: u64 = 0, early: u64 = 0;
+  let alive = true, excMax: i64 = -1;
+  if (prefix == 0) {
+    tally(livePtr, 0, 0);
+    tally(vectorsPtr, 0, 0);
+    nodes = 1;
+  }
+  for (let j = 0; j < prefixBits; j++) {
+    // ancestors at depth j < prefixBits: the owner runs their node-level work
+    if ((prefix >> <u64>j) == 0) {
+      extremes(a, b, m, j);
+    }
+    if (alive) early = earlyBound(a, b, m, j, early);
+    const e = (prefix >> <u64>j) & 1;
+    const x = b + select<i64>(<i64>qpow(m), 0, e != 0);
+    const odd = (x & 1) != 0;
+    b = odd ? <i64>Q * (x >> 1) + H : x >> 1;
+    if (odd) {
+      m++;
+      v |= (<u64>1) << j;
+    }
+    a |= e << <u64>j;
+    const jj = j + 1;
+    const owned = (prefix >> <u64>jj) == 0;
+    if (odd && jj - pj < dropDepth(m - pm)) {
+      pj = jj;
+      pm = m;
+    }
+    if (owned) {
+      nodes++;
+      tally(vectorsPtr, jj, m);
+    }
+    if (alive && !odd && jj >= dropDepth(m)) {
+      alive = false;
+      if (owned) tally(stoppedPtr, jj, m);
+      if (b >= <i64>a) excMax = exceptionBound(a, b, m, jj);
+    } else if (alive && owned) {
+      tally(livePtr, jj, m);
+    }
+  }
+  if (alive) dfsLive(a, b, m, prefixBits, pj, pm, v, early);
+  else dfsDropped(a, b, m, prefixBits, pj, pm, v, early, excMax);
+}

@@ -1,0 +1,140 @@
+// Census of all 2^K parity vectors: the kernel's full-tree tallies (assembly/census.ts) merged and
+// finished exactly here: ambiguous log2 bins and the largest ratio are decided in BigInt.
+import type { CollatzMap } from "./map.js";
+import { kernelDepthLimit } from "./map.js";
+import { BIN_COUNT, BIN_OFFSET, TALLY_STRIDE } from "./kernel.js";
+import type { CensusShard, CensusShardResult } from "./kernel.js";
+import type { KernelPool, RunOptions } from "./pool.js";
+import { exactCounts } from "./exact.js";
+import type { Level } from "./exact.js";
+import { choosePrefixBits } from "./sieve.js";
+import { classFromResidue, iterate } from "./padic.js";
+import { LimitError, UsageError } from "./errors.js";
+
+export const MAX_CENSUS_DEPTH = 32;
+const DIFFER_LISTED = 1000;
+
+export interface CensusResult {
+  readonly map: CollatzMap;
+  readonly depth: number;
+  readonly levels: Level[];
+  /** [j][m], m = 0..j: alive classes, first drops, all vectors (C(j, m) nodes), peaks of q^m/2^j. */
+  readonly live: bigint[][];
+  readonly stopped: bigint[][];
+  readonly vectors: bigint[][];
+  readonly peak: bigint[][];
+  /** Least members a in [1, 2^K) by floor(4 log2(T^K(a)/a)): bin k holds log2 in [k/4, (k+1)/4). */
+  readonly ratioBins: { readonly bin: number; readonly count: bigint }[];
+  /** Least members with T^K(a) <= 0 (possible only when r < 0). */
+  readonly nonpositive: bigint;
+  /** Least members whose first descent differs from their coefficient stopping time (within K). */
+  readonly differ: {
+    readonly count: bigint;
+    readonly early: bigint;
+    readonly listed: { readonly n: bigint; readonly descent: number | null; readonly stoppingTime: number | null }[];
+  };
+  /** The largest T^j(a)/a over a in [1, 2^K), j <= K, with its class a mod 2^K. */
+  readonly maxRatio: { readonly n: bigint; readonly step: number; readonly value: bigint };
+  /** The live and stopped tables equal the exact counter's. */
+  readonly agreesWithExactCounter: boolean;
+  readonly nodes: bigint;
+  readonly seconds: number;
+}
+
+/** Exact floor(4 log2(b / a)) for positive a, b. */
+export function quarterLog2(a: bigint, b: bigint): number {
+  const num = b ** 4n, den = a ** 4n;
+  let k = num.toString(2).length - den.toString(2).length;
+  const fits = (t: number) => (t >= 0 ? den << BigInt(t) <= num : den <= num << BigInt(-t));
+  while (!fits(k)) k--;
+  while (fits(k + 1)) k++;
+  return k;
+}
+
+function rows(flat: BigUint64Array, depth: number): bigint[][] {
+  return Array.from({ length: depth + 1 }, (_, j) => Array.from(flat.subarray(j * TALLY_STRIDE, j * TALLY_STRIDE + j + 1)));
+}
+
+function addInto(acc: BigUint64Array, x: BigUint64Array): void {
+  // class counts <= 2^K <= 2^32 each: sums cannot wrap
+  for (let i = 0; i < acc.length; i++) acc[i] = acc[i]! + x[i]!;
+}
+
+/** The census shards: 2^d prefixes (the kernel tallies each ancestor in the shard that owns it). */
+export function censusShards(map: CollatzMap, depth: number, workers: number, vectors: boolean): CensusShard[] {
+  const d = Math.min(choosePrefixBits(map, depth, "full", workers, vectors), depth);
+  const shards: CensusShard[] = [];
+  for (let s = 0n; s < 1n << BigInt(d); s++) shards.push({ q: map.q, r: map.r, depth, prefixBits: d, prefix: s, vectors });
+  return shards;
+}
+
+/**
+ * Runs the census of all 2^depth parity vectors.
+ * @example const c = await runCensus(pool, parseMap("3x+1"), 20); c.agreesWithExactCounter // true
+ */
+export async function runCensus(pool: KernelPool, map: CollatzMap, depth: number, options: RunOptions = {}): Promise<CensusResult> {
+  if (!Number.isInteger(depth) || depth < 1 || depth > MAX_CENSUS_DEPTH) throw new UsageError(`census depth must be between 1 and ${MAX_CENSUS_DEPTH}`);
+  const limit = kernelDepthLimit(map, "i64");
+  if (depth > limit) throw new LimitError(`census depth ${depth} is beyond the exact signed 64-bit range for ${map.name} (at most ${limit})`);
+  const started = performance.now();
+  const n = (depth + 1) * TALLY_STRIDE;
+  const acc = { live: new BigUint64Array(n), stopped: new BigUint64Array(n), vectors: new BigUint64Array(n), peak: new BigUint64Array(n) };
+  const bins = new BigUint64Array(BIN_COUNT);
+  let nonpositive = 0n, differCount = 0n, early = 0n, nodes = 0n;
+  const ambiguous: [bigint, bigint][] = [];
+  const differ: { n: bigint; kind: number }[] = [];
+  let best: { n: bigint; value: bigint; step: number } | null = null;
+  const signed = map.r < 0;
+  const merge = (out: CensusShardResult) => {
+    addInto(acc.live, out.live);
+    addInto(acc.stopped, out.stopped);
+    addInto(acc.vectors, out.vectors);
+    addInto(acc.peak, out.peak);
+    addInto(bins, out.bins);
+    nonpositive += out.counts[0]!;
+    differCount += out.counts[1]!;
+    early += out.counts[2]!;
+    nodes += out.nodes;
+    for (let i = 0; i < out.ambiguous.length; i += 4) ambiguous.push([out.ambiguous[i]!, signed ? BigInt.asIntN(64, out.ambiguous[i + 1]!) : out.ambiguous[i + 1]!]);
+    for (let i = 0; i < out.differ.length && differ.length < DIFFER_LISTED; i += 4) differ.push({ n: out.differ[i]!, kind: Number(out.differ[i + 1]!) });
+    for (let i = 0; i < out.ratio.length; i += 4) {
+      const u = out.ratio[i]!, v = out.ratio[i + 1]!, step = Number(out.ratio[i + 2]!);
+      // exact comparison v / u > best.value / best.n by cross multiplication (positive values)
+      if (!best || v * best.n > best.value * u || (v * best.n === best.value * u && u < best.n)) best = { n: u, value: v, step };
+    }
+  };
+  await pool.run(censusShards(map, depth, pool.size, false), (api, s) => api.runCensus(s), (_s, out) => merge(out), options);
+
+  for (const [a, b] of ambiguous) bins[quarterLog2(a, b) + BIN_OFFSET]!++;
+  const ratioBins: CensusResult["ratioBins"] = [];
+  bins.forEach((count, i) => {
+    if (count > 0n) ratioBins.push({ bin: i - BIN_OFFSET, count });
+  });
+  const live = rows(acc.live, depth), stopped = rows(acc.stopped, depth);
+  const exact = exactCounts(map, depth, { byOdd: true }).byOdd!;
+  const agrees = live.every((row, j) => row.every((c, m) => c === at(exact[j]!, "live", m))) && stopped.every((row, j) => row.every((c, m) => c === at(exact[j]!, "stopped", m)));
+  const levels = live.map((row, j) => ({ depth: j, survivors: row.reduce((s, x) => s + x, 0n), stopped: stopped[j]!.reduce((s, x) => s + x, 0n) }));
+  differ.sort((x, y) => (x.n < y.n ? -1 : 1));
+  const listed = differ.map((d) => {
+    const form = classFromResidue(map, d.n, depth);
+    let descent: number | null = null;
+    for (let j = 1, v = d.n; j <= depth; j++) {
+      v = iterate(map, v, 1);
+      if (v < d.n) {
+        descent = j;
+        break;
+      }
+    }
+    return { n: d.n, descent, stoppingTime: form.stoppingTime };
+  });
+  return {
+    map, depth, levels, live, stopped, vectors: rows(acc.vectors, depth), peak: rows(acc.peak, depth),
+    ratioBins, nonpositive, differ: { count: differCount, early, listed },
+    maxRatio: best ? { n: best.n, step: best.step, value: best.value } : { n: 1n, step: 0, value: 1n },
+    agreesWithExactCounter: agrees, nodes, seconds: (performance.now() - started) / 1000,
+  };
+}
+
+function at(row: { mLow: number; live: bigint[]; stopped: bigint[] }, key: "live" | "stopped", m: number): bigint {
+  return m < row.mLow ? 0n : (row[key][m - row.mLow] ?? 0n);
+}
