@@ -4,8 +4,8 @@
 //   peak [j][m]            per vector, the (j, m) where q^m / 2^j is largest (exact comparison:
 //                          q^d > 2^e iff e < bitlen(q^d), from the host's table);
 //   bins [k]               per least member a in [1, 2^K): floor(4 log2(T^K(a) / a)), offset 512;
-//                          decided in f64 only when at least 1e-12 away from a bin edge, otherwise
-//                          sent to the host (channel 3) for an exact BigInt decision;
+//                          decided in integers unless within 2^-26 (relative) of a bin edge; those
+//                          go to the host (channel 3) for an exact BigInt decision;
 //   differ                 least members whose first descent differs from the coefficient stopping
 //                          time: early descent (before the drop) or no descent at the drop (channel 4);
 //   ratio candidates       (member, T^j(member), j) that may be the largest T^j(a)/a (channel 5):
@@ -26,7 +26,6 @@ let vectorsPtr: usize = 0;
 let peakPtr: usize = 0;
 let binsPtr: usize = 0;
 let countsPtr: usize = 0; // u64: [0] nonpositive images, [1] differ, [2] early descents
-let pow2Ptr: usize = 0; // f64[e + 64] = 2^e, e = -64..63
 let chanPtr: usize = 0; // channels 3, 4, 5 and 0: base address each, cap entries of 32 bytes
 let chanCap: i32 = 0;
 let n0: i32 = 0;
@@ -38,15 +37,6 @@ let best: f64 = 0;
 let nodes: u64 = 0;
 
 const BIN_OFFSET: i32 = 512;
-// The quarter-unit bin edges 2^(i/4 - 1), i = 0..8, from 1/2 to 2.
-const EDGES: StaticArray<f64> = [
-  0.5, 0.5946035575013605, 0.7071067811865476, 0.8408964152537145, 1.0,
-  1.189207115002721, 1.4142135623730951, 1.681792830507429, 2.0,
-];
-@inline function edge(i: i32): f64 {
-  return unchecked(EDGES[i]); // i in [0, 8] by construction
-}
-const NEAR: f64 = 1e-12;
 
 @inline function tally(base: usize, j: i32, m: i32): void {
   const p = base + ((<usize>((j << 6) + m)) << 3);
@@ -124,30 +114,63 @@ function exceptionBound(a: u64, b: i64, m: i32, j: i32): i64 {
   return y >= ((<u64>1) << <u64>(K - j)) ? (<i64>1) << K : <i64>(a + (y << j));
 }
 
-@inline function near(x: f64, edge: f64): bool {
-  return abs(x - edge) < NEAR * edge;
+
+const BATCH: i32 = 1024;
+let batchPtr: usize = 0; // BATCH pairs (a, b) of positive least members and images
+let batchN: i32 = 0;
+
+// The quarter edges 2^(i/4), i = -3..3, as round(2^(i/4) 2^31).
+const C1: i64 = 1276901417; // 2^-0.75
+const C2: i64 = 1518500250; // 2^-0.5
+const C3: i64 = 1805811301; // 2^-0.25
+const C4: i64 = 2147483648; // 1
+const C5: i64 = 2553802834; // 2^0.25
+const C6: i64 = 3037000500; // 2^0.5
+const C7: i64 = 3611622603; // 2^0.75
+/** |X - Y| below this may be an edge: the integer truncations err by less than 2^33. */
+const MARGIN: i64 = 1 << 35;
+
+@inline function closeTo(x: i64, y: i64): bool {
+  return abs<i64>(x - y) < MARGIN;
+}
+
+/**
+ * Bins floor(4 log2(b / a)) for a batch, in integers: with la, lb the bit lengths minus one,
+ * b / a = 2^(lb - la) B / A where A, B are a, b with the top bit at 63 and B / A in (1/2, 2).
+ * X = (B >> 33) 2^31 is compared with Y_i = (A >> 33) C_i; both err by less than 2^33, so a
+ * comparison farther apart than 2^35 is exact; closer ones go to the host (channel 3), in BigInt.
+ */
+function binBatch(): void {
+  for (let i = 0; i < batchN; i++) {
+    const p = batchPtr + (<usize>i << 4);
+    const a = load<u64>(p);
+    const b = load<u64>(p, 8);
+    const za = clz(a), zb = clz(b);
+    const x = <i64>((b << zb) >> 33) << 31;
+    const y = <i64>((a << za) >> 33);
+    const y1 = y * C1, y2 = y * C2, y3 = y * C3, y4 = y * C4, y5 = y * C5, y6 = y * C6, y7 = y * C7;
+    if (closeTo(x, y1) || closeTo(x, y2) || closeTo(x, y3) || closeTo(x, y4) || closeTo(x, y5) || closeTo(x, y6) || closeTo(x, y7)) {
+      push(3, a, b, 0, 0);
+    } else {
+      const t = <i32>(x >= y1) + <i32>(x >= y2) + <i32>(x >= y3) + <i32>(x >= y4) + <i32>(x >= y5) + <i32>(x >= y6) + <i32>(x >= y7) - 4;
+      const e = <i32>za - <i32>zb; // (63 - zb) - (63 - za)
+      const q = binsPtr + (<usize>(4 * e + t + BIN_OFFSET) << 3);
+      store<u64>(q, load<u64>(q) + 1);
+    }
+  }
+  batchN = 0;
 }
 
 @inline function leaf(a: u64, b: i64, v: u64, early: u64, excMax: i64): void {
   if (emitVectors) push(0, a, v, 0, 0);
   if (a == 0) return; // the least member 0 is not positive
-  // bins of log2(T^K(a) / a): with e = floor(log2 b) - floor(log2 a) and s = a 2^e, b / s is in (1/2, 2)
+  // bins of log2(T^K(a) / a), decided in batches (a tight loop pipelines far better than the recursion)
   if (b <= 0) bump(0);
   else {
-    const e = (63 - <i32>clz(<u64>b)) - (63 - <i32>clz(a));
-    const s = <f64><i64>a * load<f64>(pow2Ptr + (<usize>(e + 64) << 3));
-    const x = <f64>b;
-    // t = floor(4 log2(x / s)) in [-4, 3] by binary search over the edges s 2^(i/4 - 1), i = 0..8
-    // (branch-free: the comparisons are data-dependent and would mispredict)
-    let t = select<i32>(0, -4, x >= s);
-    t += select<i32>(2, 0, x >= s * edge(t + 6));
-    t += select<i32>(1, 0, x >= s * edge(t + 5));
-    // only the two edges around x can be within rounding of it: decide those cases exactly
-    if (near(x, s * edge(t + 4)) || near(x, s * edge(t + 5))) push(3, a, <u64>b, 0, 0);
-    else {
-      const p = binsPtr + (<usize>(4 * e + t + BIN_OFFSET) << 3);
-      store<u64>(p, load<u64>(p) + 1);
-    }
+    const p = batchPtr + (<usize>batchN << 4);
+    store<u64>(p, a);
+    store<i64>(p, b, 8);
+    if (++batchN == BATCH) binBatch();
   }
   // first descent versus coefficient stopping time
   const isEarly = a < early;
@@ -235,9 +258,9 @@ function dfsDropped(a: u64, b: i64, m: i32, j: i32, pj: i32, pm: i32, v: u64, ea
 
 /**
  * The census of every vector extending `prefix` mod 2^prefixBits, to `depth` (full tree).
- * tables: u64 q^m at [0, 512), i32 bitlen(q^m) at [512, 768), f64 2^e (e = -64..63) at [768, 1792).
+ * tables: u64 q^m at [0, 512), i32 bitlen(q^m) at [512, 768).
  * tallies: u64 live, stopped, vectors, peak [64][64] each, then u64 bins[1024], then u64 counts[4];
- * zeroed here. channels: 4 regions of cap entries (32 bytes): 3 (ambiguous bins), 4 (differ),
+ * zeroed here. channels: 4 regions of cap entries (32 bytes), then a scratch batch of 1024 x 16 bytes: 3 (ambiguous bins), 4 (differ),
  * 5 (ratio candidates), 0 (a, parity vector, when emitVectors).
  */
 export function census(
@@ -251,7 +274,6 @@ export function census(
   H = (<i64>q + <i64>r) >> 1;
   qpowPtr = tables;
   thrPtr = tables + 512;
-  pow2Ptr = tables + 768;
   livePtr = tallies;
   stoppedPtr = tallies + 32768;
   vectorsPtr = tallies + 2 * 32768;
@@ -260,12 +282,15 @@ export function census(
   countsPtr = binsPtr + 1024 * 8;
   memory.fill(tallies, 0, 4 * 32768 + 1024 * 8 + 32);
   chanPtr = channels;
+  batchPtr = channels + 4 * <usize>channelCap * 32;
   chanCap = channelCap;
   n0 = n3 = n4 = n5 = 0;
   emitVectors = vectors != 0;
   best = 0;
   nodes = 0;
+  batchN = 0;
   walk(prefixBits, prefix);
+  binBatch();
   if (n0 > 0) flush(0, n0);
   if (n3 > 0) flush(3, n3);
   if (n4 > 0) flush(4, n4);

@@ -156,9 +156,9 @@ export async function instantiateKernel(module: WebAssembly.Module): Promise<Ker
   const qTables = k.reserve(1024);
   const dTable = k.reserve(TALLY_STRIDE * TALLY_STRIDE * 32);
   let dTableKey = "";
-  const censusTables = k.reserve(1792);
+  const censusTables = k.reserve(768);
   const censusTallies = k.reserve(4 * TALLY_STRIDE * TALLY_STRIDE * 8 + BIN_COUNT * 8 + 32);
-  const censusChannels = k.reserve(4 * EXC_CHUNK * 32);
+  const censusChannels = k.reserve(4 * EXC_CHUNK * 32 + 1024 * 16);
 
   return {
     enumerate(req, onLeaves) {
@@ -211,14 +211,12 @@ export async function instantiateKernel(module: WebAssembly.Module): Promise<Ker
       const mem = k.memory.buffer;
       const qpow = new BigUint64Array(mem, censusTables, 64);
       const thr = new Int32Array(mem, censusTables + 512, 64);
-      const pow2 = new Float64Array(mem, censusTables + 768, 128);
       let p = 1n;
       for (let m = 0; m < 64; m++) {
         qpow[m] = m <= depth ? BigInt.asUintN(64, p) : 0n;
         thr[m] = m <= depth ? dropDepth(q, m) : 0x7fffffff;
         p *= BigInt(q);
       }
-      for (let e = -64; e < 64; e++) pow2[e + 64] = 2 ** e; // exact powers of two
       const region = (i: number) => censusChannels + i * EXC_CHUNK * 32;
       const memOf = () => k.memory.buffer;
       const ch = { 3: collector(memOf, region(0)), 4: collector(memOf, region(1)), 5: collector(memOf, region(2)), 0: pairCollector(memOf, region(3)) };
