@@ -83,7 +83,7 @@ export async function runCensus(pool: KernelPool, map: CollatzMap, depth: number
   let nonpositive = 0n, differCount = 0n, early = 0n, nodes = 0n;
   const ambiguous: [bigint, bigint][] = [];
   const differ: { n: bigint; kind: number }[] = [];
-  let best: { n: bigint; value: bigint; step: number } | null = null;
+  const top: { best: { n: bigint; value: bigint; step: number } | null } = { best: null };
   const signed = map.r < 0;
   const merge = (out: CensusShardResult) => {
     addInto(acc.live, out.live);
@@ -100,7 +100,8 @@ export async function runCensus(pool: KernelPool, map: CollatzMap, depth: number
     for (let i = 0; i < out.ratio.length; i += 4) {
       const u = out.ratio[i]!, v = out.ratio[i + 1]!, step = Number(out.ratio[i + 2]!);
       // exact comparison v / u > best.value / best.n by cross multiplication (positive values)
-      if (!best || v * best.n > best.value * u || (v * best.n === best.value * u && u < best.n)) best = { n: u, value: v, step };
+      const best = top.best;
+      if (!best || v * best.n > best.value * u || (v * best.n === best.value * u && u < best.n)) top.best = { n: u, value: v, step };
     }
   };
   await pool.run(censusShards(map, depth, pool.size, false), (api, s) => api.runCensus(s), (_s, out) => merge(out), options);
@@ -130,7 +131,7 @@ export async function runCensus(pool: KernelPool, map: CollatzMap, depth: number
   return {
     map, depth, levels, live, stopped, vectors: rows(acc.vectors, depth), peak: rows(acc.peak, depth),
     ratioBins, nonpositive, differ: { count: differCount, early, listed },
-    maxRatio: best ? { n: best.n, step: best.step, value: best.value } : { n: 1n, step: 0, value: 1n },
+    maxRatio: top.best ?? { n: 1n, step: 0, value: 1n },
     agreesWithExactCounter: agrees, nodes, seconds: (performance.now() - started) / 1000,
   };
 }

@@ -8,7 +8,7 @@ import type { CollatzMap } from "./map.js";
 import { radixSortU32 } from "./sort.js";
 import { LimitError } from "./errors.js";
 
-export type TableFormat = "raw" | "csv";
+export type TableFormat = "raw" | "csv" | "arrow";
 
 /** Rows above which CSV is refused unless forced (a CSV row is ~30 bytes; raw is 4 or 8). */
 export const CSV_ROW_GUARD = 1_000_000;
@@ -144,7 +144,7 @@ export interface TableManifest {
   readonly depth: number;
   readonly rows: bigint;
   readonly format: TableFormat;
-  readonly element: "u32" | "u64" | "csv";
+  readonly element: "u32" | "u64" | "csv" | "arrow";
   readonly byteOrder: "little-endian" | null;
   readonly data: string;
   readonly bytes: bigint;
@@ -161,8 +161,50 @@ export function tableManifest(
   return {
     kind: "glidepath class table",
     map: map.name, q: map.q, r: map.r, depth, rows, format,
-    element: format === "csv" ? "csv" : depth <= 32 ? "u32" : "u64",
-    byteOrder: format === "csv" ? null : "little-endian",
+    element: format === "raw" ? (depth <= 32 ? "u32" : "u64") : format,
+    byteOrder: format === "raw" ? "little-endian" : null,
+    data: data.file, bytes: data.bytes, sha256: data.sha256,
+    tool: { name: "glidepath", ...tool },
+    created: new Date().toISOString(),
+  };
+}
+
+export interface StepManifest {
+  readonly kind: "glidepath step table";
+  readonly map: string;
+  readonly q: number;
+  readonly r: number;
+  readonly depth: number;
+  readonly rows: number;
+  readonly format: "raw" | "arrow";
+  /** Raw layout: odd_steps (u8 per residue), then image (i64 or u64 per residue) at an 8-aligned offset. */
+  readonly arrays: { readonly name: string; readonly type: string; readonly offset: number; readonly length: number }[] | null;
+  readonly byteOrder: "little-endian" | null;
+  readonly data: string;
+  readonly bytes: bigint;
+  readonly sha256: string;
+  readonly tool: { readonly name: "glidepath"; readonly version: string; readonly kernelBuild: string };
+  readonly created: string;
+}
+
+/** Offset of the image array in a raw step table: after 2^k bytes of odd steps, 8-aligned. */
+export function stepImageOffset(depth: number): number {
+  return Math.ceil(2 ** depth / 8) * 8;
+}
+
+export function stepManifest(
+  map: CollatzMap, depth: number, format: "raw" | "arrow",
+  data: { file: string; bytes: bigint; sha256: string }, tool: { version: string; kernelBuild: string },
+): StepManifest {
+  const rows = 2 ** depth;
+  return {
+    kind: "glidepath step table",
+    map: map.name, q: map.q, r: map.r, depth, rows, format,
+    arrays: format === "raw" ? [
+      { name: "odd_steps", type: "u8", offset: 0, length: rows },
+      { name: "image", type: map.r < 0 ? "i64" : "u64", offset: stepImageOffset(depth), length: rows },
+    ] : null,
+    byteOrder: format === "raw" ? "little-endian" : null,
     data: data.file, bytes: data.bytes, sha256: data.sha256,
     tool: { name: "glidepath", ...tool },
     created: new Date().toISOString(),

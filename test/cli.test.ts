@@ -121,7 +121,7 @@ describe("cli: errors give one line and the documented exit code", () => {
     [["sieve", "--depth", "10", "--workers", "0"], 2, /--workers must be between 1 and 256/],
     [["sieve", "--depth", "10", "--bogus"], 2, /Unknown option '--bogus'/],
     [["sieve", "--depth", "10", "--format", "csv"], 2, /--format needs --out/],
-    [["sieve", "--depth", "10", "--out", "x.bin", "--format", "xml"], 2, /--format must be raw or csv/],
+    [["sieve", "--depth", "10", "--out", "x.bin", "--format", "xml"], 2, /--format must be raw, csv or arrow/],
     [["sieve", "--depth", "30", "--out", "x.csv"], 2, /over the 1,000,000-row guard/],
     [["sieve", "--depth", "10", "--out", "/nonexistent-dir/x.u32"], 1, /cannot write \/nonexistent-dir\/x.u32: ENOENT/],
     [["counts", "--depth", "10001"], 2, /--depth must be between 0 and 10000/],

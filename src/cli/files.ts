@@ -71,14 +71,27 @@ export class AtomicFile {
   }
 }
 
-/** Writes a whole small text file atomically. */
-export async function writeFileAtomic(path: string, text: string): Promise<void> {
-  const f = await AtomicFile.create(path);
+/** Writes a whole file atomically. */
+export async function writeFileAtomic(path: string, data: string | Uint8Array): Promise<void> {
+  await withOutput(path, async () => data, (d) => d);
+}
+
+/**
+ * Opens `path` (when given) before `work` runs, so a bad path fails at once, then writes what
+ * `render` makes of the result and renames it into place; on any failure nothing is left.
+ */
+export async function withOutput<T>(path: string | undefined, work: () => Promise<T>, render: (result: T) => string | Uint8Array): Promise<T> {
+  const f = path === undefined ? null : await AtomicFile.create(path);
   try {
-    await f.write(text);
-    await f.commit();
+    const result = await work();
+    if (f) {
+      await f.write(render(result));
+      await f.commit();
+    }
+    return result;
   } catch (e) {
-    await f.abort();
+    await f?.abort();
     throw e;
   }
 }
+

@@ -4,6 +4,8 @@ import { countsCommand, COUNTS_USAGE } from "./counts.js";
 import { removePendingFiles } from "./files.js";
 import { classCommand, CLASS_USAGE, periodicCommand, PERIODIC_USAGE } from "./inspect.js";
 import { sieveCommand, SIEVE_USAGE } from "./sieve.js";
+import { stepsCommand, STEPS_USAGE } from "./steps.js";
+import { censusCommand, CENSUS_USAGE, conjugacyCommand, CONJUGACY_USAGE, cyclesCommand, CYCLES_USAGE } from "./structure.js";
 import { toolVersion } from "./version.js";
 
 const HELP = `glidepath ${"{version}"}: parity vectors, residue-class sieves and 2-adic structure of T(n) = n/2 | (q n + r)/2
@@ -18,6 +20,15 @@ const HELP = `glidepath ${"{version}"}: parity vectors, residue-class sieves and
       2-adic digits; for a number, its trajectory to the cycle it reaches
   ${PERIODIC_USAGE}
       the 2-adic point whose parity vector is w (or u then w) repeated forever, and its cycle
+  ${CENSUS_USAGE}
+      all 2^K parity vectors: alive and dropping classes by (j, m), peak coefficients, the distribution
+      of log2(T^K(a)/a), least members whose descent differs from the coefficient stopping time
+  ${CYCLES_USAGE}
+      every integer cycle (positive and negative) of period <= K, complete by construction
+  ${CONJUGACY_USAGE}
+      cycle structure of the permutation a -> Q_K(a) (the first K parities as a number)
+  ${STEPS_USAGE}
+      the table (m, b) with T^k(a + 2^k x) = q^m x + b for every a mod 2^k
 
 Maps are written qx+r or qx-r with q odd (3..99) and r odd, |r| < 2^20; the default is 3x+1.
 Exit codes: 0 done, 1 failed at run time, 2 bad usage.
@@ -44,6 +55,18 @@ export async function main(argv: string[]): Promise<number> {
         return 0;
       case "periodic":
         periodicCommand(rest);
+        return 0;
+      case "census":
+        await censusCommand(rest);
+        return 0;
+      case "cycles":
+        await cyclesCommand(rest);
+        return 0;
+      case "conjugacy":
+        await conjugacyCommand(rest);
+        return 0;
+      case "steps":
+        await stepsCommand(rest);
         return 0;
       case "help":
       case "--help":

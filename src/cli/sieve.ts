@@ -10,6 +10,7 @@ import type { SieveResult } from "../sieve.js";
 import { collectRows, csvLines, CSV_ROW_GUARD, passPlan, ResidueSorter, tableManifest } from "../tables.js";
 import type { CsvRow, TableFormat } from "../tables.js";
 import { toExactJson } from "../json.js";
+import { classTableArrow } from "../arrow.js";
 import type { KernelPool } from "../pool.js";
 import { intOption, mapOption, parseOptions, workersOption } from "./args.js";
 import { AtomicFile, writeFileAtomic } from "./files.js";
@@ -18,7 +19,7 @@ import { progressBar } from "./progress.js";
 import { group, levelTable } from "./report.js";
 import { toolVersion } from "./version.js";
 
-export const SIEVE_USAGE = "glidepath sieve [--map 3x+1] --depth K [--out FILE [--format raw|csv] [--force]] [--workers N] [--json]";
+export const SIEVE_USAGE = "glidepath sieve [--map 3x+1] --depth K [--out FILE [--format raw|csv|arrow] [--force]] [--workers N] [--json]";
 
 export async function sieveCommand(argv: string[]): Promise<void> {
   const o = parseOptions(argv, {
@@ -39,8 +40,8 @@ export async function sieveCommand(argv: string[]): Promise<void> {
   if (o.force && out === undefined) throw new UsageError("--force needs --out FILE");
   const format = tableFormat(o.format, out);
   const rows = exactCounts(map, depth).levels[depth]!.survivors;
-  if (format === "csv" && rows > BigInt(CSV_ROW_GUARD) && !o.force) {
-    throw new UsageError(`a CSV of ${group(rows)} rows is over the ${group(BigInt(CSV_ROW_GUARD))}-row guard: use --format raw, or --force`);
+  if (format !== "raw" && rows > BigInt(CSV_ROW_GUARD) && !o.force) {
+    throw new UsageError(`a ${format === "csv" ? "CSV" : "full Arrow"} table of ${group(rows)} rows is over the ${group(BigInt(CSV_ROW_GUARD))}-row guard: use --format raw, or --force`);
   }
 
   const file = out ? await AtomicFile.create(out) : null;
@@ -65,9 +66,9 @@ export async function sieveCommand(argv: string[]): Promise<void> {
 }
 
 function tableFormat(v: string | boolean | undefined, out: string | undefined): TableFormat {
-  if (v === undefined) return out?.endsWith(".csv") ? "csv" : "raw";
-  if (v === "raw" || v === "csv") return v;
-  throw new UsageError(`--format must be raw or csv, got "${String(v)}"`);
+  if (v === undefined) return out?.endsWith(".csv") ? "csv" : out?.endsWith(".arrow") ? "arrow" : "raw";
+  if (v === "raw" || v === "csv" || v === "arrow") return v;
+  throw new UsageError(`--format must be raw, csv or arrow, got "${String(v)}"`);
 }
 
 /** Enumerates (once per memory pass) and streams the sorted table into `file`. */
@@ -75,10 +76,11 @@ async function writeTable(
   pool: KernelPool, map: CollatzMap, depth: number, format: TableFormat, file: AtomicFile, rows: bigint,
   onProgress: (done: number, total: number) => void,
 ): Promise<SieveResult> {
-  if (format === "csv") {
+  if (format !== "raw") {
     const collected: CsvRow[] = [];
     const result = await runSieve(pool, { map, depth, mode: "survivors", onLeaves: (c) => collectRows(collected, c) }, { onProgress });
-    for (const line of csvLines(collected)) await file.write(line);
+    if (format === "arrow") await file.write(classTableArrow(collected, depth));
+    else for (const line of csvLines(collected)) await file.write(line);
     return result;
   }
   const plan = passPlan(depth, rows);

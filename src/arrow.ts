@@ -1,0 +1,82 @@
+// Apache Arrow IPC files (the "file" format, readable by pyarrow, polars and DuckDB as they are).
+// Column names and types are documented in README ("Arrow exports").
+import { Field, Int32, List, Table, Uint64, Utf8, tableFromArrays, tableToIPC, vectorFromArray } from "apache-arrow";
+import type { CsvRow } from "./tables.js";
+import type { StepTable } from "./steps.js";
+import type { CensusResult } from "./census.js";
+import type { CycleSearchResult } from "./cycles.js";
+
+/** Class table: residue (uint32 for depth <= 32, else uint64), odd_steps (uint8), image (int64). */
+export function classTableArrow(rows: readonly CsvRow[], depth: number): Uint8Array {
+  const sorted = [...rows].sort((u, v) => (u.residue < v.residue ? -1 : u.residue > v.residue ? 1 : 0));
+  const residue = depth <= 32 ? Uint32Array.from(sorted, (r) => Number(r.residue)) : BigUint64Array.from(sorted, (r) => r.residue);
+  return tableToIPC(
+    tableFromArrays({
+      residue,
+      odd_steps: Uint8Array.from(sorted, (r) => r.odd),
+      image: BigInt64Array.from(sorted, (r) => BigInt.asIntN(64, r.image) === r.image ? r.image : overflow(r.image)),
+    }),
+    "file",
+  );
+}
+
+function overflow(x: bigint): never {
+  throw new RangeError(`image ${x} does not fit int64`);
+}
+
+/** Step table: residue (uint32, 0..2^k-1 in order), odd_steps (uint8), image (int64, or uint64 when r > 0). */
+export function stepTableArrow(t: StepTable): Uint8Array {
+  const residue = new Uint32Array(t.odd.length);
+  for (let i = 0; i < residue.length; i++) residue[i] = i;
+  return tableToIPC(tableFromArrays({ residue, odd_steps: t.odd, image: t.image }), "file");
+}
+
+/**
+ * Census tallies in long form: tally (utf8: live, stopped, vectors, peak, log2_ratio_quarter,
+ * nonpositive_image), depth (int32), odd_steps (int32), bin (int32: log2 ratio in [bin/4, (bin+1)/4)),
+ * count (uint64); unused coordinates are -1.
+ */
+export function censusArrow(c: CensusResult): Uint8Array {
+  const tally: string[] = [], depth: number[] = [], odd: number[] = [], bin: number[] = [], count: bigint[] = [];
+  const add = (t: string, j: number, m: number, k: number, n: bigint) => {
+    tally.push(t);
+    depth.push(j);
+    odd.push(m);
+    bin.push(k);
+    count.push(n);
+  };
+  for (const [name, table] of [["live", c.live], ["stopped", c.stopped], ["vectors", c.vectors], ["peak", c.peak]] as const) {
+    table.forEach((row, j) => row.forEach((n, m) => n > 0n && add(name, j, m, -1, n)));
+  }
+  for (const b of c.ratioBins) add("log2_ratio_quarter", c.depth, -1, b.bin, b.count);
+  if (c.nonpositive > 0n) add("nonpositive_image", c.depth, -1, -1, c.nonpositive);
+  return tableToIPC(
+    new Table({
+      tally: vectorFromArray(tally, new Utf8()),
+      depth: vectorFromArray(depth, new Int32()),
+      odd_steps: vectorFromArray(odd, new Int32()),
+      bin: vectorFromArray(bin, new Int32()),
+      count: vectorFromArray(count, new Uint64()),
+    }),
+    "file",
+  );
+}
+
+/**
+ * Cycles: representative, min, max (utf8 exact decimals: elements may exceed 64 bits), period and
+ * odd_steps (int32), elements (list<utf8>, in orbit order from the representative).
+ */
+export function cyclesArrow(r: CycleSearchResult): Uint8Array {
+  const cycles = r.cycles;
+  return tableToIPC(
+    new Table({
+      representative: vectorFromArray(cycles.map((c) => String(c.representative)), new Utf8()),
+      min: vectorFromArray(cycles.map((c) => String(c.min)), new Utf8()),
+      max: vectorFromArray(cycles.map((c) => String(c.max)), new Utf8()),
+      period: vectorFromArray(cycles.map((c) => c.period), new Int32()),
+      odd_steps: vectorFromArray(cycles.map((c) => c.odd), new Int32()),
+      elements: vectorFromArray(cycles.map((c) => c.elements.map(String)), new List(new Field("item", new Utf8(), false))),
+    }),
+    "file",
+  );
+}
