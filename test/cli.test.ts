@@ -101,6 +101,46 @@ describe("cli: class tables", () => {
   });
 });
 
+describe("cli: structure commands", () => {
+  it("class 3 mod 16 --json: stopping time 4, affine form 9x + 2 (common practice)", async () => {
+    const { code, stdout } = await cli("class", "3", "mod", "16", "--json");
+    expect(code).toBe(0);
+    const j = parseExactJson(stdout) as { kind: string; card: { form: { residue: bigint; odd: bigint; image: bigint; stoppingTime: bigint } } };
+    expect(j.kind).toBe("class");
+    expect(j.card.form).toMatchObject({ residue: 3n, odd: 2n, image: 2n, stoppingTime: 4n });
+  });
+  it("periodic 1(10) is the 2-adic point 1/3 (not an integer); 110 is -5 on a cycle", async () => {
+    expect((await cli("periodic", "1(10)")).stdout).toMatch(/2-adic point: 1\/3/);
+    expect((await cli("periodic", "110")).stdout).toMatch(/-5 -> -7 -> -10/);
+  });
+  it("cycles --out FILE.arrow and census --out FILE.arrow write readable Arrow files", async () => {
+    const { tableFromIPC } = await import("apache-arrow");
+    const cy = join(dir, "cycles.arrow");
+    expect((await cli("cycles", "--map", "5x+1", "--max-period", "14", "--out", cy)).code).toBe(0);
+    const t = tableFromIPC(readFileSync(cy));
+    // 5x+1: 1 (period 5), 13 (7), 17 (7), and the negative cycle of -1 (common practice)
+    expect(t.getChild("representative")!.toArray()).toEqual(["1", "13", "17", "-1"]);
+    const ce = join(dir, "census.arrow");
+    expect((await cli("census", "--depth", "12", "--out", ce)).code).toBe(0);
+    expect(tableFromIPC(readFileSync(ce)).numRows).toBeGreaterThan(0);
+  });
+  it("steps raw table: the manifest's sha256 matches, and the arrays give T^k (BigInt check)", async () => {
+    const out = join(dir, "steps10.bin");
+    expect((await cli("steps", "--map", "3x-1", "--depth", "10", "--out", out)).code).toBe(0);
+    const data = readFileSync(out);
+    const man = parseExactJson(readFileSync(`${out}.json`, "utf8")) as { sha256: string; arrays: { name: string; offset: bigint; length: bigint; type: string }[] };
+    expect(man.sha256).toBe(createHash("sha256").update(data).digest("hex"));
+    const img = man.arrays[1]!;
+    expect(img.type).toBe("i64");
+    const images = new BigInt64Array(data.buffer.slice(data.byteOffset + Number(img.offset), data.byteOffset + Number(img.offset) + 8 * 1024));
+    for (const a of [0, 1, 7, 27, 1023]) {
+      let v = BigInt(a) + 1024n * 5n;
+      for (let s = 0; s < 10; s++) v = T(3n, -1n, v);
+      expect(v).toBe(3n ** BigInt(data[a]!) * 5n + images[a]!);
+    }
+  });
+});
+
 describe("cli: errors give one line and the documented exit code", () => {
   const cases: [string[], number, RegExp][] = [
     [["sieve", "--map", "4x+1", "--depth", "10"], 2, /q must be odd/],
@@ -127,6 +167,21 @@ describe("cli: errors give one line and the documented exit code", () => {
     [["counts", "--depth", "10001"], 2, /--depth must be between 0 and 10000/],
     [["counts", "--depth", "5", "extra"], 2, /Unexpected argument 'extra'/],
     [["frobnicate"], 2, /unknown command "frobnicate"/],
+    [["class", "w:1021"], 2, /must contain only 0 and 1/],
+    [["class", "w:"], 2, /parity word is empty/],
+    [["class", "16", "mod", "2^4"], 2, /residue 16 is not in \[0, 2\^4\)/],
+    [["class", "5", "mod", "24"], 2, /not a power of two/],
+    [["class"], 2, /give an input/],
+    [["class", "--map", "3x+4", "7"], 2, /r must be odd/],
+    [["periodic", "1(2)"], 2, /is not a parity word/],
+    [["census", "--depth", "33"], 2, /--depth must be between 1 and 32/],
+    [["census", "--depth", "10", "--format", "csv", "--out", "x"], 2, /--format must be arrow here/],
+    [["cycles", "--max-period", "64"], 2, /--max-period must be between 1 and 63/],
+    [["cycles", "--map", "99x+1", "--max-period", "30"], 1, /beyond the exact 128-bit range for 99x\+1/],
+    [["conjugacy", "--depth", "27"], 2, /--depth must be between 1 and 26/],
+    [["steps", "--depth", "25", "--out", "x"], 2, /--depth must be between 1 and 24/],
+    [["steps", "--depth", "10"], 2, /--out FILE is required/],
+    [["steps", "--depth", "10", "--out", "/nonexistent-dir/s"], 1, /cannot write/],
   ];
   for (const [args, code, msg] of cases) {
     it(`${args.join(" ")} -> exit ${code}`, async () => {

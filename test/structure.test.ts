@@ -1,0 +1,191 @@
+// Census, cycle search, conjugacy and step tables against published values and BigInt brute force.
+import { afterAll, describe, expect, it } from "vitest";
+import { tableFromIPC } from "apache-arrow";
+import { parseMap } from "../src/map.js";
+import type { CollatzMap } from "../src/map.js";
+import { runCensus, quarterLog2 } from "../src/census.js";
+import { searchCycles, CycleCollector } from "../src/cycles.js";
+import { conjugacy, conjugacyPermutation, cycleStructure } from "../src/conjugacy.js";
+import { applySteps, stepTable } from "../src/steps.js";
+import { exactCounts } from "../src/exact.js";
+import { censusArrow, cyclesArrow, stepTableArrow } from "../src/arrow.js";
+import { LimitError, UsageError } from "../src/errors.js";
+import { nodePool } from "../src/cli/node-kernel.js";
+import { coefficientStop, kernelOf, parities, T } from "./helpers.js";
+
+const pool = await nodePool(2);
+afterAll(() => pool.terminate());
+const maps = ["3x+1", "3x-1", "3x+5", "5x+1"].map(parseMap);
+
+function iterateBig(map: CollatzMap, n: bigint, k: number): bigint {
+  for (let i = 0; i < k; i++) n = T(BigInt(map.q), BigInt(map.r), n);
+  return n;
+}
+
+/** Cycles reached from every start value with |n| <= bound, by direct iteration (a set of seen values). */
+function bruteCycles(map: CollatzMap, bound: number, maxPeriod: number): Map<bigint, number> {
+  const found = new Map<bigint, number>();
+  for (let s = -bound; s <= bound; s++) {
+    if (s === 0) continue;
+    const seen = new Map<bigint, number>();
+    let v = BigInt(s);
+    for (let i = 0; i < 5000 && !seen.has(v); i++) {
+      seen.set(v, i);
+      v = T(BigInt(map.q), BigInt(map.r), v);
+    }
+    if (!seen.has(v) || v === 0n) continue;
+    const period = seen.size - seen.get(v)!;
+    const cyc = [v];
+    for (let u = T(BigInt(map.q), BigInt(map.r), v); u !== v; u = T(BigInt(map.q), BigInt(map.r), u)) cyc.push(u);
+    const rep = cyc.reduce((a, b) => ((a < 0n ? -a : a) <= (b < 0n ? -b : b) ? a : b));
+    if (period <= maxPeriod) found.set(rep, period);
+  }
+  return found;
+}
+
+describe("cycles: published values", () => {
+  it("3x+1 to period 30: {1, 2} the only positive cycle; negative cycles of -1, -5, -17 with periods 1, 3, 11 (common practice)", async () => {
+    const r = await searchCycles(pool, parseMap("3x+1"), 30);
+    expect(r.cycles.map((c) => [c.representative, c.period])).toEqual([[1n, 2], [-1n, 1], [-5n, 3], [-17n, 11]]);
+    expect(r.nodes).toBe((1n << 31n) - 1n);
+  });
+  it("3x+5 to period 27: minima 1 (3), 5 (2), 19 (5), 23 (5), 187 (27), 347 (27) (Lagarias 1990, from memory)", async () => {
+    const r = await searchCycles(pool, parseMap("3x+5"), 27);
+    const pos = r.cycles.filter((c) => c.representative > 0n).map((c) => [c.min, c.period]);
+    expect(pos).toEqual([[1n, 3], [5n, 2], [19n, 5], [23n, 5], [187n, 27], [347n, 27]]);
+  });
+  it("5x+1 to period 28 (past the 64-bit range: the 128-bit path): 1 (5), 13 (7), 17 (7) (common practice)", async () => {
+    const r = await searchCycles(pool, parseMap("5x+1"), 28);
+    expect(r.width).toBe(128);
+    expect(r.cycles.filter((c) => c.representative > 0n).map((c) => [c.min, c.period])).toEqual([[1n, 5], [13n, 7], [17n, 7]]);
+  });
+});
+
+describe("cycles: brute force and widths", () => {
+  for (const map of maps) {
+    it(`${map.name}: every cycle found from |n| <= 1000 by iteration is in the complete search, and conversely`, async () => {
+      const K = 20;
+      const r = await searchCycles(pool, map, K);
+      const brute = bruteCycles(map, 1000, K);
+      const listed = new Map(r.cycles.filter((c) => (c.representative < 0n ? -c.representative : c.representative) <= 1000n).map((c) => [c.representative, c.period]));
+      expect(listed).toEqual(brute);
+      for (const c of r.cycles) expect(iterateBig(map, c.representative, c.period)).toBe(c.representative);
+    });
+  }
+  it("the 128-bit kernel path finds exactly what the 64-bit path finds (3x+1, 3x-1 to depth 18)", async () => {
+    const kernel = await kernelOf("debug");
+    for (const map of [parseMap("3x+1"), parseMap("3x-1")]) {
+      const narrow = new CycleCollector(map), wide = new CycleCollector(map);
+      const base = { q: map.q, r: map.r, depth: 18, prefixBits: 0, prefix: 0n, walkTallies: true };
+      narrow.add(kernel.cycles({ ...base, wide: false }).candidates);
+      wide.add(kernel.cycles({ ...base, wide: true }).candidates);
+      expect(wide.sorted()).toEqual(narrow.sorted());
+      expect(wide.candidates).toBe(narrow.candidates);
+    }
+  });
+  it("refuses periods beyond the 128-bit range", async () => {
+    await expect(searchCycles(pool, parseMap("99x+1"), 30)).rejects.toBeInstanceOf(LimitError);
+    await expect(searchCycles(pool, parseMap("3x+1"), 0)).rejects.toBeInstanceOf(UsageError);
+  });
+});
+
+describe("census: brute force", () => {
+  for (const map of maps) {
+    const K = map.q === 5 ? 12 : 14;
+    it(`${map.name} at depth ${K}: every tally equals a direct computation over all 2^${K} vectors`, async () => {
+      const c = await runCensus(pool, map, K);
+      expect(c.agreesWithExactCounter).toBe(true);
+      expect(c.levels).toEqual(exactCounts(map, K).levels);
+      const q = BigInt(map.q);
+      const peak = new Map<string, bigint>();
+      const bins = new Map<number, bigint>();
+      let nonpositive = 0n, differ = 0n;
+      let best = { n: 1n, value: 1n };
+      for (let a = 0n; a < 1n << BigInt(K); a++) {
+        // the vector of class a is a's own parity vector (Terras); its peak of q^m/2^j, exactly
+        const word = parities(map, a, K);
+        let m = 0, pj = 0, pm = 0;
+        word.forEach((p, i) => {
+          m += p;
+          if (q ** BigInt(m) * 2n ** BigInt(pj) > q ** BigInt(pm) * 2n ** BigInt(i + 1)) [pj, pm] = [i + 1, m];
+        });
+        peak.set(`${pj},${pm}`, (peak.get(`${pj},${pm}`) ?? 0n) + 1n);
+        if (a === 0n) continue;
+        let v = a, descent: number | null = null;
+        for (let j = 1; j <= K; j++) {
+          v = T(q, BigInt(map.r), v);
+          if (descent === null && v < a) descent = j;
+          if (v > 0n && v * best.n > best.value * a) best = { n: a, value: v };
+        }
+        if (v <= 0n) nonpositive++;
+        else bins.set(quarterLog2(a, v), (bins.get(quarterLog2(a, v)) ?? 0n) + 1n);
+        const stop = coefficientStop(map, a, K);
+        if ((stop?.j ?? null) !== descent) differ++;
+      }
+      const kernelPeak = new Map<string, bigint>();
+      c.peak.forEach((row, j) => row.forEach((n, m) => n > 0n && kernelPeak.set(`${j},${m}`, n)));
+      expect(kernelPeak).toEqual(peak);
+      expect(new Map(c.ratioBins.map((b) => [b.bin, b.count]))).toEqual(bins);
+      expect(c.nonpositive).toBe(nonpositive);
+      expect(c.differ.count).toBe(differ);
+      expect(c.maxRatio.value * best.n).toBe(best.value * c.maxRatio.n);
+    });
+  }
+  it("quarter-unit log2 is exact at the edges: log2(2^(5/4)) boundary cases (common practice)", () => {
+    expect(quarterLog2(1n, 1n)).toBe(0);
+    expect(quarterLog2(1n, 2n)).toBe(4);
+    expect(quarterLog2(2n, 1n)).toBe(-4);
+    expect(quarterLog2(1000n, 1189n)).toBe(0); // 1.189 < 2^(1/4) = 1.18920...
+    expect(quarterLog2(1000n, 1190n)).toBe(1);
+  });
+  it("census depth 32 is the limit; beyond it a usage error", async () => {
+    await expect(runCensus(pool, parseMap("3x+1"), 33)).rejects.toBeInstanceOf(UsageError);
+  });
+});
+
+describe("conjugacy and step tables", () => {
+  it("Q_k is a permutation of Z/2^k and its cycle structure matches a brute force, k <= 12 (Terras 1976)", async () => {
+    for (const map of maps) {
+      for (const k of [1, 5, 12]) {
+        const perm = await conjugacyPermutation(pool, map, k);
+        const brute = new Uint32Array(1 << k);
+        for (let a = 0; a < 1 << k; a++) brute[a] = parities(map, BigInt(a), k).reduce((s, p, i) => s + p * 2 ** i, 0);
+        expect(Array.from(perm)).toEqual(Array.from(brute));
+        expect(new Set(perm).size).toBe(1 << k);
+        const r = await conjugacy(pool, map, k);
+        expect(r.cycles).toBe(cycleStructure(brute).cycles);
+        expect(r.fixedPoints).toBe(cycleStructure(brute).fixedPoints);
+      }
+    }
+  });
+  it("a step table reproduces k single steps for n up to 2^200, every map (k = 12)", async () => {
+    let s = 2n ** 61n - 1n;
+    for (const map of maps) {
+      const t = await stepTable(pool, map, 12);
+      for (let i = 0; i < 200; i++) {
+        s = (s * 6364136223846793005n + 1442695040888963407n) % 2n ** 200n; // a fixed LCG stream
+        expect(applySteps(t, s)).toBe(iterateBig(map, s, 12));
+      }
+    }
+  });
+});
+
+describe("arrow exports round-trip through apache-arrow's reader", () => {
+  it("step table, census tallies and cycles", async () => {
+    const map = parseMap("3x-1");
+    const t = await stepTable(pool, map, 8);
+    const st = tableFromIPC(stepTableArrow(t));
+    expect(st.numRows).toBe(256);
+    expect(st.schema.fields.map((f) => `${f.name}:${f.type}`)).toEqual(["residue:Uint32", "odd_steps:Uint8", "image:Int64"]);
+    expect(Array.from(st.getChild("image")!.toArray() as BigInt64Array)).toEqual(Array.from(t.image));
+    const c = await runCensus(pool, map, 10);
+    const ct = tableFromIPC(censusArrow(c));
+    const rows = ct.toArray().map((r) => r.toJSON());
+    const live10 = rows.filter((r) => r.tally === "live" && r.depth === 10).reduce((s, r) => s + (r.count as bigint), 0n);
+    expect(live10).toBe(c.levels[10]!.survivors);
+    const cy = await searchCycles(pool, parseMap("3x+5"), 12);
+    const yt = tableFromIPC(cyclesArrow(cy));
+    expect(yt.getChild("representative")!.toArray()).toEqual(cy.cycles.map((x) => String(x.representative)));
+    expect(Array.from(yt.getChild("elements")!.get(0)!.toArray())).toEqual(cy.cycles[0]!.elements.map(String));
+  });
+});
