@@ -1,6 +1,7 @@
 // Census of all 2^K parity vectors (full tree), with the tallies the host turns into tables:
 //   live / stopped [j][m]  as in enumerate.ts (first drop of q^m / 2^j below 1);
-//   vectors [j][m]         nodes at depth j with m odd steps (binomial: a sanity check);
+//   vectors [j][m]         parents: nodes at depth j < K with m odd steps, each with two children; the
+//                          host turns them into nodes per (j, m) (binomial: a sanity check);
 //   peak [j][m]            per vector, the (j, m) where q^m / 2^j is largest (exact comparison:
 //                          q^d > 2^e iff e < bitlen(q^d), from the host's table);
 //   bins [k]               per least member a in [1, 2^K): floor(4 log2(T^K(a) / a)), offset 512;
@@ -90,6 +91,8 @@ function push(ch: i32, x0: u64, x1: u64, x2: u64, x3: u64): void {
 
 /** The extremes of the class a mod 2^j within [1, 2^K): a itself, and a + 2^j (2^(K-j) - 1). */
 @inline function extremes(a: u64, b: i64, m: i32, j: i32): void {
+  // every member u >= 1 of a class with m odd steps has T^j(u)/u <= (q/2)^m + max(r, 0) E(m) (host table)
+  if (load<f64>(ratioBoundPtr + (<usize>m << 3)) < best) return;
   if (a > 0) ratioCandidate(a, b, j);
   if (j < K) {
     const span = ((<u64>1) << <u64>(K - j)) - 1;
@@ -116,6 +119,9 @@ function exceptionBound(a: u64, b: i64, m: i32, j: i32): i64 {
 
 
 const BATCH: i32 = 1024;
+let binTab: usize = 0; // per m: f64 2^(k_m/4) (1 + 2^-40), f64 2^((k_m+1)/4) (1 - 2^-40)
+let binBase: usize = 0; // per m: i32 k_m = floor(4 log2(q^m / 2^K))
+let ratioBoundPtr: usize = 0; // f64[m]: an upper bound on T^j(u)/u over members u >= 1, any j >= m
 let batchPtr: usize = 0; // BATCH pairs (a, b) of positive least members and images
 let batchN: i32 = 0;
 
@@ -161,11 +167,18 @@ function binBatch(): void {
   batchN = 0;
 }
 
-@inline function leaf(a: u64, b: i64, v: u64, early: u64, excMax: i64): void {
+@inline function leaf(a: u64, b: i64, m: i32, v: u64, early: u64, excMax: i64): void {
   if (emitVectors) push(0, a, v, 0, 0);
   if (a == 0) return; // the least member 0 is not positive
-  // bins of log2(T^K(a) / a), decided in batches (a tight loop pipelines far better than the recursion)
-  if (b <= 0) bump(0);
+  // bins of log2(T^K(a) / a). Fast path: b / a is within the coefficient's own bin k_m, i.e.
+  // 2^(k_m/4) <= b/a < 2^((k_m+1)/4), tested against bounds shrunk by 2^-40 (f64 errs by < 2^-51).
+  // Otherwise (small a, where c / 2^K matters) the exact batch path decides.
+  const fa = <f64><i64>a, fb = <f64>b;
+  const bt = binTab + (<usize>m << 4);
+  if (fb >= fa * load<f64>(bt) && fb < fa * load<f64>(bt, 8)) {
+    const q = binsPtr + (<usize>(load<i32>(binBase + (<usize>m << 2)) + BIN_OFFSET) << 3);
+    store<u64>(q, load<u64>(q) + 1);
+  } else if (b <= 0) bump(0);
   else {
     const p = batchPtr + (<usize>batchN << 4);
     store<u64>(p, a);
@@ -181,19 +194,20 @@ function binBatch(): void {
   }
 }
 
+// Compile-time switch for the walkers' bodies: with Leaves the children are leaves (depth K) and
+// are finished inline; with Inner the children recurse. Inlining the last two levels this way
+// halves the calls, which dominate the cost of the tree walk.
+type Leaves = u8;
+type Inner = u16;
+
 /**
- * The node (a, b, m) at depth j, not yet dropped: its own ratio candidates and early-descent bound,
- * then its children (tallied here, where the drop is known). (pj, pm) is the peak of q^m / 2^j on the
- * path so far, v the parity vector so far as bits.
+ * The node (a, b, m) at depth j < K, not yet dropped: its own ratio candidates and early-descent
+ * bound, then its children (tallied here, where the drop is known). (pj, pm) is the peak of q^m/2^j
+ * on the path so far, v the parity vector so far as bits.
  */
-function dfsLive(a: u64, b: i64, m: i32, j: i32, pj: i32, pm: i32, v: u64, early0: u64): void {
+@inline function live<C>(a: u64, b: i64, m: i32, j: i32, pj: i32, pm: i32, v: u64, early0: u64): void {
   extremes(a, b, m, j);
   const early = earlyBound(a, b, m, j, early0);
-  if (j == K) {
-    tally(peakPtr, pj, pm);
-    leaf(a, b, v, early, -1);
-    return;
-  }
   const pm0 = <i64>qpow(m);
   const e0 = b & 1;
   const aEven = a | (<u64>e0 << j);
@@ -202,40 +216,30 @@ function dfsLive(a: u64, b: i64, m: i32, j: i32, pj: i32, pm: i32, v: u64, early
   const bOdd = <i64>Q * ((b + select<i64>(0, pm0, e0 != 0)) >> 1) + H;
   const jj = j + 1;
   nodes += 2;
-  tally(vectorsPtr, jj, m);
-  tally(vectorsPtr, jj, m + 1);
+  tally(vectorsPtr, j, m); // parents: the host adds parents (j, m) and (j, m - 1) into vectors (j + 1, m)
   tally(livePtr, jj, m + 1); // an odd step never drops a live class
   const oddPeak = jj - pj < dropDepth(m + 1 - pm);
-  const last = jj == K;
-  if (last) atLeaf(aOdd, bOdd, m + 1, oddPeak ? jj : pj, oddPeak ? m + 1 : pm, v | ((<u64>1) << j), earlyBound(aOdd, bOdd, m + 1, jj, early), -1);
-  else dfsLive(aOdd, bOdd, m + 1, jj, oddPeak ? jj : pj, oddPeak ? m + 1 : pm, v | ((<u64>1) << j), early);
+  const opj = oddPeak ? jj : pj, opm = oddPeak ? m + 1 : pm, ov = v | ((<u64>1) << j);
+  if (sizeof<C>() == 1) atLeaf(aOdd, bOdd, m + 1, opj, opm, ov, earlyBound(aOdd, bOdd, m + 1, jj, early), -1);
+  else if (jj == K - 1) live<Leaves>(aOdd, bOdd, m + 1, jj, opj, opm, ov, early);
+  else dfsLive(aOdd, bOdd, m + 1, jj, opj, opm, ov, early);
   if (jj >= dropDepth(m)) {
     tally(stoppedPtr, jj, m);
     const excMax = bEven >= <i64>aEven ? exceptionBound(aEven, bEven, m, jj) : -1;
-    if (last) atLeaf(aEven, bEven, m, pj, pm, v, early, excMax);
+    if (sizeof<C>() == 1) atLeaf(aEven, bEven, m, pj, pm, v, early, excMax);
+    else if (jj == K - 1) dropped<Leaves>(aEven, bEven, m, jj, pj, pm, v, early, excMax);
     else dfsDropped(aEven, bEven, m, jj, pj, pm, v, early, excMax);
   } else {
     tally(livePtr, jj, m);
-    if (last) atLeaf(aEven, bEven, m, pj, pm, v, earlyBound(aEven, bEven, m, jj, early), -1);
+    if (sizeof<C>() == 1) atLeaf(aEven, bEven, m, pj, pm, v, earlyBound(aEven, bEven, m, jj, early), -1);
+    else if (jj == K - 1) live<Leaves>(aEven, bEven, m, jj, pj, pm, v, early);
     else dfsLive(aEven, bEven, m, jj, pj, pm, v, early);
   }
 }
 
-/** A leaf (depth K): its ratio candidate, its peak, and the leaf tallies. */
-@inline function atLeaf(a: u64, b: i64, m: i32, pj: i32, pm: i32, v: u64, early: u64, excMax: i64): void {
-  if (a > 0) ratioCandidate(a, b, K);
-  tally(peakPtr, pj, pm);
-  leaf(a, b, v, early, excMax);
-}
-
-/** A node at or below its drop: ratio candidates, vectors, peaks and the leaf tallies; excMax from the drop. */
-function dfsDropped(a: u64, b: i64, m: i32, j: i32, pj: i32, pm: i32, v: u64, early: u64, excMax: i64): void {
+/** A node at or below its drop, depth j < K: ratio candidates, vectors, peaks; excMax from the drop. */
+@inline function dropped<C>(a: u64, b: i64, m: i32, j: i32, pj: i32, pm: i32, v: u64, early: u64, excMax: i64): void {
   extremes(a, b, m, j);
-  if (j == K) {
-    tally(peakPtr, pj, pm);
-    leaf(a, b, v, early, excMax);
-    return;
-  }
   const pm0 = <i64>qpow(m);
   const e0 = b & 1;
   const aEven = a | (<u64>e0 << j);
@@ -244,23 +248,43 @@ function dfsDropped(a: u64, b: i64, m: i32, j: i32, pj: i32, pm: i32, v: u64, ea
   const bOdd = <i64>Q * ((b + select<i64>(0, pm0, e0 != 0)) >> 1) + H;
   const jj = j + 1;
   nodes += 2;
-  tally(vectorsPtr, jj, m);
-  tally(vectorsPtr, jj, m + 1);
+  tally(vectorsPtr, j, m); // parents: the host adds parents (j, m) and (j, m - 1) into vectors (j + 1, m)
   const oddPeak = jj - pj < dropDepth(m + 1 - pm);
-  if (jj == K) {
-    atLeaf(aOdd, bOdd, m + 1, oddPeak ? jj : pj, oddPeak ? m + 1 : pm, v | ((<u64>1) << j), early, excMax);
+  const opj = oddPeak ? jj : pj, opm = oddPeak ? m + 1 : pm, ov = v | ((<u64>1) << j);
+  if (sizeof<C>() == 1) {
+    atLeaf(aOdd, bOdd, m + 1, opj, opm, ov, early, excMax);
     atLeaf(aEven, bEven, m, pj, pm, v, early, excMax);
+  } else if (jj == K - 1) {
+    dropped<Leaves>(aOdd, bOdd, m + 1, jj, opj, opm, ov, early, excMax);
+    dropped<Leaves>(aEven, bEven, m, jj, pj, pm, v, early, excMax);
   } else {
-    dfsDropped(aOdd, bOdd, m + 1, jj, oddPeak ? jj : pj, oddPeak ? m + 1 : pm, v | ((<u64>1) << j), early, excMax);
+    dfsDropped(aOdd, bOdd, m + 1, jj, opj, opm, ov, early, excMax);
     dfsDropped(aEven, bEven, m, jj, pj, pm, v, early, excMax);
   }
 }
 
+function dfsLive(a: u64, b: i64, m: i32, j: i32, pj: i32, pm: i32, v: u64, early: u64): void {
+  live<Inner>(a, b, m, j, pj, pm, v, early);
+}
+
+function dfsDropped(a: u64, b: i64, m: i32, j: i32, pj: i32, pm: i32, v: u64, early: u64, excMax: i64): void {
+  dropped<Inner>(a, b, m, j, pj, pm, v, early, excMax);
+}
+
+/** A leaf (depth K): its ratio candidate, its peak, and the leaf tallies. */
+@inline function atLeaf(a: u64, b: i64, m: i32, pj: i32, pm: i32, v: u64, early: u64, excMax: i64): void {
+  if (a > 0 && load<f64>(ratioBoundPtr + (<usize>m << 3)) >= best) ratioCandidate(a, b, K);
+  tally(peakPtr, pj, pm);
+  leaf(a, b, m, v, early, excMax);
+}
+
 /**
  * The census of every vector extending `prefix` mod 2^prefixBits, to `depth` (full tree).
- * tables: u64 q^m at [0, 512), i32 bitlen(q^m) at [512, 768).
+ * tables: u64 q^m at [0, 512), i32 bitlen(q^m) at [512, 768), f64 pairs (bin bounds) at [768, 1792),
+ * i32 k_m at [1792, 2048).
  * tallies: u64 live, stopped, vectors, peak [64][64] each, then u64 bins[1024], then u64 counts[4];
- * zeroed here. channels: 4 regions of cap entries (32 bytes), then a scratch batch of 1024 x 16 bytes: 3 (ambiguous bins), 4 (differ),
+ * zeroed here. channels: 4 regions of cap entries (32 bytes), then a scratch batch of 1024 x 16 bytes,
+ * then the host's f64[64] ratio bounds; the regions: 3 (ambiguous bins), 4 (differ),
  * 5 (ratio candidates), 0 (a, parity vector, when emitVectors).
  */
 export function census(
@@ -274,6 +298,8 @@ export function census(
   H = (<i64>q + <i64>r) >> 1;
   qpowPtr = tables;
   thrPtr = tables + 512;
+  binTab = tables + 768;
+  binBase = tables + 768 + 1024;
   livePtr = tallies;
   stoppedPtr = tallies + 32768;
   vectorsPtr = tallies + 2 * 32768;
@@ -283,6 +309,7 @@ export function census(
   memory.fill(tallies, 0, 4 * 32768 + 1024 * 8 + 32);
   chanPtr = channels;
   batchPtr = channels + 4 * <usize>channelCap * 32;
+  ratioBoundPtr = batchPtr + 1024 * 16;
   chanCap = channelCap;
   n0 = n3 = n4 = n5 = 0;
   emitVectors = vectors != 0;
@@ -306,13 +333,13 @@ function walk(prefixBits: i32, prefix: u64): void {
   let alive = true, excMax: i64 = -1;
   if (prefix == 0) {
     tally(livePtr, 0, 0);
-    tally(vectorsPtr, 0, 0);
     nodes = 1;
   }
   for (let j = 0; j < prefixBits; j++) {
     // ancestors at depth j < prefixBits: the owner runs their node-level work
     if ((prefix >> <u64>j) == 0) {
       extremes(a, b, m, j);
+      tally(vectorsPtr, j, m); // a parent owned by this shard
     }
     if (alive) early = earlyBound(a, b, m, j, early);
     const e = (prefix >> <u64>j) & 1;
@@ -330,10 +357,7 @@ function walk(prefixBits: i32, prefix: u64): void {
       pj = jj;
       pm = m;
     }
-    if (owned) {
-      nodes++;
-      tally(vectorsPtr, jj, m);
-    }
+    if (owned) nodes++;
     if (alive && !odd && jj >= dropDepth(m)) {
       alive = false;
       if (owned) tally(stoppedPtr, jj, m);
@@ -342,6 +366,10 @@ function walk(prefixBits: i32, prefix: u64): void {
       tally(livePtr, jj, m);
     }
   }
-  if (alive) dfsLive(a, b, m, prefixBits, pj, pm, v, early);
+  if (prefixBits == K) atLeaf(a, b, m, pj, pm, v, alive ? earlyBound(a, b, m, K, early) : early, excMax);
+  else if (prefixBits == K - 1) {
+    if (alive) live<Leaves>(a, b, m, prefixBits, pj, pm, v, early);
+    else dropped<Leaves>(a, b, m, prefixBits, pj, pm, v, early, excMax);
+  } else if (alive) dfsLive(a, b, m, prefixBits, pj, pm, v, early);
   else dfsDropped(a, b, m, prefixBits, pj, pm, v, early, excMax);
 }

@@ -129,11 +129,16 @@ export async function runCensus(pool: KernelPool, map: CollatzMap, depth: number
     return { n: d.n, descent, stoppingTime: form.stoppingTime };
   });
   return {
-    map, depth, levels, live, stopped, vectors: rows(acc.vectors, depth), peak: rows(acc.peak, depth),
+    map, depth, levels, live, stopped, vectors: nodesFromParents(rows(acc.vectors, depth)), peak: rows(acc.peak, depth),
     ratioBins, nonpositive, differ: { count: differCount, early, listed },
     maxRatio: top.best ?? { n: 1n, step: 0, value: 1n },
     agreesWithExactCounter: agrees, nodes, seconds: (performance.now() - started) / 1000,
   };
+}
+
+/** Nodes at (j, m): the root, then the children of parents (j - 1, m) (even) and (j - 1, m - 1) (odd). */
+function nodesFromParents(parents: bigint[][]): bigint[][] {
+  return parents.map((row, j) => row.map((_, m) => (j === 0 ? 1n : (parents[j - 1]![m] ?? 0n) + (m > 0 ? parents[j - 1]![m - 1]! : 0n))));
 }
 
 function at(row: { mLow: number; live: bigint[]; stopped: bigint[] }, key: "live" | "stopped", m: number): bigint {

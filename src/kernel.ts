@@ -96,6 +96,7 @@ export interface CensusShardResult {
   /** [j * 64 + m], j = 0..depth. */
   readonly live: BigUint64Array;
   readonly stopped: BigUint64Array;
+  /** Parents: nodes at depth j < depth with m odd steps (each has two children). */
   readonly vectors: BigUint64Array;
   readonly peak: BigUint64Array;
   /** bins[k + 512]: least members with floor(4 log2(T^K(a)/a)) = k (f64-decided away from edges). */
@@ -156,9 +157,10 @@ export async function instantiateKernel(module: WebAssembly.Module): Promise<Ker
   const qTables = k.reserve(1024);
   const dTable = k.reserve(TALLY_STRIDE * TALLY_STRIDE * 32);
   let dTableKey = "";
-  const censusTables = k.reserve(768);
+  const censusTables = k.reserve(2048);
   const censusTallies = k.reserve(4 * TALLY_STRIDE * TALLY_STRIDE * 8 + BIN_COUNT * 8 + 32);
-  const censusChannels = k.reserve(4 * EXC_CHUNK * 32 + 1024 * 16);
+  const censusChannels = k.reserve(4 * EXC_CHUNK * 32 + 1024 * 16 + 64 * 8);
+  let ratioKey = "";
 
   return {
     enumerate(req, onLeaves) {
@@ -211,11 +213,23 @@ export async function instantiateKernel(module: WebAssembly.Module): Promise<Ker
       const mem = k.memory.buffer;
       const qpow = new BigUint64Array(mem, censusTables, 64);
       const thr = new Int32Array(mem, censusTables + 512, 64);
+      const bounds = new Float64Array(mem, censusTables + 768, 128);
+      const base = new Int32Array(mem, censusTables + 1792, 64);
       let p = 1n;
       for (let m = 0; m < 64; m++) {
         qpow[m] = m <= depth ? BigInt.asUintN(64, p) : 0n;
         thr[m] = m <= depth ? dropDepth(q, m) : 0x7fffffff;
+        // k_m = floor(4 log2(q^m / 2^K)) exactly: bitlen(q^(4m)) - 1 - 4K. The f64 bounds only
+        // select a fast path; they are shrunk by 2^-40 so that rounding can never misplace a leaf.
+        const k = (p ** 4n).toString(2).length - 1 - 4 * depth;
+        base[m] = k;
+        bounds[2 * m] = 2 ** (k / 4) * (1 + 2 ** -40);
+        bounds[2 * m + 1] = 2 ** ((k + 1) / 4) * (1 - 2 ** -40);
         p *= BigInt(q);
+      }
+      if (ratioKey !== `${q},${r},${depth}`) {
+        writeRatioBounds(new Float64Array(mem, censusChannels + 4 * EXC_CHUNK * 32 + 1024 * 16, 64), q, r, depth);
+        ratioKey = `${q},${r},${depth}`;
       }
       const region = (i: number) => censusChannels + i * EXC_CHUNK * 32;
       const memOf = () => k.memory.buffer;
@@ -259,6 +273,19 @@ export async function instantiateKernel(module: WebAssembly.Module): Promise<Ker
       }
     },
   };
+}
+
+/**
+ * bound[m] >= T^j(u)/u for every member u >= 1 of a class with m odd steps at any depth j >= m:
+ * T^j(u) = (q^m u + r S) / 2^j with 0 <= S / 2^j <= E(m) = ((q/2)^m - 1) / (q - 2), so the ratio is
+ * at most (q/2)^m + max(r, 0) E(m). Rounded up generously (x (1 + 2^-30)): it only lets the kernel
+ * skip candidates that cannot win.
+ */
+function writeRatioBounds(out: Float64Array, q: number, r: number, depth: number): void {
+  for (let m = 0; m <= depth; m++) {
+    const e = (Math.pow(q / 2, m) - 1) / (q - 2);
+    out[m] = (Math.pow(q / 2, m) + Math.max(r, 0) * e) * (1 + 2 ** -30) + 1e-300;
+  }
 }
 
 /** Channel chunks (4 u64 per entry) copied out of wasm memory. */
