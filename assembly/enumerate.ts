@@ -73,19 +73,14 @@ function pushException(a: u64, b: u64, j: i32, m: i32): void {
   }
 }
 
-/** Leaf at the target depth, or one more level of the tree. */
-function visit<T>(a: u64, b: T, m: i32, j: i32, alive: bool): void {
-  if (j == K) {
-    if (emit) pushLeaf(a, <u64>b, m);
-  } else if (alive) {
-    dfsLive<T>(a, b, m, j);
-  } else {
-    dfsDropped<T>(a, b, m, j);
-  }
-}
+// Compile-time switch for the walkers' bodies: with Leaves the children are leaves (depth K); with
+// Inner they are inner nodes, walked inline when they sit just above the leaves and by a call
+// otherwise. Inlining the last two levels halves the calls, which dominate the walk.
+type Leaves = u8;
+type Inner = u16;
 
 /** Below a live class: tallies, the drop test, exceptions; survivors mode cuts dropped classes. */
-function dfsLive<T>(a: u64, b: T, m: i32, j: i32): void {
+@inline function live<T, C>(a: u64, b: T, m: i32, j: i32): void {
   // children: e0 is the extension bit that makes the next value even (the Terras construction)
   const pm = <T>qpow(m);
   const e0 = b & <T>1;
@@ -94,34 +89,35 @@ function dfsLive<T>(a: u64, b: T, m: i32, j: i32): void {
   const bEven = (b + select<T>(pm, <T>0, e0 != 0)) >> 1;
   const bOdd = <T>Q * ((b + select<T>(<T>0, pm, e0 != 0)) >> 1) + <T>H;
   const jj = j + 1;
-  const last = jj == K;
   if (jj >= dropDepth(m)) {
     tally(stoppedPtr, jj, m);
     if (bEven >= <T>aEven) pushException(aEven, <u64>bEven, jj, m);
     if (full) {
       nodes++;
-      if (last) {
+      if (sizeof<C>() == 1) {
         if (emit) pushLeaf(aEven, <u64>bEven, m);
-      } else dfsDropped<T>(aEven, bEven, m, jj);
+      } else if (jj == K - 1) dropped<T, Leaves>(aEven, bEven, m, jj);
+      else dfsDropped<T>(aEven, bEven, m, jj);
     }
   } else {
     nodes++;
     tally(livePtr, jj, m);
-    if (last) {
+    if (sizeof<C>() == 1) {
       if (emit) pushLeaf(aEven, <u64>bEven, m);
-    } else dfsLive<T>(aEven, bEven, m, jj);
+    } else if (jj == K - 1) live<T, Leaves>(aEven, bEven, m, jj);
+    else dfsLive<T>(aEven, bEven, m, jj);
   }
   // An odd step never drops a live class: q^m >= 2^j implies q^(m+1) > 2^(j+1).
   nodes++;
   tally(livePtr, jj, m + 1);
-  if (last) {
+  if (sizeof<C>() == 1) {
     if (emit) pushLeaf(aOdd, <u64>bOdd, m + 1);
-  } else dfsLive<T>(aOdd, bOdd, m + 1, jj);
+  } else if (jj == K - 1) live<T, Leaves>(aOdd, bOdd, m + 1, jj);
+  else dfsLive<T>(aOdd, bOdd, m + 1, jj);
 }
 
 /** Full mode below a dropped class: every vector is still visited, nothing more is tallied. */
-function dfsDropped<T>(a: u64, b: T, m: i32, j: i32): void {
-  // children: e0 is the extension bit that makes the next value even (the Terras construction)
+@inline function dropped<T, C>(a: u64, b: T, m: i32, j: i32): void {
   const pm = <T>qpow(m);
   const e0 = b & <T>1;
   const aEven = a | (<u64>e0 << j);
@@ -130,15 +126,22 @@ function dfsDropped<T>(a: u64, b: T, m: i32, j: i32): void {
   const bOdd = <T>Q * ((b + select<T>(<T>0, pm, e0 != 0)) >> 1) + <T>H;
   const jj = j + 1;
   nodes += 2;
-  if (jj == K) {
-    if (emit) {
-      pushLeaf(aEven, <u64>bEven, m);
-      pushLeaf(aOdd, <u64>bOdd, m + 1);
-    }
-  } else {
-    dfsDropped<T>(aEven, bEven, m, jj);
-    dfsDropped<T>(aOdd, bOdd, m + 1, jj);
-  }
+  if (sizeof<C>() == 1) {
+    if (emit) pushLeaf(aEven, <u64>bEven, m);
+  } else if (jj == K - 1) dropped<T, Leaves>(aEven, bEven, m, jj);
+  else dfsDropped<T>(aEven, bEven, m, jj);
+  if (sizeof<C>() == 1) {
+    if (emit) pushLeaf(aOdd, <u64>bOdd, m + 1);
+  } else if (jj == K - 1) dropped<T, Leaves>(aOdd, bOdd, m + 1, jj);
+  else dfsDropped<T>(aOdd, bOdd, m + 1, jj);
+}
+
+function dfsLive<T>(a: u64, b: T, m: i32, j: i32): void {
+  live<T, Inner>(a, b, m, j);
+}
+
+function dfsDropped<T>(a: u64, b: T, m: i32, j: i32): void {
+  dropped<T, Inner>(a, b, m, j);
 }
 
 function run<T>(prefixBits: i32, prefix: u64, walkTallies: bool): void {
@@ -179,7 +182,13 @@ function run<T>(prefixBits: i32, prefix: u64, walkTallies: bool): void {
       tally(livePtr, jj, m);
     }
   }
-  visit<T>(a, b, m, prefixBits, alive);
+  if (prefixBits == K) {
+    if (emit) pushLeaf(a, <u64>b, m);
+  } else if (prefixBits == K - 1) {
+    if (alive) live<T, Leaves>(a, b, m, prefixBits);
+    else dropped<T, Leaves>(a, b, m, prefixBits);
+  } else if (alive) dfsLive<T>(a, b, m, prefixBits);
+  else dfsDropped<T>(a, b, m, prefixBits);
 }
 
 /**

@@ -10,6 +10,9 @@ import { runSieve } from "../src/sieve.js";
 import type { Mode } from "../src/kernel.js";
 import { nodePool } from "../src/cli/node-kernel.js";
 import { enumeratePlain } from "./ts-enumerate.js";
+import { runCensus } from "../src/census.js";
+import { searchCycles } from "../src/cycles.js";
+import { inspect } from "../src/inspect.js";
 
 const map = parseMap("3x+1");
 const cores = availableParallelism();
@@ -40,6 +43,36 @@ for (const depth of [32, 34, 36]) {
 for (const depth of [28, 30]) {
   await kernelRun("full", depth, 1);
   if (cores > 1) await kernelRun("full", depth, cores);
+}
+
+async function structureRun(what: string, workers: number, run: (pool: Awaited<ReturnType<typeof nodePool>>) => Promise<{ nodes: bigint }>): Promise<void> {
+  const pool = await nodePool(workers);
+  try {
+    await runCensus(pool, map, 16); // warm the workers and the JIT
+    const t = performance.now();
+    const res = await run(pool);
+    const s = (performance.now() - t) / 1000;
+    rows.push([what, String(workers), res.nodes.toLocaleString("en-US"), s.toFixed(3), rate(res.nodes, s)]);
+  } finally {
+    pool.terminate();
+  }
+}
+for (const w of cores > 1 ? [1, cores] : [1]) await structureRun("census depth 30", w, (pool) => runCensus(pool, map, 30));
+await structureRun("cycles to period 30", cores, (pool) => searchCycles(pool, map, 30));
+await structureRun("cycles 5x+1 to period 30 (128-bit)", cores, (pool) => searchCycles(pool, parseMap("5x+1"), 30));
+
+{
+  // the inspector on a 10,000-step trajectory and a 10,000-letter word (BigInt)
+  const start = 2n ** 9999n - 1n;
+  inspect(map, { kind: "number", n: 27n });
+  let t0 = performance.now();
+  inspect(map, { kind: "number", n: start }, 10_000);
+  const tNumber = performance.now() - t0;
+  t0 = performance.now();
+  inspect(map, { kind: "word", word: "110".repeat(3333) + "1" });
+  const tWord = performance.now() - t0;
+  rows.push(["inspector: 10,000-step trajectory of 2^9999 - 1", "1", "-", (tNumber / 1000).toFixed(3), "-"]);
+  rows.push(["inspector: class of a 10,000-letter word", "1", "-", (tWord / 1000).toFixed(3), "-"]);
 }
 
 const plainDepth = 30;
