@@ -48,33 +48,38 @@ export function exactCounts(map: CollatzMap, depth: number, options: { byOdd?: b
   const levels: Level[] = [{ depth: 0, survivors: 1n, stopped: 0n }];
   const byOdd: NonNullable<ExactCounts["byOdd"]> = [];
   if (options.byOdd) byOdd.push({ mLow: 0, live: [1n], stopped: [0n] });
+  let survivors = 1n;
   for (let j = 0; j < depth; j++) {
     const jj = j + 1;
-    // next[m - lo]: even steps keep m, odd steps add one; index i stands for m = lo + i.
-    const next: bigint[] = new Array<bigint>(live.length + 1).fill(0n);
-    const stoppedRow: bigint[] = options.byOdd ? new Array<bigint>(live.length + 1).fill(0n) : [];
+    // In place, from the top down: live(jj, m) = [m does not drop at jj] live(j, m) + live(j, m - 1),
+    // index i standing for m = lo + i. At most one m drops per depth (drop[] is strictly increasing).
+    live.push(0n);
     let stopped = 0n;
-    for (let i = 0; i < live.length; i++) {
-      const c = live[i]!;
-      if (c === 0n) continue;
-      const m = lo + i;
-      if (jj >= drop[m]!) {
-        stopped += c;
-        if (options.byOdd) stoppedRow[i] = c;
-      } else {
-        next[i] = next[i]! + c;
+    let stoppedAt = -1;
+    for (let i = live.length - 1; i >= 0; i--) {
+      let keep = live[i]!;
+      if (keep !== 0n && jj === drop[lo + i]) {
+        stopped = keep;
+        stoppedAt = i;
+        keep = 0n;
       }
-      next[i + 1] = next[i + 1]! + c;
+      live[i] = i > 0 ? keep + live[i - 1]! : keep;
     }
-    let survivors = 0n;
-    for (const c of next) survivors += c;
+    // each survivor at depth j has two children, of which the dropped ones stop (common practice)
+    survivors = 2n * survivors - stopped;
     levels.push({ depth: jj, survivors, stopped });
-    if (options.byOdd) byOdd.push({ mLow: lo, live: next.slice(), stopped: stoppedRow });
+    if (options.byOdd) {
+      const stoppedRow = new Array<bigint>(live.length).fill(0n);
+      if (stoppedAt >= 0) stoppedRow[stoppedAt] = stopped;
+      byOdd.push({ mLow: lo, live: live.slice(), stopped: stoppedRow });
+    }
     // Trim the zero entries at the low end so the window stays [lo, jj].
     let cut = 0;
-    while (cut < next.length - 1 && next[cut] === 0n) cut++;
-    live = cut > 0 ? next.slice(cut) : next;
-    lo += cut;
+    while (cut < live.length - 1 && live[cut] === 0n) cut++;
+    if (cut > 0) {
+      live = live.slice(cut);
+      lo += cut;
+    }
     if (options.onProgress && (jj & 255) === 0) options.onProgress(jj);
   }
   return options.byOdd ? { levels, byOdd } : { levels };
