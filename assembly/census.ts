@@ -119,7 +119,7 @@ function exceptionBound(a: u64, b: i64, m: i32, j: i32): i64 {
 
 
 const BATCH: i32 = 1024;
-let binTab: usize = 0; // per m: f64 2^(k_m/4) (1 + 2^-40), f64 2^((k_m+1)/4) (1 - 2^-40)
+let binMin: usize = 0; // per m: u64, least members above it are in bin k_m (host-proven)
 let binBase: usize = 0; // per m: i32 k_m = floor(4 log2(q^m / 2^K))
 let ratioBoundPtr: usize = 0; // f64[m]: an upper bound on T^j(u)/u over members u >= 1, any j >= m
 let batchPtr: usize = 0; // BATCH pairs (a, b) of positive least members and images
@@ -170,12 +170,10 @@ function binBatch(): void {
 @inline function leaf(a: u64, b: i64, m: i32, v: u64, early: u64, excMax: i64): void {
   if (emitVectors) push(0, a, v, 0, 0);
   if (a == 0) return; // the least member 0 is not positive
-  // bins of log2(T^K(a) / a). Fast path: b / a is within the coefficient's own bin k_m, i.e.
-  // 2^(k_m/4) <= b/a < 2^((k_m+1)/4), tested against bounds shrunk by 2^-40 (f64 errs by < 2^-51).
-  // Otherwise (small a, where c / 2^K matters) the exact batch path decides.
-  const fa = <f64><i64>a, fb = <f64>b;
-  const bt = binTab + (<usize>m << 4);
-  if (fb >= fa * load<f64>(bt) && fb < fa * load<f64>(bt, 8)) {
+  // bins of log2(T^K(a) / a). b/a = q^m/2^K + c/(2^K a) with |c| bounded per m, and q^m/2^K lies
+  // in bin k_m; the host proved (in BigInt) that every a above binMin[m] stays in bin k_m.
+  // Smaller a (where c matters) take the exact batch path.
+  if (a > load<u64>(binMin + (<usize>m << 3))) {
     const q = binsPtr + (<usize>(load<i32>(binBase + (<usize>m << 2)) + BIN_OFFSET) << 3);
     store<u64>(q, load<u64>(q) + 1);
   } else if (b <= 0) bump(0);
@@ -280,8 +278,8 @@ function dfsDropped(a: u64, b: i64, m: i32, j: i32, pj: i32, pm: i32, v: u64, ea
 
 /**
  * The census of every vector extending `prefix` mod 2^prefixBits, to `depth` (full tree).
- * tables: u64 q^m at [0, 512), i32 bitlen(q^m) at [512, 768), f64 pairs (bin bounds) at [768, 1792),
- * i32 k_m at [1792, 2048).
+ * tables: u64 q^m at [0, 512), i32 bitlen(q^m) at [512, 768), u64 binMin at [768, 1280),
+ * i32 k_m at [1280, 1536).
  * tallies: u64 live, stopped, vectors, peak [64][64] each, then u64 bins[1024], then u64 counts[4];
  * zeroed here. channels: 4 regions of cap entries (32 bytes), then a scratch batch of 1024 x 16 bytes,
  * then the host's f64[64] ratio bounds; the regions: 3 (ambiguous bins), 4 (differ),
@@ -298,8 +296,8 @@ export function census(
   H = (<i64>q + <i64>r) >> 1;
   qpowPtr = tables;
   thrPtr = tables + 512;
-  binTab = tables + 768;
-  binBase = tables + 768 + 1024;
+  binMin = tables + 768;
+  binBase = tables + 768 + 512;
   livePtr = tallies;
   stoppedPtr = tallies + 32768;
   vectorsPtr = tallies + 2 * 32768;

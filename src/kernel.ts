@@ -213,18 +213,15 @@ export async function instantiateKernel(module: WebAssembly.Module): Promise<Ker
       const mem = k.memory.buffer;
       const qpow = new BigUint64Array(mem, censusTables, 64);
       const thr = new Int32Array(mem, censusTables + 512, 64);
-      const bounds = new Float64Array(mem, censusTables + 768, 128);
-      const base = new Int32Array(mem, censusTables + 1792, 64);
+      const binMin = new BigUint64Array(mem, censusTables + 768, 64);
+      const base = new Int32Array(mem, censusTables + 1280, 64);
       let p = 1n;
       for (let m = 0; m < 64; m++) {
         qpow[m] = m <= depth ? BigInt.asUintN(64, p) : 0n;
         thr[m] = m <= depth ? dropDepth(q, m) : 0x7fffffff;
-        // k_m = floor(4 log2(q^m / 2^K)) exactly: bitlen(q^(4m)) - 1 - 4K. The f64 bounds only
-        // select a fast path; they are shrunk by 2^-40 so that rounding can never misplace a leaf.
-        const k = (p ** 4n).toString(2).length - 1 - 4 * depth;
-        base[m] = k;
-        bounds[2 * m] = 2 ** (k / 4) * (1 + 2 ** -40);
-        bounds[2 * m + 1] = 2 ** ((k + 1) / 4) * (1 - 2 ** -40);
+        const bin = m <= depth ? coefficientBin(q, r, m, depth) : { k: 0, min: (1n << 64n) - 1n };
+        base[m] = bin.k;
+        binMin[m] = bin.min;
         p *= BigInt(q);
       }
       if (ratioKey !== `${q},${r},${depth}`) {
@@ -273,6 +270,47 @@ export async function instantiateKernel(module: WebAssembly.Module): Promise<Ker
       }
     },
   };
+}
+
+function isqrt(n: bigint): bigint {
+  if (n < 2n) return n;
+  let x = 1n << BigInt(Math.ceil(n.toString(2).length / 2));
+  for (;;) {
+    const y = (x + n / x) >> 1n;
+    if (y >= x) return x;
+    x = y;
+  }
+}
+
+/**
+ * The quarter-unit bin k of the coefficient q^m/2^K (k = floor(4 log2(q^m / 2^K)), exactly:
+ * bitlen(q^(4m)) - 1 - 4K), and a bound `min` such that every least member a > min of a class with
+ * m odd steps has T^K(a)/a in bin k. T^K(a)/a = q^m/2^K + c/(2^K a) with c = r S, 0 <= S <= S_max
+ * = (q^m - 2^m) 2^(K-m) / (q - 2). For r > 0, b/a only rises above q^m/2^K, and stays below the
+ * edge 2^((k+1)/4) while c/a < G = 2^((k+1)/4 + K) - q^m; G is bounded below by the integer 4th root
+ * of 2^(k+1+4K) minus q^m (floor(sqrt(floor(sqrt(N)))) = floor(N^(1/4))). For r < 0 the same with
+ * the lower edge 2^(k/4). A bound of 2^64 - 1 turns the fast path off for that m.
+ */
+function coefficientBin(q: number, r: number, m: number, K: number): { k: number; min: bigint } {
+  const qm = BigInt(q) ** BigInt(m);
+  const k = (qm ** 4n).toString(2).length - 1 - 4 * K;
+  const never = (1n << 64n) - 1n;
+  const cMax = (BigInt(Math.abs(r)) * (qm - (1n << BigInt(m))) * (1n << BigInt(K - m)) + BigInt(q - 3)) / BigInt(q - 2) + 1n;
+  let gap: bigint;
+  if (r > 0) {
+    const e = k + 1 + 4 * K;
+    if (e < 0) return { k, min: never };
+    gap = isqrt(isqrt(1n << BigInt(e))) - qm; // <= the true gap
+  } else {
+    const e = k + 4 * K;
+    if (e < 0) return { k, min: never };
+    const root = isqrt(isqrt(1n << BigInt(e)));
+    // the true lower edge 2^(e/4) is at most root + 1
+    gap = qm - (root + 1n);
+  }
+  if (gap < 1n) return { k, min: never };
+  const min = cMax / gap + 1n;
+  return { k, min: min >= never ? never : min };
 }
 
 /**
