@@ -3,6 +3,7 @@ import { defineConfig } from "vitest/config";
 export default defineConfig({
   test: {
     include: ["test/**/*.test.ts"],
+    fileParallelism: false,
     environment: "node",
     testTimeout: 120_000,
     hookTimeout: 60_000,

@@ -6,6 +6,16 @@ export interface ShardOutput extends ShardResult {
   readonly leaves?: LeafChunk;
 }
 
+/** A class table export made in a worker: the rows' (m, b) come from each residue, in BigInt. */
+export interface TableExport {
+  readonly q: number;
+  readonly r: number;
+  readonly depth: number;
+  readonly format: "csv" | "arrow";
+  /** Sorted survivors (depth <= 32). */
+  readonly residues: Uint32Array;
+}
+
 /** The object each worker exposes. */
 export interface KernelWorkerApi {
   /** Instantiates the kernel from a compiled module (compiled once by the pool's owner). */
@@ -13,4 +23,5 @@ export interface KernelWorkerApi {
   runShard(req: ShardRequest): Promise<ShardOutput>;
   runCycles(req: CycleShard): Promise<CycleShardResult>;
   runCensus(req: CensusShard): Promise<CensusShardResult>;
+  exportTable(req: TableExport): Promise<Uint8Array>;
 }

@@ -8,6 +8,8 @@ import type { KernelWorkerApi } from "./messages.js";
 export interface WorkerHandle {
   readonly endpoint: Endpoint;
   terminate(): void;
+  /** Reports a worker that died (an uncaught error, out of memory): the run fails with it. */
+  onError?(listener: (error: Error) => void): void;
 }
 export type SpawnWorker = () => WorkerHandle;
 
@@ -38,6 +40,7 @@ export interface RunOptions {
 export class KernelPool {
   private slots: Slot[] = [];
   private busy = false;
+  private crash: ((error: Error) => void) | null = null;
 
   constructor(
     private readonly spawn: SpawnWorker,
@@ -50,6 +53,7 @@ export class KernelPool {
   private ensureSlots(): Slot[] {
     while (this.slots.length < this.size) {
       const handle = this.spawn();
+      handle.onError?.((e) => this.crash?.(e));
       const api = wrap<KernelWorkerApi>(handle.endpoint);
       this.slots.push({ handle, api, ready: api.init(this.module) });
     }
@@ -72,6 +76,11 @@ export class KernelPool {
     let cancel: () => void = () => {};
     const cancelled = new Promise<never>((_, reject) => {
       cancel = () => reject(new CancelledError());
+      this.crash = (e) => {
+        failure ??= e;
+        this.terminate();
+        reject(e);
+      };
     });
     cancelled.catch(() => {});
     const onAbort = () => {
@@ -105,6 +114,7 @@ export class KernelPool {
       }
     } finally {
       signal?.removeEventListener("abort", onAbort);
+      this.crash = null;
       this.busy = false;
     }
   }

@@ -4,6 +4,11 @@ import { transfer } from "comlink";
 import { instantiateKernel } from "./kernel.js";
 import type { KernelInstance, LeafChunk } from "./kernel.js";
 import type { KernelWorkerApi, ShardOutput } from "./messages.js";
+import { makeMap } from "./map.js";
+import { classFromResidue } from "./padic.js";
+import { csvLines } from "./tables.js";
+import type { CsvRow } from "./tables.js";
+import { classTableArrow } from "./arrow.js";
 
 /** @example expose(createWorkerApi(), endpoint) */
 export function createWorkerApi(): KernelWorkerApi {
@@ -27,6 +32,15 @@ export function createWorkerApi(): KernelWorkerApi {
       const arrays: ArrayBufferView[] = [res.live, res.stopped, res.vectors, res.peak, res.bins, res.counts, res.ambiguous, res.differ, res.ratio];
       if (res.leafVectors) arrays.push(res.leafVectors);
       return transfer(res, arrays.map((x) => asArrayBuffer(x.buffer)));
+    },
+    async exportTable(req) {
+      const map = makeMap(req.q, req.r);
+      const rows: CsvRow[] = Array.from(req.residues, (a) => {
+        const c = classFromResidue(map, BigInt(a), req.depth);
+        return { residue: c.residue, odd: c.odd, image: c.image };
+      });
+      const bytes = req.format === "arrow" ? classTableArrow(rows, req.depth) : new TextEncoder().encode([...csvLines(rows)].join(""));
+      return transfer(bytes, [asArrayBuffer(bytes.buffer)]);
     },
     async runCycles(req) {
       if (!kernel) throw new Error("worker used before init");

@@ -35,7 +35,11 @@ const workerUrl = new URL("../../lib/cli/node-worker.js", import.meta.url);
 export const spawnNodeWorker: SpawnWorker = () => {
   const w = new Worker(workerUrl, { execArgv: [] }); // plain JS: no loaders or -e flags of the parent
   w.unref();
-  return { endpoint: nodeEndpoint(w), terminate: () => void w.terminate() };
+  return {
+    endpoint: nodeEndpoint(w),
+    terminate: () => void w.terminate(),
+    onError: (listener) => w.on("error", (e) => listener(new Error(`worker failed: ${e instanceof Error ? e.message : String(e)}`))),
+  };
 };
 
 /** A pool of `workers` threads (default: the available cores). */

@@ -11,6 +11,7 @@ import { collectRows, csvLines, CSV_ROW_GUARD, passPlan, ResidueSorter, tableMan
 import type { CsvRow, TableFormat } from "../tables.js";
 import { toExactJson } from "../json.js";
 import { classTableArrow } from "../arrow.js";
+import { sieveJson } from "../summary.js";
 import type { KernelPool } from "../pool.js";
 import { intOption, mapOption, parseOptions, workersOption } from "./args.js";
 import { AtomicFile, writeFileAtomic } from "./files.js";
@@ -100,18 +101,6 @@ async function writeTable(
   }
   if (written !== rows) throw new Error(`internal error: wrote ${written} residues, the exact counter says ${rows}`);
   return first!;
-}
-
-export function sieveJson(r: SieveResult) {
-  return {
-    map: r.map.name,
-    depth: r.depth,
-    levels: r.levels.map((l) => ({ depth: l.depth, survivors: l.survivors, stopped: l.stopped })),
-    exceptions: r.exceptions.map((e) => ({ n: e.n, residue: e.residue, classDepth: e.classDepth })),
-    exceptionCount: r.exceptionCount,
-    nodes: r.nodes,
-    seconds: Number(r.seconds.toFixed(3)),
-  };
 }
 
 function sieveText(r: SieveResult, workers: number, out?: string): string {

@@ -7,6 +7,7 @@ import { searchCycles, MAX_CYCLE_PERIOD } from "../cycles.js";
 import type { CycleSearchResult } from "../cycles.js";
 import { conjugacy, MAX_CONJUGACY_DEPTH } from "../conjugacy.js";
 import { censusArrow, cyclesArrow } from "../arrow.js";
+import { censusJson, log2Coefficient, vectorsAreBinomial } from "../summary.js";
 import { intOption, mapOption, parseOptions, workersOption } from "./args.js";
 import { withOutput } from "./files.js";
 import { nodePool } from "./node-kernel.js";
@@ -23,42 +24,6 @@ function arrowOut(o: Record<string, string | boolean | undefined>): string | und
   if (o.format !== undefined && o.format !== "arrow") throw new UsageError(`--format must be arrow here, got "${String(o.format)}"`);
   if (o.format !== undefined && o.out === undefined) throw new UsageError("--format needs --out FILE");
   return typeof o.out === "string" ? o.out : undefined;
-}
-
-/** log2(q^m / 2^j) for display only (never used to decide anything). */
-function log2Coefficient(q: number, m: number, j: number): number {
-  return Number((m * Math.log2(q) - j).toFixed(6));
-}
-
-function binomial(n: number, k: number): bigint {
-  let c = 1n;
-  for (let i = 0; i < k; i++) c = (c * BigInt(n - i)) / BigInt(i + 1);
-  return c;
-}
-
-export function censusJson(c: CensusResult) {
-  const q = c.map.q;
-  const cells = (t: bigint[][]) => t.flatMap((row, j) => row.flatMap((count, m) => (count > 0n ? [{ depth: j, odd: m, count, log2Coefficient: log2Coefficient(q, m, j) }] : [])));
-  return {
-    map: c.map.name,
-    depth: c.depth,
-    levels: c.levels,
-    agreesWithExactCounter: c.agreesWithExactCounter,
-    vectorsAreBinomial: vectorsAreBinomial(c),
-    vectors: cells(c.vectors),
-    peaks: cells(c.peak),
-    ratioBins: c.ratioBins.map((b) => ({ bin: b.bin, from: b.bin / 4, to: (b.bin + 1) / 4, count: b.count })),
-    nonpositiveImages: c.nonpositive,
-    differ: c.differ,
-    maxRatio: { n: c.maxRatio.n, step: c.maxRatio.step, value: c.maxRatio.value, classDepth: c.depth },
-    nodes: c.nodes,
-    seconds: Number(c.seconds.toFixed(3)),
-  };
-}
-
-/** Nodes at (j, m) are the C(j, m) prefixes with m odd steps (a sanity check of the enumeration). */
-function vectorsAreBinomial(c: CensusResult): boolean {
-  return c.vectors.every((row, j) => row.every((n, m) => n === binomial(j, m)));
 }
 
 function censusText(c: CensusResult, workers: number): string {

@@ -1,0 +1,54 @@
+// The machine-readable summaries of a run, shared by the CLI (--json) and the web app
+// (data-run-summary): every count an exact integer (BigInt, written as digits by toExactJson).
+import type { SieveResult } from "./sieve.js";
+import type { CensusResult } from "./census.js";
+
+/** The fields of `glidepath sieve --json`. */
+export function sieveJson(r: SieveResult) {
+  return {
+    map: r.map.name,
+    depth: r.depth,
+    levels: r.levels.map((l) => ({ depth: l.depth, survivors: l.survivors, stopped: l.stopped })),
+    exceptions: r.exceptions.map((e) => ({ n: e.n, residue: e.residue, classDepth: e.classDepth })),
+    exceptionCount: r.exceptionCount,
+    nodes: r.nodes,
+    seconds: Number(r.seconds.toFixed(3)),
+  };
+}
+
+/** log2(q^m / 2^j) for display only (never used to decide anything). */
+export function log2Coefficient(q: number, m: number, j: number): number {
+  return Number((m * Math.log2(q) - j).toFixed(6));
+}
+
+function binomial(n: number, k: number): bigint {
+  let c = 1n;
+  for (let i = 0; i < k; i++) c = (c * BigInt(n - i)) / BigInt(i + 1);
+  return c;
+}
+
+/** Nodes at (j, m) are the C(j, m) prefixes with m odd steps (a sanity check of the enumeration). */
+export function vectorsAreBinomial(c: CensusResult): boolean {
+  return c.vectors.every((row, j) => row.every((n, m) => n === binomial(j, m)));
+}
+
+/** The fields of `glidepath census --json`. */
+export function censusJson(c: CensusResult) {
+  const q = c.map.q;
+  const cells = (t: bigint[][]) => t.flatMap((row, j) => row.flatMap((count, m) => (count > 0n ? [{ depth: j, odd: m, count, log2Coefficient: log2Coefficient(q, m, j) }] : [])));
+  return {
+    map: c.map.name,
+    depth: c.depth,
+    levels: c.levels,
+    agreesWithExactCounter: c.agreesWithExactCounter,
+    vectorsAreBinomial: vectorsAreBinomial(c),
+    vectors: cells(c.vectors),
+    peaks: cells(c.peak),
+    ratioBins: c.ratioBins.map((b) => ({ bin: b.bin, from: b.bin / 4, to: (b.bin + 1) / 4, count: b.count })),
+    nonpositiveImages: c.nonpositive,
+    differ: c.differ,
+    maxRatio: { n: c.maxRatio.n, step: c.maxRatio.step, value: c.maxRatio.value, classDepth: c.depth },
+    nodes: c.nodes,
+    seconds: Number(c.seconds.toFixed(3)),
+  };
+}

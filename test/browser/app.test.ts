@@ -1,0 +1,146 @@
+// End to end in Debian's Chromium: the built app (dist/) served on loopback, driven by playwright-core.
+import { readFileSync } from "node:fs";
+import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import type { BrowserContext, Page } from "playwright-core";
+import { parseExactJson } from "../../src/json.js";
+import { parseCsv } from "../../src/tables.js";
+import { parseMap } from "../../src/map.js";
+import { A076227 } from "../published.js";
+import { coefficientStop, T } from "../helpers.js";
+import { launch, serveDist, summaryOf } from "./harness.js";
+
+let server: Awaited<ReturnType<typeof serveDist>>;
+let browser: BrowserContext;
+let done: () => Promise<void>;
+
+beforeAll(async () => {
+  server = await serveDist();
+  ({ browser, done } = await launch());
+}, 60_000);
+afterAll(async () => {
+  await done?.();
+  await server?.close();
+});
+
+async function open(query = ""): Promise<Page> {
+  const page = await browser.newPage();
+  page.on("dialog", () => {
+    throw new Error("the page opened a dialog");
+  });
+  page.on("pageerror", (e) => {
+    throw e;
+  });
+  await page.goto(server.url + query);
+  return page;
+}
+
+type Summary = { map: string; depth: bigint; levels: { depth: bigint; survivors: bigint; stopped: bigint }[]; exceptions: { n: bigint }[]; census?: { agreesWithExactCounter: boolean } };
+const summary = async (page: Page) => parseExactJson(await summaryOf(page)) as Summary;
+/** The summary without its timings (they differ from run to run). */
+const stable = (s: Summary): unknown => JSON.parse(JSON.stringify(s, (k, v: unknown) => (k === "seconds" ? 0 : typeof v === "bigint" ? v.toString() : v)));
+
+describe("web app", () => {
+  it("runs a depth-20 sieve whose table agrees with A076227 (OEIS, from memory)", async () => {
+    const page = await open();
+    await page.fill("#run-depth", "20");
+    await page.click("#run-start");
+    const s = await summary(page);
+    expect(s.levels.map((l) => l.survivors)).toEqual(A076227.slice(0, 21));
+    expect(s.exceptions.map((e) => e.n)).toEqual([1n]);
+    const cells = await page.$$eval("#run-levels tbody tr", (rows) => rows.map((r) => r.children[1]!.textContent!.replace(/,/g, "")));
+    expect(cells.map(BigInt)).toEqual(A076227.slice(0, 21));
+    expect(await page.$$eval("#run-levels td.ok", (x) => x.length)).toBe(21);
+    await page.close();
+  });
+
+  it("cancels a depth-32 run, stays usable, and runs again", async () => {
+    const page = await open();
+    await page.fill("#run-depth", "32");
+    await page.click("#run-start");
+    await page.waitForFunction(() => (document.querySelector("#run-progress") as HTMLProgressElement).value > 0, undefined, { timeout: 30_000 });
+    await page.click("#run-cancel");
+    await page.waitForFunction(() => document.querySelector("#run-status")!.textContent === "Cancelled.", undefined, { timeout: 2_000 });
+    expect(await page.isEnabled("#run-start")).toBe(true);
+    expect(await page.textContent("[data-run-summary]")).toBe("");
+    await page.fill("#run-depth", "18");
+    await page.click("#run-start");
+    expect((await summary(page)).levels[18]!.survivors).toBe(A076227[18]);
+    await page.close();
+  });
+
+  it("exports the class table as CSV: each row's (m, b) is the class's affine form (BigInt check)", async () => {
+    const page = await open("?depth=12&run=1");
+    await summaryOf(page);
+    await page.click("#tab-table");
+    const [download] = await Promise.all([page.waitForEvent("download"), page.click("#export-csv")]);
+    const rows = parseCsv(readFileSync((await download.path())!, "utf8"));
+    const map = parseMap("3x+1");
+    const survivors: bigint[] = [];
+    for (let a = 0n; a < 4096n; a++) if (coefficientStop(map, a, 12) === null) survivors.push(a);
+    expect(rows.map((r) => r.residue)).toEqual(survivors);
+    for (const r of rows) {
+      let v = r.residue + 4096n * 7n;
+      for (let i = 0; i < 12; i++) v = T(3n, 1n, v);
+      expect(v).toBe(3n ** BigInt(r.odd) * 7n + r.image);
+    }
+    await page.close();
+  });
+
+  it("inspects 3 mod 16: coefficient stopping time 4, 6 standard steps (common practice)", async () => {
+    const page = await open("?view=inspect");
+    await page.fill("#inspect-input", "3 mod 16");
+    await page.click("#inspect-go");
+    const card = await page.textContent("#inspect-card");
+    expect(card).toContain("coefficient stopping time 4 (6 standard steps)");
+    expect(card).toContain("T^4(3 + 2^4·x) = 3^2·x + 2");
+    await page.close();
+  });
+
+  it("a shared URL reproduces the run: same summary, census tallies in full mode", async () => {
+    const page = await open();
+    await page.selectOption("#run-mode", "full");
+    await page.fill("#run-depth", "16");
+    await page.click("#run-start");
+    const first = await summary(page);
+    expect(first.census?.agreesWithExactCounter).toBe(true);
+    const url = page.url();
+    expect(url).toContain("mode=full");
+    const again = await open(new URL(url).search + "&run=1");
+    expect(stable(await summary(again))).toEqual(stable(first));
+    await page.close();
+    await again.close();
+  });
+
+  it("refuses bad input beside the field, without a run or a dialog", async () => {
+    const page = await open();
+    await page.fill("#run-map", "4x+1");
+    await page.click("#run-start");
+    expect(await page.textContent("#run-map-error")).toMatch(/q must be odd/);
+    await page.fill("#run-map", "3x+1");
+    await page.fill("#run-depth", "40");
+    await page.click("#run-start");
+    expect(await page.textContent("#run-depth-error")).toMatch(/from 1 to 32/);
+    await page.click("#tab-inspect");
+    await page.fill("#inspect-input", "w:1021");
+    await page.click("#inspect-go");
+    expect(await page.textContent("#inspect-input-error")).toMatch(/only 0 and 1/);
+    expect(await page.textContent("[data-run-summary]")).toBe("");
+    await page.close();
+  });
+
+  it("labels every control and works from the keyboard", async () => {
+    const page = await open();
+    const unlabeled = await page.$$eval("input, select", (els) => els.filter((e) => (e as HTMLInputElement).labels?.length === 0 && !e.getAttribute("aria-label")).map((e) => e.id));
+    expect(unlabeled).toEqual([]);
+    const nameless = await page.$$eval("button", (els) => els.filter((b) => !(b.textContent ?? "").trim() && !b.getAttribute("aria-label")).map((b) => b.id));
+    expect(nameless).toEqual([]);
+    await page.focus("#run-depth");
+    await page.fill("#run-depth", "10");
+    await page.keyboard.press("Enter");
+    expect((await summary(page)).levels[10]!.survivors).toBe(A076227[10]);
+    await page.focus("#tab-run");
+    await page.keyboard.press("ArrowRight");
+    expect(await page.getAttribute("#tab-table", "aria-selected")).toBe("true");
+    await page.close();
+  });
+});

@@ -1,0 +1,53 @@
+// The browser side of the engine: the kernel module fetched once, a pool of Web Workers through
+// comlink, and the runs the views start. Arithmetic stays in src/; this file only wires it up.
+import wasmUrl from "../build/release.wasm?url";
+import { compileKernel } from "../src/kernel.js";
+import { KernelPool } from "../src/pool.js";
+import type { RunOptions, SpawnWorker, WorkerHandle } from "../src/pool.js";
+import { wrap } from "comlink";
+import type { KernelWorkerApi } from "../src/messages.js";
+
+const spawn: SpawnWorker = (): WorkerHandle => {
+  const w = new Worker(new URL("./worker.ts", import.meta.url), { type: "module" });
+  return {
+    endpoint: w,
+    terminate: () => w.terminate(),
+    onError: (listener) =>
+      w.addEventListener("error", (ev) => listener(new Error(`a worker stopped: ${ev.message || "it ran out of memory or crashed"}`))),
+  };
+};
+
+let modulePromise: Promise<WebAssembly.Module> | null = null;
+export function kernelModule(): Promise<WebAssembly.Module> {
+  modulePromise ??= fetch(wasmUrl).then((r) => r.arrayBuffer()).then((b) => compileKernel("release", b));
+  return modulePromise;
+}
+
+let pool: KernelPool | null = null;
+let poolSize = 0;
+/** The shared pool, rebuilt when the worker count changes. */
+export async function getPool(workers: number): Promise<KernelPool> {
+  if (!pool || poolSize !== workers) {
+    pool?.terminate();
+    pool = new KernelPool(spawn, await kernelModule(), workers);
+    poolSize = workers;
+  }
+  return pool;
+}
+
+/** A one-off worker for exports (so the page never does the BigInt work itself). */
+export async function withExportWorker<T>(work: (api: ReturnType<typeof wrap<KernelWorkerApi>>) => Promise<T>): Promise<T> {
+  const h = spawn();
+  const api = wrap<KernelWorkerApi>(h.endpoint);
+  try {
+    return await work(api);
+  } finally {
+    h.terminate();
+  }
+}
+
+export function defaultWorkers(): number {
+  return Math.max(1, Math.min(16, navigator.hardwareConcurrency || 2));
+}
+
+export type { RunOptions };
