@@ -34,6 +34,7 @@ let n3: i32 = 0;
 let n4: i32 = 0;
 let n5: i32 = 0;
 let emitVectors: bool = false;
+let V: u64 = 0; // the parity vector of the current path, bit j = parity of step j + 1
 let best: f64 = 0;
 let nodes: u64 = 0;
 
@@ -167,8 +168,8 @@ function binBatch(): void {
   batchN = 0;
 }
 
-@inline function leaf(a: u64, b: i64, m: i32, v: u64, early: u64, excMax: i64): void {
-  if (emitVectors) push(0, a, v, 0, 0);
+@inline function leaf(a: u64, b: i64, m: i32, early: u64, excMax: i64): void {
+  if (emitVectors) push(0, a, V, 0, 0);
   if (a == 0) return; // the least member 0 is not positive
   // bins of log2(T^K(a) / a). b/a = q^m/2^K + c/(2^K a) with |c| bounded per m, and q^m/2^K lies
   // in bin k_m; the host proved (in BigInt) that every a above binMin[m] stays in bin k_m.
@@ -200,10 +201,10 @@ type Inner = u16;
 
 /**
  * The node (a, b, m) at depth j < K, not yet dropped: its own ratio candidates and early-descent
- * bound, then its children (tallied here, where the drop is known). (pj, pm) is the peak of q^m/2^j
- * on the path so far, v the parity vector so far as bits.
+ * bound, then its children (tallied here, where the drop is known). pk = (j << 6) | m is where the
+ * peak of q^m/2^j on the path so far is; the path's parity vector is kept in V.
  */
-@inline function live<C>(a: u64, b: i64, m: i32, j: i32, pj: i32, pm: i32, v: u64, early0: u64): void {
+@inline function live<C>(a: u64, b: i64, m: i32, j: i32, pk: i32, early0: u64): void {
   extremes(a, b, m, j);
   const early = earlyBound(a, b, m, j, early0);
   const pm0 = <i64>qpow(m);
@@ -216,27 +217,29 @@ type Inner = u16;
   nodes += 2;
   tally(vectorsPtr, j, m); // parents: the host adds parents (j, m) and (j, m - 1) into vectors (j + 1, m)
   tally(livePtr, jj, m + 1); // an odd step never drops a live class
-  const oddPeak = jj - pj < dropDepth(m + 1 - pm);
-  const opj = oddPeak ? jj : pj, opm = oddPeak ? m + 1 : pm, ov = v | ((<u64>1) << j);
-  if (sizeof<C>() == 1) atLeaf(aOdd, bOdd, m + 1, opj, opm, ov, earlyBound(aOdd, bOdd, m + 1, jj, early), -1);
-  else if (jj == K - 1) live<Leaves>(aOdd, bOdd, m + 1, jj, opj, opm, ov, early);
-  else dfsLive(aOdd, bOdd, m + 1, jj, opj, opm, ov, early);
+  const opk = jj - (pk >> 6) < dropDepth(m + 1 - (pk & 63)) ? (jj << 6) | (m + 1) : pk;
+  const bit = (<u64>1) << j;
+  V |= bit;
+  if (sizeof<C>() == 1) atLeaf(aOdd, bOdd, m + 1, opk, earlyBound(aOdd, bOdd, m + 1, jj, early), -1);
+  else if (jj == K - 1) live<Leaves>(aOdd, bOdd, m + 1, jj, opk, early);
+  else dfsLive(aOdd, bOdd, m + 1, jj, opk, early);
+  V &= ~bit;
   if (jj >= dropDepth(m)) {
     tally(stoppedPtr, jj, m);
     const excMax = bEven >= <i64>aEven ? exceptionBound(aEven, bEven, m, jj) : -1;
-    if (sizeof<C>() == 1) atLeaf(aEven, bEven, m, pj, pm, v, early, excMax);
-    else if (jj == K - 1) dropped<Leaves>(aEven, bEven, m, jj, pj, pm, v, early, excMax);
-    else dfsDropped(aEven, bEven, m, jj, pj, pm, v, early, excMax);
+    if (sizeof<C>() == 1) atLeaf(aEven, bEven, m, pk, early, excMax);
+    else if (jj == K - 1) dropped<Leaves>(aEven, bEven, m, jj, pk, early, excMax);
+    else dfsDropped(aEven, bEven, m, jj, pk, early, excMax);
   } else {
     tally(livePtr, jj, m);
-    if (sizeof<C>() == 1) atLeaf(aEven, bEven, m, pj, pm, v, earlyBound(aEven, bEven, m, jj, early), -1);
-    else if (jj == K - 1) live<Leaves>(aEven, bEven, m, jj, pj, pm, v, early);
-    else dfsLive(aEven, bEven, m, jj, pj, pm, v, early);
+    if (sizeof<C>() == 1) atLeaf(aEven, bEven, m, pk, earlyBound(aEven, bEven, m, jj, early), -1);
+    else if (jj == K - 1) live<Leaves>(aEven, bEven, m, jj, pk, early);
+    else dfsLive(aEven, bEven, m, jj, pk, early);
   }
 }
 
 /** A node at or below its drop, depth j < K: ratio candidates, vectors, peaks; excMax from the drop. */
-@inline function dropped<C>(a: u64, b: i64, m: i32, j: i32, pj: i32, pm: i32, v: u64, early: u64, excMax: i64): void {
+@inline function dropped<C>(a: u64, b: i64, m: i32, j: i32, pk: i32, early: u64, excMax: i64): void {
   extremes(a, b, m, j);
   const pm0 = <i64>qpow(m);
   const e0 = b & 1;
@@ -247,33 +250,32 @@ type Inner = u16;
   const jj = j + 1;
   nodes += 2;
   tally(vectorsPtr, j, m); // parents: the host adds parents (j, m) and (j, m - 1) into vectors (j + 1, m)
-  const oddPeak = jj - pj < dropDepth(m + 1 - pm);
-  const opj = oddPeak ? jj : pj, opm = oddPeak ? m + 1 : pm, ov = v | ((<u64>1) << j);
-  if (sizeof<C>() == 1) {
-    atLeaf(aOdd, bOdd, m + 1, opj, opm, ov, early, excMax);
-    atLeaf(aEven, bEven, m, pj, pm, v, early, excMax);
-  } else if (jj == K - 1) {
-    dropped<Leaves>(aOdd, bOdd, m + 1, jj, opj, opm, ov, early, excMax);
-    dropped<Leaves>(aEven, bEven, m, jj, pj, pm, v, early, excMax);
-  } else {
-    dfsDropped(aOdd, bOdd, m + 1, jj, opj, opm, ov, early, excMax);
-    dfsDropped(aEven, bEven, m, jj, pj, pm, v, early, excMax);
-  }
+  const opk = jj - (pk >> 6) < dropDepth(m + 1 - (pk & 63)) ? (jj << 6) | (m + 1) : pk;
+  const bit = (<u64>1) << j;
+  V |= bit;
+  if (sizeof<C>() == 1) atLeaf(aOdd, bOdd, m + 1, opk, early, excMax);
+  else if (jj == K - 1) dropped<Leaves>(aOdd, bOdd, m + 1, jj, opk, early, excMax);
+  else dfsDropped(aOdd, bOdd, m + 1, jj, opk, early, excMax);
+  V &= ~bit;
+  if (sizeof<C>() == 1) atLeaf(aEven, bEven, m, pk, early, excMax);
+  else if (jj == K - 1) dropped<Leaves>(aEven, bEven, m, jj, pk, early, excMax);
+  else dfsDropped(aEven, bEven, m, jj, pk, early, excMax);
 }
 
-function dfsLive(a: u64, b: i64, m: i32, j: i32, pj: i32, pm: i32, v: u64, early: u64): void {
-  live<Inner>(a, b, m, j, pj, pm, v, early);
+function dfsLive(a: u64, b: i64, m: i32, j: i32, pk: i32, early: u64): void {
+  live<Inner>(a, b, m, j, pk, early);
 }
 
-function dfsDropped(a: u64, b: i64, m: i32, j: i32, pj: i32, pm: i32, v: u64, early: u64, excMax: i64): void {
-  dropped<Inner>(a, b, m, j, pj, pm, v, early, excMax);
+function dfsDropped(a: u64, b: i64, m: i32, j: i32, pk: i32, early: u64, excMax: i64): void {
+  dropped<Inner>(a, b, m, j, pk, early, excMax);
 }
 
 /** A leaf (depth K): its ratio candidate, its peak, and the leaf tallies. */
-@inline function atLeaf(a: u64, b: i64, m: i32, pj: i32, pm: i32, v: u64, early: u64, excMax: i64): void {
+@inline function atLeaf(a: u64, b: i64, m: i32, pk: i32, early: u64, excMax: i64): void {
   if (a > 0 && load<f64>(ratioBoundPtr + (<usize>m << 3)) >= best) ratioCandidate(a, b, K);
-  tally(peakPtr, pj, pm);
-  leaf(a, b, m, v, early, excMax);
+  const p = peakPtr + (<usize>pk << 3); // pk = (j << 6) | m, the peak's tally index
+  store<u64>(p, load<u64>(p) + 1);
+  leaf(a, b, m, early, excMax);
 }
 
 /**
@@ -327,7 +329,8 @@ function walk(prefixBits: i32, prefix: u64): void {
   // The state at the prefix node, tracked exactly as the full walk would. Each ancestor is tallied
   // by the one shard that is its extension by zero bits (prefix >> j == 0), so the 2^prefixBits
   // shards of a split sum to the whole census. The prefix node itself is handled by the dfs.
-  let a: u64 = 0, b: i64 = 0, m: i32 = 0, pj: i32 = 0, pm: i32 = 0, v: u64 = 0, early: u64 = 0;
+  let a: u64 = 0, b: i64 = 0, m: i32 = 0, pj: i32 = 0, pm: i32 = 0, early: u64 = 0;
+  V = 0;
   let alive = true, excMax: i64 = -1;
   if (prefix == 0) {
     tally(livePtr, 0, 0);
@@ -346,7 +349,7 @@ function walk(prefixBits: i32, prefix: u64): void {
     b = odd ? <i64>Q * (x >> 1) + H : x >> 1;
     if (odd) {
       m++;
-      v |= (<u64>1) << j;
+      V |= (<u64>1) << j;
     }
     a |= e << <u64>j;
     const jj = j + 1;
@@ -364,10 +367,11 @@ function walk(prefixBits: i32, prefix: u64): void {
       tally(livePtr, jj, m);
     }
   }
-  if (prefixBits == K) atLeaf(a, b, m, pj, pm, v, alive ? earlyBound(a, b, m, K, early) : early, excMax);
+  const pk = (pj << 6) | pm;
+  if (prefixBits == K) atLeaf(a, b, m, pk, alive ? earlyBound(a, b, m, K, early) : early, excMax);
   else if (prefixBits == K - 1) {
-    if (alive) live<Leaves>(a, b, m, prefixBits, pj, pm, v, early);
-    else dropped<Leaves>(a, b, m, prefixBits, pj, pm, v, early, excMax);
-  } else if (alive) dfsLive(a, b, m, prefixBits, pj, pm, v, early);
-  else dfsDropped(a, b, m, prefixBits, pj, pm, v, early, excMax);
+    if (alive) live<Leaves>(a, b, m, prefixBits, pk, early);
+    else dropped<Leaves>(a, b, m, prefixBits, pk, early, excMax);
+  } else if (alive) dfsLive(a, b, m, prefixBits, pk, early);
+  else dfsDropped(a, b, m, prefixBits, pk, early, excMax);
 }

@@ -10,6 +10,7 @@ import { runSieve } from "../src/sieve.js";
 import type { Mode } from "../src/kernel.js";
 import { nodePool } from "../src/cli/node-kernel.js";
 import { enumeratePlain } from "./ts-enumerate.js";
+import { webBench } from "./web.js";
 import { runCensus } from "../src/census.js";
 import { searchCycles } from "../src/cycles.js";
 import { inspect } from "../src/inspect.js";
@@ -106,3 +107,6 @@ try {
 } finally {
   rmSync(dir, { recursive: true, force: true });
 }
+
+// The web app in headless Chromium (Debian's chromium).
+for (const r of await webBench()) console.log(r.join("  "));

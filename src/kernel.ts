@@ -38,6 +38,8 @@ export interface ShardRequest {
   readonly prefix: bigint;
   /** Stream the leaves (a, m, b) at `depth`; tallies and exceptions always come back. */
   readonly leaves: boolean;
+  /** Only the residues a of the leaves (b and m come back empty): for class tables. */
+  readonly residuesOnly?: boolean;
   /**
    * false: tally only levels deeper than prefixBits (the plan counted levels 0..prefixBits in a top
    * run); true: also the ancestors this shard owns, so the 2^prefixBits shards sum to the whole run.
@@ -45,7 +47,8 @@ export interface ShardRequest {
   readonly walkTallies: boolean;
 }
 
-/** Leaves in struct-of-arrays form; b holds the raw 64 bits, signed when r < 0. */
+/** Leaves in struct-of-arrays form; b holds the raw 64 bits, signed when r < 0; b and m are empty
+ * when only residues were asked for. */
 export interface LeafChunk {
   readonly a: BigUint64Array;
   readonly b: BigInt64Array | BigUint64Array;
@@ -181,10 +184,11 @@ export async function instantiateKernel(module: WebAssembly.Module): Promise<Ker
         const buf = k.memory.buffer;
         if (channel === 0) {
           if (!onLeaves) return;
+          const n = req.residuesOnly ? 0 : count;
           onLeaves({
             a: new BigUint64Array(buf, leaves, count).slice(),
-            b: (r < 0 ? new BigInt64Array(buf, leaves + LEAF_CHUNK * 8, count) : new BigUint64Array(buf, leaves + LEAF_CHUNK * 8, count)).slice(),
-            m: new Uint8Array(buf, leaves + LEAF_CHUNK * 16, count).slice(),
+            b: (r < 0 ? new BigInt64Array(buf, leaves + LEAF_CHUNK * 8, n) : new BigUint64Array(buf, leaves + LEAF_CHUNK * 8, n)).slice(),
+            m: new Uint8Array(buf, leaves + LEAF_CHUNK * 16, n).slice(),
           });
         } else {
           excParts.push(new BigUint64Array(buf, exceptions, count * 4).slice());

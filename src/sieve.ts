@@ -20,6 +20,8 @@ export interface SieveRequest {
   readonly onLeaves?: (chunk: LeafChunk) => void;
   /** Most exceptions listed (the count is always exact). */
   readonly exceptionLimit?: number;
+  /** The leaves need only their residues (class tables): b and m are not copied or sent. */
+  readonly residuesOnly?: boolean;
 }
 
 export interface SieveResult {
@@ -84,7 +86,7 @@ export async function runSieve(pool: KernelPool, req: SieveRequest, options: Run
   merged.add(top, d);
 
   if (d < depth) {
-    const shards: ShardRequest[] = prefixes.map((prefix) => ({ ...base, prefixBits: d, prefix, leaves: req.onLeaves !== undefined, walkTallies: false }));
+    const shards: ShardRequest[] = prefixes.map((prefix) => ({ ...base, prefixBits: d, prefix, leaves: req.onLeaves !== undefined, residuesOnly: req.residuesOnly === true, walkTallies: false }));
     await pool.run(
       shards,
       (api, shard) => api.runShard(shard),

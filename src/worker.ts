@@ -57,16 +57,18 @@ function asArrayBuffer(b: ArrayBufferLike): ArrayBuffer {
 /** Joins streamed chunks into one struct-of-arrays. */
 export function concatLeaves(chunks: LeafChunk[], signed: boolean): LeafChunk {
   const n = chunks.reduce((s, c) => s + c.a.length, 0);
+  const nb = chunks.reduce((s, c) => s + c.b.length, 0); // 0 when only residues were streamed
   const a = new BigUint64Array(n);
-  const b = signed ? new BigInt64Array(n) : new BigUint64Array(n);
-  const m = new Uint8Array(n);
-  let o = 0;
+  const b = signed ? new BigInt64Array(nb) : new BigUint64Array(nb);
+  const m = new Uint8Array(nb);
+  let o = 0, ob = 0;
   for (const c of chunks) {
     a.set(c.a, o);
-    if (b instanceof BigInt64Array) b.set(c.b as BigInt64Array, o);
-    else b.set(c.b as BigUint64Array, o);
-    m.set(c.m, o);
+    if (b instanceof BigInt64Array) b.set(c.b as BigInt64Array, ob);
+    else b.set(c.b as BigUint64Array, ob);
+    m.set(c.m, ob);
     o += c.a.length;
+    ob += c.b.length;
   }
   return { a, b, m };
 }

@@ -92,7 +92,7 @@ async function writeTable(
     const from = Math.floor((p * buckets) / plan.passes);
     const to = Math.floor(((p + 1) * buckets) / plan.passes);
     const sorter = new ResidueSorter(depth, plan.bucketBits, from, to);
-    const result = await runSieve(pool, { map, depth, mode: "survivors", onLeaves: (c) => sorter.add(c) }, {
+    const result = await runSieve(pool, { map, depth, mode: "survivors", onLeaves: (c) => sorter.add(c), residuesOnly: true }, {
       onProgress: (done, total) => onProgress(p * total + done, plan.passes * total),
     });
     first ??= result;

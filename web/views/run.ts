@@ -104,7 +104,7 @@ export async function startRun(req: RunRequest, onState: (s: Partial<PageState>)
   const { map, depth, mode } = req;
   const exact = exactCounts(map, depth).levels;
   const tableRows = exact[depth]!.survivors;
-  const withTable = mode === "survivors";
+  const withTable = mode === "survivors" && (depth <= 30 || ($("run-keep-table") as HTMLInputElement).checked);
   const bytes = Number(tableRows) * 8;
   const message = $("run-message");
   message.className = "message";
@@ -142,8 +142,8 @@ export async function startRun(req: RunRequest, onState: (s: Partial<PageState>)
       sieve = await runSieve(pool, { map, depth, mode: "survivors" }, { signal: controller.signal });
     } else {
       const sorter = new ResidueSorter(depth, Math.min(depth, 10), 0, 1 << Math.min(depth, 10));
-      sieve = await runSieve(pool, { map, depth, mode: "survivors", onLeaves: (c) => sorter.add(c) }, options);
-      residues = await collectSorted(sorter, Number(tableRows));
+      sieve = await runSieve(pool, { map, depth, mode: "survivors", ...(withTable ? { onLeaves: (c) => sorter.add(c), residuesOnly: true } : {}) }, options);
+      if (withTable) residues = await collectSorted(sorter, Number(tableRows));
     }
     const seconds = (performance.now() - started) / 1000;
     const levels = census ? census.levels : sieve.levels;
@@ -161,7 +161,8 @@ export async function startRun(req: RunRequest, onState: (s: Partial<PageState>)
     for (const el of document.querySelectorAll<HTMLElement>(".census-only")) el.hidden = !census;
     $("run-census").innerHTML = "";
     if (census) renderCensus(census);
-    if (residues) showTable({ map, depth, residues });
+    showTable(residues ? { map, depth, residues } : null);
+    if (!residues && mode === "survivors") $("table-caption").textContent = `The class table of this run was not kept (depth ${depth} > 30): tick "Class table above depth 30" to keep it.`;
     const summary = { ...sieveJson(sieve), mode, seconds: Number(seconds.toFixed(3)), ...(census ? { nodes: census.nodes, census: censusJson(census) } : {}) };
     $("run-summary").textContent = toExactJson(summary);
     progress.value = 1;
