@@ -26,7 +26,7 @@ let stoppedPtr: usize = 0;
 let vectorsPtr: usize = 0;
 let peakPtr: usize = 0;
 let binsPtr: usize = 0;
-let countsPtr: usize = 0; // u64: [0] nonpositive images, [1] differ, [2] early descents
+let countsPtr: usize = 0; // u64: [0] nonpositive images, [1] differ, [2] early descents, [4 + m] slow-path leaves
 let chanPtr: usize = 0; // channels 3, 4, 5 and 0: base address each, cap entries of 32 bytes
 let chanCap: i32 = 0;
 let n0: i32 = 0;
@@ -86,14 +86,18 @@ function push(ch: i32, x0: u64, x1: u64, x2: u64, x3: u64): void {
   if (v > 0 && <f64>v >= best * <f64><i64>u) {
     push(5, u, <u64>v, <u64>j, 0);
     const r = (<f64>v / <f64><i64>u) * (1.0 - 1e-12);
-    if (r > best) best = r;
+    if (r > best) {
+      best = r;
+      // the bounds grow with m: classes with fewer odd steps than ratioMinM cannot win any more
+      while (ratioMinM <= K && load<f64>(ratioBoundPtr + (<usize>ratioMinM << 3)) < best) ratioMinM++;
+    }
   }
 }
 
 /** The extremes of the class a mod 2^j within [1, 2^K): a itself, and a + 2^j (2^(K-j) - 1). */
 @inline function extremes(a: u64, b: i64, m: i32, j: i32): void {
   // every member u >= 1 of a class with m odd steps has T^j(u)/u <= (q/2)^m + max(r, 0) E(m) (host table)
-  if (load<f64>(ratioBoundPtr + (<usize>m << 3)) < best) return;
+  if (m < ratioMinM) return;
   if (a > 0) ratioCandidate(a, b, j);
   if (j < K) {
     const span = ((<u64>1) << <u64>(K - j)) - 1;
@@ -122,6 +126,7 @@ function exceptionBound(a: u64, b: i64, m: i32, j: i32): i64 {
 const BATCH: i32 = 1024;
 let binMin: usize = 0; // per m: u64, least members above it are in bin k_m (host-proven)
 let binBase: usize = 0; // per m: i32 k_m = floor(4 log2(q^m / 2^K))
+let ratioMinM: i32 = 0; // the least m whose bound is still >= best
 let ratioBoundPtr: usize = 0; // f64[m]: an upper bound on T^j(u)/u over members u >= 1, any j >= m
 let batchPtr: usize = 0; // BATCH pairs (a, b) of positive least members and images
 let batchN: i32 = 0;
@@ -172,24 +177,27 @@ function binBatch(): void {
   if (emitVectors) push(0, a, V, 0, 0);
   if (a == 0) return; // the least member 0 is not positive
   // bins of log2(T^K(a) / a). b/a = q^m/2^K + c/(2^K a) with |c| bounded per m, and q^m/2^K lies
-  // in bin k_m; the host proved (in BigInt) that every a above binMin[m] stays in bin k_m.
-  // Smaller a (where c matters) take the exact batch path.
-  if (a > load<u64>(binMin + (<usize>m << 3))) {
-    const q = binsPtr + (<usize>(load<i32>(binBase + (<usize>m << 2)) + BIN_OFFSET) << 3);
-    store<u64>(q, load<u64>(q) + 1);
-  } else if (b <= 0) bump(0);
-  else {
-    const p = batchPtr + (<usize>batchN << 4);
-    store<u64>(p, a);
-    store<i64>(p, b, 8);
-    if (++batchN == BATCH) binBatch();
-  }
+  // in bin k_m; the host proved (in BigInt) that every a above binMin[m] stays in bin k_m. Those
+  // need no work here: the host puts (leaves with m odd steps) - (the others counted below) in k_m.
+  // Smaller a (where c matters) are counted per m and binned exactly in batches.
+  if (a <= load<u64>(binMin + (<usize>m << 3))) leafSlow(a, b, m);
   // first descent versus coefficient stopping time
   const isEarly = a < early;
   if (isEarly || <i64>a <= excMax) {
     bump(1);
     if (isEarly) bump(2);
     push(4, a, isEarly ? 1 : 2, 0, 0);
+  }
+}
+
+function leafSlow(a: u64, b: i64, m: i32): void {
+  bump(4 + m);
+  if (b <= 0) bump(0);
+  else {
+    const p = batchPtr + (<usize>batchN << 4);
+    store<u64>(p, a);
+    store<i64>(p, b, 8);
+    if (++batchN == BATCH) binBatch();
   }
 }
 
@@ -272,7 +280,7 @@ function dfsDropped(a: u64, b: i64, m: i32, j: i32, pk: i32, early: u64, excMax:
 
 /** A leaf (depth K): its ratio candidate, its peak, and the leaf tallies. */
 @inline function atLeaf(a: u64, b: i64, m: i32, pk: i32, early: u64, excMax: i64): void {
-  if (a > 0 && load<f64>(ratioBoundPtr + (<usize>m << 3)) >= best) ratioCandidate(a, b, K);
+  if (a > 0 && m >= ratioMinM) ratioCandidate(a, b, K);
   const p = peakPtr + (<usize>pk << 3); // pk = (j << 6) | m, the peak's tally index
   store<u64>(p, load<u64>(p) + 1);
   leaf(a, b, m, early, excMax);
@@ -282,7 +290,7 @@ function dfsDropped(a: u64, b: i64, m: i32, j: i32, pk: i32, early: u64, excMax:
  * The census of every vector extending `prefix` mod 2^prefixBits, to `depth` (full tree).
  * tables: u64 q^m at [0, 512), i32 bitlen(q^m) at [512, 768), u64 binMin at [768, 1280),
  * i32 k_m at [1280, 1536).
- * tallies: u64 live, stopped, vectors, peak [64][64] each, then u64 bins[1024], then u64 counts[4];
+ * tallies: u64 live, stopped, vectors, peak [64][64] each, then u64 bins[1024], then u64 counts[68];
  * zeroed here. channels: 4 regions of cap entries (32 bytes), then a scratch batch of 1024 x 16 bytes,
  * then the host's f64[64] ratio bounds; the regions: 3 (ambiguous bins), 4 (differ),
  * 5 (ratio candidates), 0 (a, parity vector, when emitVectors).
@@ -306,7 +314,7 @@ export function census(
   peakPtr = tallies + 3 * 32768;
   binsPtr = tallies + 4 * 32768;
   countsPtr = binsPtr + 1024 * 8;
-  memory.fill(tallies, 0, 4 * 32768 + 1024 * 8 + 32);
+  memory.fill(tallies, 0, 4 * 32768 + 1024 * 8 + 68 * 8);
   chanPtr = channels;
   batchPtr = channels + 4 * <usize>channelCap * 32;
   ratioBoundPtr = batchPtr + 1024 * 16;
@@ -314,6 +322,7 @@ export function census(
   n0 = n3 = n4 = n5 = 0;
   emitVectors = vectors != 0;
   best = 0;
+  ratioMinM = 0;
   nodes = 0;
   batchN = 0;
   walk(prefixBits, prefix);

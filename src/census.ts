@@ -56,13 +56,16 @@ function rows(flat: BigUint64Array, depth: number): bigint[][] {
 }
 
 function addInto(acc: BigUint64Array, x: BigUint64Array): void {
-  // class counts <= 2^K <= 2^32 each: sums cannot wrap
-  for (let i = 0; i < acc.length; i++) acc[i] = acc[i]! + x[i]!;
+  // class counts <= 2^K <= 2^32 each: sums cannot wrap. Most entries are zero: test the words
+  // first, so that only the nonzero ones cost a BigInt addition.
+  const w = new Uint32Array(x.buffer, x.byteOffset, x.length * 2);
+  for (let i = 0; i < acc.length; i++) if ((w[2 * i]! | w[2 * i + 1]!) !== 0) acc[i] = acc[i]! + x[i]!;
 }
 
 /** The census shards: 2^d prefixes (the kernel tallies each ancestor in the shard that owns it). */
 export function censusShards(map: CollatzMap, depth: number, workers: number, vectors: boolean): CensusShard[] {
-  const d = Math.min(choosePrefixBits(map, depth, "full", workers, vectors), depth);
+  // census nodes cost several times a sieve's: larger shards keep the host's merging small
+  const d = Math.min(choosePrefixBits(map, depth, "full", workers, vectors, 2n ** 24n), depth);
   const shards: CensusShard[] = [];
   for (let s = 0n; s < 1n << BigInt(d); s++) shards.push({ q: map.q, r: map.r, depth, prefixBits: d, prefix: s, vectors });
   return shards;
@@ -82,6 +85,8 @@ export async function runCensus(pool: KernelPool, map: CollatzMap, depth: number
   const bins = new BigUint64Array(BIN_COUNT);
   let nonpositive = 0n, differCount = 0n, early = 0n, nodes = 0n;
   const ambiguous: [bigint, bigint][] = [];
+  const slow = new BigUint64Array(depth + 1);
+  let coefficientBins: Int32Array | null = null;
   const differ: { n: bigint; kind: number }[] = [];
   const top: { best: { n: bigint; value: bigint; step: number } | null } = { best: null };
   const signed = map.r < 0;
@@ -94,6 +99,8 @@ export async function runCensus(pool: KernelPool, map: CollatzMap, depth: number
     nonpositive += out.counts[0]!;
     differCount += out.counts[1]!;
     early += out.counts[2]!;
+    for (let m = 0; m <= depth; m++) slow[m] = slow[m]! + out.counts[4 + m]!;
+    coefficientBins = out.coefficientBins;
     nodes += out.nodes;
     for (let i = 0; i < out.ambiguous.length; i += 4) ambiguous.push([out.ambiguous[i]!, signed ? BigInt.asIntN(64, out.ambiguous[i + 1]!) : out.ambiguous[i + 1]!]);
     for (let i = 0; i < out.differ.length && differ.length < DIFFER_LISTED; i += 4) differ.push({ n: out.differ[i]!, kind: Number(out.differ[i + 1]!) });
@@ -107,6 +114,12 @@ export async function runCensus(pool: KernelPool, map: CollatzMap, depth: number
   await pool.run(censusShards(map, depth, pool.size, false), (api, s) => api.runCensus(s), (_s, out) => merge(out), options);
 
   for (const [a, b] of ambiguous) bins[quarterLog2(a, b) + BIN_OFFSET]!++;
+  // The fast-path leaves: with m odd steps, all leaves (nodes at depth K) but the slow ones and a = 0.
+  const vectors = nodesFromParents(rows(acc.vectors, depth));
+  for (let m = 0; m <= depth; m++) {
+    const fast = vectors[depth]![m]! - slow[m]! - (m === 0 ? 1n : 0n);
+    bins[coefficientBins![m]! + BIN_OFFSET] = bins[coefficientBins![m]! + BIN_OFFSET]! + fast;
+  }
   const ratioBins: CensusResult["ratioBins"] = [];
   bins.forEach((count, i) => {
     if (count > 0n) ratioBins.push({ bin: i - BIN_OFFSET, count });
@@ -129,7 +142,7 @@ export async function runCensus(pool: KernelPool, map: CollatzMap, depth: number
     return { n: d.n, descent, stoppingTime: form.stoppingTime };
   });
   return {
-    map, depth, levels, live, stopped, vectors: nodesFromParents(rows(acc.vectors, depth)), peak: rows(acc.peak, depth),
+    map, depth, levels, live, stopped, vectors, peak: rows(acc.peak, depth),
     ratioBins, nonpositive, differ: { count: differCount, early, listed },
     maxRatio: top.best ?? { n: 1n, step: 0, value: 1n },
     agreesWithExactCounter: agrees, nodes, seconds: (performance.now() - started) / 1000,

@@ -104,8 +104,11 @@ export interface CensusShardResult {
   readonly peak: BigUint64Array;
   /** bins[k + 512]: least members with floor(4 log2(T^K(a)/a)) = k (f64-decided away from edges). */
   readonly bins: BigUint64Array;
-  /** [nonpositive images, differing members, early descents]. */
+  /** [nonpositive images, differing members, early descents, -, then per m the least members
+   * a >= 1 binned on the slow path]; the others with m odd steps belong in coefficientBins[m]. */
   readonly counts: BigUint64Array;
+  /** k_m: the bin of the coefficient q^m/2^K, where the fast-path leaves with m odd steps go. */
+  readonly coefficientBins: Int32Array;
   /** 4 u64 per entry, (a, b raw bits, -, -): least members whose bin the host decides exactly. */
   readonly ambiguous: BigUint64Array;
   /** 4 u64 per entry, (a, kind, -, -): kind 1 early descent, 2 no descent at the drop. */
@@ -161,7 +164,7 @@ export async function instantiateKernel(module: WebAssembly.Module): Promise<Ker
   const dTable = k.reserve(TALLY_STRIDE * TALLY_STRIDE * 32);
   let dTableKey = "";
   const censusTables = k.reserve(2048);
-  const censusTallies = k.reserve(4 * TALLY_STRIDE * TALLY_STRIDE * 8 + BIN_COUNT * 8 + 32);
+  const censusTallies = k.reserve(4 * TALLY_STRIDE * TALLY_STRIDE * 8 + BIN_COUNT * 8 + 68 * 8);
   const censusChannels = k.reserve(4 * EXC_CHUNK * 32 + 1024 * 16 + 64 * 8);
   let ratioKey = "";
 
@@ -246,7 +249,8 @@ export async function instantiateKernel(module: WebAssembly.Module): Promise<Ker
           nodes: BigInt.asUintN(64, nodes),
           live: table(0), stopped: table(1), vectors: table(2), peak: table(3),
           bins: new BigUint64Array(buf, binsAt, BIN_COUNT).slice(),
-          counts: new BigUint64Array(buf, binsAt + BIN_COUNT * 8, 4).slice(),
+          counts: new BigUint64Array(buf, binsAt + BIN_COUNT * 8, 68).slice(),
+          coefficientBins: coefficientBinsOf(q, r, depth),
           ambiguous: ch[3].all(), differ: ch[4].all(), ratio: ch[5].all(),
           ...(req.vectors ? { leafVectors: ch[0].all() } : {}),
         };
@@ -274,6 +278,10 @@ export async function instantiateKernel(module: WebAssembly.Module): Promise<Ker
       }
     },
   };
+}
+
+function coefficientBinsOf(q: number, r: number, depth: number): Int32Array {
+  return Int32Array.from({ length: depth + 1 }, (_, m) => coefficientBin(q, r, m, depth).k);
 }
 
 function isqrt(n: bigint): bigint {
