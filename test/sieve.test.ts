@@ -122,6 +122,23 @@ describe("sieve on the pool: special", () => {
     }
   });
 
+  it("a worker that dies (uncaught error) ends the run with a message naming the cause", async () => {
+    const { Worker } = await import("node:worker_threads");
+    const { KernelPool } = await import("../src/pool.js");
+    const nodeEndpoint = (await import("comlink/dist/esm/node-adapter.mjs")).default;
+    const dying = new KernelPool(
+      () => {
+        const w = new Worker("setTimeout(() => { throw new Error('simulated out of memory') }, 20)", { eval: true });
+        return { endpoint: nodeEndpoint(w), terminate: () => void w.terminate(), onError: (l) => w.on("error", (e) => l(new Error(`worker failed: ${e.message}`))) };
+      },
+      pool1.module,
+      1,
+    );
+    const shard = { q: 3, r: 1, depth: 10, mode: "survivors" as const, prefixBits: 0, prefix: 0n, leaves: false, walkTallies: true };
+    await expect(dying.run([shard], (api, s) => api.runShard(s), () => {})).rejects.toThrow(/worker failed: simulated out of memory/);
+    dying.terminate();
+  });
+
   // Width boundaries: 3^40 < 2^64 < 3^41 and 5^27 < 2^64 < 5^28 (common practice).
   for (const [text, limit] of [["3x+1", 40], ["5x+1", 27], ["3x-1", null], ["3x+5", null]] as const) {
     it(`${text}: the deepest exact depth runs the extreme all-odd classes exactly; one deeper is refused`, async () => {

@@ -84,7 +84,7 @@ export function drawHeat(live: readonly bigint[][]): void {
       tooltip: { trigger: "item", formatter: (p: { data: [number, number, number, string] }) => `j = ${p.data[0]}, m = ${p.data[1]}: ${p.data[3]}` },
       xAxis: axis("category", "depth j", { data: live.map((_, j) => String(j)) }),
       yAxis: axis("category", "odd steps m", { data: live.map((_, m) => String(m)) }),
-      visualMap: { min: 0, max, calculable: false, orient: "horizontal", right: 0, top: 0, itemHeight: 80, text: ["log10", ""], textStyle: { color: base().textStyle.color }, inRange: { color: ["#f7fbff", "#56B4E9", "#0072B2", "#002b4d"] } },
+      visualMap: { min: 0, max, dimension: 2, calculable: false, orient: "horizontal", right: 0, top: 0, itemHeight: 80, text: ["log10", ""], textStyle: { color: base().textStyle.color }, inRange: { color: ["#440154", "#3b528b", "#21918c", "#5ec962", "#fde725"] } }, // viridis: ordered in lightness, readable in both schemes
       series: [{ type: "heatmap", data: data.map((x) => [x[0], x[1], x[2], x[3]]) }],
     },
     true,
@@ -103,12 +103,16 @@ export function drawCensus(peaks: { log2: number; count: bigint }[], bins: { bin
     },
     true,
   );
+  // every quarter-unit bin from the lowest to the highest, empty ones included, so the axis is even
+  const lo = Math.min(...bins.map((b) => b.bin)), hi = Math.max(...bins.map((b) => b.bin));
+  const byBin = new Map(bins.map((b) => [b.bin, Number(b.count)]));
+  const all = bins.length ? Array.from({ length: hi - lo + 1 }, (_, i) => lo + i) : [];
   chart("chart-ratio").setOption(
     {
       ...base(),
-      xAxis: axis("category", "log2 ratio", { data: bins.map((b) => (b.bin / 4).toFixed(2)) }),
+      xAxis: axis("category", "log2 ratio", { data: all.map((k) => (k / 4).toFixed(2)) }),
       yAxis: axis("log", "least members"),
-      series: [{ type: "bar", data: bins.map((b) => Number(b.count)), itemStyle: { color: PALETTE[3] } }],
+      series: [{ type: "bar", data: all.map((k) => byBin.get(k) ?? null), itemStyle: { color: PALETTE[3] } }],
     },
     true,
   );

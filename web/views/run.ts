@@ -83,7 +83,7 @@ function renderLevels(map: CollatzMap, levels: readonly Level[]): void {
 function renderExceptions(r: SieveResult): void {
   const list = r.exceptions.slice(0, 200).map((e) => `n = ${e.n} (class ${e.residue} mod 2^${e.classDepth})`);
   $("run-exceptions").textContent =
-    `${group(r.exceptionCount)} positive member${r.exceptionCount === 1n ? "" : "s"} that do not descend at their class's stopping depth` +
+    `${group(r.exceptionCount)} positive member${r.exceptionCount === 1n ? " that does" : "s that do"} not descend at the stopping depth of its class` +
     (list.length ? `: ${list.join(", ")}${r.exceptionCount > 200n ? ", ..." : ""}` : ".");
 }
 
