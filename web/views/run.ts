@@ -155,12 +155,18 @@ export async function startRun(req: RunRequest, onState: (s: Partial<PageState>)
       `${map.q === 3 && map.r === 1 && A076227[depth] !== undefined ? `; A076227 ${A076227[depth] === last.survivors ? "agrees" : "DIFFERS"}` : ""}</span>`;
     renderLevels(map, levels);
     renderExceptions(sieve);
-    drawDensity(levels, exact);
-    drawStopped(levels);
-    drawHeat(census ? census.live : sieve.live);
+    // one chart per task, so that no single task keeps the page busy for long
     for (const el of document.querySelectorAll<HTMLElement>(".census-only")) el.hidden = !census;
+    for (const draw of [() => drawDensity(levels, exact), () => drawStopped(levels), () => drawHeat(census ? census.live : sieve.live)]) {
+      await yieldToPage();
+      draw();
+    }
     $("run-census").innerHTML = "";
-    if (census) renderCensus(census);
+    if (census) {
+      await yieldToPage();
+      renderCensus(census);
+    }
+    await yieldToPage();
     showTable(residues ? { map, depth, residues } : null);
     if (!residues && mode === "survivors") $("table-caption").textContent = `The class table of this run was not kept (depth ${depth} > 30): tick "Class table above depth 30" to keep it.`;
     const summary = { ...sieveJson(sieve), mode, seconds: Number(seconds.toFixed(3)), ...(census ? { nodes: census.nodes, census: censusJson(census) } : {}) };
@@ -183,6 +189,10 @@ export async function startRun(req: RunRequest, onState: (s: Partial<PageState>)
   }
 }
 
+function yieldToPage(): Promise<void> {
+  return new Promise((r) => setTimeout(r, 0));
+}
+
 /** Drains the sorter bucket by bucket, yielding to the page so no task runs long. */
 async function collectSorted(sorter: ResidueSorter, rows: number): Promise<Uint32Array> {
   const out = new Uint32Array(rows);
@@ -192,7 +202,7 @@ async function collectSorted(sorter: ResidueSorter, rows: number): Promise<Uint3
     out.set(part, at);
     at += part.length;
     if (performance.now() - t > 20) {
-      await new Promise((r) => setTimeout(r, 0));
+      await yieldToPage();
       t = performance.now();
     }
   }
