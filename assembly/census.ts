@@ -15,6 +15,7 @@
 // Width: every value is i64; the host proves T^j(a) and the class images fit below 2^63 in magnitude.
 
 import { flush } from "./buffers";
+import { evenBit, evenImage, evenResidue, oddImage } from "./tree";
 
 let K: i32 = 0;
 let Q: u64 = 0;
@@ -216,11 +217,11 @@ type Inner = u16;
   extremes(a, b, m, j);
   const early = earlyBound(a, b, m, j, early0);
   const pm0 = <i64>qpow(m);
-  const e0 = b & 1;
-  const aEven = a | (<u64>e0 << j);
+  const e0 = evenBit<i64>(b);
+  const aEven = evenResidue<i64>(a, e0, j);
   const aOdd = aEven ^ ((<u64>1) << j);
-  const bEven = (b + select<i64>(pm0, 0, e0 != 0)) >> 1;
-  const bOdd = <i64>Q * ((b + select<i64>(0, pm0, e0 != 0)) >> 1) + H;
+  const bEven = evenImage<i64>(b, pm0, e0);
+  const bOdd = oddImage<i64>(b, pm0, e0, <i64>Q, H);
   const jj = j + 1;
   nodes += 2;
   tally(vectorsPtr, j, m); // parents: the host adds parents (j, m) and (j, m - 1) into vectors (j + 1, m)
@@ -250,11 +251,11 @@ type Inner = u16;
 @inline function dropped<C>(a: u64, b: i64, m: i32, j: i32, pk: i32, early: u64, excMax: i64): void {
   extremes(a, b, m, j);
   const pm0 = <i64>qpow(m);
-  const e0 = b & 1;
-  const aEven = a | (<u64>e0 << j);
+  const e0 = evenBit<i64>(b);
+  const aEven = evenResidue<i64>(a, e0, j);
   const aOdd = aEven ^ ((<u64>1) << j);
-  const bEven = (b + select<i64>(pm0, 0, e0 != 0)) >> 1;
-  const bOdd = <i64>Q * ((b + select<i64>(0, pm0, e0 != 0)) >> 1) + H;
+  const bEven = evenImage<i64>(b, pm0, e0);
+  const bOdd = oddImage<i64>(b, pm0, e0, <i64>Q, H);
   const jj = j + 1;
   nodes += 2;
   tally(vectorsPtr, j, m); // parents: the host adds parents (j, m) and (j, m - 1) into vectors (j + 1, m)

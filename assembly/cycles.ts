@@ -6,6 +6,7 @@
 // Two widths: u64/i64 (host-proven as for enumerate) and signed 128-bit (u128.ts).
 
 import { flush } from "./buffers";
+import { evenBit, evenImage, evenResidue, oddImage } from "./tree";
 import { rlo, rhi, add, shr1, mul, leU } from "./u128";
 
 let K: i32 = 0;
@@ -46,11 +47,11 @@ function pushCandidate(a: u64, blo: u64, bhi: u64, j: i32, m: i32): void {
 
 function dfs64<T>(a: u64, b: T, m: i32, j: i32): void {
   const pm = <T>load<u64>(qlo + (<usize>m << 3));
-  const e0 = b & <T>1;
-  const aEven = a | (<u64>e0 << j);
+  const e0 = evenBit<T>(b);
+  const aEven = evenResidue<T>(a, e0, j);
   const aOdd = aEven ^ ((<u64>1) << j);
-  const bEven = (b + select<T>(pm, <T>0, e0 != 0)) >> 1;
-  const bOdd = <T>Q * ((b + select<T>(<T>0, pm, e0 != 0)) >> 1) + <T>H;
+  const bEven = evenImage<T>(b, pm, e0);
+  const bOdd = oddImage<T>(b, pm, e0, <T>Q, <T>H);
   const jj = j + 1;
   nodes += 2;
   test64<T>(aEven, bEven, jj, m);

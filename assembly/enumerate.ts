@@ -10,6 +10,7 @@
 // The drop test q^m < 2^j is exact: the host passes bitlen(q^m) per m, and q^m < 2^j iff j >= bitlen(q^m).
 
 import { flush } from "./buffers";
+import { evenBit, evenImage, evenResidue, oddImage } from "./tree";
 
 export const MODE_SURVIVORS: i32 = 0;
 export const MODE_FULL: i32 = 1;
@@ -83,11 +84,11 @@ type Inner = u16;
 @inline function live<T, C>(a: u64, b: T, m: i32, j: i32): void {
   // children: e0 is the extension bit that makes the next value even (the Terras construction)
   const pm = <T>qpow(m);
-  const e0 = b & <T>1;
-  const aEven = a | (<u64>e0 << j);
+  const e0 = evenBit<T>(b);
+  const aEven = evenResidue<T>(a, e0, j);
   const aOdd = aEven ^ ((<u64>1) << j);
-  const bEven = (b + select<T>(pm, <T>0, e0 != 0)) >> 1;
-  const bOdd = <T>Q * ((b + select<T>(<T>0, pm, e0 != 0)) >> 1) + <T>H;
+  const bEven = evenImage<T>(b, pm, e0);
+  const bOdd = oddImage<T>(b, pm, e0, <T>Q, <T>H);
   const jj = j + 1;
   if (jj >= dropDepth(m)) {
     tally(stoppedPtr, jj, m);
@@ -119,11 +120,11 @@ type Inner = u16;
 /** Full mode below a dropped class: every vector is still visited, nothing more is tallied. */
 @inline function dropped<T, C>(a: u64, b: T, m: i32, j: i32): void {
   const pm = <T>qpow(m);
-  const e0 = b & <T>1;
-  const aEven = a | (<u64>e0 << j);
+  const e0 = evenBit<T>(b);
+  const aEven = evenResidue<T>(a, e0, j);
   const aOdd = aEven ^ ((<u64>1) << j);
-  const bEven = (b + select<T>(pm, <T>0, e0 != 0)) >> 1;
-  const bOdd = <T>Q * ((b + select<T>(<T>0, pm, e0 != 0)) >> 1) + <T>H;
+  const bEven = evenImage<T>(b, pm, e0);
+  const bOdd = oddImage<T>(b, pm, e0, <T>Q, <T>H);
   const jj = j + 1;
   nodes += 2;
   if (sizeof<C>() == 1) {

@@ -7,6 +7,7 @@ import nodeEndpoint from "comlink/dist/esm/node-adapter.mjs";
 import { compileKernel } from "../kernel.js";
 import { KernelPool } from "../pool.js";
 import type { SpawnWorker } from "../pool.js";
+import { progressBar } from "./progress.js";
 
 export type Flavour = "release" | "debug";
 
@@ -45,4 +46,20 @@ export const spawnNodeWorker: SpawnWorker = () => {
 /** A pool of `workers` threads (default: the available cores). */
 export async function nodePool(workers = availableParallelism(), flavour: Flavour = "release"): Promise<KernelPool> {
   return new KernelPool(spawnNodeWorker, await loadKernelModule(flavour), workers);
+}
+
+/**
+ * Runs `work` on a pool of `workers` threads with a progress bar on stderr; the bar is cleared
+ * before the result is returned and the threads are released however `work` ends.
+ * @example const r = await withPool(2, "census", (pool, onProgress) => runCensus(pool, map, 20, { onProgress }));
+ */
+export async function withPool<T>(workers: number, label: string, work: (pool: KernelPool, onProgress: (done: number, total: number) => void) => Promise<T>): Promise<T> {
+  const pool = await nodePool(workers);
+  const bar = progressBar(label);
+  try {
+    return await work(pool, bar.update);
+  } finally {
+    bar.stop();
+    pool.terminate();
+  }
 }

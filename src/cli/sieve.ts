@@ -15,8 +15,7 @@ import { sieveJson } from "../summary.js";
 import type { KernelPool } from "../pool.js";
 import { intOption, mapOption, parseOptions, workersOption } from "./args.js";
 import { AtomicFile, writeFileAtomic } from "./files.js";
-import { kernelBuildId, nodePool } from "./node-kernel.js";
-import { progressBar } from "./progress.js";
+import { kernelBuildId, withPool } from "./node-kernel.js";
 import { group, levelTable } from "./report.js";
 import { toolVersion } from "./version.js";
 
@@ -46,11 +45,10 @@ export async function sieveCommand(argv: string[]): Promise<void> {
   }
 
   const file = out ? await AtomicFile.create(out) : null;
-  const pool = await nodePool(workers);
-  const bar = progressBar(`sieve ${map.name} mod 2^${depth}`);
   try {
-    const result = file ? await writeTable(pool, map, depth, format, file, rows, bar.update) : await runSieve(pool, { map, depth, mode: "survivors" }, { onProgress: bar.update });
-    bar.stop();
+    const result = await withPool(workers, `sieve ${map.name} mod 2^${depth}`, (pool, onProgress) =>
+      file ? writeTable(pool, map, depth, format, file, rows, onProgress) : runSieve(pool, { map, depth, mode: "survivors" }, { onProgress }),
+    );
     if (file) {
       const sha256 = await file.commit();
       const manifest = tableManifest(map, depth, rows, format, { file: basename(file.path), bytes: file.bytes, sha256 }, { version: toolVersion(), kernelBuild: await kernelBuildId() });
@@ -58,11 +56,8 @@ export async function sieveCommand(argv: string[]): Promise<void> {
     }
     process.stdout.write(o.json ? toExactJson(sieveJson(result)) + "\n" : sieveText(result, workers, file?.path));
   } catch (e) {
-    bar.stop();
     await file?.abort();
     throw e;
-  } finally {
-    pool.terminate();
   }
 }
 

@@ -7,8 +7,7 @@ import { stepImageOffset, stepManifest } from "../tables.js";
 import { stepTableArrow } from "../arrow.js";
 import { intOption, mapOption, parseOptions, workersOption } from "./args.js";
 import { AtomicFile, writeFileAtomic } from "./files.js";
-import { kernelBuildId, nodePool } from "./node-kernel.js";
-import { progressBar } from "./progress.js";
+import { kernelBuildId, withPool } from "./node-kernel.js";
 import { toolVersion } from "./version.js";
 
 export const STEPS_USAGE = "glidepath steps [--map 3x+1] --depth k --out FILE [--format raw|arrow] [--workers N]";
@@ -22,11 +21,8 @@ export async function stepsCommand(argv: string[]): Promise<void> {
   const format = o.format === undefined ? (o.out.endsWith(".arrow") ? "arrow" : "raw") : o.format;
   if (format !== "raw" && format !== "arrow") throw new UsageError(`--format must be raw or arrow, got "${String(format)}"`);
   const file = await AtomicFile.create(o.out);
-  const pool = await nodePool(workers);
-  const bar = progressBar(`steps ${map.name} 2^${depth}`);
   try {
-    const t = await stepTable(pool, map, depth, { onProgress: bar.update });
-    bar.stop();
+    const t = await withPool(workers, `steps ${map.name} 2^${depth}`, (pool, onProgress) => stepTable(pool, map, depth, { onProgress }));
     if (format === "arrow") await file.write(stepTableArrow(t));
     else {
       await file.write(t.odd);
@@ -40,8 +36,5 @@ export async function stepsCommand(argv: string[]): Promise<void> {
   } catch (e) {
     await file.abort();
     throw e;
-  } finally {
-    bar.stop();
-    pool.terminate();
   }
 }

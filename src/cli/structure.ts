@@ -10,8 +10,7 @@ import { censusArrow, cyclesArrow } from "../arrow.js";
 import { censusJson, log2Coefficient, vectorsAreBinomial } from "../summary.js";
 import { intOption, mapOption, parseOptions, workersOption } from "./args.js";
 import { withOutput } from "./files.js";
-import { nodePool } from "./node-kernel.js";
-import { progressBar } from "./progress.js";
+import { withPool } from "./node-kernel.js";
 import { group, levelTable } from "./report.js";
 
 export const CENSUS_USAGE = "glidepath census [--map 3x+1] --depth K [--out FILE.arrow] [--workers N] [--json]";
@@ -59,16 +58,8 @@ export async function censusCommand(argv: string[]): Promise<void> {
   const depth = intOption("depth", o.depth, 1, MAX_CENSUS_DEPTH);
   const workers = workersOption(o.workers);
   const out = arrowOut(o);
-  const pool = await nodePool(workers);
-  const bar = progressBar(`census ${map.name} 2^${depth}`);
-  try {
-    const c = await withOutput(out, () => runCensus(pool, map, depth, { onProgress: bar.update }), censusArrow);
-    bar.stop();
-    process.stdout.write(o.json ? toExactJson(censusJson(c)) + "\n" : censusText(c, workers));
-  } finally {
-    bar.stop();
-    pool.terminate();
-  }
+  const c = await withPool(workers, `census ${map.name} 2^${depth}`, (pool, onProgress) => withOutput(out, () => runCensus(pool, map, depth, { onProgress }), censusArrow));
+  process.stdout.write(o.json ? toExactJson(censusJson(c)) + "\n" : censusText(c, workers));
 }
 
 export function cyclesJson(r: CycleSearchResult) {
@@ -105,16 +96,8 @@ export async function cyclesCommand(argv: string[]): Promise<void> {
   const maxPeriod = intOption("max-period", o["max-period"], 1, MAX_CYCLE_PERIOD);
   const workers = workersOption(o.workers);
   const out = arrowOut(o);
-  const pool = await nodePool(workers);
-  const bar = progressBar(`cycles ${map.name} <= ${maxPeriod}`);
-  try {
-    const r = await withOutput(out, () => searchCycles(pool, map, maxPeriod, { onProgress: bar.update }), cyclesArrow);
-    bar.stop();
-    process.stdout.write(o.json ? toExactJson(cyclesJson(r)) + "\n" : cyclesText(r, workers));
-  } finally {
-    bar.stop();
-    pool.terminate();
-  }
+  const r = await withPool(workers, `cycles ${map.name} <= ${maxPeriod}`, (pool, onProgress) => withOutput(out, () => searchCycles(pool, map, maxPeriod, { onProgress }), cyclesArrow));
+  process.stdout.write(o.json ? toExactJson(cyclesJson(r)) + "\n" : cyclesText(r, workers));
 }
 
 export async function conjugacyCommand(argv: string[]): Promise<void> {
@@ -122,26 +105,18 @@ export async function conjugacyCommand(argv: string[]): Promise<void> {
   const map = mapOption(o.map);
   const depth = intOption("depth", o.depth, 1, MAX_CONJUGACY_DEPTH);
   const workers = workersOption(o.workers);
-  const pool = await nodePool(workers);
-  const bar = progressBar(`conjugacy ${map.name} 2^${depth}`);
-  try {
-    const r = await conjugacy(pool, map, depth, { onProgress: bar.update });
-    bar.stop();
-    if (o.json) {
-      process.stdout.write(toExactJson({ map: map.name, depth, cycles: r.cycles, fixedPoints: r.fixedPoints, lengths: r.lengths, seconds: Number(r.seconds.toFixed(3)) }) + "\n");
-      return;
-    }
-    process.stdout.write(
-      [
-        `conjugacy permutation a -> Q_${depth}(a) (first ${depth} parities read as a ${depth}-bit number, first step lowest) of ${map.name} on the residues mod 2^${depth}`,
-        `cycles: ${r.cycles}, fixed points: ${r.fixedPoints}, ${r.seconds.toFixed(2)} s`,
-        "cycle lengths (length: how many cycles):",
-        ...r.lengths.map((l) => `  ${String(l.length).padStart(9)}: ${l.count}`),
-        "",
-      ].join("\n"),
-    );
-  } finally {
-    bar.stop();
-    pool.terminate();
+  const r = await withPool(workers, `conjugacy ${map.name} 2^${depth}`, (pool, onProgress) => conjugacy(pool, map, depth, { onProgress }));
+  if (o.json) {
+    process.stdout.write(toExactJson({ map: map.name, depth, cycles: r.cycles, fixedPoints: r.fixedPoints, lengths: r.lengths, seconds: Number(r.seconds.toFixed(3)) }) + "\n");
+    return;
   }
+  process.stdout.write(
+    [
+      `conjugacy permutation a -> Q_${depth}(a) (first ${depth} parities read as a ${depth}-bit number, first step lowest) of ${map.name} on the residues mod 2^${depth}`,
+      `cycles: ${r.cycles}, fixed points: ${r.fixedPoints}, ${r.seconds.toFixed(2)} s`,
+      "cycle lengths (length: how many cycles):",
+      ...r.lengths.map((l) => `  ${String(l.length).padStart(9)}: ${l.count}`),
+      "",
+    ].join("\n"),
+  );
 }
