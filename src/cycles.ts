@@ -5,8 +5,8 @@
 // cycle in BigInt, and keeps each cycle once, with its minimal period.
 import type { CollatzMap } from "./map.js";
 import { kernelDepthLimit } from "./map.js";
-import { instantiateKernel } from "./kernel.js";
-import type { CycleShard, KernelInstance } from "./kernel.js";
+import { threadKernel } from "./kernel.js";
+import type { CycleShard } from "./kernel.js";
 import type { KernelPool, RunOptions } from "./pool.js";
 import { choosePrefixBits } from "./sieve.js";
 import { cycleRepresentative, iterate } from "./padic.js";
@@ -97,11 +97,6 @@ export class CycleCollector {
   }
 }
 
-let mainInstance: { module: WebAssembly.Module; kernel: Promise<KernelInstance> } | null = null;
-function mainKernel(module: WebAssembly.Module): Promise<KernelInstance> {
-  if (mainInstance?.module !== module) mainInstance = { module, kernel: instantiateKernel(module) };
-  return mainInstance.kernel;
-}
 
 /**
  * Every integer cycle of period <= maxPeriod.
@@ -111,7 +106,7 @@ export async function searchCycles(pool: KernelPool, map: CollatzMap, maxPeriod:
   if (!Number.isInteger(maxPeriod) || maxPeriod < 1 || maxPeriod > MAX_CYCLE_PERIOD) throw new UsageError(`maximum period must be between 1 and ${MAX_CYCLE_PERIOD}`);
   const width = cycleWidth(map, maxPeriod);
   const started = performance.now();
-  const kernel = await mainKernel(pool.module);
+  const kernel = await threadKernel(pool.module);
   const d = Math.min(choosePrefixBits(map, maxPeriod, "full", pool.size, false), maxPeriod);
   const base = { q: map.q, r: map.r, wide: width === 128 } as const;
   const collector = new CycleCollector(map);

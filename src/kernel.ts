@@ -132,6 +132,13 @@ export interface KernelInstance {
 }
 
 const moduleCache = new Map<string, Promise<WebAssembly.Module>>();
+let ownInstance: { module: WebAssembly.Module; kernel: Promise<KernelInstance> } | null = null;
+
+/** This thread's own instance of a module (the top runs of a plan), made once per module. */
+export function threadKernel(module: WebAssembly.Module): Promise<KernelInstance> {
+  if (ownInstance?.module !== module) ownInstance = { module, kernel: instantiateKernel(module) };
+  return ownInstance.kernel;
+}
 
 /** Compiles wasm bytes once per key. @example await compileKernel("release", bytes) */
 export function compileKernel(key: string, bytes: BufferSource): Promise<WebAssembly.Module> {

@@ -5,8 +5,8 @@ import type { CollatzMap } from "./map.js";
 import { checkKernelDepth } from "./map.js";
 import { exactCounts } from "./exact.js";
 import type { Level } from "./exact.js";
-import { instantiateKernel, TALLY_STRIDE } from "./kernel.js";
-import type { KernelInstance, LeafChunk, Mode, ShardRequest, ShardResult } from "./kernel.js";
+import { threadKernel, TALLY_STRIDE } from "./kernel.js";
+import type { LeafChunk, Mode, ShardRequest, ShardResult } from "./kernel.js";
 import type { KernelPool, RunOptions } from "./pool.js";
 import { decodeExceptionClasses, expandExceptions } from "./exceptions.js";
 import type { ExceptionClass, SieveException } from "./exceptions.js";
@@ -73,7 +73,7 @@ export async function runSieve(pool: KernelPool, req: SieveRequest, options: Run
   checkKernelDepth(map, depth);
   const started = performance.now();
   const d = choosePrefixBits(map, depth, mode, pool.size, req.onLeaves !== undefined);
-  const kernel = await mainKernel(pool.module);
+  const kernel = await threadKernel(pool.module);
 
   const base = { q: map.q, r: map.r, depth, mode } as const;
   // Top run: levels 0..d exactly, and the live prefixes at depth d as its leaves.
@@ -110,11 +110,6 @@ export async function runSieve(pool: KernelPool, req: SieveRequest, options: Run
   };
 }
 
-let mainInstance: { module: WebAssembly.Module; kernel: Promise<KernelInstance> } | null = null;
-function mainKernel(module: WebAssembly.Module): Promise<KernelInstance> {
-  if (mainInstance?.module !== module) mainInstance = { module, kernel: instantiateKernel(module) };
-  return mainInstance.kernel;
-}
 
 /** Sums shard tallies exactly: every sum is a class count at most 2^depth <= 2^63 (no u64 wrap). */
 class Merger {

@@ -2,6 +2,7 @@
 import type { Level } from "../exact.js";
 import type { CollatzMap } from "../map.js";
 import { dropDepth } from "../map.js";
+import { group } from "../format.js";
 
 /** survivors / 2^depth to `digits` decimals, truncated, from exact integers. */
 export function density(survivors: bigint, depth: number, digits = 8): string {
@@ -18,10 +19,6 @@ export function stoppingOdd(map: CollatzMap, j: number): number | null {
     if (d > j) break;
   }
   return null;
-}
-
-function group(n: bigint): string {
-  return n.toString().replace(/\B(?=(\d{3})+(?!\d))/g, ",");
 }
 
 export function levelTable(map: CollatzMap, levels: readonly Level[]): string {

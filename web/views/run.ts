@@ -12,6 +12,7 @@ import { ResidueSorter } from "../../src/tables.js";
 import { censusJson, log2Coefficient, sieveJson } from "../../src/summary.js";
 import { toExactJson } from "../../src/json.js";
 import { A076227 } from "../../src/published.js";
+import { group } from "../../src/format.js";
 import { getPool } from "../engine.js";
 import { drawCensus, drawDensity, drawHeat, drawStopped } from "./charts.js";
 import { showTable } from "./table.js";
@@ -26,10 +27,6 @@ export interface RunRequest {
   readonly depth: number;
   readonly mode: "survivors" | "full";
   readonly workers: number;
-}
-
-function group(n: bigint | number): string {
-  return n.toString().replace(/\B(?=(\d{3})+(?!\d))/g, ",");
 }
 
 function fieldError(id: string, text: string): boolean {
