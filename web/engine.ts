@@ -17,10 +17,20 @@ const spawn: SpawnWorker = (): WorkerHandle => {
   };
 };
 
-let modulePromise: Promise<WebAssembly.Module> | null = null;
-export function kernelModule(): Promise<WebAssembly.Module> {
-  modulePromise ??= fetch(wasmUrl).then((r) => r.arrayBuffer()).then((b) => compileKernel("release", b));
-  return modulePromise;
+let bytesPromise: Promise<ArrayBuffer> | null = null;
+function kernelBytes(): Promise<ArrayBuffer> {
+  bytesPromise ??= fetch(wasmUrl).then((r) => r.arrayBuffer());
+  return bytesPromise;
+}
+
+export async function kernelModule(): Promise<WebAssembly.Module> {
+  return compileKernel("release", await kernelBytes());
+}
+
+/** Content hash of the kernel build (16 hex digits), as the CLI stamps into manifests. */
+export async function kernelBuildId(): Promise<string> {
+  const d = await crypto.subtle.digest("SHA-256", await kernelBytes());
+  return Array.from(new Uint8Array(d).slice(0, 8), (x) => x.toString(16).padStart(2, "0")).join("");
 }
 
 let pool: KernelPool | null = null;

@@ -86,6 +86,27 @@ describe("web app", () => {
     await page.close();
   });
 
+  it("exports raw residues with a manifest whose sha256 and kernel build match (u32, sorted)", async () => {
+    const { createHash } = await import("node:crypto");
+    const page = await open("?depth=14&run=1");
+    await summaryOf(page);
+    await page.click("#tab-table");
+    const downloads: import("playwright-core").Download[] = [];
+    page.on("download", (d) => downloads.push(d));
+    await page.click("#export-raw");
+    for (let i = 0; i < 50 && downloads.length < 2; i++) await page.waitForTimeout(100);
+    const byName = new Map(await Promise.all(downloads.map(async (d) => [d.suggestedFilename(), readFileSync((await d.path())!)] as const)));
+    const data = byName.get("survivors-3x+1-14.u32")!;
+    const manifest = parseExactJson(byName.get("survivors-3x+1-14.u32.json")!.toString("utf8")) as { sha256: string; rows: bigint; tool: { kernelBuild: string } };
+    expect(manifest.sha256).toBe(createHash("sha256").update(data).digest("hex"));
+    const wasm = readFileSync(new URL("../../build/release.wasm", import.meta.url));
+    expect(manifest.tool.kernelBuild).toBe(createHash("sha256").update(wasm).digest("hex").slice(0, 16));
+    const residues = Array.from(new Uint32Array(data.buffer, data.byteOffset, data.byteLength / 4));
+    expect(BigInt(residues.length)).toBe(A076227[14]);
+    expect(residues.every((x, i) => i === 0 || residues[i - 1]! < x)).toBe(true);
+    await page.close();
+  });
+
   it("inspects 3 mod 16: coefficient stopping time 4, 6 standard steps (common practice)", async () => {
     const page = await open("?view=inspect");
     await page.fill("#inspect-input", "3 mod 16");

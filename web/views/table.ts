@@ -5,7 +5,8 @@ import type { CollatzMap } from "../../src/map.js";
 import { classFromResidue } from "../../src/padic.js";
 import { CSV_ROW_GUARD, tableManifest } from "../../src/tables.js";
 import { toExactJson } from "../../src/json.js";
-import { withExportWorker } from "../engine.js";
+import { kernelBuildId, withExportWorker } from "../engine.js";
+import pkg from "../../package.json";
 
 const ROW = 24;
 const MAX_SCROLL = 8_000_000; // px: far below browsers' element-height limits
@@ -137,7 +138,7 @@ async function exportTable(format: "raw" | "csv" | "arrow"): Promise<void> {
   try {
     if (format === "raw") {
       const bytes = new Uint8Array(t.residues.buffer as ArrayBuffer, t.residues.byteOffset, t.residues.byteLength);
-      const manifest = tableManifest(t.map, t.depth, BigInt(t.residues.length), "raw", { file: `${name}.u32`, bytes: BigInt(bytes.byteLength), sha256: await sha256(bytes) }, { version: "web", kernelBuild: "web" });
+      const manifest = tableManifest(t.map, t.depth, BigInt(t.residues.length), "raw", { file: `${name}.u32`, bytes: BigInt(bytes.byteLength), sha256: await sha256(bytes) }, { version: pkg.version, kernelBuild: await kernelBuildId() });
       download(`${name}.u32`, [bytes], "application/octet-stream");
       download(`${name}.u32.json`, [toExactJson(manifest, 2) + "\n"], "application/json");
     } else {
