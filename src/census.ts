@@ -2,14 +2,15 @@
 // finished exactly here: ambiguous log2 bins and the largest ratio are decided in BigInt.
 import type { CollatzMap } from "./map.js";
 import { kernelDepthLimit } from "./map.js";
-import { BIN_COUNT, BIN_OFFSET, TALLY_STRIDE } from "./kernel.js";
+import { BIN_COUNT, BIN_OFFSET, coefficientBins, TALLY_STRIDE } from "./kernel.js";
 import type { CensusShard, CensusShardResult } from "./kernel.js";
 import type { KernelPool, RunOptions } from "./pool.js";
 import { exactCounts } from "./exact.js";
 import type { Level } from "./exact.js";
 import { choosePrefixBits } from "./sieve.js";
-import { classFromResidue, iterate } from "./padic.js";
+import { classFromResidue, firstDescent } from "./padic.js";
 import { LimitError, UsageError } from "./errors.js";
+import { bitLength } from "./arith.js";
 
 export const MAX_CENSUS_DEPTH = 32;
 const DIFFER_LISTED = 1000;
@@ -44,7 +45,7 @@ export interface CensusResult {
 /** Exact floor(4 log2(b / a)) for positive a, b. */
 export function quarterLog2(a: bigint, b: bigint): number {
   const num = b ** 4n, den = a ** 4n;
-  let k = num.toString(2).length - den.toString(2).length;
+  let k = bitLength(num) - bitLength(den);
   const fits = (t: number) => (t >= 0 ? den << BigInt(t) <= num : den <= num << BigInt(-t));
   while (!fits(k)) k--;
   while (fits(k + 1)) k++;
@@ -86,7 +87,6 @@ export async function runCensus(pool: KernelPool, map: CollatzMap, depth: number
   let nonpositive = 0n, differCount = 0n, early = 0n, nodes = 0n;
   const ambiguous: [bigint, bigint][] = [];
   const slow = new BigUint64Array(depth + 1);
-  let coefficientBins: Int32Array | null = null;
   const differ: { n: bigint; kind: number }[] = [];
   const top: { best: { n: bigint; value: bigint; step: number } | null } = { best: null };
   const signed = map.r < 0;
@@ -100,7 +100,6 @@ export async function runCensus(pool: KernelPool, map: CollatzMap, depth: number
     differCount += out.counts[1]!;
     early += out.counts[2]!;
     for (let m = 0; m <= depth; m++) slow[m] = slow[m]! + out.counts[4 + m]!;
-    coefficientBins = out.coefficientBins;
     nodes += out.nodes;
     for (let i = 0; i < out.ambiguous.length; i += 4) ambiguous.push([out.ambiguous[i]!, signed ? BigInt.asIntN(64, out.ambiguous[i + 1]!) : out.ambiguous[i + 1]!]);
     for (let i = 0; i < out.differ.length && differ.length < DIFFER_LISTED; i += 4) differ.push({ n: out.differ[i]!, kind: Number(out.differ[i + 1]!) });
@@ -116,10 +115,10 @@ export async function runCensus(pool: KernelPool, map: CollatzMap, depth: number
   for (const [a, b] of ambiguous) bins[quarterLog2(a, b) + BIN_OFFSET]!++;
   // The fast-path leaves: with m odd steps, all leaves (nodes at depth K) but the slow ones and a = 0.
   const vectors = nodesFromParents(rows(acc.vectors, depth));
-  for (let m = 0; m <= depth; m++) {
+  coefficientBins(map.q, map.r, depth).forEach(({ k }, m) => {
     const fast = vectors[depth]![m]! - slow[m]! - (m === 0 ? 1n : 0n);
-    bins[coefficientBins![m]! + BIN_OFFSET] = bins[coefficientBins![m]! + BIN_OFFSET]! + fast;
-  }
+    bins[k + BIN_OFFSET] = bins[k + BIN_OFFSET]! + fast;
+  });
   const ratioBins: CensusResult["ratioBins"] = [];
   bins.forEach((count, i) => {
     if (count > 0n) ratioBins.push({ bin: i - BIN_OFFSET, count });
@@ -129,18 +128,7 @@ export async function runCensus(pool: KernelPool, map: CollatzMap, depth: number
   const agrees = live.every((row, j) => row.every((c, m) => c === at(exact[j]!, "live", m))) && stopped.every((row, j) => row.every((c, m) => c === at(exact[j]!, "stopped", m)));
   const levels = live.map((row, j) => ({ depth: j, survivors: row.reduce((s, x) => s + x, 0n), stopped: stopped[j]!.reduce((s, x) => s + x, 0n) }));
   differ.sort((x, y) => (x.n < y.n ? -1 : 1));
-  const listed = differ.map((d) => {
-    const form = classFromResidue(map, d.n, depth);
-    let descent: number | null = null;
-    for (let j = 1, v = d.n; j <= depth; j++) {
-      v = iterate(map, v, 1);
-      if (v < d.n) {
-        descent = j;
-        break;
-      }
-    }
-    return { n: d.n, descent, stoppingTime: form.stoppingTime };
-  });
+  const listed = differ.map((d) => ({ n: d.n, descent: firstDescent(map, d.n, depth), stoppingTime: classFromResidue(map, d.n, depth).stoppingTime }));
   return {
     map, depth, levels, live, stopped, vectors, peak: rows(acc.peak, depth),
     ratioBins, nonpositive, differ: { count: differCount, early, listed },

@@ -97,7 +97,6 @@ export class CycleCollector {
   }
 }
 
-
 /**
  * Every integer cycle of period <= maxPeriod.
  * @example (await searchCycles(pool, parseMap("3x+1"), 12)).cycles.map((c) => c.representative) // [1n, -1n, -5n, -17n]

@@ -4,6 +4,7 @@
 // stops there), and live(j+1, m+1) += live(j, m). Independent of the kernels: their cross-check.
 import type { CollatzMap } from "./map.js";
 import { UsageError } from "./errors.js";
+import { bitLength } from "./arith.js";
 
 export const MAX_EXACT_DEPTH = 10_000;
 
@@ -83,8 +84,4 @@ export function exactCounts(map: CollatzMap, depth: number, options: { byOdd?: b
     if (options.onProgress && (jj & 255) === 0) options.onProgress(jj);
   }
   return options.byOdd ? { levels, byOdd } : { levels };
-}
-
-function bitLength(n: bigint): number {
-  return n.toString(2).length;
 }

@@ -1,7 +1,7 @@
 // The class inspector: one input (parity word, number, or residue a mod 2^k) to a class card.
 import type { CollatzMap } from "./map.js";
 import { UsageError } from "./errors.js";
-import { classFromResidue, classFromWord, digitsOf, iterate, MAX_INSPECT_STEPS, parityWord, trajectory } from "./padic.js";
+import { classFromResidue, classFromWord, digitsOf, firstDescent, iterate, MAX_INSPECT_STEPS, parityWord, trajectory } from "./padic.js";
 import type { ClassForm, Trajectory } from "./padic.js";
 
 export type InspectInput =
@@ -50,15 +50,7 @@ export type Card = { readonly kind: "class"; readonly card: ClassCard } | { read
 
 function classCard(form: ClassForm): ClassCard {
   const n = form.residue;
-  let descent: number | null = null;
-  let v = n;
-  for (let j = 1; j <= form.k && n > 0n; j++) {
-    v = iterate(form.map, v, 1);
-    if (v < n) {
-      descent = j;
-      break;
-    }
-  }
+  const descent = n > 0n ? firstDescent(form.map, n, form.k) : null;
   const imageAtStop = form.stoppingTime === null ? null : iterate(form.map, n, form.stoppingTime);
   return { form, leastMember: { n, descent, imageAtStop } };
 }

@@ -2,6 +2,7 @@
 // Isomorphic: the caller supplies the compiled module (Node reads the file, the browser fetches it).
 import type { CollatzMap } from "./map.js";
 import { dropDepth } from "./map.js";
+import { bitLength, inverseMod2k } from "./arith.js";
 
 /** The raw exports of build/{debug,release}.wasm (assembly/index.ts). */
 interface KernelExports {
@@ -105,10 +106,9 @@ export interface CensusShardResult {
   /** bins[k + 512]: least members with floor(4 log2(T^K(a)/a)) = k (f64-decided away from edges). */
   readonly bins: BigUint64Array;
   /** [nonpositive images, differing members, early descents, -, then per m the least members
-   * a >= 1 binned on the slow path]; the others with m odd steps belong in coefficientBins[m]. */
+   * a >= 1 binned on the slow path]; the others with m odd steps belong in the bin of the
+   * coefficient q^m/2^K (coefficientBins). */
   readonly counts: BigUint64Array;
-  /** k_m: the bin of the coefficient q^m/2^K, where the fast-path leaves with m odd steps go. */
-  readonly coefficientBins: Int32Array;
   /** 4 u64 per entry, (a, b raw bits, -, -): least members whose bin the host decides exactly. */
   readonly ambiguous: BigUint64Array;
   /** 4 u64 per entry, (a, kind, -, -): kind 1 early descent, 2 no descent at the drop. */
@@ -173,22 +173,13 @@ export async function instantiateKernel(module: WebAssembly.Module): Promise<Ker
   const censusTables = k.reserve(2048);
   const censusTallies = k.reserve(4 * TALLY_STRIDE * TALLY_STRIDE * 8 + BIN_COUNT * 8 + 68 * 8);
   const censusChannels = k.reserve(4 * EXC_CHUNK * 32 + 1024 * 16 + 64 * 8);
-  let ratioKey = "";
+  let censusKey = "";
 
   return {
     enumerate(req, onLeaves) {
       const { q, r, depth } = req;
       const mem = k.memory.buffer;
-      const qpow = new BigUint64Array(mem, tables, 64);
-      const thr = new Int32Array(mem, tables + 512, 64);
-      const Q = BigInt(q);
-      let p = 1n;
-      for (let m = 0; m <= depth; m++) {
-        // Entries past the proven width are never read: m <= depth <= kernelDepthLimit.
-        qpow[m] = BigInt.asUintN(64, p);
-        thr[m] = dropDepth(q, m);
-        p *= Q;
-      }
+      writeDropTables(mem, tables, q, depth);
       const excParts: BigUint64Array[] = [];
       sink = (channel, count) => {
         const buf = k.memory.buffer;
@@ -225,22 +216,17 @@ export async function instantiateKernel(module: WebAssembly.Module): Promise<Ker
     census(req) {
       const { q, r, depth } = req;
       const mem = k.memory.buffer;
-      const qpow = new BigUint64Array(mem, censusTables, 64);
-      const thr = new Int32Array(mem, censusTables + 512, 64);
-      const binMin = new BigUint64Array(mem, censusTables + 768, 64);
-      const base = new Int32Array(mem, censusTables + 1280, 64);
-      let p = 1n;
-      for (let m = 0; m < 64; m++) {
-        qpow[m] = m <= depth ? BigInt.asUintN(64, p) : 0n;
-        thr[m] = m <= depth ? dropDepth(q, m) : 0x7fffffff;
-        const bin = m <= depth ? coefficientBin(q, r, m, depth) : { k: 0, min: (1n << 64n) - 1n };
-        base[m] = bin.k;
-        binMin[m] = bin.min;
-        p *= BigInt(q);
-      }
-      if (ratioKey !== `${q},${r},${depth}`) {
+      if (censusKey !== `${q},${r},${depth}`) {
+        // the same for every shard of a run: written once
+        writeDropTables(mem, censusTables, q, depth);
+        const binMin = new BigUint64Array(mem, censusTables + 768, 64);
+        const base = new Int32Array(mem, censusTables + 1280, 64);
+        const bins = coefficientBins(q, r, depth);
+        binMin.fill((1n << 64n) - 1n);
+        base.set(bins.map((x) => x.k));
+        binMin.set(bins.map((x) => x.min));
         writeRatioBounds(new Float64Array(mem, censusChannels + 4 * EXC_CHUNK * 32 + 1024 * 16, 64), q, r, depth);
-        ratioKey = `${q},${r},${depth}`;
+        censusKey = `${q},${r},${depth}`;
       }
       const region = (i: number) => censusChannels + i * EXC_CHUNK * 32;
       const memOf = () => k.memory.buffer;
@@ -257,7 +243,6 @@ export async function instantiateKernel(module: WebAssembly.Module): Promise<Ker
           live: table(0), stopped: table(1), vectors: table(2), peak: table(3),
           bins: new BigUint64Array(buf, binsAt, BIN_COUNT).slice(),
           counts: new BigUint64Array(buf, binsAt + BIN_COUNT * 8, 68).slice(),
-          coefficientBins: coefficientBinsOf(q, r, depth),
           ambiguous: ch[3].all(), differ: ch[4].all(), ratio: ch[5].all(),
           ...(req.vectors ? { leafVectors: ch[0].all() } : {}),
         };
@@ -287,13 +272,30 @@ export async function instantiateKernel(module: WebAssembly.Module): Promise<Ker
   };
 }
 
-function coefficientBinsOf(q: number, r: number, depth: number): Int32Array {
-  return Int32Array.from({ length: depth + 1 }, (_, m) => coefficientBin(q, r, m, depth).k);
+/**
+ * q^m (u64) at [0, 512) and bitlen(q^m) (i32) at [512, 768) for m <= depth; entries past depth are
+ * never read by a kernel (their drop depth is set out of reach all the same).
+ */
+function writeDropTables(mem: ArrayBuffer, at: number, q: number, depth: number): void {
+  const qpow = new BigUint64Array(mem, at, 64);
+  const thr = new Int32Array(mem, at + 512, 64).fill(0x7fffffff);
+  let p = 1n;
+  for (let m = 0; m <= depth; m++) {
+    // within the proven width: m <= depth <= kernelDepthLimit
+    qpow[m] = BigInt.asUintN(64, p);
+    thr[m] = dropDepth(q, m);
+    p *= BigInt(q);
+  }
+}
+
+/** Per m = 0..depth, the bin of the coefficient q^m/2^depth and the fast-path bound (coefficientBin). */
+export function coefficientBins(q: number, r: number, depth: number): { k: number; min: bigint }[] {
+  return Array.from({ length: depth + 1 }, (_, m) => coefficientBin(q, r, m, depth));
 }
 
 function isqrt(n: bigint): bigint {
   if (n < 2n) return n;
-  let x = 1n << BigInt(Math.ceil(n.toString(2).length / 2));
+  let x = 1n << BigInt(Math.ceil(bitLength(n) / 2));
   for (;;) {
     const y = (x + n / x) >> 1n;
     if (y >= x) return x;
@@ -312,7 +314,7 @@ function isqrt(n: bigint): bigint {
  */
 function coefficientBin(q: number, r: number, m: number, K: number): { k: number; min: bigint } {
   const qm = BigInt(q) ** BigInt(m);
-  const k = (qm ** 4n).toString(2).length - 1 - 4 * K;
+  const k = bitLength(qm ** 4n) - 1 - 4 * K;
   const never = (1n << 64n) - 1n;
   const cMax = (BigInt(Math.abs(r)) * (qm - (1n << BigInt(m))) * (1n << BigInt(K - m)) + BigInt(q - 3)) / BigInt(q - 2) + 1n;
   let gap: bigint;
@@ -369,15 +371,7 @@ function pairCollector(mem: () => ArrayBuffer, base: number) {
       }
       parts.push(out);
     },
-    all(): Uint32Array {
-      const out = new Uint32Array(parts.reduce((n, x) => n + x.length, 0));
-      let o = 0;
-      for (const x of parts) {
-        out.set(x, o);
-        o += x.length;
-      }
-      return out;
-    },
+    all: () => concat(parts, (n) => new Uint32Array(n)),
   };
 }
 
@@ -402,9 +396,7 @@ function writeCycleTables(mem: ArrayBuffer, qTables: number, dTable: number, q: 
     for (let m = 0; m <= j; m++) {
       let D = (1n << BigInt(j)) - qm;
       if (D < 0n) D = -D;
-      let inv = 1n; // Newton: each step doubles the correct low bits of D^-1 mod 2^w
-      for (let bits = 1; bits < w; bits *= 2) inv = (inv * (2n - D * inv)) % mod;
-      inv = ((inv % mod) + mod) % mod;
+      const inv = inverseMod2k(D, w);
       const lim = (mod - 1n) / D;
       const at = ((j << 6) + m) * 4;
       d[at] = inv & mask64;
@@ -416,14 +408,19 @@ function writeCycleTables(mem: ArrayBuffer, qTables: number, dTable: number, q: 
   }
 }
 
-function concatU64(parts: BigUint64Array[]): BigUint64Array {
-  const out = new BigUint64Array(parts.reduce((s, x) => s + x.length, 0));
+/** Joins chunks of one typed-array kind into one array of that kind. */
+function concat<T extends BigUint64Array | Uint32Array>(parts: T[], make: (length: number) => T): T {
+  const out = make(parts.reduce((s, x) => s + x.length, 0));
   let o = 0;
   for (const x of parts) {
-    out.set(x, o);
+    (out as Uint32Array).set(x as Uint32Array, o);
     o += x.length;
   }
   return out;
+}
+
+function concatU64(parts: BigUint64Array[]): BigUint64Array {
+  return concat(parts, (n) => new BigUint64Array(n));
 }
 
 export type { CollatzMap };

@@ -1,5 +1,6 @@
 // The map T(n) = n/2 for even n, (q n + r)/2 for odd n, with q and r odd.
 import { LimitError, UsageError } from "./errors.js";
+import { bitLength } from "./arith.js";
 
 export interface CollatzMap {
   readonly q: number;
@@ -47,7 +48,7 @@ export function step(map: CollatzMap, n: bigint): bigint {
 /** bitlen(q^m): the least depth j with q^m < 2^j (q^m is odd, never a power of two past m = 0). */
 export function dropDepth(q: number, m: number): number {
   const p = BigInt(q) ** BigInt(m);
-  return p === 1n ? 1 : p.toString(2).length;
+  return p === 1n ? 1 : bitLength(p);
 }
 
 /**

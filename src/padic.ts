@@ -5,6 +5,7 @@
 //   eventually periodic u·w^∞: a_u + 2^|u| (z_w - b_u) / q^(m_u).
 import type { CollatzMap } from "./map.js";
 import { UsageError } from "./errors.js";
+import { inverseMod2k } from "./arith.js";
 
 /** Longest word, residue depth or trajectory the inspector accepts. */
 export const MAX_INSPECT_STEPS = 10_000;
@@ -31,11 +32,6 @@ function checkWord(word: string, what = "parity word"): void {
   if (word.length === 0) throw new UsageError(`${what} is empty`);
   if (!/^[01]+$/.test(word)) throw new UsageError(`${what} "${word.length > 40 ? word.slice(0, 40) + "..." : word}" must contain only 0 and 1`);
   if (word.length > MAX_INSPECT_STEPS) throw new UsageError(`${what} is longer than ${MAX_INSPECT_STEPS}`);
-}
-
-/** Exact bit length of a positive BigInt. */
-function bitLength(n: bigint): number {
-  return n === 0n ? 0 : n.toString(2).length;
 }
 
 /**
@@ -93,6 +89,16 @@ export function iterate(map: CollatzMap, n: bigint, steps: number): bigint {
   const q = BigInt(map.q), r = BigInt(map.r);
   for (let i = 0; i < steps; i++) n = (n & 1n) === 1n ? (q * n + r) >> 1n : n >> 1n;
   return n;
+}
+
+/** The first j in 1..steps with T^j(n) < n (the stopping time), or null. @example firstDescent(parseMap("3x+1"), 3n, 10) // 4 */
+export function firstDescent(map: CollatzMap, n: bigint, steps: number): number | null {
+  let v = n;
+  for (let j = 1; j <= steps; j++) {
+    v = iterate(map, v, 1);
+    if (v < n) return j;
+  }
+  return null;
 }
 
 /** Binary digits of a mod 2^k, least significant first (the 2-adic expansion). */
@@ -243,16 +249,9 @@ export function periodicPoint(map: CollatzMap, pre: string, word: string): Perio
 export function twoAdicDigits(num: bigint, den: bigint, precision: number): string {
   if ((den & 1n) === 0n) throw new RangeError("denominator must be odd");
   const mod = 1n << BigInt(precision);
-  const inv = modInverse(((den % mod) + mod) % mod, mod);
+  const inv = inverseMod2k(((den % mod) + mod) % mod, precision);
   const z = ((((num % mod) + mod) % mod) * inv) % mod;
   return digitsOf(z, precision);
-}
-
-/** Inverse of odd d modulo 2^k by Newton iteration (each step doubles the correct bits). */
-function modInverse(d: bigint, mod: bigint): bigint {
-  let x = 1n; // correct mod 2 for odd d
-  for (let bits = 1n; bits < mod; bits *= 2n) x = (x * (2n - d * x)) % mod;
-  return ((x % mod) + mod) % mod;
 }
 
 /** Parses "u(w)" or "(w)" or "w" into pre-period and period. */
@@ -263,4 +262,3 @@ export function parsePeriodicWord(text: string): { pre: string; word: string } {
   throw new UsageError(`"${text}" is not a parity word: write w, (w) or u(w) with digits 0 and 1, e.g. 10 or 1(10)`);
 }
 
-export { bitLength };

@@ -110,7 +110,6 @@ export async function runSieve(pool: KernelPool, req: SieveRequest, options: Run
   };
 }
 
-
 /** Sums shard tallies exactly: every sum is a class count at most 2^depth <= 2^63 (no u64 wrap). */
 class Merger {
   readonly live: BigUint64Array;

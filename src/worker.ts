@@ -29,7 +29,7 @@ export function createWorkerApi(): KernelWorkerApi {
     async runCensus(req) {
       if (!kernel) throw new Error("worker used before init");
       const res = kernel.census(req);
-      const arrays: ArrayBufferView[] = [res.live, res.stopped, res.vectors, res.peak, res.bins, res.counts, res.coefficientBins, res.ambiguous, res.differ, res.ratio];
+      const arrays: ArrayBufferView[] = [res.live, res.stopped, res.vectors, res.peak, res.bins, res.counts, res.ambiguous, res.differ, res.ratio];
       if (res.leafVectors) arrays.push(res.leafVectors);
       return transfer(res, arrays.map((x) => asArrayBuffer(x.buffer)));
     },
