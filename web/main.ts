@@ -7,8 +7,8 @@ import { runInspect } from "./views/inspect.js";
 import { cancelCycles, runCycles } from "./views/cycles.js";
 import { resizeCharts } from "./views/charts.js";
 import { defaultWorkers } from "./engine.js";
+import { $ } from "./dom.js";
 
-const $ = <T extends HTMLElement>(id: string) => document.getElementById(id) as T;
 const state: PageState = readState();
 
 function update(s: Partial<PageState>): void {

@@ -2,11 +2,9 @@
 // glidepath periodic: the 2-adic point of an (eventually) periodic parity vector.
 import { UsageError } from "../errors.js";
 import { toExactJson } from "../json.js";
-import type { CollatzMap } from "../map.js";
 import { inspect, parseInspectInput } from "../inspect.js";
-import type { ClassCard, NumberCard } from "../inspect.js";
-import { cycleRepresentative, digitsOf, MAX_INSPECT_STEPS, parsePeriodicWord, periodicPoint, twoAdicDigits } from "../padic.js";
-import type { ClassForm } from "../padic.js";
+import { abbreviate as short, cardText } from "../card.js";
+import { cycleRepresentative, MAX_INSPECT_STEPS, parsePeriodicWord, periodicPoint, twoAdicDigits } from "../padic.js";
 import { intOption, mapOption, parseOptions } from "./args.js";
 
 export const CLASS_USAGE = "glidepath class [--map 3x+1] <n | a mod 2^k | w:WORD> [--steps L] [--json]";
@@ -31,51 +29,6 @@ function positional(argv: string[], options: Parameters<typeof parseOptions>[1])
   return { o: parseOptions(flags, options), rest };
 }
 
-function affine(f: ClassForm): string {
-  const q = BigInt(f.map.q) ** BigInt(f.odd);
-  const b = f.image < 0n ? ` - ${-f.image}` : ` + ${f.image}`;
-  return `T^${f.k}(${f.residue} + 2^${f.k}·x) = ${f.map.q}^${f.odd}·x${b}` + (f.k <= 64 ? `   (${q}·x${b})` : "");
-}
-
-function short(s: string, n = 200): string {
-  return s.length <= n ? s : `${s.slice(0, n)}... (${s.length} in all)`;
-}
-
-function stopLine(f: ClassForm): string {
-  return f.stoppingTime === null
-    ? `coefficient stays >= 1 for all ${f.k} steps: no coefficient stopping time within the word`
-    : `coefficient stopping time ${f.stoppingTime} (${f.stoppingTime + f.stoppingOdd!} standard steps): ${f.map.q}^${f.stoppingOdd} < 2^${f.stoppingTime}`;
-}
-
-function classText(c: ClassCard): string {
-  const f = c.form;
-  const lm = c.leastMember;
-  return [
-    `class ${short(String(f.residue), 80)} mod 2^${f.k} of ${f.map.name}`,
-    `  parity word (first step first): ${short(f.word)}`,
-    `  affine form: ${short(affine(f), 400)}`,
-    `  odd steps m = ${f.odd}, ${f.k - f.odd} halvings; ${f.k + f.odd} standard steps`,
-    `  ${stopLine(f)}`,
-    `  least member ${short(String(lm.n), 80)}: ` +
-      (lm.n === 0n ? "0 is not positive" : lm.descent === null ? `does not descend within ${f.k} steps` : `first descends at step ${lm.descent}`) +
-      (lm.imageAtStop !== null && lm.n > 0n ? `; at the stopping time T^${f.stoppingTime}(${short(String(lm.n), 40)}) = ${short(String(lm.imageAtStop), 40)} (${lm.imageAtStop < lm.n ? "descends" : "does not descend: an exception of the sieve"})` : ""),
-    `  2-adic digits of the residue (least significant first): ${short(digitsOf(f.residue, f.k))}`,
-    "",
-  ].join("\n");
-}
-
-function numberText(map: CollatzMap, c: NumberCard): string {
-  const t = c.trajectory;
-  const lines = [`n = ${short(String(c.n), 80)} under ${map.name}`];
-  lines.push(`  parity vector (${t.steps} steps${t.cycle ? ", to the cycle and once round it" : ""}): ${short(t.word)}`);
-  lines.push(`  stopping time (first T^j(n) < n): ${t.descent === null ? `none within ${t.steps} steps` : `${t.descent} (${t.descent + [...t.word.slice(0, t.descent)].filter((x) => x === "1").length} standard steps)`}`);
-  if (c.form) lines.push(`  ${stopLine(c.form)}`);
-  lines.push(`  largest value ${short(String(t.max), 80)} at step ${t.maxAt}`);
-  lines.push(t.cycle ? `  enters the cycle of ${t.cycle.min} (least |x|) (period ${t.cycle.period}, ${t.cycle.odd} odd) at step ${t.cycle.entry}` : `  no cycle reached within ${t.steps} steps`);
-  lines.push(`  2-adic digits (least significant first): ${short(digitsOf(c.n < 0n ? (1n << 64n) + c.n : c.n, Math.max(1, c.n < 0n ? 64 : c.n.toString(2).length)))}${c.n < 0n ? " ..." : ""}`, "");
-  return lines.join("\n");
-}
-
 export function classCommand(argv: string[]): void {
   const { o, rest } = positional(argv, { map: { type: "string" }, steps: { type: "string" }, json: { type: "boolean" } });
   const map = mapOption(o.map);
@@ -83,7 +36,7 @@ export function classCommand(argv: string[]): void {
   const steps = intOption("steps", o.steps, 1, MAX_INSPECT_STEPS, MAX_INSPECT_STEPS);
   const card = inspect(map, parseInspectInput(rest.join(" ")), steps);
   if (o.json) process.stdout.write(toExactJson({ map: map.name, ...card }) + "\n");
-  else process.stdout.write(card.kind === "class" ? classText(card.card) : numberText(map, card.card));
+  else process.stdout.write(cardText(map, card) + "\n");
 }
 
 export function periodicCommand(argv: string[]): void {

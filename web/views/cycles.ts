@@ -3,33 +3,27 @@ import { parseMap } from "../../src/map.js";
 import { searchCycles, MAX_CYCLE_PERIOD, cycleWidth } from "../../src/cycles.js";
 import { CancelledError } from "../../src/pool.js";
 import { getPool } from "../engine.js";
+import { $, fieldError } from "../dom.js";
 
-const $ = <T extends HTMLElement>(id: string) => document.getElementById(id) as T;
 let controller: AbortController | null = null;
-
-function err(id: string, text: string): boolean {
-  $(`${id}-error`).textContent = text;
-  $(id).setAttribute("aria-invalid", text ? "true" : "false");
-  return text === "";
-}
 
 export async function runCycles(mapText: string, periodText: string, workers: number): Promise<boolean> {
   let map;
   try {
     map = parseMap(mapText.trim());
-    err("cycles-map", "");
+    fieldError("cycles-map", "");
   } catch (e) {
-    err("cycles-map", (e as Error).message);
+    fieldError("cycles-map", (e as Error).message);
   }
   const K = Number(periodText);
   let ok = /^\d+$/.test(periodText.trim()) && K >= 1 && K <= MAX_CYCLE_PERIOD;
-  if (!ok) err("cycles-period", `a whole number from 1 to ${MAX_CYCLE_PERIOD}`);
+  if (!ok) fieldError("cycles-period", `a whole number from 1 to ${MAX_CYCLE_PERIOD}`);
   else if (map) {
     try {
       cycleWidth(map, K);
-      err("cycles-period", "");
+      fieldError("cycles-period", "");
     } catch (e) {
-      ok = err("cycles-period", (e as Error).message);
+      ok = fieldError("cycles-period", (e as Error).message);
     }
   }
   if (!map || !ok) return false;

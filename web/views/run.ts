@@ -17,8 +17,8 @@ import { getPool } from "../engine.js";
 import { drawCensus, drawDensity, drawHeat, drawStopped } from "./charts.js";
 import { showTable } from "./table.js";
 import type { PageState } from "../state.js";
+import { $, fieldError } from "../dom.js";
 
-const $ = <T extends HTMLElement>(id: string) => document.getElementById(id) as T;
 /** Memory a run may take for its class table (4 bytes a residue, twice while sorting). */
 const TABLE_BUDGET = 1.5 * 2 ** 30;
 
@@ -27,12 +27,6 @@ export interface RunRequest {
   readonly depth: number;
   readonly mode: "survivors" | "full";
   readonly workers: number;
-}
-
-function fieldError(id: string, text: string): boolean {
-  $(`${id}-error`).textContent = text;
-  $(id).setAttribute("aria-invalid", text ? "true" : "false");
-  return text === "";
 }
 
 /** Reads and checks the form; errors appear beside the fields and nothing runs. */

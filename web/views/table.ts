@@ -7,6 +7,7 @@ import { CSV_ROW_GUARD, tableManifest } from "../../src/tables.js";
 import { toExactJson } from "../../src/json.js";
 import { kernelBuildId, withExportWorker } from "../engine.js";
 import pkg from "../../package.json";
+import { $, fieldError } from "../dom.js";
 
 const ROW = 24;
 const MAX_SCROLL = 8_000_000; // px: far below browsers' element-height limits
@@ -20,7 +21,6 @@ export interface ClassTable {
 
 let current: ClassTable | null = null;
 let hit = -1;
-const $ = <T extends HTMLElement>(id: string) => document.getElementById(id) as T;
 
 function visibleRows(): number {
   return Math.ceil($("table-list").clientHeight / ROW) + 1;
@@ -151,11 +151,6 @@ async function exportTable(format: "raw" | "csv" | "arrow"): Promise<void> {
     msg.className = "message bad";
     msg.textContent = `Export failed: ${(e as Error).message}`;
   }
-}
-
-function fieldError(id: string, text: string): void {
-  $(`${id}-error`).textContent = text;
-  $(id).setAttribute("aria-invalid", text ? "true" : "false");
 }
 
 export function setupTable(): void {

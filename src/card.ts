@@ -1,0 +1,56 @@
+// The text of a class card (CLI `glidepath class` and the web inspector show the same lines).
+import type { CollatzMap } from "./map.js";
+import type { Card, ClassCard, NumberCard } from "./inspect.js";
+import { digitsOf } from "./padic.js";
+import type { ClassForm } from "./padic.js";
+import { bitLength } from "./arith.js";
+
+function affine(f: ClassForm): string {
+  const q = BigInt(f.map.q) ** BigInt(f.odd);
+  const b = f.image < 0n ? ` - ${-f.image}` : ` + ${f.image}`;
+  return `T^${f.k}(${f.residue} + 2^${f.k}·x) = ${f.map.q}^${f.odd}·x${b}` + (f.k <= 64 ? `   (${q}·x${b})` : "");
+}
+
+/** s itself, or its first n characters and its length. */
+export function abbreviate(s: string, n = 200): string {
+  return s.length <= n ? s : `${s.slice(0, n)}... (${s.length} in all)`;
+}
+
+function stopLine(f: ClassForm): string {
+  return f.stoppingTime === null
+    ? `coefficient stays >= 1 for all ${f.k} steps: no coefficient stopping time within the word`
+    : `coefficient stopping time ${f.stoppingTime} (${f.stoppingTime + f.stoppingOdd!} standard steps): ${f.map.q}^${f.stoppingOdd} < 2^${f.stoppingTime}`;
+}
+
+function classText(c: ClassCard): string {
+  const f = c.form;
+  const lm = c.leastMember;
+  return [
+    `class ${abbreviate(String(f.residue), 80)} mod 2^${f.k} of ${f.map.name}`,
+    `  parity word (first step first): ${abbreviate(f.word)}`,
+    `  affine form: ${abbreviate(affine(f), 400)}`,
+    `  odd steps m = ${f.odd}, ${f.k - f.odd} halvings; ${f.k + f.odd} standard steps`,
+    `  ${stopLine(f)}`,
+    `  least member ${abbreviate(String(lm.n), 80)}: ` +
+      (lm.n === 0n ? "0 is not positive" : lm.descent === null ? `does not descend within ${f.k} steps` : `first descends at step ${lm.descent}`) +
+      (lm.imageAtStop !== null && lm.n > 0n ? `; at the stopping time T^${f.stoppingTime}(${abbreviate(String(lm.n), 40)}) = ${abbreviate(String(lm.imageAtStop), 40)} (${lm.imageAtStop < lm.n ? "descends" : "does not descend: an exception of the sieve"})` : ""),
+    `  2-adic digits of the residue (least significant first): ${abbreviate(digitsOf(f.residue, f.k))}`,
+  ].join("\n");
+}
+
+function numberText(map: CollatzMap, c: NumberCard): string {
+  const t = c.trajectory;
+  const lines = [`n = ${abbreviate(String(c.n), 80)} under ${map.name}`];
+  lines.push(`  parity vector (${t.steps} steps${t.cycle ? ", to the cycle and once round it" : ""}): ${abbreviate(t.word)}`);
+  lines.push(`  stopping time (first T^j(n) < n): ${t.descent === null ? `none within ${t.steps} steps` : `${t.descent} (${t.descent + [...t.word.slice(0, t.descent)].filter((x) => x === "1").length} standard steps)`}`);
+  if (c.form) lines.push(`  ${stopLine(c.form)}`);
+  lines.push(`  largest value ${abbreviate(String(t.max), 80)} at step ${t.maxAt}`);
+  lines.push(t.cycle ? `  enters the cycle of ${t.cycle.min} (least |x|) (period ${t.cycle.period}, ${t.cycle.odd} odd) at step ${t.cycle.entry}` : `  no cycle reached within ${t.steps} steps`);
+  lines.push(`  2-adic digits (least significant first): ${abbreviate(digitsOf(c.n < 0n ? (1n << 64n) + c.n : c.n, Math.max(1, c.n < 0n ? 64 : bitLength(c.n))))}${c.n < 0n ? " ..." : ""}`);
+  return lines.join("\n");
+}
+
+/** The card as lines of text. @example cardText(map, inspect(map, parseInspectInput("3 mod 16"))) */
+export function cardText(map: CollatzMap, card: Card): string {
+  return card.kind === "class" ? classText(card.card) : numberText(map, card.card);
+}
