@@ -1,7 +1,7 @@
 // The class inspector: one input (parity word, number, or residue a mod 2^k) to a class card.
 import type { CollatzMap } from "./map.js";
 import { UsageError } from "./errors.js";
-import { classFromResidue, classFromWord, digitsOf, firstDescent, iterate, MAX_INSPECT_STEPS, parityWord, trajectory } from "./padic.js";
+import { classFromResidue, classFromWord, firstDescent, iterate, MAX_INSPECT_STEPS, parityWord, trajectory } from "./padic.js";
 import type { ClassForm, Trajectory } from "./padic.js";
 
 export type InspectInput =
@@ -73,5 +73,3 @@ export function inspect(map: CollatzMap, input: InspectInput, steps = MAX_INSPEC
     }
   }
 }
-
-export { digitsOf };

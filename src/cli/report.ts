@@ -31,5 +31,3 @@ export function levelTable(map: CollatzMap, levels: readonly Level[]): string {
   const line = (r: string[]) => r.map((c, i) => (i === 3 || i === 4 ? c.padEnd(widths[i]!) : c.padStart(widths[i]!))).join("  ").trimEnd();
   return [line(head), ...rows.map(line)].join("\n");
 }
-
-export { group };

@@ -16,7 +16,8 @@ import type { KernelPool } from "../pool.js";
 import { intOption, mapOption, parseOptions, workersOption } from "./args.js";
 import { AtomicFile, writeFileAtomic } from "./files.js";
 import { kernelBuildId, withPool } from "./node-kernel.js";
-import { group, levelTable } from "./report.js";
+import { levelTable } from "./report.js";
+import { group } from "../format.js";
 import { toolVersion } from "./version.js";
 
 export const SIEVE_USAGE = "glidepath sieve [--map 3x+1] --depth K [--out FILE [--format raw|csv|arrow] [--force]] [--workers N] [--json]";

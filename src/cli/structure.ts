@@ -11,7 +11,8 @@ import { censusJson, log2Coefficient, vectorsAreBinomial } from "../summary.js";
 import { intOption, mapOption, parseOptions, workersOption } from "./args.js";
 import { withOutput } from "./files.js";
 import { withPool } from "./node-kernel.js";
-import { group, levelTable } from "./report.js";
+import { levelTable } from "./report.js";
+import { group } from "../format.js";
 
 export const CENSUS_USAGE = "glidepath census [--map 3x+1] --depth K [--out FILE.arrow] [--workers N] [--json]";
 export const CYCLES_USAGE = "glidepath cycles [--map 3x+1] --max-period K [--out FILE.arrow] [--workers N] [--json]";
