@@ -1,14 +1,14 @@
 // The command line as a user runs it: reports, class tables, manifests, errors and exit codes.
 import { execFile, spawn } from "node:child_process";
 import { createHash } from "node:crypto";
-import { existsSync, mkdtempSync, readdirSync, readFileSync, rmSync } from "node:fs";
+import { copyFileSync, existsSync, mkdirSync, mkdtempSync, readdirSync, readFileSync, rmSync } from "node:fs";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
 import { promisify } from "node:util";
 import { afterAll, describe, expect, it } from "vitest";
-import { parseMap } from "../src/map.js";
-import { parseExactJson } from "../src/json.js";
-import { parseCsv } from "../src/tables.js";
+import { parseMap } from "../src/core/map.js";
+import { parseExactJson } from "../src/outputs/json.js";
+import { parseCsv } from "../src/outputs/tables.js";
 import { A076227 } from "./published.js";
 import { coefficientStop, T } from "./helpers.js";
 
@@ -18,8 +18,12 @@ const dir = mkdtempSync(join(tmpdir(), "glidepath-cli-"));
 afterAll(() => rmSync(dir, { recursive: true, force: true }));
 
 async function cli(...args: string[]): Promise<{ code: number; stdout: string; stderr: string }> {
+  return cli2(BIN, ...args);
+}
+
+async function cli2(bin: string, ...args: string[]): Promise<{ code: number; stdout: string; stderr: string }> {
   try {
-    const { stdout, stderr } = await run("node", [BIN, ...args], { maxBuffer: 64 << 20 });
+    const { stdout, stderr } = await run("node", [bin, ...args], { maxBuffer: 64 << 20 });
     return { code: 0, stdout, stderr };
   } catch (e) {
     const x = e as { code: number; stdout: string; stderr: string };
@@ -47,10 +51,23 @@ describe("cli: reports", () => {
   it("counts --by-odd --json agrees with counts text and A076227 at depth 32", async () => {
     const { code, stdout } = await cli("counts", "--depth", "32", "--by-odd", "--json");
     expect(code).toBe(0);
-    const j = parseExactJson(stdout) as { levels: { survivors: bigint }[]; byOdd: { depth: bigint; odd: bigint; live: bigint }[] };
+    const j = parseExactJson(stdout) as { levels: { survivors: bigint; stopped: bigint }[]; byOdd: { depth: bigint; odd: bigint; live: bigint; stopped: bigint }[] };
     expect(j.levels.map((l) => l.survivors)).toEqual(A076227);
     const at32 = j.byOdd.filter((r) => r.depth === 32n).reduce((s, r) => s + r.live, 0n);
     expect(at32).toBe(A076227[32]);
+    // the text mode, parsed back: the same levels and the same (j, m) entries
+    const text = await cli("counts", "--depth", "32", "--by-odd");
+    expect(text.code).toBe(0);
+    const rows = [...text.stdout.matchAll(/^ +(\d+) +([\d,]+) +([\d,]+)  (\d\.\d{8})/gm)];
+    expect(rows.map((r) => BigInt(r[2]!.replaceAll(",", "")))).toEqual(A076227);
+    expect(rows.map((r) => BigInt(r[3]!.replaceAll(",", "")))).toEqual(j.levels.map((l) => l.stopped));
+    // densities: survivors / 2^j rounded half up to 8 decimals, computed here from the published counts
+    rows.forEach((r, i) => {
+      const exact = (A076227[i]! * 10n ** 8n * 2n + (1n << BigInt(i))) / (1n << BigInt(i + 1));
+      expect(r[4]!.replace(".", "")).toBe(exact.toString().padStart(9, "0"));
+    });
+    const odd = [...text.stdout.matchAll(/^ {2}j=(\d+) m=(\d+) live=(\d+)(?: stopped=(\d+))?$/gm)];
+    expect(odd.map((r) => [BigInt(r[1]!), BigInt(r[2]!), BigInt(r[3]!), BigInt(r[4] ?? 0)])).toEqual(j.byOdd.map((r) => [r.depth, r.odd, r.live, r.stopped]));
   });
 });
 
@@ -101,7 +118,91 @@ describe("cli: class tables", () => {
   });
 });
 
+describe("cli: conventions", () => {
+  it("help is printed on stdout with exit 0 when asked for, for the program and every command", async () => {
+    for (const args of [["--help"], ["-h"], ["help"], ["sieve", "--help"], ["sieve", "-h"], ["help", "census"], ["counts", "--help"]]) {
+      const r = await cli(...args);
+      expect(r.code, args.join(" ")).toBe(0);
+      expect(r.stderr).toBe("");
+      expect(r.stdout).toMatch(/^Usage: glidepath/);
+    }
+    expect((await cli("--version")).stdout).toMatch(/^\d+\.\d+\.\d+\n$/);
+  });
+
+  it("a closed pipe ends quietly: no stack, exit 0", async () => {
+    for (const cmd of ["counts --depth 3000 | head -3", "sieve --map 3x+1048575 --depth 12 --json | head -c 10"]) {
+      const { stdout, stderr } = await run("bash", ["-c", `set -o pipefail; node ${BIN} ${cmd}; echo "rc=$?" >&2`]);
+      expect(stdout.length).toBeGreaterThan(0);
+      expect(stderr.trim()).toBe("rc=0");
+    }
+  });
+
+  it("Ctrl-C ends a long exact count at once (the counter yields to the event loop)", async () => {
+    const child = spawn("node", [BIN, "counts", "--depth", "10000", "--by-odd"], { stdio: ["ignore", "ignore", "pipe"] });
+    let err = "";
+    child.stderr.on("data", (d: Buffer) => (err += d.toString()));
+    const exited = new Promise<number | null>((res) => child.on("exit", (code) => res(code)));
+    await new Promise((r) => setTimeout(r, 1500));
+    const sent = performance.now();
+    child.kill("SIGINT");
+    expect(await exited).toBe(130);
+    expect(performance.now() - sent).toBeLessThan(2000); // generous: the counter yields every ~20 ms
+    expect(err).toMatch(/glidepath: interrupted/);
+  });
+
+  it("a data file and its manifest are placed together: a manifest that cannot be placed leaves neither", async () => {
+    const sub = mkdtempSync(join(dir, "pair-"));
+    const out = join(sub, "t.u32");
+    mkdirSync(`${out}.json`); // the manifest's name is taken by a folder
+    const r = await cli("sieve", "--depth", "12", "--out", out);
+    expect(r.code).toBe(2);
+    expect(r.stderr).toMatch(/t.u32.json: it is a directory/);
+    expect(readdirSync(sub)).toEqual(["t.u32.json"]);
+  });
+
+  it("every output gets a manifest and a confirmation line", async () => {
+    const ce = join(dir, "confirm.arrow");
+    const r = await cli("census", "--depth", "10", "--out", ce);
+    expect(r.stdout).toMatch(/wrote census tallies \(arrow\) to .*confirm.arrow \(manifest .*confirm.arrow.json\)/);
+    const man = parseExactJson(readFileSync(`${ce}.json`, "utf8")) as { kind: string; sha256: string; depth: bigint };
+    expect(man).toMatchObject({ kind: "glidepath census", depth: 10n });
+    expect(man.sha256).toBe(createHash("sha256").update(readFileSync(ce)).digest("hex"));
+    const js = await cli("cycles", "--max-period", "10", "--out", join(dir, "cy.arrow"), "--json");
+    expect(() => parseExactJson(js.stdout)).not.toThrow(); // stdout stays one JSON document
+    // 3x+1 to period 10: the cycles of 1, -1 and -5 (common practice; the cycle of -17 is longer)
+    expect(js.stderr).toMatch(/wrote 3 cycles \(arrow\)/);
+  });
+
+  it("the command line before the build says to run npm install in one line", async () => {
+    const copy = mkdtempSync(join(dir, "unbuilt-"));
+    mkdirSync(join(copy, "bin"));
+    copyFileSync(BIN, join(copy, "bin", "glidepath.js"));
+    const r = await cli2(join(copy, "bin", "glidepath.js"), "sieve", "--depth", "4");
+    expect(r.code).toBe(1);
+    expect(r.stderr.trim().split("\n")).toHaveLength(1);
+    expect(r.stderr).toMatch(/run npm install/);
+  });
+});
+
 describe("cli: structure commands", () => {
+  it("class 7 under 3x+5: its class stops at depth 24, where the sieve cuts it (an exception there)", async () => {
+    // 3x+5 sieve: 7 is an exception of the class 7 mod 2^24 (a brute force in test/kernel.test.ts)
+    const { stdout } = await cli("class", "7", "--map", "3x+5");
+    expect(stdout).toMatch(/coefficient stopping time 24 /);
+    const brute = coefficientStop(parseMap("3x+5"), 7n, 100);
+    expect(brute?.j).toBe(24);
+  });
+  it("class 27 mod 128: the least member's first descent is found past the word (step 59, A006877 lore: 27 rises to 9232)", async () => {
+    const { stdout } = await cli("class", "27", "mod", "128", "--json");
+    const j = parseExactJson(stdout) as { card: { leastMember: { descent: bigint } } };
+    let v = 27n, steps = 0n;
+    do {
+      v = T(3n, 1n, v);
+      steps++;
+    } while (v >= 27n);
+    expect(j.card.leastMember.descent).toBe(steps); // plain iteration here: 59 steps of T
+    expect(steps).toBe(59n);
+  });
   it("class 3 mod 16 --json: stopping time 4, affine form 9x + 2 (common practice)", async () => {
     const { code, stdout } = await cli("class", "3", "mod", "16", "--json");
     expect(code).toBe(0);
@@ -155,33 +256,41 @@ describe("cli: errors give one line and the documented exit code", () => {
     [["sieve"], 2, /--depth is required/],
     [["sieve", "--depth", "abc"], 2, /--depth must be a whole number/],
     [["sieve", "--depth=-3"], 2, /--depth must be a whole number/],
-    [["sieve", "--depth", "64"], 2, /--depth must be between 0 and 63/],
-    [["sieve", "--depth", "41"], 1, /depth 41 is beyond the exact 64-bit range for 3x\+1 \(at most 40/],
-    [["sieve", "--map", "5x+1", "--depth", "28"], 1, /at most 27/],
-    [["sieve", "--depth", "10", "--workers", "0"], 2, /--workers must be between 1 and 256/],
-    [["sieve", "--depth", "10", "--bogus"], 2, /Unknown option '--bogus'/],
+    [["sieve", "--depth", "64"], 2, /--depth must be from 0 to 63/],
+    [["sieve", "--depth", "-1"], 2, /--depth must be a whole number/],
+    [["sieve", "--map", "-3x+1", "--depth", "4"], 2, /not of the form/],
+    [["sieve", "--depth", "41"], 2, /depth 41 is beyond the exact 64-bit range for 3x\+1 \(at most 40/],
+    [["sieve", "--map", "5x+1", "--depth", "28"], 2, /at most 27/],
+    [["sieve", "--depth", "10", "--workers", "0"], 2, /--workers must be from 1 to 256/],
+    [["sieve", "--depth", "10", "--bogus"], 2, /unknown option '--bogus'/],
     [["sieve", "--depth", "10", "--format", "csv"], 2, /--format needs --out/],
-    [["sieve", "--depth", "10", "--out", "x.bin", "--format", "xml"], 2, /--format must be raw, csv or arrow/],
+    [["sieve", "--depth", "10", "--out", "x.bin", "--format", "xml"], 2, /--format must be raw or csv or arrow here/],
     [["sieve", "--depth", "30", "--out", "x.csv"], 2, /over the 1,000,000-row guard/],
-    [["sieve", "--depth", "10", "--out", "/nonexistent-dir/x.u32"], 1, /cannot write \/nonexistent-dir\/x.u32: ENOENT/],
-    [["counts", "--depth", "10001"], 2, /--depth must be between 0 and 10000/],
-    [["counts", "--depth", "5", "extra"], 2, /Unexpected argument 'extra'/],
-    [["frobnicate"], 2, /unknown command "frobnicate"/],
+    [["sieve", "--depth", "10", "--out", "/nonexistent-dir/x.u32"], 2, /cannot write \/nonexistent-dir\/x.u32: the folder \/nonexistent-dir does not exist/],
+    [["sieve", "--depth", "10", "--out", "/tmp"], 2, /cannot write \/tmp: it is a directory/],
+    [["sieve", "--depth", "10", "--out", "x.csv", "--format", "arrow"], 2, /x.csv is named as csv but --format is arrow/],
+    [["counts", "--depth", "10001"], 2, /--depth must be from 0 to 10000/],
+    [["counts", "--depth", "5", "extra"], 2, /too many arguments for 'counts'/],
+    [["frobnicate"], 2, /unknown command 'frobnicate'/],
+    [["help", "frobnicate"], 2, /unknown command "frobnicate"/],
+    [[], 2, /usage: glidepath <command>/],
     [["class", "w:1021"], 2, /must contain only 0 and 1/],
     [["class", "w:"], 2, /parity word is empty/],
     [["class", "16", "mod", "2^4"], 2, /residue 16 is not in \[0, 2\^4\)/],
     [["class", "5", "mod", "24"], 2, /not a power of two/],
-    [["class"], 2, /give an input/],
+    [["class"], 2, /missing required argument 'input'/],
     [["class", "--map", "3x+4", "7"], 2, /r must be odd/],
     [["periodic", "1(2)"], 2, /is not a parity word/],
-    [["census", "--depth", "33"], 2, /--depth must be between 1 and 32/],
+    [["census", "--depth", "33"], 2, /--depth must be from 1 to 32/],
     [["census", "--depth", "10", "--format", "csv", "--out", "x"], 2, /--format must be arrow here/],
-    [["cycles", "--max-period", "64"], 2, /--max-period must be between 1 and 63/],
-    [["cycles", "--map", "99x+1", "--max-period", "30"], 1, /beyond the exact 128-bit range for 99x\+1/],
-    [["conjugacy", "--depth", "27"], 2, /--depth must be between 1 and 26/],
-    [["steps", "--depth", "25", "--out", "x"], 2, /--depth must be between 1 and 24/],
+    [["census", "--depth", "10", "--out", "c.csv"], 2, /c.csv is named as csv, which this command does not write/],
+    [["steps", "--depth", "10", "--out", "st.csv"], 2, /st.csv is named as csv, which this command does not write/],
+    [["cycles", "--max-period", "64"], 2, /--max-period must be from 1 to 63/],
+    [["cycles", "--map", "99x+1", "--max-period", "30"], 2, /beyond the exact 128-bit range for 99x\+1/],
+    [["conjugacy", "--depth", "27"], 2, /--depth must be from 1 to 26/],
+    [["steps", "--depth", "25", "--out", "x"], 2, /--depth must be from 1 to 24/],
     [["steps", "--depth", "10"], 2, /--out FILE is required/],
-    [["steps", "--depth", "10", "--out", "/nonexistent-dir/s"], 1, /cannot write/],
+    [["steps", "--depth", "10", "--out", "/nonexistent-dir/s"], 2, /cannot write/],
   ];
   for (const [args, code, msg] of cases) {
     it(`${args.join(" ")} -> exit ${code}`, async () => {

@@ -1,6 +1,6 @@
 import { describe, expect, it } from "vitest";
-import { exactCounts } from "../src/exact.js";
-import { makeMap, parseMap } from "../src/map.js";
+import { exactCounts } from "../src/core/exact.js";
+import { makeMap, parseMap } from "../src/core/map.js";
 import { A076227, A100982, A100982_DEPTHS } from "./published.js";
 
 describe("exact counter: sanity", () => {

@@ -1,9 +1,9 @@
 // Plain BigInt references written for the tests, independent of src/ arithmetic.
-import type { CollatzMap } from "../src/map.js";
-import { instantiateKernel } from "../src/kernel.js";
-import type { KernelInstance, LeafChunk, ShardRequest, ShardResult } from "../src/kernel.js";
-import { loadKernelModule } from "../src/cli/node-kernel.js";
-import type { Flavour } from "../src/cli/node-kernel.js";
+import type { CollatzMap } from "../src/core/map.js";
+import { instantiateKernel } from "../src/engine/kernel.js";
+import type { KernelInstance, LeafChunk, ShardRequest, ShardResult } from "../src/engine/kernel.js";
+import { loadKernelModule } from "../src/node/kernel.js";
+import type { Flavour } from "../src/node/kernel.js";
 
 /** T on BigInt, written out again here rather than imported. */
 export function T(q: bigint, r: bigint, n: bigint): bigint {

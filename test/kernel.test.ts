@@ -1,9 +1,9 @@
 // The enumeration kernel, debug build (assertions on) and release build, against BigInt references.
 import { describe, expect, it } from "vitest";
-import { parseMap } from "../src/map.js";
-import type { CollatzMap } from "../src/map.js";
-import { exactCounts } from "../src/exact.js";
-import { decodeExceptionClasses, expandExceptions } from "../src/exceptions.js";
+import { parseMap } from "../src/core/map.js";
+import type { CollatzMap } from "../src/core/map.js";
+import { exactCounts } from "../src/core/exact.js";
+import { decodeExceptionClasses, expandExceptions } from "../src/jobs/exceptions.js";
 import { allResidues, coefficientStop, kernelOf, parities, rowSums, runAll, sortBig, T } from "./helpers.js";
 
 for (const flavour of ["debug", "release"] as const) {

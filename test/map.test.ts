@@ -1,6 +1,6 @@
 import { describe, expect, it } from "vitest";
-import { dropDepth, kernelDepthLimit, makeMap, parseMap, step } from "../src/map.js";
-import { UsageError } from "../src/errors.js";
+import { dropDepth, kernelDepthLimit, makeMap, parseMap, step } from "../src/core/map.js";
+import { UsageError } from "../src/core/errors.js";
 
 describe("map: sanity", () => {
   it("parses the usual maps", () => {

@@ -1,10 +1,10 @@
 // Classes, trajectories and periodic points against plain BigInt and rational arithmetic in the test.
 import { describe, expect, it } from "vitest";
-import { parseMap } from "../src/map.js";
-import type { CollatzMap } from "../src/map.js";
-import { classFromResidue, classFromWord, parsePeriodicWord, periodicPoint, trajectory, twoAdicDigits } from "../src/padic.js";
-import { inspect, parseInspectInput } from "../src/inspect.js";
-import { UsageError } from "../src/errors.js";
+import { parseMap } from "../src/core/map.js";
+import type { CollatzMap } from "../src/core/map.js";
+import { classFromResidue, classFromWord, parsePeriodicWord, periodicPoint, trajectory, twoAdicDigits } from "../src/core/padic.js";
+import { inspect, parseInspectInput } from "../src/jobs/inspect.js";
+import { UsageError } from "../src/core/errors.js";
 import { parities, T } from "./helpers.js";
 
 /** T on a rational num/den with den odd: the parity of a 2-adic unit fraction is that of num. */

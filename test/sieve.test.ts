@@ -1,11 +1,11 @@
 // The sieve through the worker pool: published counts, shard merging, cancel, width boundaries.
 import { afterAll, describe, expect, it } from "vitest";
-import { kernelDepthLimit, parseMap } from "../src/map.js";
-import { exactCounts } from "../src/exact.js";
-import { runSieve } from "../src/sieve.js";
-import { CancelledError } from "../src/pool.js";
-import { LimitError } from "../src/errors.js";
-import { nodePool } from "../src/cli/node-kernel.js";
+import { kernelDepthLimit, parseMap } from "../src/core/map.js";
+import { exactCounts } from "../src/core/exact.js";
+import { runSieve } from "../src/jobs/sieve.js";
+import { CancelledError } from "../src/engine/pool.js";
+import { LimitError } from "../src/core/errors.js";
+import { nodePool } from "../src/node/kernel.js";
 import { A076227 } from "./published.js";
 import { coefficientStop, kernelOf, rowSums, T } from "./helpers.js";
 
@@ -124,7 +124,7 @@ describe("sieve on the pool: special", () => {
 
   it("a worker that dies (uncaught error) ends the run with a message naming the cause", async () => {
     const { Worker } = await import("node:worker_threads");
-    const { KernelPool } = await import("../src/pool.js");
+    const { KernelPool } = await import("../src/engine/pool.js");
     const nodeEndpoint = (await import("comlink/dist/esm/node-adapter.mjs")).default;
     const dying = new KernelPool(
       () => {

@@ -1,16 +1,16 @@
 // Census, cycle search, conjugacy and step tables against published values and BigInt brute force.
 import { afterAll, describe, expect, it } from "vitest";
 import { tableFromIPC } from "apache-arrow";
-import { parseMap } from "../src/map.js";
-import type { CollatzMap } from "../src/map.js";
-import { runCensus, quarterLog2 } from "../src/census.js";
-import { searchCycles, CycleCollector } from "../src/cycles.js";
-import { conjugacy, conjugacyPermutation, cycleStructure } from "../src/conjugacy.js";
-import { applySteps, stepTable } from "../src/steps.js";
-import { exactCounts } from "../src/exact.js";
-import { censusArrow, cyclesArrow, stepTableArrow } from "../src/arrow.js";
-import { LimitError, UsageError } from "../src/errors.js";
-import { nodePool } from "../src/cli/node-kernel.js";
+import { parseMap } from "../src/core/map.js";
+import type { CollatzMap } from "../src/core/map.js";
+import { runCensus, quarterLog2 } from "../src/jobs/census.js";
+import { searchCycles, CycleCollector } from "../src/jobs/cycles.js";
+import { conjugacy, conjugacyPermutation, cycleStructure } from "../src/jobs/conjugacy.js";
+import { applySteps, stepTable } from "../src/jobs/steps.js";
+import { exactCounts } from "../src/core/exact.js";
+import { censusArrow, cyclesArrow, stepTableArrow } from "../src/outputs/arrow.js";
+import { LimitError, UsageError } from "../src/core/errors.js";
+import { nodePool } from "../src/node/kernel.js";
 import { coefficientStop, kernelOf, parities, T } from "./helpers.js";
 
 const pool = await nodePool(2);

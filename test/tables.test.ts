@@ -1,12 +1,12 @@
 // Sorting class tables in bounded memory: buckets, passes and the u64 path, against a plain sort.
 import { describe, expect, it } from "vitest";
-import { passPlan, ResidueSorter } from "../src/tables.js";
-import { radixSortU32 } from "../src/sort.js";
-import type { LeafChunk } from "../src/kernel.js";
-import { parseMap } from "../src/map.js";
-import { runSieve } from "../src/sieve.js";
-import { nodePool } from "../src/cli/node-kernel.js";
-import { toExactJson, parseExactJson } from "../src/json.js";
+import { passPlan, ResidueSorter } from "../src/outputs/tables.js";
+import { radixSortU32 } from "../src/outputs/sort.js";
+import type { LeafChunk } from "../src/engine/kernel.js";
+import { parseMap } from "../src/core/map.js";
+import { runSieve } from "../src/jobs/sieve.js";
+import { nodePool } from "../src/node/kernel.js";
+import { toExactJson, parseExactJson } from "../src/outputs/json.js";
 import { sortBig } from "./helpers.js";
 
 function chunkOf(residues: bigint[]): LeafChunk {

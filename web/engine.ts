@@ -1,11 +1,11 @@
 // The browser side of the engine: the kernel module fetched once, a pool of Web Workers through
 // comlink, and the runs the views start. Arithmetic stays in src/; this file only wires it up.
 import wasmUrl from "../build/release.wasm?url";
-import { compileKernel } from "../src/kernel.js";
-import { KernelPool } from "../src/pool.js";
-import type { RunOptions, SpawnWorker, WorkerHandle } from "../src/pool.js";
+import { compileKernel } from "../src/engine/kernel.js";
+import { KernelPool } from "../src/engine/pool.js";
+import type { RunOptions, SpawnWorker, WorkerHandle } from "../src/engine/pool.js";
 import { wrap } from "comlink";
-import type { KernelWorkerApi } from "../src/messages.js";
+import type { KernelWorkerApi } from "../src/engine/messages.js";
 
 const spawn: SpawnWorker = (): WorkerHandle => {
   const w = new Worker(new URL("./worker.ts", import.meta.url), { type: "module" });

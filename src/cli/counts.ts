@@ -1,61 +1,78 @@
 // glidepath counts: the exact counter (BigInt dynamic programming, no kernel), any depth to 10,000.
-import { exactCounts, MAX_EXACT_DEPTH } from "../exact.js";
-import type { ExactCounts } from "../exact.js";
-import type { CollatzMap } from "../map.js";
-import { toExactJson } from "../json.js";
-import { intOption, mapOption, parseOptions } from "./args.js";
+// Rows are written as the counter makes them, so memory does not grow with the depth (the (j, m)
+// table at depth 10,000 is tens of gigabytes of text); the event loop runs between rows, so Ctrl-C
+// and a closed pipe end it at once.
+import type { Command } from "commander";
+import { exactRows, MAX_EXACT_DEPTH } from "../core/exact.js";
+import type { ExactRow } from "../core/exact.js";
+import type { CollatzMap } from "../core/map.js";
+import { toExactJson } from "../outputs/json.js";
+import { countsHeadJson, countsOddJson, levelJson } from "../outputs/summary.js";
+import { intOption, mapOption } from "./options.js";
+import type { RawOptions } from "./options.js";
+import { print, yielder } from "./print.js";
 import { progressBar } from "./progress.js";
-import { levelTable } from "./report.js";
+import { levelHeader, levelLine, levelWidths } from "./report.js";
 
-export const COUNTS_USAGE = "glidepath counts [--map 3x+1] --depth K [--by-odd] [--json]";
+interface CountsOptions extends RawOptions {
+  readonly byOdd?: boolean;
+}
 
-export function countsCommand(argv: string[]): void {
-  const o = parseOptions(argv, {
-    map: { type: "string" },
-    depth: { type: "string" },
-    "by-odd": { type: "boolean" },
-    json: { type: "boolean" },
-  });
+export function countsCommand(program: Command): Command {
+  return program
+    .command("counts")
+    .description(`survivor and stopped counts by exact dynamic programming (BigInt), any depth up to ${MAX_EXACT_DEPTH.toLocaleString("en-US")}`)
+    .option("--map <qx+r>", "the map", "3x+1")
+    .option("--depth <K>", `depth: 0 to ${MAX_EXACT_DEPTH}`)
+    .option("--by-odd", "add the table by (depth, odd steps m): classes alive and stopping at (j, m)")
+    .option("--json", "print JSON (exact integers)")
+    .action((o: CountsOptions) => counts(o));
+}
+
+/** One pass of the counter, each row handed to `each`, with progress and yields between rows. */
+async function pass(map: CollatzMap, depth: number, label: string, each: (row: ExactRow) => void): Promise<void> {
+  const bar = progressBar(label);
+  const pause = yielder();
+  try {
+    for (const row of exactRows(map, depth)) {
+      each(row);
+      if ((row.depth & 15) === 0) bar.update(row.depth, depth);
+      await pause();
+    }
+  } finally {
+    bar.stop();
+  }
+}
+
+async function counts(o: CountsOptions): Promise<void> {
   const map = mapOption(o.map);
   const depth = intOption("depth", o.depth, 0, MAX_EXACT_DEPTH);
-  const byOdd = o["by-odd"] === true;
-  const bar = progressBar(`counts ${map.name} to depth ${depth}`);
   const started = performance.now();
-  const counts = exactCounts(map, depth, { byOdd, onProgress: (done) => bar.update(done, depth) });
-  bar.stop();
-  const seconds = (performance.now() - started) / 1000;
-  process.stdout.write(o.json ? toExactJson(countsJson(map, depth, counts, seconds)) + "\n" : countsText(map, depth, counts, seconds));
-}
-
-/** The (j, m) entries with a nonzero live or stopped count. */
-function oddTable(counts: ExactCounts) {
-  const rows: { depth: number; odd: number; live: bigint; stopped: bigint }[] = [];
-  counts.byOdd?.forEach((row, j) => {
-    row.live.forEach((live, i) => {
-      const stopped = row.stopped[i] ?? 0n;
-      if (live !== 0n || stopped !== 0n) rows.push({ depth: j, odd: row.mLow + i, live, stopped });
-    });
+  const w = levelWidths(depth, 1n << BigInt(depth));
+  if (o.json) print(`${toExactJson(countsHeadJson(map, depth)).slice(0, -1)},"levels":[`);
+  else print(`exact counts for ${map.name} to depth ${depth} (lattice-path dynamic programming)\n\n${levelHeader(w)}\n`);
+  await pass(map, depth, `counts ${map.name} to depth ${depth}`, (row) => {
+    if (o.json) print(`${row.depth > 0 ? "," : ""}${toExactJson(levelJson(row))}`);
+    else print(`${levelLine(w, row, row.stoppedOdd)}\n`);
   });
-  return rows;
-}
-
-export function countsJson(map: CollatzMap, depth: number, counts: ExactCounts, seconds: number) {
-  return {
-    map: map.name,
-    depth,
-    levels: counts.levels.map((l) => ({ depth: l.depth, survivors: l.survivors, stopped: l.stopped })),
-    ...(counts.byOdd ? { byOdd: oddTable(counts) } : {}),
-    seconds: Number(seconds.toFixed(3)),
-  };
-}
-
-function countsText(map: CollatzMap, depth: number, counts: ExactCounts, seconds: number): string {
-  const lines = [`exact counts for ${map.name} to depth ${depth} (lattice-path dynamic programming)`, "", levelTable(map, counts.levels), ""];
-  if (counts.byOdd) {
-    lines.push("by odd steps m: depth j, m, classes alive at (j, m), classes stopping at (j, m)");
-    for (const r of oddTable(counts)) lines.push(`  j=${r.depth} m=${r.odd} live=${r.live}${r.stopped ? ` stopped=${r.stopped}` : ""}`);
-    lines.push("");
+  if (o.byOdd) {
+    // a second pass: the (j, m) rows follow the levels (the counter is cheap next to the writing)
+    let first = true;
+    print(o.json ? `],"byOdd":[` : "\nby odd steps m: depth j, m, classes alive at (j, m), classes stopping at (j, m)\n");
+    await pass(map, depth, `counts by odd steps to depth ${depth}`, (row) => {
+      const parts: string[] = [];
+      row.live.forEach((live, i) => {
+        const m = row.mLow + i;
+        const stopped = m === row.stoppedOdd ? row.stopped : 0n;
+        if (live === 0n && stopped === 0n) return;
+        if (o.json) parts.push(toExactJson(countsOddJson(row.depth, m, live, stopped)));
+        else parts.push(`  j=${row.depth} m=${m} live=${live}${stopped ? ` stopped=${stopped}` : ""}\n`);
+      });
+      if (parts.length === 0) return;
+      print(o.json ? `${first ? "" : ","}${parts.join(",")}` : parts.join(""));
+      first = false;
+    });
   }
-  lines.push(`computed in ${seconds.toFixed(2)} s`, "");
-  return lines.join("\n");
+  const seconds = (performance.now() - started) / 1000;
+  print(o.json ? `],"seconds":${Number(seconds.toFixed(3))}}\n` : `\ncomputed in ${seconds.toFixed(2)} s\n`);
 }

@@ -1,90 +1,106 @@
-// The command line: dispatch, one-line errors, exit codes (2 usage, 1 run time), signal cleanup.
-import { LimitError, UsageError } from "../errors.js";
-import { countsCommand, COUNTS_USAGE } from "./counts.js";
-import { removePendingFiles } from "./files.js";
-import { classCommand, CLASS_USAGE, periodicCommand, PERIODIC_USAGE } from "./inspect.js";
-import { sieveCommand, SIEVE_USAGE } from "./sieve.js";
-import { stepsCommand, STEPS_USAGE } from "./steps.js";
-import { censusCommand, CENSUS_USAGE, conjugacyCommand, CONJUGACY_USAGE, cyclesCommand, CYCLES_USAGE } from "./structure.js";
-import { toolVersion } from "./version.js";
+// The command line: one table of commands (each in its own file), parsed by commander; one-line
+// errors with one exit-code rule (0 done, 1 failed at run time, 2 the request was refused: bad usage
+// or beyond a documented limit); help on stdout when asked for; quiet ends on a closed pipe and on
+// Ctrl-C or SIGTERM (temporary files removed).
+import { Command, CommanderError } from "commander";
+import { exitCodeOf } from "../core/errors.js";
+import { removePendingFiles } from "../node/files.js";
+import { toolVersion } from "../node/version.js";
+import { censusCommand } from "./census.js";
+import { classCommand } from "./class.js";
+import { conjugacyCommand } from "./conjugacy.js";
+import { countsCommand } from "./counts.js";
+import { cyclesCommand } from "./cycles.js";
+import { periodicCommand } from "./periodic.js";
+import { sieveCommand } from "./sieve.js";
+import { stepsCommand } from "./steps.js";
 
-const HELP = `glidepath ${"{version}"}: parity vectors, residue-class sieves and 2-adic structure of T(n) = n/2 | (q n + r)/2
+/** Each entry adds one command (its options, help text and action) to the program. */
+const COMMANDS: readonly ((program: Command) => Command)[] = [
+  sieveCommand,
+  countsCommand,
+  classCommand,
+  periodicCommand,
+  censusCommand,
+  cyclesCommand,
+  conjugacyCommand,
+  stepsCommand,
+];
 
-  ${SIEVE_USAGE}
-      enumerate the classes mod 2^K whose coefficient q^m/2^j has not dropped below 1 (WebAssembly
-      kernel in worker threads); report survivors, stopped classes and exceptions; export the table
-  ${COUNTS_USAGE}
-      the same counts by exact dynamic programming (BigInt), any depth up to 10,000
-  ${CLASS_USAGE}
-      the class card: residue, parity word, affine form T^k(a + 2^k x) = q^m x + b, stopping times,
-      2-adic digits; for a number, its trajectory to the cycle it reaches
-  ${PERIODIC_USAGE}
-      the 2-adic point whose parity vector is w (or u then w) repeated forever, and its cycle
-  ${CENSUS_USAGE}
-      all 2^K parity vectors: alive and dropping classes by (j, m), peak coefficients, the distribution
-      of log2(T^K(a)/a), least members whose descent differs from the coefficient stopping time
-  ${CYCLES_USAGE}
-      every integer cycle (positive and negative) of period <= K, complete by construction
-  ${CONJUGACY_USAGE}
-      cycle structure of the permutation a -> Q_K(a) (the first K parities as a number)
-  ${STEPS_USAGE}
-      the table (m, b) with T^k(a + 2^k x) = q^m x + b for every a mod 2^k
-
+const ABOUT = "parity vectors, residue-class sieves and 2-adic structure of T(n) = n/2 | (q n + r)/2";
+const FOOTER = `
 Maps are written qx+r or qx-r with q odd (3..99) and r odd, |r| < 2^20; the default is 3x+1.
-Exit codes: 0 done, 1 failed at run time, 2 bad usage.
-`;
+Exit codes: 0 done, 1 failed at run time, 2 the request was refused (bad usage or beyond a limit).
+Run glidepath <command> --help for a command's options.`;
 
-export async function main(argv: string[]): Promise<number> {
+function program(): Command {
+  const p = new Command("glidepath")
+    .description(ABOUT)
+    .version(toolVersion(), "--version", "print the version")
+    .helpOption("-h, --help", "print this help")
+    .helpCommand(false)
+    .exitOverride()
+    .configureOutput({
+      writeOut: (s) => process.stdout.write(s),
+      writeErr: (s) => process.stderr.write(s),
+      outputError: () => {}, // reported by main() as one line
+    })
+    .addHelpText("after", FOOTER);
+  for (const add of COMMANDS) add(p);
+  p.command("help")
+    .description("print this help, or a command's")
+    .argument("[command]", "the command to explain")
+    .action((name: string | undefined) => {
+      if (name === undefined) return void p.outputHelp();
+      const cmd = p.commands.find((c) => c.name() === name);
+      if (!cmd || cmd.name() === "help") throw new CommanderError(2, "glidepath.unknownCommand", `unknown command "${name}" (glidepath --help lists them)`);
+      cmd.outputHelp();
+    });
+  return p;
+}
+
+let handlersInstalled = false;
+
+/** Ctrl-C, SIGTERM and a closed stdout end the process at once, leaving no partial file. */
+function installHandlers(): void {
+  if (handlersInstalled) return;
+  handlersInstalled = true;
   for (const sig of ["SIGINT", "SIGTERM"] as const) {
     process.on(sig, () => {
       removePendingFiles();
+      process.stderr.write(`\nglidepath: ${sig === "SIGINT" ? "interrupted" : "terminated"}; no output file was written\n`);
       process.exit(sig === "SIGINT" ? 130 : 143);
     });
   }
-  const [command, ...rest] = argv;
+  process.stdout.on("error", (e: NodeJS.ErrnoException) => {
+    if (e.code !== "EPIPE") throw e;
+    // the reader (head, less) has gone: stop quietly
+    removePendingFiles();
+    process.exit(0);
+  });
+}
+
+/** Runs the command line; resolves to the exit code. */
+export async function main(argv: string[]): Promise<number> {
+  installHandlers();
+  if (argv.length === 0) {
+    process.stderr.write("glidepath: usage: glidepath <command> [options]   (glidepath --help lists the commands)\n");
+    return 2;
+  }
   try {
-    switch (command) {
-      case "sieve":
-        await sieveCommand(rest);
-        return 0;
-      case "counts":
-        countsCommand(rest);
-        return 0;
-      case "class":
-        classCommand(rest);
-        return 0;
-      case "periodic":
-        periodicCommand(rest);
-        return 0;
-      case "census":
-        await censusCommand(rest);
-        return 0;
-      case "cycles":
-        await cyclesCommand(rest);
-        return 0;
-      case "conjugacy":
-        await conjugacyCommand(rest);
-        return 0;
-      case "steps":
-        await stepsCommand(rest);
-        return 0;
-      case "help":
-      case "--help":
-      case "-h":
-      case undefined:
-        process.stdout.write(HELP.replace("{version}", toolVersion()));
-        return command === undefined ? 2 : 0;
-      case "--version":
-        process.stdout.write(toolVersion() + "\n");
-        return 0;
-      default:
-        throw new UsageError(`unknown command "${command}" (try: glidepath help)`);
-    }
+    await program().parseAsync(argv, { from: "user" });
+    return 0;
   } catch (e) {
-    const usage = e instanceof UsageError;
+    if (e instanceof CommanderError) {
+      if (e.code === "commander.helpDisplayed" || e.code === "commander.version") return 0;
+      const msg = e.message.replace(/^error: /, "");
+      const cmd = argv.find((a) => !a.startsWith("-"));
+      process.stderr.write(`glidepath: ${msg}${e.code === "glidepath.unknownCommand" || e.code === "commander.unknownCommand" || !cmd ? "" : ` (see glidepath ${cmd} --help)`}\n`);
+      return 2;
+    }
     const msg = e instanceof Error ? e.message : String(e);
     process.stderr.write(`glidepath: ${msg.split("\n")[0]}\n`);
-    if (!usage && !(e instanceof LimitError) && process.env.GLIDEPATH_DEBUG) process.stderr.write(`${(e as Error).stack}\n`);
-    return usage ? 2 : 1;
+    if (exitCodeOf(e) === 1 && process.env.GLIDEPATH_DEBUG) process.stderr.write(`${(e as Error).stack}\n`);
+    return exitCodeOf(e);
   }
 }

@@ -1,33 +1,41 @@
-// Text rendering of results (no arithmetic beyond display: densities are exact BigInt quotients).
-import type { Level } from "../exact.js";
-import type { CollatzMap } from "../map.js";
-import { dropDepth } from "../map.js";
-import { group } from "../format.js";
+// Text rendering of per-depth tables (no arithmetic beyond display: densities are exact BigInt
+// quotients, the stopping m comes from exact bit lengths).
+import type { Level } from "../core/exact.js";
+import type { CollatzMap } from "../core/map.js";
+import { stoppingOdds } from "../core/map.js";
+import { density, group } from "../outputs/format.js";
 
-/** survivors / 2^depth to `digits` decimals, truncated, from exact integers. */
-export function density(survivors: bigint, depth: number, digits = 8): string {
-  const scaled = (survivors * 10n ** BigInt(digits)) >> BigInt(depth);
-  const s = scaled.toString().padStart(digits + 1, "0");
-  return `${s.slice(0, -digits)}.${s.slice(-digits)}`;
+const HEAD = ["depth", "survivors", "stopped", "density", "std steps"] as const;
+/** Columns are padded to at most this width; longer numbers (depths in the hundreds) just run on. */
+const MAX_PAD = 20;
+
+export type Widths = readonly number[];
+
+/** Column widths for counts up to `widest` (capped, so huge depths do not pad every line). */
+export function levelWidths(depth: number, widest: bigint): Widths {
+  const n = Math.min(MAX_PAD, group(widest).length);
+  return [Math.max(5, String(depth).length), Math.max(9, n), Math.max(7, n), 10, 9];
 }
 
-/** Odd steps m of the classes stopping at depth j: the unique m with bitlen(q^m) = j, if any. */
-export function stoppingOdd(map: CollatzMap, j: number): number | null {
-  for (let m = 0; m <= j; m++) {
-    const d = dropDepth(map.q, m);
-    if (d === j) return m;
-    if (d > j) break;
-  }
-  return null;
+export function levelHeader(w: Widths): string {
+  return line(w, [...HEAD]);
 }
 
+/** One row; `stoppedOdd` is the m of the classes stopping at this depth (null when none). */
+export function levelLine(w: Widths, l: Level, stoppedOdd: number | null): string {
+  const std = l.stopped > 0n && stoppedOdd !== null ? String(l.depth + stoppedOdd) : "";
+  return line(w, [String(l.depth), group(l.survivors), group(l.stopped), density(l.survivors, l.depth), std]);
+}
+
+function line(w: Widths, cells: string[]): string {
+  return cells.map((c, i) => (i >= 3 ? c.padEnd(w[i]!) : c.padStart(w[i]!))).join("  ").trimEnd();
+}
+
+/** The whole table for levels held in memory. */
 export function levelTable(map: CollatzMap, levels: readonly Level[]): string {
-  const head = ["depth", "survivors", "stopped", "density", "std steps"];
-  const rows = levels.map((l) => {
-    const m = l.stopped > 0n ? stoppingOdd(map, l.depth) : null;
-    return [String(l.depth), group(l.survivors), group(l.stopped), density(l.survivors, l.depth), m === null ? "" : String(l.depth + m)];
-  });
-  const widths = head.map((h, i) => Math.max(h.length, ...rows.map((r) => r[i]!.length)));
-  const line = (r: string[]) => r.map((c, i) => (i === 3 || i === 4 ? c.padEnd(widths[i]!) : c.padStart(widths[i]!))).join("  ").trimEnd();
-  return [line(head), ...rows.map(line)].join("\n");
+  const depth = levels.length - 1;
+  const odds = stoppingOdds(map.q, depth);
+  const widest = levels.reduce((s, l) => (l.survivors > s ? l.survivors : l.stopped > s ? l.stopped : s), 0n);
+  const w = levelWidths(depth, widest);
+  return [levelHeader(w), ...levels.map((l) => levelLine(w, l, odds[l.depth] ?? null))].join("\n");
 }

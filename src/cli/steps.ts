@@ -1,40 +1,49 @@
 // glidepath steps: the k-step acceleration table (m, b) for every residue mod 2^k.
-import { basename } from "node:path";
-import { UsageError } from "../errors.js";
-import { toExactJson } from "../json.js";
-import { stepTable, MAX_STEP_DEPTH } from "../steps.js";
-import { stepImageOffset, stepManifest } from "../tables.js";
-import { stepTableArrow } from "../arrow.js";
-import { intOption, mapOption, parseOptions, workersOption } from "./args.js";
-import { AtomicFile, writeFileAtomic } from "./files.js";
-import { kernelBuildId, withPool } from "./node-kernel.js";
-import { toolVersion } from "./version.js";
+import type { Command } from "commander";
+import { UsageError } from "../core/errors.js";
+import { MAX_STEP_DEPTH, stepTable } from "../jobs/steps.js";
+import { stepTableArrow } from "../outputs/arrow.js";
+import { group } from "../outputs/format.js";
+import { stepImageOffset, stepManifest } from "../outputs/manifest.js";
+import { withManifestOutput } from "../node/files.js";
+import { toolStamp, withPool } from "../node/kernel.js";
+import { intOption, mapOption, outputOption, workersOption } from "./options.js";
+import type { RawOptions } from "./options.js";
+import { confirmOutput } from "./print.js";
 
-export const STEPS_USAGE = "glidepath steps [--map 3x+1] --depth k --out FILE [--format raw|arrow] [--workers N]";
+export function stepsCommand(program: Command): Command {
+  return program
+    .command("steps")
+    .description("the table (m, b) with T^k(a + 2^k x) = q^m x + b for every a mod 2^k, for verification kernels")
+    .option("--map <qx+r>", "the map", "3x+1")
+    .option("--depth <k>", `steps per table lookup: 1 to ${MAX_STEP_DEPTH}`)
+    .option("--out <FILE>", "the table file (required), with FILE.json beside it")
+    .option("--format <raw|arrow>", "table format (default: from the name's ending, else raw)")
+    .option("--workers <N>", "worker threads (default: the available cores)")
+    .action((o: RawOptions) => steps(o));
+}
 
-export async function stepsCommand(argv: string[]): Promise<void> {
-  const o = parseOptions(argv, { map: { type: "string" }, depth: { type: "string" }, out: { type: "string" }, format: { type: "string" }, workers: { type: "string" } });
+async function steps(o: RawOptions): Promise<void> {
   const map = mapOption(o.map);
   const depth = intOption("depth", o.depth, 1, MAX_STEP_DEPTH);
   const workers = workersOption(o.workers);
-  if (typeof o.out !== "string") throw new UsageError("--out FILE is required");
-  const format = o.format === undefined ? (o.out.endsWith(".arrow") ? "arrow" : "raw") : o.format;
-  if (format !== "raw" && format !== "arrow") throw new UsageError(`--format must be raw or arrow, got "${String(format)}"`);
-  const file = await AtomicFile.create(o.out);
-  try {
-    const t = await withPool(workers, `steps ${map.name} 2^${depth}`, (pool, onProgress) => stepTable(pool, map, depth, { onProgress }));
-    if (format === "arrow") await file.write(stepTableArrow(t));
-    else {
-      await file.write(t.odd);
-      await file.write(new Uint8Array(stepImageOffset(depth) - t.odd.length));
-      await file.write(new Uint8Array(t.image.buffer, t.image.byteOffset, t.image.byteLength));
-    }
-    const sha256 = await file.commit();
-    const manifest = stepManifest(map, depth, format, { file: basename(file.path), bytes: file.bytes, sha256 }, { version: toolVersion(), kernelBuild: await kernelBuildId() });
-    await writeFileAtomic(`${file.path}.json`, toExactJson(manifest, 2) + "\n");
-    process.stdout.write(`step table of ${map.name} for k = ${depth}: ${2 ** depth} residues -> ${file.path} (${format}, manifest ${file.path}.json)\n`);
-  } catch (e) {
-    await file.abort();
-    throw e;
-  }
+  const out = outputOption<"raw" | "arrow">(o, ["raw", "arrow"], "raw");
+  if (!out) throw new UsageError("--out FILE is required");
+  const stamp = await toolStamp();
+  await withPool(workers, `steps ${map.name} 2^${depth}`, (pool, onProgress) =>
+    withManifestOutput(
+      out.path,
+      async (file) => {
+        const t = await stepTable(pool, map, depth, { onProgress });
+        if (out.format === "arrow") await file!.write(stepTableArrow(t));
+        else {
+          await file!.write(t.odd);
+          await file!.write(new Uint8Array(stepImageOffset(depth) - t.odd.length));
+          await file!.write(new Uint8Array(t.image.buffer, t.image.byteOffset, t.image.byteLength));
+        }
+      },
+      (_r, data) => stepManifest(map, depth, out.format, data, stamp),
+    ),
+  );
+  confirmOutput(false, `step table of ${map.name} for k = ${depth}: ${group(2 ** depth)} residues (${out.format})`, out.path);
 }

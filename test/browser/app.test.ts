@@ -2,18 +2,22 @@
 import { readFileSync } from "node:fs";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import type { BrowserContext, Page } from "playwright-core";
-import { parseExactJson } from "../../src/json.js";
-import { parseCsv } from "../../src/tables.js";
-import { parseMap } from "../../src/map.js";
+import { parseExactJson } from "../../src/outputs/json.js";
+import { parseCsv } from "../../src/outputs/tables.js";
+import { parseMap } from "../../src/core/map.js";
 import { A076227 } from "../published.js";
 import { coefficientStop, T } from "../helpers.js";
-import { launch, serveDist, summaryOf } from "./harness.js";
+import { CHROMIUM, launch, serveDist, summaryOf } from "./harness.js";
+import { requireProgram } from "../system.js";
+
+const hasChromium = requireProgram("Chromium", CHROMIUM, "apt-get install -y chromium, or set CHROMIUM to its path");
 
 let server: Awaited<ReturnType<typeof serveDist>>;
 let browser: BrowserContext;
 let done: () => Promise<void>;
 
 beforeAll(async () => {
+  if (!hasChromium) return;
   server = await serveDist();
   ({ browser, done } = await launch());
 }, 60_000);
@@ -39,7 +43,7 @@ const summary = async (page: Page) => parseExactJson(await summaryOf(page)) as S
 /** The summary without its timings (they differ from run to run). */
 const stable = (s: Summary): unknown => JSON.parse(JSON.stringify(s, (k, v: unknown) => (k === "seconds" ? 0 : typeof v === "bigint" ? v.toString() : v)));
 
-describe("web app", () => {
+describe.skipIf(!hasChromium)("web app", () => {
   it("runs a depth-20 sieve whose table agrees with A076227 (OEIS, from memory)", async () => {
     const page = await open();
     await page.fill("#run-depth", "20");

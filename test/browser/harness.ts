@@ -38,11 +38,14 @@ export async function serveDist(): Promise<{ url: string; close: () => Promise<v
   return { url: `http://127.0.0.1:${port}/`, close: () => new Promise((r) => server.close(() => r())) };
 }
 
+/** Debian's Chromium (or the binary CHROMIUM names). */
+export const CHROMIUM = process.env.CHROMIUM ?? "/usr/bin/chromium";
+
 /** Debian's Chromium with a fresh profile (playwright-core passes it as --user-data-dir). */
 export async function launch(): Promise<{ browser: BrowserContext; done: () => Promise<void> }> {
   const profile = mkdtempSync(join(tmpdir(), "glidepath-chromium-"));
   const browser = await chromium.launchPersistentContext(profile, {
-    executablePath: process.env.CHROMIUM ?? "/usr/bin/chromium",
+    executablePath: CHROMIUM,
     headless: true,
     acceptDownloads: true,
     viewport: { width: 1366, height: 900 },

@@ -4,7 +4,7 @@ import * as echarts from "echarts/core";
 import { BarChart, HeatmapChart, LineChart, ScatterChart } from "echarts/charts";
 import { GridComponent, LegendComponent, TooltipComponent, VisualMapComponent } from "echarts/components";
 import { CanvasRenderer } from "echarts/renderers";
-import type { Level } from "../../src/exact.js";
+import type { Level } from "../../src/core/exact.js";
 
 echarts.use([BarChart, HeatmapChart, LineChart, ScatterChart, GridComponent, LegendComponent, TooltipComponent, VisualMapComponent, CanvasRenderer]);
 

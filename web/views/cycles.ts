@@ -1,7 +1,7 @@
 // The cycle search view: map and maximum period to the table of every integer cycle.
-import { parseMap } from "../../src/map.js";
-import { searchCycles, MAX_CYCLE_PERIOD, cycleWidth } from "../../src/cycles.js";
-import { CancelledError } from "../../src/pool.js";
+import { parseMap } from "../../src/core/map.js";
+import { searchCycles, MAX_CYCLE_PERIOD, cycleWidth } from "../../src/jobs/cycles.js";
+import { CancelledError } from "../../src/engine/pool.js";
 import { getPool } from "../engine.js";
 import { $, fieldError } from "../dom.js";
 

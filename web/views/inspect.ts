@@ -1,8 +1,8 @@
 // The inspector: a parity word, a number or a residue to a class card, and a number's trajectory.
-import { parseMap } from "../../src/map.js";
-import { inspect, parseInspectInput } from "../../src/inspect.js";
-import { iterate } from "../../src/padic.js";
-import { cardText } from "../../src/card.js";
+import { parseMap } from "../../src/core/map.js";
+import { inspect, parseInspectInput } from "../../src/jobs/inspect.js";
+import { iterate } from "../../src/core/padic.js";
+import { cardText } from "../../src/outputs/card.js";
 import { drawTrajectory } from "./charts.js";
 import { $, fieldError } from "../dom.js";
 

@@ -1,10 +1,11 @@
 // The class table: every survivor in a virtualised list (tens of millions of rows: the scroll
 // range is scaled so that it stays within what browsers can lay out), search by residue, jump to a
 // row, and exports made off the page's thread.
-import type { CollatzMap } from "../../src/map.js";
-import { classFromResidue } from "../../src/padic.js";
-import { CSV_ROW_GUARD, tableManifest } from "../../src/tables.js";
-import { toExactJson } from "../../src/json.js";
+import type { CollatzMap } from "../../src/core/map.js";
+import { classFromResidue } from "../../src/core/padic.js";
+import { CSV_ROW_GUARD } from "../../src/outputs/tables.js";
+import { tableManifest } from "../../src/outputs/manifest.js";
+import { toExactJson } from "../../src/outputs/json.js";
 import { kernelBuildId, withExportWorker } from "../engine.js";
 import pkg from "../../package.json";
 import { $, fieldError } from "../dom.js";

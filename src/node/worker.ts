@@ -2,7 +2,7 @@
 import { parentPort } from "node:worker_threads";
 import { expose } from "comlink";
 import nodeEndpoint from "comlink/dist/esm/node-adapter.mjs";
-import { createWorkerApi } from "../worker.js";
+import { createWorkerApi } from "../engine/worker.js";
 
-if (!parentPort) throw new Error("node-worker.js must run inside a worker thread");
+if (!parentPort) throw new Error("src/node/worker.ts must run inside a worker thread");
 expose(createWorkerApi(), nodeEndpoint(parentPort));

@@ -2,26 +2,26 @@
 // Column names and types are documented in README ("Arrow exports").
 import { Field, Int32, List, Table, Uint64, Utf8, tableFromArrays, tableToIPC, vectorFromArray } from "apache-arrow";
 import type { CsvRow } from "./tables.js";
-import type { StepTable } from "./steps.js";
-import type { CensusResult } from "./census.js";
-import type { CycleSearchResult } from "./cycles.js";
+import type { StepTable } from "../jobs/steps.js";
+import type { CensusResult } from "../jobs/census.js";
+import type { CycleSearchResult } from "../jobs/cycles.js";
 
-/** Class table: residue (uint32 for depth <= 32, else uint64), odd_steps (uint8), image (int64). */
-export function classTableArrow(rows: readonly CsvRow[], depth: number): Uint8Array {
+/**
+ * Class table: residue (uint32 for depth <= 32, else uint64), odd_steps (uint8), image (int64 when
+ * r < 0, uint64 when r > 0: the kernels' own widths, so every image the sieve can make fits).
+ */
+export function classTableArrow(rows: readonly CsvRow[], depth: number, signed: boolean): Uint8Array {
   const sorted = [...rows].sort((u, v) => (u.residue < v.residue ? -1 : u.residue > v.residue ? 1 : 0));
   const residue = depth <= 32 ? Uint32Array.from(sorted, (r) => Number(r.residue)) : BigUint64Array.from(sorted, (r) => r.residue);
-  return tableToIPC(
-    tableFromArrays({
-      residue,
-      odd_steps: Uint8Array.from(sorted, (r) => r.odd),
-      image: BigInt64Array.from(sorted, (r) => BigInt.asIntN(64, r.image) === r.image ? r.image : overflow(r.image)),
-    }),
-    "file",
-  );
+  const image = signed
+    ? BigInt64Array.from(sorted, (r) => fits(r.image, BigInt.asIntN(64, r.image), "int64"))
+    : BigUint64Array.from(sorted, (r) => fits(r.image, BigInt.asUintN(64, r.image), "uint64"));
+  return tableToIPC(tableFromArrays({ residue, odd_steps: Uint8Array.from(sorted, (r) => r.odd), image }), "file");
 }
 
-function overflow(x: bigint): never {
-  throw new RangeError(`image ${x} does not fit int64`);
+function fits(x: bigint, wrapped: bigint, type: string): bigint {
+  if (wrapped !== x) throw new RangeError(`image ${x} does not fit ${type}`);
+  return x;
 }
 
 /** Step table: residue (uint32, 0..2^k-1 in order), odd_steps (uint8), image (int64, or uint64 when r > 0). */

@@ -1,7 +1,7 @@
 // The sieve's exact exception list: positive members of a dropping class that do not descend.
 // For class a mod 2^j with T^j(a + 2^j x) = q^m x + b and q^m < 2^j, the member n = a + 2^j x
 // descends at step j (T^j(n) < n) exactly when (2^j - q^m) x > b - a; the rest are exceptions.
-import type { CollatzMap } from "./map.js";
+import type { CollatzMap } from "../core/map.js";
 
 export interface ExceptionClass {
   readonly residue: bigint;
@@ -30,13 +30,27 @@ export function decodeExceptionClasses(raw: BigUint64Array, signed: boolean): Ex
   return out;
 }
 
+/** Most exceptions a result lists by default (the count is always exact). */
+export const EXCEPTION_LIMIT = 100_000;
+
 /**
- * Every positive non-descending member, ascending by n; `count` is exact, `list` holds at most `limit`.
+ * Every positive non-descending member: `count` exact, `list` the smallest `limit` of them, ascending
+ * (deterministic: it does not depend on the order the classes arrive in).
  * @example expandExceptions(makeMap(3, 1), [{ residue: 1n, image: 1n, classDepth: 2, odd: 1 }]).list // [{ n: 1n, ... }]
  */
-export function expandExceptions(map: CollatzMap, classes: readonly ExceptionClass[], limit = 100_000): { list: SieveException[]; count: bigint } {
+export function expandExceptions(map: CollatzMap, classes: readonly ExceptionClass[], limit = EXCEPTION_LIMIT): { list: SieveException[]; count: bigint } {
   let count = 0n;
-  const list: SieveException[] = [];
+  let list: SieveException[] = [];
+  // members above `cutoff` cannot be among the smallest `limit` once `limit` are known below it
+  let cutoff: bigint | null = null;
+  const byN = (u: SieveException, v: SieveException) => (u.n < v.n ? -1 : u.n > v.n ? 1 : 0);
+  const trim = () => {
+    list.sort(byN);
+    if (list.length >= limit) {
+      list = list.slice(0, limit);
+      cutoff = list[limit - 1]?.n ?? null;
+    }
+  };
   for (const c of classes) {
     const size = 1n << BigInt(c.classDepth);
     const gap = size - BigInt(map.q) ** BigInt(c.odd); // > 0 at the drop depth
@@ -46,10 +60,13 @@ export function expandExceptions(map: CollatzMap, classes: readonly ExceptionCla
     const xMin = c.residue === 0n ? 1n : 0n; // n = 0 is not positive
     if (xMax < xMin) continue;
     count += xMax - xMin + 1n;
-    for (let x = xMin; x <= xMax && list.length < limit; x++) {
-      list.push({ n: c.residue + size * x, residue: c.residue, classDepth: c.classDepth });
+    for (let x = xMin, taken = 0; x <= xMax && taken < limit; x++, taken++) {
+      const n = c.residue + size * x;
+      if (cutoff !== null && n >= cutoff) break;
+      list.push({ n, residue: c.residue, classDepth: c.classDepth });
+      if (list.length >= 2 * limit) trim();
     }
   }
-  list.sort((u, v) => (u.n < v.n ? -1 : u.n > v.n ? 1 : 0));
-  return { list, count };
+  trim();
+  return { list: limit === 0 ? [] : list, count };
 }

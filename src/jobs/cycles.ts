@@ -3,14 +3,14 @@
 // periodic parity vectors, so each element's class at depth p is a node where 2^p - q^m divides
 // b - a (assembly/cycles.ts tests every node). The host solves for the periodic point, walks the
 // cycle in BigInt, and keeps each cycle once, with its minimal period.
-import type { CollatzMap } from "./map.js";
-import { kernelDepthLimit } from "./map.js";
-import { threadKernel } from "./kernel.js";
-import type { CycleShard } from "./kernel.js";
-import type { KernelPool, RunOptions } from "./pool.js";
+import type { CollatzMap } from "../core/map.js";
+import { kernelDepthLimit } from "../core/map.js";
+import { threadKernel } from "../engine/kernel.js";
+import type { CycleShard } from "../engine/kernel.js";
+import type { KernelPool, RunOptions } from "../engine/pool.js";
 import { choosePrefixBits } from "./sieve.js";
-import { cycleRepresentative, iterate } from "./padic.js";
-import { LimitError, UsageError } from "./errors.js";
+import { cycleRepresentative, iterate } from "../core/padic.js";
+import { LimitError, UsageError } from "../core/errors.js";
 
 export const MAX_CYCLE_PERIOD = 63;
 

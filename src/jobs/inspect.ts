@@ -1,8 +1,8 @@
 // The class inspector: one input (parity word, number, or residue a mod 2^k) to a class card.
-import type { CollatzMap } from "./map.js";
-import { UsageError } from "./errors.js";
-import { classFromResidue, classFromWord, firstDescent, iterate, MAX_INSPECT_STEPS, parityWord, trajectory } from "./padic.js";
-import type { ClassForm, Trajectory } from "./padic.js";
+import type { CollatzMap } from "../core/map.js";
+import { UsageError } from "../core/errors.js";
+import { classFromResidue, classFromWord, coefficientStoppingTime, firstDescent, iterate, MAX_INSPECT_STEPS, parityWord, trajectory } from "../core/padic.js";
+import type { ClassForm, Trajectory } from "../core/padic.js";
 
 export type InspectInput =
   | { readonly kind: "word"; readonly word: string }
@@ -24,6 +24,7 @@ export function parseInspectInput(text: string): InspectInput {
     if (m[2] !== undefined) k = Number(m[2]);
     else {
       const mod = BigInt(m[3]!);
+      if (mod === 1n) throw new UsageError("modulus 1 = 2^0 holds every number: give a modulus 2^k with k >= 1");
       if (mod < 2n || (mod & (mod - 1n)) !== 0n) throw new UsageError(`modulus ${m[3]} is not a power of two (write a mod 2^k)`);
       k = mod.toString(2).length - 1;
     }
@@ -35,8 +36,8 @@ export function parseInspectInput(text: string): InspectInput {
 
 export interface ClassCard {
   readonly form: ClassForm;
-  /** The least member's own trajectory facts within the word's length. */
-  readonly leastMember: { readonly n: bigint; readonly descent: number | null; readonly imageAtStop: bigint | null };
+  /** The least member's own trajectory: its first descent (within `steps`), its value at the stopping time. */
+  readonly leastMember: { readonly n: bigint; readonly descent: number | null; readonly searched: number; readonly imageAtStop: bigint | null };
 }
 
 export interface NumberCard {
@@ -48,11 +49,11 @@ export interface NumberCard {
 
 export type Card = { readonly kind: "class"; readonly card: ClassCard } | { readonly kind: "number"; readonly card: NumberCard };
 
-function classCard(form: ClassForm): ClassCard {
+function classCard(form: ClassForm, steps: number): ClassCard {
   const n = form.residue;
-  const descent = n > 0n ? firstDescent(form.map, n, form.k) : null;
+  const descent = n > 0n ? firstDescent(form.map, n, steps) : null;
   const imageAtStop = form.stoppingTime === null ? null : iterate(form.map, n, form.stoppingTime);
-  return { form, leastMember: { n, descent, imageAtStop } };
+  return { form, leastMember: { n, descent, searched: steps, imageAtStop } };
 }
 
 /**
@@ -63,12 +64,16 @@ export function inspect(map: CollatzMap, input: InspectInput, steps = MAX_INSPEC
   if (!Number.isInteger(steps) || steps < 1 || steps > MAX_INSPECT_STEPS) throw new UsageError(`steps must be between 1 and ${MAX_INSPECT_STEPS}`);
   switch (input.kind) {
     case "word":
-      return { kind: "class", card: classCard(classFromWord(map, input.word)) };
+      return { kind: "class", card: classCard(classFromWord(map, input.word), steps) };
     case "residue":
-      return { kind: "class", card: classCard(classFromResidue(map, input.a, input.k)) };
+      return { kind: "class", card: classCard(classFromResidue(map, input.a, input.k), steps) };
     case "number": {
       const t = trajectory(map, input.n, steps);
-      const form = t.steps > 0 ? classFromWord(map, parityWord(map, input.n, t.steps)) : null;
+      // the class of n's first parities, followed past the cycle if need be, up to its coefficient
+      // stopping time (the depth where the sieve cuts n's class) or `steps`
+      const stop = coefficientStoppingTime(map, input.n, steps);
+      const length = Math.max(t.steps, stop ?? 0);
+      const form = length > 0 ? classFromWord(map, parityWord(map, input.n, length)) : null;
       return { kind: "number", card: { n: input.n, trajectory: t, form } };
     }
   }

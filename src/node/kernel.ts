@@ -4,10 +4,12 @@ import { readFile } from "node:fs/promises";
 import { availableParallelism } from "node:os";
 import { Worker } from "node:worker_threads";
 import nodeEndpoint from "comlink/dist/esm/node-adapter.mjs";
-import { compileKernel } from "../kernel.js";
-import { KernelPool } from "../pool.js";
-import type { SpawnWorker } from "../pool.js";
-import { progressBar } from "./progress.js";
+import { compileKernel } from "../engine/kernel.js";
+import { KernelPool } from "../engine/pool.js";
+import type { SpawnWorker } from "../engine/pool.js";
+import type { ToolStamp } from "../outputs/manifest.js";
+import { progressBar } from "../cli/progress.js";
+import { toolVersion } from "./version.js";
 
 export type Flavour = "release" | "debug";
 
@@ -30,8 +32,13 @@ export async function kernelBuildId(flavour: Flavour = "release"): Promise<strin
   return createHash("sha256").update(await kernelBytes(flavour)).digest("hex").slice(0, 16);
 }
 
+/** The tool version and kernel build that manifests carry. */
+export async function toolStamp(): Promise<ToolStamp> {
+  return { version: toolVersion(), kernelBuild: await kernelBuildId() };
+}
+
 /** Worker entry compiled to lib/ (tsc), so it runs under plain node from src/ and lib/ alike. */
-const workerUrl = new URL("../../lib/cli/node-worker.js", import.meta.url);
+const workerUrl = new URL("../../lib/node/worker.js", import.meta.url);
 
 export const spawnNodeWorker: SpawnWorker = () => {
   const w = new Worker(workerUrl, { execArgv: [] }); // plain JS: no loaders or -e flags of the parent

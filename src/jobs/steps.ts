@@ -1,10 +1,10 @@
 // Step tables: for every a mod 2^k the pair (m, b) with T^k(a + 2^k x) = q^m x + b, the
 // acceleration table that verification codes use to take k steps at once (Lagarias 1985; common practice).
-import type { CollatzMap } from "./map.js";
-import { checkKernelDepth } from "./map.js";
-import type { KernelPool, RunOptions } from "./pool.js";
+import type { CollatzMap } from "../core/map.js";
+import { checkKernelDepth } from "../core/map.js";
+import type { KernelPool, RunOptions } from "../engine/pool.js";
 import { runSieve } from "./sieve.js";
-import { UsageError } from "./errors.js";
+import { UsageError } from "../core/errors.js";
 
 export const MAX_STEP_DEPTH = 24;
 

@@ -1,19 +1,21 @@
 // Census of all 2^K parity vectors: the kernel's full-tree tallies (assembly/census.ts) merged and
 // finished exactly here: ambiguous log2 bins and the largest ratio are decided in BigInt.
-import type { CollatzMap } from "./map.js";
-import { kernelDepthLimit } from "./map.js";
-import { BIN_COUNT, BIN_OFFSET, coefficientBins, TALLY_STRIDE } from "./kernel.js";
-import type { CensusShard, CensusShardResult } from "./kernel.js";
-import type { KernelPool, RunOptions } from "./pool.js";
-import { exactCounts } from "./exact.js";
-import type { Level } from "./exact.js";
+import type { CollatzMap } from "../core/map.js";
+import { kernelDepthLimit } from "../core/map.js";
+import { BIN_COUNT, BIN_OFFSET, coefficientBins, TALLY_STRIDE } from "../engine/kernel.js";
+import type { CensusShard, CensusShardResult } from "../engine/kernel.js";
+import type { KernelPool, RunOptions } from "../engine/pool.js";
+import { exactCounts } from "../core/exact.js";
+import type { Level } from "../core/exact.js";
 import { choosePrefixBits } from "./sieve.js";
-import { classFromResidue, firstDescent } from "./padic.js";
-import { LimitError, UsageError } from "./errors.js";
-import { bitLength } from "./arith.js";
+import { classFromResidue, firstDescent } from "../core/padic.js";
+import { LimitError, UsageError } from "../core/errors.js";
+import { bitLength } from "../core/arith.js";
+import { Smallest } from "../core/smallest.js";
 
 export const MAX_CENSUS_DEPTH = 32;
-const DIFFER_LISTED = 1000;
+/** Least members listed among those whose descent differs (the smallest; the count is exact). */
+export const DIFFER_LISTED = 1000;
 
 export interface CensusResult {
   readonly map: CollatzMap;
@@ -32,7 +34,9 @@ export interface CensusResult {
   readonly differ: {
     readonly count: bigint;
     readonly early: bigint;
+    /** The smallest of them, ascending, at most `limit`. */
     readonly listed: { readonly n: bigint; readonly descent: number | null; readonly stoppingTime: number | null }[];
+    readonly limit: number;
   };
   /** The largest T^j(a)/a over a in [1, 2^K), j <= K, with its class a mod 2^K. */
   readonly maxRatio: { readonly n: bigint; readonly step: number; readonly value: bigint };
@@ -87,8 +91,9 @@ export async function runCensus(pool: KernelPool, map: CollatzMap, depth: number
   let nonpositive = 0n, differCount = 0n, early = 0n, nodes = 0n;
   const ambiguous: [bigint, bigint][] = [];
   const slow = new BigUint64Array(depth + 1);
-  const differ: { n: bigint; kind: number }[] = [];
-  const top: { best: { n: bigint; value: bigint; step: number } | null } = { best: null };
+  const differ = new Smallest<bigint>(DIFFER_LISTED, (n) => n);
+  // T^0(1)/1 = 1 is always a candidate (the kernel reports members from step 1 and a > 0 classes)
+  const top = { best: { n: 1n, value: 1n, step: 0 } };
   const signed = map.r < 0;
   const merge = (out: CensusShardResult) => {
     addInto(acc.live, out.live);
@@ -102,12 +107,14 @@ export async function runCensus(pool: KernelPool, map: CollatzMap, depth: number
     for (let m = 0; m <= depth; m++) slow[m] = slow[m]! + out.counts[4 + m]!;
     nodes += out.nodes;
     for (let i = 0; i < out.ambiguous.length; i += 4) ambiguous.push([out.ambiguous[i]!, signed ? BigInt.asIntN(64, out.ambiguous[i + 1]!) : out.ambiguous[i + 1]!]);
-    for (let i = 0; i < out.differ.length && differ.length < DIFFER_LISTED; i += 4) differ.push({ n: out.differ[i]!, kind: Number(out.differ[i + 1]!) });
+    for (let i = 0; i < out.differ.length; i += 4) differ.add(out.differ[i]!);
     for (let i = 0; i < out.ratio.length; i += 4) {
       const u = out.ratio[i]!, v = out.ratio[i + 1]!, step = Number(out.ratio[i + 2]!);
-      // exact comparison v / u > best.value / best.n by cross multiplication (positive values)
+      // exact comparison v / u > best.value / best.n by cross multiplication (positive values);
+      // ties go to the smaller member, then the earlier step
       const best = top.best;
-      if (!best || v * best.n > best.value * u || (v * best.n === best.value * u && u < best.n)) top.best = { n: u, value: v, step };
+      const lhs = v * best.n, rhs = best.value * u;
+      if (lhs > rhs || (lhs === rhs && (u < best.n || (u === best.n && step < best.step)))) top.best = { n: u, value: v, step };
     }
   };
   await pool.run(censusShards(map, depth, pool.size, false), (api, s) => api.runCensus(s), (_s, out) => merge(out), options);
@@ -127,12 +134,11 @@ export async function runCensus(pool: KernelPool, map: CollatzMap, depth: number
   const exact = exactCounts(map, depth, { byOdd: true }).byOdd!;
   const agrees = live.every((row, j) => row.every((c, m) => c === at(exact[j]!, "live", m))) && stopped.every((row, j) => row.every((c, m) => c === at(exact[j]!, "stopped", m)));
   const levels = live.map((row, j) => ({ depth: j, survivors: row.reduce((s, x) => s + x, 0n), stopped: stopped[j]!.reduce((s, x) => s + x, 0n) }));
-  differ.sort((x, y) => (x.n < y.n ? -1 : 1));
-  const listed = differ.map((d) => ({ n: d.n, descent: firstDescent(map, d.n, depth), stoppingTime: classFromResidue(map, d.n, depth).stoppingTime }));
+  const listed = differ.sorted().map((n) => ({ n, descent: firstDescent(map, n, depth), stoppingTime: classFromResidue(map, n, depth).stoppingTime }));
   return {
     map, depth, levels, live, stopped, vectors, peak: rows(acc.peak, depth),
-    ratioBins, nonpositive, differ: { count: differCount, early, listed },
-    maxRatio: top.best ?? { n: 1n, step: 0, value: 1n },
+    ratioBins, nonpositive, differ: { count: differCount, early, listed, limit: DIFFER_LISTED },
+    maxRatio: top.best,
     agreesWithExactCounter: agrees, nodes, seconds: (performance.now() - started) / 1000,
   };
 }

@@ -1,7 +1,13 @@
 // The machine-readable summaries of a run, shared by the CLI (--json) and the web app
 // (data-run-summary): every count an exact integer (BigInt, written as digits by toExactJson).
-import type { SieveResult } from "./sieve.js";
-import type { CensusResult } from "./census.js";
+import type { SieveResult } from "../jobs/sieve.js";
+import type { CensusResult } from "../jobs/census.js";
+import type { CycleSearchResult } from "../jobs/cycles.js";
+import type { ConjugacyResult } from "../jobs/conjugacy.js";
+import type { Card } from "../jobs/inspect.js";
+import type { Level } from "../core/exact.js";
+import type { CollatzMap } from "../core/map.js";
+import type { PeriodicPoint } from "../core/padic.js";
 
 /** The fields of `glidepath sieve --json`. */
 export function sieveJson(r: SieveResult) {
@@ -51,4 +57,47 @@ export function censusJson(c: CensusResult) {
     nodes: c.nodes,
     seconds: Number(c.seconds.toFixed(3)),
   };
+}
+
+/** The head of `glidepath counts --json` (levels and byOdd follow, streamed). */
+export function countsHeadJson(map: CollatzMap, depth: number) {
+  return { map: map.name, depth };
+}
+
+/** One entry of `levels`. */
+export function levelJson(l: Level) {
+  return { depth: l.depth, survivors: l.survivors, stopped: l.stopped };
+}
+
+/** One entry of `byOdd`: classes alive and stopping at (depth, odd). */
+export function countsOddJson(depth: number, odd: number, live: bigint, stopped: bigint) {
+  return { depth, odd, live, stopped };
+}
+
+/** The fields of `glidepath cycles --json`. */
+export function cyclesJson(r: CycleSearchResult) {
+  return {
+    map: r.map.name,
+    maxPeriod: r.maxPeriod,
+    width: r.width,
+    cycles: r.cycles.map((c) => ({ representative: c.representative, min: c.min, max: c.max, period: c.period, odd: c.odd, elements: c.elements })),
+    candidates: r.candidates,
+    nodes: r.nodes,
+    seconds: Number(r.seconds.toFixed(3)),
+  };
+}
+
+/** The fields of `glidepath conjugacy --json`. */
+export function conjugacyJson(r: ConjugacyResult) {
+  return { map: r.map.name, depth: r.depth, cycles: r.cycles, fixedPoints: r.fixedPoints, lengths: r.lengths, seconds: Number(r.seconds.toFixed(3)) };
+}
+
+/** The fields of `glidepath class --json`. */
+export function classJson(map: CollatzMap, card: Card) {
+  return { map: map.name, ...card };
+}
+
+/** The fields of `glidepath periodic --json`. */
+export function periodicJson(map: CollatzMap, p: PeriodicPoint, digits: string) {
+  return { map: map.name, pre: p.pre, word: p.word, numerator: p.num, denominator: p.den, digits, integer: p.integer, cycle: p.cycle };
 }

@@ -1,9 +1,9 @@
 // The conjugacy permutation: reading the first k parities of n as the k-bit number
 // Q_k(n) = sum p_i 2^i permutes the residues mod 2^k (Terras). Its cycle structure.
-import type { CollatzMap } from "./map.js";
-import type { KernelPool, RunOptions } from "./pool.js";
+import type { CollatzMap } from "../core/map.js";
+import type { KernelPool, RunOptions } from "../engine/pool.js";
 import { censusShards } from "./census.js";
-import { UsageError } from "./errors.js";
+import { UsageError } from "../core/errors.js";
 
 export const MAX_CONJUGACY_DEPTH = 26;
 

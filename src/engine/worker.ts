@@ -1,14 +1,14 @@
-// The worker side of the pool, isomorphic: Node's entry (src/cli/node-worker.ts) and the browser's
+// The worker side of the pool, isomorphic: Node's entry (src/node/worker.ts) and the browser's
 // expose this same object through comlink on their own endpoints.
 import { transfer } from "comlink";
 import { instantiateKernel } from "./kernel.js";
 import type { KernelInstance, LeafChunk } from "./kernel.js";
 import type { KernelWorkerApi, ShardOutput } from "./messages.js";
-import { makeMap } from "./map.js";
-import { classFromResidue } from "./padic.js";
-import { csvLines } from "./tables.js";
-import type { CsvRow } from "./tables.js";
-import { classTableArrow } from "./arrow.js";
+import { makeMap } from "../core/map.js";
+import { classFromResidue } from "../core/padic.js";
+import { csvLines } from "../outputs/tables.js";
+import type { CsvRow } from "../outputs/tables.js";
+import { classTableArrow } from "../outputs/arrow.js";
 
 /** @example expose(createWorkerApi(), endpoint) */
 export function createWorkerApi(): KernelWorkerApi {
@@ -39,7 +39,7 @@ export function createWorkerApi(): KernelWorkerApi {
         const c = classFromResidue(map, BigInt(a), req.depth);
         return { residue: c.residue, odd: c.odd, image: c.image };
       });
-      const bytes = req.format === "arrow" ? classTableArrow(rows, req.depth) : new TextEncoder().encode([...csvLines(rows)].join(""));
+      const bytes = req.format === "arrow" ? classTableArrow(rows, req.depth, req.r < 0) : new TextEncoder().encode([...csvLines(rows)].join(""));
       return transfer(bytes, [asArrayBuffer(bytes.buffer)]);
     },
     async runCycles(req) {

@@ -1,8 +1,8 @@
 // Loads the AssemblyScript kernels once and wraps their numeric exports in typed calls.
 // Isomorphic: the caller supplies the compiled module (Node reads the file, the browser fetches it).
-import type { CollatzMap } from "./map.js";
-import { dropDepth } from "./map.js";
-import { bitLength, inverseMod2k } from "./arith.js";
+import type { CollatzMap } from "../core/map.js";
+import { dropDepth } from "../core/map.js";
+import { bitLength, inverseMod2k } from "../core/arith.js";
 
 /** The raw exports of build/{debug,release}.wasm (assembly/index.ts). */
 interface KernelExports {

@@ -3,10 +3,9 @@
 // the low bits as u32), and each bucket is radix-sorted when emitted, so buckets come out in order.
 // When the whole table would not fit the memory budget, the caller runs the enumeration once per
 // pass and each pass keeps one range of buckets (`passPlan`).
-import type { LeafChunk } from "./kernel.js";
-import type { CollatzMap } from "./map.js";
+import type { LeafChunk } from "../engine/kernel.js";
 import { radixSortU32 } from "./sort.js";
-import { LimitError } from "./errors.js";
+import { LimitError } from "../core/errors.js";
 
 export type TableFormat = "raw" | "csv" | "arrow";
 
@@ -136,82 +135,3 @@ export function parseCsv(text: string): CsvRow[] {
   });
 }
 
-/** The fields every manifest carries: the map, the data file and its hash, the tool that wrote it. */
-export interface ManifestCommon {
-  readonly map: string;
-  readonly q: number;
-  readonly r: number;
-  readonly depth: number;
-  readonly data: string;
-  readonly bytes: bigint;
-  readonly sha256: string;
-  readonly tool: { readonly name: "glidepath"; readonly version: string; readonly kernelBuild: string };
-  readonly created: string;
-}
-
-export interface DataFile {
-  readonly file: string;
-  readonly bytes: bigint;
-  readonly sha256: string;
-}
-
-export interface ToolStamp {
-  readonly version: string;
-  readonly kernelBuild: string;
-}
-
-function manifestCommon(map: CollatzMap, depth: number, data: DataFile, tool: ToolStamp): ManifestCommon {
-  return {
-    map: map.name, q: map.q, r: map.r, depth,
-    data: data.file, bytes: data.bytes, sha256: data.sha256,
-    tool: { name: "glidepath", ...tool },
-    created: new Date().toISOString(),
-  };
-}
-
-export interface TableManifest extends ManifestCommon {
-  readonly kind: "glidepath class table";
-  readonly rows: bigint;
-  readonly format: TableFormat;
-  readonly element: "u32" | "u64" | "csv" | "arrow";
-  readonly byteOrder: "little-endian" | null;
-}
-
-/** The manifest written beside a table. */
-export function tableManifest(map: CollatzMap, depth: number, rows: bigint, format: TableFormat, data: DataFile, tool: ToolStamp): TableManifest {
-  return {
-    kind: "glidepath class table",
-    ...manifestCommon(map, depth, data, tool),
-    rows, format,
-    element: format === "raw" ? (depth <= 32 ? "u32" : "u64") : format,
-    byteOrder: format === "raw" ? "little-endian" : null,
-  };
-}
-
-export interface StepManifest extends ManifestCommon {
-  readonly kind: "glidepath step table";
-  readonly rows: number;
-  readonly format: "raw" | "arrow";
-  /** Raw layout: odd_steps (u8 per residue), then image (i64 or u64 per residue) at an 8-aligned offset. */
-  readonly arrays: { readonly name: string; readonly type: string; readonly offset: number; readonly length: number }[] | null;
-  readonly byteOrder: "little-endian" | null;
-}
-
-/** Offset of the image array in a raw step table: after 2^k bytes of odd steps, 8-aligned. */
-export function stepImageOffset(depth: number): number {
-  return Math.ceil(2 ** depth / 8) * 8;
-}
-
-export function stepManifest(map: CollatzMap, depth: number, format: "raw" | "arrow", data: DataFile, tool: ToolStamp): StepManifest {
-  const rows = 2 ** depth;
-  return {
-    kind: "glidepath step table",
-    ...manifestCommon(map, depth, data, tool),
-    rows, format,
-    arrays: format === "raw" ? [
-      { name: "odd_steps", type: "u8", offset: 0, length: rows },
-      { name: "image", type: map.r < 0 ? "i64" : "u64", offset: stepImageOffset(depth), length: rows },
-    ] : null,
-    byteOrder: format === "raw" ? "little-endian" : null,
-  };
-}

@@ -101,6 +101,23 @@ export function firstDescent(map: CollatzMap, n: bigint, steps: number): number 
   return null;
 }
 
+/**
+ * The coefficient stopping time of n (any integer): the least j <= steps with q^m < 2^j, m the odd
+ * steps among n's first j, or null. Exact: q^m < 2^j iff bitlen(q^m) <= j.
+ * @example coefficientStoppingTime(parseMap("3x+5"), 7n, 100) // 24
+ */
+export function coefficientStoppingTime(map: CollatzMap, n: bigint, steps: number): number | null {
+  const q = BigInt(map.q), r = BigInt(map.r);
+  let qm = 1n, v = n;
+  for (let j = 1; j <= steps; j++) {
+    const odd = (v & 1n) === 1n;
+    if (odd) qm *= q;
+    v = odd ? (q * v + r) >> 1n : v >> 1n;
+    if (qm >> BigInt(j) === 0n) return j;
+  }
+  return null;
+}
+
 /** Binary digits of a mod 2^k, least significant first (the 2-adic expansion). */
 export function digitsOf(a: bigint, k: number): string {
   let s = "";

@@ -1,9 +1,10 @@
 // The text of a class card (CLI `glidepath class` and the web inspector show the same lines).
-import type { CollatzMap } from "./map.js";
-import type { Card, ClassCard, NumberCard } from "./inspect.js";
-import { digitsOf } from "./padic.js";
-import type { ClassForm } from "./padic.js";
-import { bitLength } from "./arith.js";
+import type { CollatzMap } from "../core/map.js";
+import type { Card, ClassCard, NumberCard } from "../jobs/inspect.js";
+import { digitsOf } from "../core/padic.js";
+import type { ClassForm } from "../core/padic.js";
+import { bitLength } from "../core/arith.js";
+import { plural } from "./format.js";
 
 function affine(f: ClassForm): string {
   const q = BigInt(f.map.q) ** BigInt(f.odd);
@@ -29,10 +30,10 @@ function classText(c: ClassCard): string {
     `class ${abbreviate(String(f.residue), 80)} mod 2^${f.k} of ${f.map.name}`,
     `  parity word (first step first): ${abbreviate(f.word)}`,
     `  affine form: ${abbreviate(affine(f), 400)}`,
-    `  odd steps m = ${f.odd}, ${f.k - f.odd} halvings; ${f.k + f.odd} standard steps`,
+    `  odd steps m = ${f.odd}, ${plural(f.k - f.odd, "halving")}; ${plural(f.k + f.odd, "standard step")}`,
     `  ${stopLine(f)}`,
     `  least member ${abbreviate(String(lm.n), 80)}: ` +
-      (lm.n === 0n ? "0 is not positive" : lm.descent === null ? `does not descend within ${f.k} steps` : `first descends at step ${lm.descent}`) +
+      (lm.n === 0n ? "0 is not positive" : lm.descent === null ? `does not descend within ${lm.searched} steps` : `first descends at step ${lm.descent}`) +
       (lm.imageAtStop !== null && lm.n > 0n ? `; at the stopping time T^${f.stoppingTime}(${abbreviate(String(lm.n), 40)}) = ${abbreviate(String(lm.imageAtStop), 40)} (${lm.imageAtStop < lm.n ? "descends" : "does not descend: an exception of the sieve"})` : ""),
     `  2-adic digits of the residue (least significant first): ${abbreviate(digitsOf(f.residue, f.k))}`,
   ].join("\n");

@@ -1,6 +1,6 @@
 import { readFileSync } from "node:fs";
 
-/** The package version (package.json sits two levels above both src/cli and lib/cli). */
+/** The package version (package.json sits two levels above both src/node and lib/node). */
 export function toolVersion(): string {
   const pkg = JSON.parse(readFileSync(new URL("../../package.json", import.meta.url), "utf8")) as { version: string };
   return pkg.version;

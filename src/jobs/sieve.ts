@@ -1,16 +1,16 @@
 // The sieve mod 2^K: plan shards by residue prefix, run them on the pool, merge the tallies,
 // expand the exceptions. One-shot (`runSieve`) and per-shard results agree by construction:
 // the top levels 0..d are counted once by a top run, each live prefix at depth d is one shard.
-import type { CollatzMap } from "./map.js";
-import { checkKernelDepth } from "./map.js";
-import { exactCounts } from "./exact.js";
-import type { Level } from "./exact.js";
-import { threadKernel, TALLY_STRIDE } from "./kernel.js";
-import type { LeafChunk, Mode, ShardRequest, ShardResult } from "./kernel.js";
-import type { KernelPool, RunOptions } from "./pool.js";
-import { decodeExceptionClasses, expandExceptions } from "./exceptions.js";
+import type { CollatzMap } from "../core/map.js";
+import { checkKernelDepth } from "../core/map.js";
+import { exactCounts } from "../core/exact.js";
+import type { Level } from "../core/exact.js";
+import { threadKernel, TALLY_STRIDE } from "../engine/kernel.js";
+import type { LeafChunk, Mode, ShardRequest, ShardResult } from "../engine/kernel.js";
+import type { KernelPool, RunOptions } from "../engine/pool.js";
+import { decodeExceptionClasses, EXCEPTION_LIMIT, expandExceptions } from "./exceptions.js";
 import type { ExceptionClass, SieveException } from "./exceptions.js";
-import { UsageError } from "./errors.js";
+import { UsageError } from "../core/errors.js";
 
 export interface SieveRequest {
   readonly map: CollatzMap;
@@ -33,8 +33,10 @@ export interface SieveResult {
   readonly live: bigint[][];
   readonly stopped: bigint[][];
   readonly exceptionClasses: ExceptionClass[];
+  /** The smallest exceptions, ascending, at most exceptionLimit of them; the count is exact. */
   readonly exceptions: SieveException[];
   readonly exceptionCount: bigint;
+  readonly exceptionLimit: number;
   readonly nodes: bigint;
   readonly shards: number;
   readonly seconds: number;
@@ -97,13 +99,15 @@ export async function runSieve(pool: KernelPool, req: SieveRequest, options: Run
       options,
     );
   }
-  const { list, count } = expandExceptions(map, merged.exceptionClasses, req.exceptionLimit);
+  const exceptionLimit = req.exceptionLimit ?? EXCEPTION_LIMIT;
+  const { list, count } = expandExceptions(map, merged.exceptionClasses, exceptionLimit);
   return {
     map, depth, mode,
     ...merged.tables(),
     exceptionClasses: merged.exceptionClasses,
     exceptions: list,
     exceptionCount: count,
+    exceptionLimit,
     nodes: merged.nodes,
     shards: d < depth ? prefixes.length : 0,
     seconds: (performance.now() - started) / 1000,

@@ -52,6 +52,38 @@ export function dropDepth(q: number, m: number): number {
 }
 
 /**
+ * bitlen(q^m) for m = 0..upTo, kept incrementally (one multiplication per m): multiplying by q adds
+ * bitlen(q) - 1 or bitlen(q) bits. Strictly increasing, so at most one m drops at each depth.
+ * @example dropDepths(3, 4) // [1, 2, 4, 5, 7]
+ */
+export function dropDepths(q: number, upTo: number): number[] {
+  const drop: number[] = [1];
+  const qq = BigInt(q);
+  const qBits = bitLength(qq);
+  let p = 1n;
+  let bits = 1;
+  for (let m = 1; m <= upTo; m++) {
+    p *= qq;
+    bits += qBits - 1;
+    if (p >> BigInt(bits) !== 0n) bits++;
+    drop.push(bits);
+  }
+  return drop;
+}
+
+/**
+ * For each depth j = 0..depth, the odd steps m of the classes whose coefficient first drops at j
+ * (the unique m with bitlen(q^m) = j), or null when no class can stop there.
+ */
+export function stoppingOdds(q: number, depth: number): (number | null)[] {
+  const out = new Array<number | null>(depth + 1).fill(null);
+  dropDepths(q, depth).forEach((j, m) => {
+    if (j <= depth) out[j] = m;
+  });
+  return out;
+}
+
+/**
  * Bound on |b| over all classes a mod 2^j (0 <= a < 2^j) with m odd steps:
  * b = (q^m a + r S) / 2^j with 0 <= S / 2^j <= E(m) = (q^m - 2^m) / ((q - 2) 2^m).
  * Returns [lower, upper] with lower <= b and b < upper for classes of size 2^j, any j.

@@ -1,0 +1,95 @@
+// glidepath census: every 2^K parity vector at once, its tallies as text, JSON or an Arrow file.
+import type { Command } from "commander";
+import { MAX_CENSUS_DEPTH, runCensus } from "../jobs/census.js";
+import type { CensusResult } from "../jobs/census.js";
+import { censusArrow } from "../outputs/arrow.js";
+import { group, plural } from "../outputs/format.js";
+import { toExactJson } from "../outputs/json.js";
+import { manifest } from "../outputs/manifest.js";
+import { censusJson, log2Coefficient, vectorsAreBinomial } from "../outputs/summary.js";
+import { withManifestOutput } from "../node/files.js";
+import { toolStamp, withPool } from "../node/kernel.js";
+import { intOption, mapOption, outputOption, workersOption } from "./options.js";
+import type { RawOptions } from "./options.js";
+import { confirmOutput, print } from "./print.js";
+import { levelTable } from "./report.js";
+
+const TEXT_DIFFER = 20;
+
+export function censusCommand(program: Command): Command {
+  return program
+    .command("census")
+    .description("all 2^K parity vectors: alive and dropping classes by (j, m), peak coefficients, log2(T^K(a)/a), descents that differ")
+    .option("--map <qx+r>", "the map", "3x+1")
+    .option("--depth <K>", `depth: 1 to ${MAX_CENSUS_DEPTH}, within the signed 64-bit range`)
+    .option("--out <FILE>", "write the tallies as an Arrow file, with FILE.json beside it")
+    .option("--format <arrow>", "output format (arrow)")
+    .option("--workers <N>", "worker threads (default: the available cores)")
+    .option("--json", "print JSON (exact integers)")
+    .action((o: RawOptions) => census(o));
+}
+
+async function census(o: RawOptions): Promise<void> {
+  const map = mapOption(o.map);
+  const depth = intOption("depth", o.depth, 1, MAX_CENSUS_DEPTH);
+  const workers = workersOption(o.workers);
+  const out = outputOption(o, ["arrow"], "arrow");
+  const stamp = await toolStamp();
+  const c = await withPool(workers, `census ${map.name} 2^${depth}`, (pool, onProgress) =>
+    withManifestOutput(
+      out?.path,
+      async (file) => {
+        const result = await runCensus(pool, map, depth, { onProgress });
+        await file?.write(censusArrow(result));
+        return result;
+      },
+      (_r, data) => manifest("glidepath census", map, "arrow", data, stamp, { depth }),
+    ),
+  );
+  print(o.json ? `${toExactJson(censusJson(c))}\n` : censusText(c, workers));
+  if (out) confirmOutput(o.json, "census tallies (arrow)", out.path);
+}
+
+function censusText(c: CensusResult, workers: number): string {
+  const peaks = c.peak
+    .flatMap((row, j) => row.flatMap((n, m) => (n > 0n ? [{ j, m, n }] : [])))
+    .sort((x, y) => (x.n > y.n ? -1 : x.n < y.n ? 1 : x.j - y.j || x.m - y.m));
+  const maxBin = c.ratioBins.reduce((s, b) => (b.count > s ? b.count : s), 0n);
+  const bar = (n: bigint) => "#".repeat(Number((n * 40n + maxBin - 1n) / (maxBin || 1n)));
+  const shown = c.differ.listed.slice(0, TEXT_DIFFER);
+  const more = c.differ.count - BigInt(shown.length);
+  const lines = [
+    `census of all 2^${c.depth} parity vectors of ${c.map.name} (full tree: ${group(c.nodes)} nodes, ${c.seconds.toFixed(2)} s, ${plural(workers, "worker")})`,
+    "",
+    "classes whose coefficient q^m/2^j has not dropped below 1, and first drops by depth:",
+    levelTable(c.map, c.levels),
+    `agrees with the exact counter at every (j, m): ${c.agreesWithExactCounter ? "yes" : "NO"}`,
+    `vectors with m odd steps among the first j are C(j, m) at every (j, m): ${vectorsAreBinomial(c) ? "yes" : "NO"}`,
+    "",
+    `peak coefficient max_j q^(m_j)/2^j, by the (j, m) where it is reached (${peaks.length} distinct; the 12 most common):`,
+    ...peaks
+      .slice(0, 12)
+      .map((p) => `  j=${String(p.j).padStart(2)} m=${String(p.m).padStart(2)}  log2 = ${log2Coefficient(c.map.q, p.m, p.j).toFixed(3).padStart(8)}  ${group(p.n).padStart(14)} vectors`),
+    "",
+    `log2(T^${c.depth}(a)/a) of each class's least member a in [1, 2^${c.depth}), in quarter units:`,
+    ...c.ratioBins.map((b) => `  [${(b.bin / 4).toFixed(2).padStart(7)}, ${((b.bin + 1) / 4).toFixed(2).padStart(7)})  ${group(b.count).padStart(13)}  ${bar(b.count)}`),
+    ...(c.nonpositive > 0n ? [`  T^${c.depth}(a) <= 0: ${group(c.nonpositive)}`] : []),
+    "",
+    `least members whose first descent differs from the coefficient stopping time: ${group(c.differ.count)} (early descents ${group(c.differ.early)})`,
+    ...shown.map(
+      (d) =>
+        `  a = ${d.n}: ${d.descent === null ? `does not descend within ${c.depth} steps` : `descends at step ${d.descent}`}, coefficient stopping time ${d.stoppingTime ?? `> ${c.depth}`}`,
+    ),
+    ...(more > 0n ? [`  ... and ${group(more)} more (the smallest are listed; --json lists up to ${group(c.differ.limit)})`] : []),
+    `largest T^j(a)/a: T^${c.maxRatio.step}(${c.maxRatio.n}) = ${c.maxRatio.value}, a ratio of ${ratioText(c.maxRatio.value, c.maxRatio.n)} (class ${c.maxRatio.n} mod 2^${c.depth})`,
+    "",
+  ];
+  return lines.join("\n");
+}
+
+/** v / n to three decimals (display only: the maximum itself was decided by exact cross-multiplication). */
+function ratioText(v: bigint, n: bigint): string {
+  const scaled = (v * 2000n + n) / (2n * n);
+  const s = scaled.toString().padStart(4, "0");
+  return `${group(BigInt(s.slice(0, -3)))}.${s.slice(-3)}`;
+}

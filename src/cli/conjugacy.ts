@@ -1,0 +1,37 @@
+// glidepath conjugacy: the cycle structure of a -> Q_K(a), the first K parities read as a number.
+import type { Command } from "commander";
+import { conjugacy, MAX_CONJUGACY_DEPTH } from "../jobs/conjugacy.js";
+import { toExactJson } from "../outputs/json.js";
+import { conjugacyJson } from "../outputs/summary.js";
+import { withPool } from "../node/kernel.js";
+import { intOption, mapOption, workersOption } from "./options.js";
+import type { RawOptions } from "./options.js";
+import { print } from "./print.js";
+
+export function conjugacyCommand(program: Command): Command {
+  return program
+    .command("conjugacy")
+    .description("cycle structure of the permutation a -> Q_K(a) (the first K parities as a number)")
+    .option("--map <qx+r>", "the map", "3x+1")
+    .option("--depth <K>", `depth: 1 to ${MAX_CONJUGACY_DEPTH}`)
+    .option("--workers <N>", "worker threads (default: the available cores)")
+    .option("--json", "print JSON (exact integers)")
+    .action((o: RawOptions) => run(o));
+}
+
+async function run(o: RawOptions): Promise<void> {
+  const map = mapOption(o.map);
+  const depth = intOption("depth", o.depth, 1, MAX_CONJUGACY_DEPTH);
+  const workers = workersOption(o.workers);
+  const r = await withPool(workers, `conjugacy ${map.name} 2^${depth}`, (pool, onProgress) => conjugacy(pool, map, depth, { onProgress }));
+  if (o.json) return print(`${toExactJson(conjugacyJson(r))}\n`);
+  print(
+    [
+      `conjugacy permutation a -> Q_${depth}(a) (first ${depth} parities read as a ${depth}-bit number, first step lowest) of ${map.name} on the residues mod 2^${depth}`,
+      `cycles: ${r.cycles}, fixed points: ${r.fixedPoints}, ${r.seconds.toFixed(2)} s`,
+      "cycle lengths (length: how many cycles):",
+      ...r.lengths.map((l) => `  ${String(l.length).padStart(9)}: ${l.count}`),
+      "",
+    ].join("\n"),
+  );
+}

@@ -1,0 +1,126 @@
+// Output files that are complete or absent: data goes to a hidden temporary name beside the
+// target and is renamed over it only when complete; signals remove what is still temporary.
+// A data file and its manifest are placed together: if the second rename fails, the first is undone.
+import { createHash } from "node:crypto";
+import type { Hash } from "node:crypto";
+import { unlinkSync } from "node:fs";
+import { open, rename, unlink } from "node:fs/promises";
+import type { FileHandle } from "node:fs/promises";
+import { basename, dirname, join } from "node:path";
+import { UsageError } from "../core/errors.js";
+import { toExactJson } from "../outputs/json.js";
+import type { DataFile } from "../outputs/manifest.js";
+
+const pending = new Set<string>();
+
+/** Removes every temporary file still open (for signal handlers; synchronous). */
+export function removePendingFiles(): void {
+  for (const p of pending) {
+    try {
+      unlinkSync(p);
+    } catch {
+      // already gone
+    }
+  }
+  pending.clear();
+}
+
+export class AtomicFile {
+  private readonly hash: Hash = createHash("sha256");
+  bytes = 0n;
+  private closed = false;
+
+  private constructor(
+    readonly path: string,
+    readonly tempPath: string,
+    private readonly fh: FileHandle,
+  ) {}
+
+  /** Creates the temporary file now, so an unwritable path fails before any long work. */
+  static async create(path: string): Promise<AtomicFile> {
+    const tempPath = join(dirname(path), `.${basename(path)}.partial-${process.pid}`);
+    let fh: FileHandle;
+    try {
+      fh = await open(tempPath, "wx");
+    } catch (e) {
+      throw new UsageError(`cannot write ${path}: ${(e as NodeJS.ErrnoException).code ?? String(e)}`);
+    }
+    pending.add(tempPath);
+    return new AtomicFile(path, tempPath, fh);
+  }
+
+  async write(data: Uint8Array | string): Promise<void> {
+    const bytes = typeof data === "string" ? Buffer.from(data, "utf8") : data;
+    this.hash.update(bytes);
+    this.bytes += BigInt(bytes.byteLength);
+    let off = 0;
+    while (off < bytes.byteLength) {
+      const { bytesWritten } = await this.fh.write(bytes, off, bytes.byteLength - off);
+      off += bytesWritten;
+    }
+  }
+
+  /** Flushes and closes the temporary file; returns what a manifest says of it. */
+  async finish(): Promise<DataFile> {
+    await this.fh.sync();
+    await this.fh.close();
+    this.closed = true;
+    return { file: basename(this.path), bytes: this.bytes, sha256: this.hash.digest("hex") };
+  }
+
+  /** Renames the finished file into place. */
+  async place(): Promise<void> {
+    await rename(this.tempPath, this.path);
+    pending.delete(this.tempPath);
+  }
+
+  async abort(): Promise<void> {
+    if (!this.closed) await this.fh.close().catch(() => {});
+    await unlink(this.tempPath).catch(() => {});
+    pending.delete(this.tempPath);
+  }
+}
+
+/** Places finished files in order; if one rename fails, the ones already placed are removed. */
+async function placeAll(files: readonly AtomicFile[]): Promise<void> {
+  const placed: AtomicFile[] = [];
+  try {
+    for (const f of files) {
+      await f.place();
+      placed.push(f);
+    }
+  } catch (e) {
+    for (const f of placed) await unlink(f.path).catch(() => {});
+    for (const f of files) await f.abort();
+    throw new Error(`cannot place ${files.map((f) => f.path).join(" and ")}: ${(e as NodeJS.ErrnoException).code ?? String(e)}; nothing was written`);
+  }
+}
+
+/**
+ * Runs `work` with the data file (and its manifest FILE.json) opened first, so that a bad path
+ * fails before the run; then writes the manifest that `manifest` makes and places both together.
+ * Without a path, `work` gets null and nothing is written. On any failure neither file is left.
+ * @example await withManifestOutput("t.u32", async (f) => { await f!.write(bytes); return 1; }, (r, data) => ({ data }));
+ */
+export async function withManifestOutput<T>(
+  path: string | undefined,
+  work: (file: AtomicFile | null) => Promise<T>,
+  manifest: (result: T, data: DataFile) => unknown,
+): Promise<T> {
+  if (path === undefined) return work(null);
+  const data = await AtomicFile.create(path);
+  let meta: AtomicFile | null = null;
+  try {
+    meta = await AtomicFile.create(`${path}.json`);
+    const result = await work(data);
+    const info = await data.finish();
+    await meta.write(`${toExactJson(manifest(result, info), 2)}\n`);
+    await meta.finish();
+    await placeAll([data, meta]);
+    return result;
+  } catch (e) {
+    await data.abort();
+    await meta?.abort();
+    throw e;
+  }
+}
