@@ -1,6 +1,6 @@
 // Caller-provided buffers and the streaming protocol shared by every kernel.
 // The host reserves regions with `reserve`, hands their addresses to a kernel, and is called back
-// through `env.flush` whenever a fixed-size chunk is full (channel 0: leaves, 1: exception classes).
+// through `env.flush(channel, count)` whenever a fixed-size chunk is full (channels: layout.ts).
 
 @external("env", "flush")
 export declare function flush(channel: i32, count: i32): void;

@@ -4,47 +4,47 @@
 //                          host turns them into nodes per (j, m) (binomial: a sanity check);
 //   peak [j][m]            per vector, the (j, m) where q^m / 2^j is largest (exact comparison:
 //                          q^d > 2^e iff e < bitlen(q^d), from the host's table);
-//   bins [k]               per least member a in [1, 2^K): floor(4 log2(T^K(a) / a)), offset 512;
-//                          decided in integers unless within 2^-26 (relative) of a bin edge; those
-//                          go to the host (channel 3) for an exact BigInt decision;
+//   bins [k]               per least member a in [1, 2^K): floor(4 log2(T^K(a) / a)), at k + 512;
+//                          decided in integers unless close to a bin edge; those go to the host
+//                          (CHANNEL_AMBIGUOUS) for an exact BigInt decision;
 //   differ                 least members whose first descent differs from the coefficient stopping
-//                          time: early descent (before the drop) or no descent at the drop (channel 4);
-//   ratio candidates       (member, T^j(member), j) that may be the largest T^j(a)/a (channel 5):
+//                          time: early descent (before the drop) or no descent at the drop (CHANNEL_DIFFER);
+//   ratio candidates       (member, T^j(member), j) that may be the largest T^j(a)/a (CHANNEL_RATIO):
 //                          by monotonicity in x, the extremes of each class within [1, 2^K) suffice;
 //                          a conservative f64 filter keeps the channel short, the host decides exactly.
 // Width: every value is i64; the host proves T^j(a) and the class images fit below 2^63 in magnitude.
 
 import { flush } from "./buffers";
-import { evenBit, evenImage, evenResidue, oddImage } from "./tree";
+import {
+  CENSUS_BATCH, CENSUS_BATCH_AT, CENSUS_BIN_OFFSET, CENSUS_BINS_AT, CENSUS_COUNTS_AT, CENSUS_RATIO_AT, CENSUS_REGION_BYTES,
+  CENSUS_TALLY_BYTES, CHANNEL_AMBIGUOUS, CHANNEL_CHUNK, CHANNEL_DIFFER, CHANNEL_RATIO, CHANNEL_VECTORS, TABLE_BINMIN, TALLY_TABLE_BYTES,
+} from "./layout";
+import { dropDepth, evenBit, evenImage, evenResidue, oddImage, qpow, stepImage, stepValue, tally, useTables } from "./tree";
 
 let K: i32 = 0;
 let Q: u64 = 0;
 let H: i64 = 0;
-let qpowPtr: usize = 0;
-let thrPtr: usize = 0;
 let livePtr: usize = 0;
 let stoppedPtr: usize = 0;
 let vectorsPtr: usize = 0;
 let peakPtr: usize = 0;
 let binsPtr: usize = 0;
 let countsPtr: usize = 0; // u64: [0] nonpositive images, [1] differ, [2] early descents, [4 + m] slow-path leaves
-let chanPtr: usize = 0; // channels 3, 4, 5 and 0: base address each, cap entries of 32 bytes
-let chanCap: i32 = 0;
-let n0: i32 = 0;
+let chanPtr: usize = 0; // channel c's region at chanPtr + (c - 3) * CENSUS_REGION_BYTES
+// entries waiting in the regions of channels 3, 4, 5 and 6
 let n3: i32 = 0;
 let n4: i32 = 0;
 let n5: i32 = 0;
+let n6: i32 = 0;
 let emitVectors: bool = false;
 let V: u64 = 0; // the parity vector of the current path, bit j = parity of step j + 1
 let best: f64 = 0;
 let nodes: u64 = 0;
-
-const BIN_OFFSET: i32 = 512;
-
-@inline function tally(base: usize, j: i32, m: i32): void {
-  const p = base + ((<usize>((j << 6) + m)) << 3);
-  store<u64>(p, load<u64>(p) + 1);
-}
+let binMin: usize = 0; // per m: u64, least members above it are in the coefficient's bin (host-proven)
+let ratioMinM: i32 = 0; // the least m whose bound is still >= best
+let ratioBoundPtr: usize = 0; // f64[m]: an upper bound on T^j(u)/u over members u >= 1, any j >= m
+let batchPtr: usize = 0; // CENSUS_BATCH pairs (a, b) of positive least members and images
+let batchN: i32 = 0;
 
 @inline function bump(index: i32): void {
   const p = countsPtr + (<usize>index << 3);
@@ -52,40 +52,38 @@ const BIN_OFFSET: i32 = 512;
 }
 
 function push(ch: i32, x0: u64, x1: u64, x2: u64, x3: u64): void {
-  const slot = ch == 0 ? 3 : ch - 3; // channel 0 uses the fourth region
-  const n = ch == 0 ? n0 : ch == 3 ? n3 : ch == 4 ? n4 : n5;
-  const p = chanPtr + (<usize>slot * <usize>chanCap << 5) + (<usize>n << 5);
+  const slot = ch - CHANNEL_AMBIGUOUS;
+  const n = ch == CHANNEL_AMBIGUOUS ? n3 : ch == CHANNEL_DIFFER ? n4 : ch == CHANNEL_RATIO ? n5 : n6;
+  const p = chanPtr + <usize>slot * <usize>CENSUS_REGION_BYTES + (<usize>n << 5);
   store<u64>(p, x0);
   store<u64>(p, x1, 8);
   store<u64>(p, x2, 16);
   store<u64>(p, x3, 24);
-  const next = n + 1;
-  if (next == chanCap) {
+  let next = n + 1;
+  if (next == CHANNEL_CHUNK) {
     flush(ch, next);
-    setCount(ch, 0);
-  } else setCount(ch, next);
+    next = 0;
+  }
+  if (ch == CHANNEL_AMBIGUOUS) n3 = next;
+  else if (ch == CHANNEL_DIFFER) n4 = next;
+  else if (ch == CHANNEL_RATIO) n5 = next;
+  else n6 = next;
 }
 
-@inline function setCount(ch: i32, v: i32): void {
-  if (ch == 0) n0 = v;
-  else if (ch == 3) n3 = v;
-  else if (ch == 4) n4 = v;
-  else n5 = v;
-}
-
-@inline function qpow(m: i32): u64 {
-  return load<u64>(qpowPtr + (<usize>m << 3));
-}
-
-@inline function dropDepth(m: i32): i32 {
-  return load<i32>(thrPtr + (<usize>m << 2));
+/** Hands every region's waiting entries to the host. */
+function flushAll(): void {
+  if (n3 > 0) flush(CHANNEL_AMBIGUOUS, n3);
+  if (n4 > 0) flush(CHANNEL_DIFFER, n4);
+  if (n5 > 0) flush(CHANNEL_RATIO, n5);
+  if (n6 > 0) flush(CHANNEL_VECTORS, n6);
+  n3 = n4 = n5 = n6 = 0;
 }
 
 /** A member u in [1, 2^K) with T^j(u) = v: report it if it may beat the largest ratio so far. */
 @inline function ratioCandidate(u: u64, v: i64, j: i32): void {
   // values < 2^63 (host-proven), so the signed conversions are exact up to rounding
   if (v > 0 && <f64>v >= best * <f64><i64>u) {
-    push(5, u, <u64>v, <u64>j, 0);
+    push(CHANNEL_RATIO, u, <u64>v, <u64>j, 0);
     const r = (<f64>v / <f64><i64>u) * (1.0 - 1e-12);
     if (r > best) {
       best = r;
@@ -124,14 +122,6 @@ function exceptionBound(a: u64, b: i64, m: i32, j: i32): i64 {
 }
 
 
-const BATCH: i32 = 1024;
-let binMin: usize = 0; // per m: u64, least members above it are in bin k_m (host-proven)
-let binBase: usize = 0; // per m: i32 k_m = floor(4 log2(q^m / 2^K))
-let ratioMinM: i32 = 0; // the least m whose bound is still >= best
-let ratioBoundPtr: usize = 0; // f64[m]: an upper bound on T^j(u)/u over members u >= 1, any j >= m
-let batchPtr: usize = 0; // BATCH pairs (a, b) of positive least members and images
-let batchN: i32 = 0;
-
 // The quarter edges 2^(i/4), i = -3..3, as round(2^(i/4) 2^31).
 const C1: i64 = 1276901417; // 2^-0.75
 const C2: i64 = 1518500250; // 2^-0.5
@@ -151,7 +141,7 @@ const MARGIN: i64 = 1 << 35;
  * Bins floor(4 log2(b / a)) for a batch, in integers: with la, lb the bit lengths minus one,
  * b / a = 2^(lb - la) B / A where A, B are a, b with the top bit at 63 and B / A in (1/2, 2).
  * X = (B >> 33) 2^31 is compared with Y_i = (A >> 33) C_i; both err by less than 2^33, so a
- * comparison farther apart than 2^35 is exact; closer ones go to the host (channel 3), in BigInt.
+ * comparison farther apart than 2^35 is exact; closer ones go to the host (CHANNEL_AMBIGUOUS), in BigInt.
  */
 function binBatch(): void {
   for (let i = 0; i < batchN; i++) {
@@ -163,11 +153,11 @@ function binBatch(): void {
     const y = <i64>((a << za) >> 33);
     const y1 = y * C1, y2 = y * C2, y3 = y * C3, y4 = y * C4, y5 = y * C5, y6 = y * C6, y7 = y * C7;
     if (closeTo(x, y1) || closeTo(x, y2) || closeTo(x, y3) || closeTo(x, y4) || closeTo(x, y5) || closeTo(x, y6) || closeTo(x, y7)) {
-      push(3, a, b, 0, 0);
+      push(CHANNEL_AMBIGUOUS, a, b, 0, 0);
     } else {
       const t = <i32>(x >= y1) + <i32>(x >= y2) + <i32>(x >= y3) + <i32>(x >= y4) + <i32>(x >= y5) + <i32>(x >= y6) + <i32>(x >= y7) - 4;
       const e = <i32>za - <i32>zb; // (63 - zb) - (63 - za)
-      const q = binsPtr + (<usize>(4 * e + t + BIN_OFFSET) << 3);
+      const q = binsPtr + (<usize>(4 * e + t + CENSUS_BIN_OFFSET) << 3);
       store<u64>(q, load<u64>(q) + 1);
     }
   }
@@ -175,7 +165,7 @@ function binBatch(): void {
 }
 
 @inline function leaf(a: u64, b: i64, m: i32, early: u64, excMax: i64): void {
-  if (emitVectors) push(0, a, V, 0, 0);
+  if (emitVectors) push(CHANNEL_VECTORS, a, V, 0, 0);
   if (a == 0) return; // the least member 0 is not positive
   // bins of log2(T^K(a) / a). b/a = q^m/2^K + c/(2^K a) with |c| bounded per m, and q^m/2^K lies
   // in bin k_m; the host proved (in BigInt) that every a above binMin[m] stays in bin k_m. Those
@@ -187,7 +177,7 @@ function binBatch(): void {
   if (isEarly || <i64>a <= excMax) {
     bump(1);
     if (isEarly) bump(2);
-    push(4, a, isEarly ? 1 : 2, 0, 0);
+    push(CHANNEL_DIFFER, a, isEarly ? 1 : 2, 0, 0);
   }
 }
 
@@ -198,7 +188,7 @@ function leafSlow(a: u64, b: i64, m: i32): void {
     const p = batchPtr + (<usize>batchN << 4);
     store<u64>(p, a);
     store<i64>(p, b, 8);
-    if (++batchN == BATCH) binBatch();
+    if (++batchN == CENSUS_BATCH) binBatch();
   }
 }
 
@@ -289,38 +279,32 @@ function dfsDropped(a: u64, b: i64, m: i32, j: i32, pk: i32, early: u64, excMax:
 
 /**
  * The census of every vector extending `prefix` mod 2^prefixBits, to `depth` (full tree).
- * tables: u64 q^m at [0, 512), i32 bitlen(q^m) at [512, 768), u64 binMin at [768, 1280),
- * i32 k_m at [1280, 1536).
- * tallies: u64 live, stopped, vectors, peak [64][64] each, then u64 bins[1024], then u64 counts[68];
- * zeroed here. channels: 4 regions of cap entries (32 bytes), then a scratch batch of 1024 x 16 bytes,
- * then the host's f64[64] ratio bounds; the regions: 3 (ambiguous bins), 4 (differ),
- * 5 (ratio candidates), 0 (a, parity vector, when emitVectors).
+ * tables: the per-m tables (layout.ts: TABLE_*, with TABLE_BINMIN). tallies: CENSUS_TALLY_BYTES,
+ * zeroed here. scratch: CENSUS_SCRATCH_BYTES, the channel regions, a batch and the host's ratio
+ * bounds (CENSUS_RATIO_AT). With `vectors`, every leaf's (a, parity vector) goes to CHANNEL_VECTORS.
  */
 export function census(
   q: u32, r: i32, depth: i32, prefixBits: i32, prefix: u64,
-  tables: usize, tallies: usize, channels: usize, channelCap: i32, vectors: i32,
+  tables: usize, tallies: usize, scratch: usize, vectors: i32,
 ): u64 {
-  assert(depth >= 1 && depth <= 63 && prefixBits >= 0 && prefixBits <= depth && channelCap > 0);
+  assert(depth >= 1 && depth <= 63 && prefixBits >= 0 && prefixBits <= depth);
   assert((prefix >> <u64>prefixBits) == 0);
   K = depth;
   Q = <u64>q;
   H = (<i64>q + <i64>r) >> 1;
-  qpowPtr = tables;
-  thrPtr = tables + 512;
-  binMin = tables + 768;
-  binBase = tables + 768 + 512;
+  useTables(tables);
+  binMin = tables + TABLE_BINMIN;
   livePtr = tallies;
-  stoppedPtr = tallies + 32768;
-  vectorsPtr = tallies + 2 * 32768;
-  peakPtr = tallies + 3 * 32768;
-  binsPtr = tallies + 4 * 32768;
-  countsPtr = binsPtr + 1024 * 8;
-  memory.fill(tallies, 0, 4 * 32768 + 1024 * 8 + 68 * 8);
-  chanPtr = channels;
-  batchPtr = channels + 4 * <usize>channelCap * 32;
-  ratioBoundPtr = batchPtr + 1024 * 16;
-  chanCap = channelCap;
-  n0 = n3 = n4 = n5 = 0;
+  stoppedPtr = tallies + TALLY_TABLE_BYTES;
+  vectorsPtr = tallies + 2 * TALLY_TABLE_BYTES;
+  peakPtr = tallies + 3 * TALLY_TABLE_BYTES;
+  binsPtr = tallies + CENSUS_BINS_AT;
+  countsPtr = tallies + CENSUS_COUNTS_AT;
+  memory.fill(tallies, 0, CENSUS_TALLY_BYTES);
+  chanPtr = scratch;
+  batchPtr = scratch + CENSUS_BATCH_AT;
+  ratioBoundPtr = scratch + CENSUS_RATIO_AT;
+  n3 = n4 = n5 = n6 = 0;
   emitVectors = vectors != 0;
   best = 0;
   ratioMinM = 0;
@@ -328,10 +312,7 @@ export function census(
   batchN = 0;
   walk(prefixBits, prefix);
   binBatch();
-  if (n0 > 0) flush(0, n0);
-  if (n3 > 0) flush(3, n3);
-  if (n4 > 0) flush(4, n4);
-  if (n5 > 0) flush(5, n5);
+  flushAll();
   return nodes;
 }
 
@@ -354,9 +335,9 @@ function walk(prefixBits: i32, prefix: u64): void {
     }
     if (alive) early = earlyBound(a, b, m, j, early);
     const e = (prefix >> <u64>j) & 1;
-    const x = b + select<i64>(<i64>qpow(m), 0, e != 0);
+    const x = stepValue<i64>(b, <i64>qpow(m), e);
     const odd = (x & 1) != 0;
-    b = odd ? <i64>Q * (x >> 1) + H : x >> 1;
+    b = stepImage<i64>(x, <i64>Q, H);
     if (odd) {
       m++;
       V |= (<u64>1) << j;

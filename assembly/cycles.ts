@@ -2,11 +2,12 @@
 // tree is a candidate for period j. Its periodic point n = a + 2^j x solves q^m x + b = a + 2^j x,
 // so n is an integer exactly when D = 2^j - q^m (odd) divides b - a. Divisibility is tested exactly
 // by the inverse method: for odd d and 0 <= N < 2^w, d | N iff N * d^-1 mod 2^w <= (2^w - 1) / d.
-// Candidates (a, b, j, m) stream out on channel 2; the host solves for n and finds the cycle.
+// Candidates (a, b, j, m) stream out on CHANNEL_CYCLES; the host solves for n and finds the cycle.
 // Two widths: u64/i64 (host-proven as for enumerate) and signed 128-bit (u128.ts).
 
 import { flush } from "./buffers";
-import { evenBit, evenImage, evenResidue, oddImage } from "./tree";
+import { CHANNEL_CHUNK, CHANNEL_CYCLES } from "./layout";
+import { evenBit, evenImage, evenResidue, oddImage, stepImage, stepValue } from "./tree";
 import { rlo, rhi, add, shr1, mul, leU } from "./u128";
 
 let K: i32 = 0;
@@ -16,7 +17,6 @@ let qlo: usize = 0; // u64[m]: q^m low words
 let qhi: usize = 0; // u64[m]: q^m high words (wide path)
 let dtab: usize = 0; // per (j, m): inv lo, inv hi, lim lo, lim hi (u64 each, 32 bytes)
 let candPtr: usize = 0;
-let candCap: i32 = 0;
 let candN: i32 = 0;
 let nodes: u64 = 0;
 
@@ -30,8 +30,8 @@ function pushCandidate(a: u64, blo: u64, bhi: u64, j: i32, m: i32): void {
   store<u64>(p, blo, 8);
   store<u64>(p, bhi, 16);
   store<u64>(p, (<u64>j << 32) | <u64>m, 24);
-  if (++candN == candCap) {
-    flush(2, candN);
+  if (++candN == CHANNEL_CHUNK) {
+    flush(CHANNEL_CYCLES, candN);
     candN = 0;
   }
 }
@@ -116,12 +116,9 @@ function walk64<T>(prefixBits: i32, prefix: u64, own: bool): void {
   let a: u64 = 0, b: T = <T>0, m: i32 = 0;
   for (let j = 0; j < prefixBits; j++) {
     const e = (prefix >> <u64>j) & 1;
-    const v = b + select<T>(<T>load<u64>(qlo + (<usize>m << 3)), <T>0, e != 0);
-    if ((v & <T>1) == <T>0) b = v >> 1;
-    else {
-      b = <T>Q * (v >> 1) + <T>H;
-      m++;
-    }
+    const v = stepValue<T>(b, <T>load<u64>(qlo + (<usize>m << 3)), e);
+    b = stepImage<T>(v, <T>Q, <T>H);
+    if ((v & <T>1) != <T>0) m++;
     a |= e << <u64>j;
     if (own && (prefix >> <u64>(j + 1)) == 0) test64<T>(a, b, j + 1, m);
   }
@@ -154,15 +151,16 @@ function walk128(prefixBits: i32, prefix: u64, own: bool): void {
 
 /**
  * Tests every node of depth 1..depth below the prefix class (and, with walkTallies, the ancestors this
- * shard owns: prefix >> j == 0). tables: u64 q^m low words at [0, 512), high words at [512, 1024);
- * dtab: 64 x 64 entries of 32 bytes (inverse and limit, low then high words; high words unused at 64 bits).
- * candidates: 4 u64 each: a, b low, b high, (j << 32 | m). Returns the nodes visited below the prefix.
+ * shard owns: prefix >> j == 0). tables: CYCLE_QPOW_BYTES, q^m low words at [0, 512), high words at
+ * [512, 1024); dTable: CYCLE_DIVISOR_BYTES, 64 x 64 entries of 32 bytes (inverse and limit, low then
+ * high words; high words unused at 64 bits); candidates: CHANNEL_CHUNK entries, 4 u64 each: a, b low,
+ * b high, (j << 32 | m). Returns the nodes visited below the prefix.
  */
 export function cycleSearch(
   q: u32, r: i32, depth: i32, wide: i32, prefixBits: i32, prefix: u64,
-  tables: usize, dTable: usize, candidates: usize, candidatesCap: i32, walkTallies: i32,
+  tables: usize, dTable: usize, candidates: usize, walkTallies: i32,
 ): u64 {
-  assert(depth >= 1 && depth <= 63 && prefixBits >= 0 && prefixBits <= depth && candidatesCap > 0);
+  assert(depth >= 1 && depth <= 63 && prefixBits >= 0 && prefixBits <= depth);
   assert((prefix >> <u64>prefixBits) == 0);
   K = depth;
   Q = <u64>q;
@@ -171,14 +169,13 @@ export function cycleSearch(
   qhi = tables + 512;
   dtab = dTable;
   candPtr = candidates;
-  candCap = candidatesCap;
   candN = 0;
   nodes = 0;
   const own = walkTallies != 0;
   if (wide) walk128(prefixBits, prefix, own);
   else if (r < 0) walk64<i64>(prefixBits, prefix, own);
   else walk64<u64>(prefixBits, prefix, own);
-  if (candN > 0) flush(2, candN);
+  if (candN > 0) flush(CHANNEL_CYCLES, candN);
   candN = 0;
   return nodes;
 }

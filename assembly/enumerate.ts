@@ -6,57 +6,38 @@
 //   v = b + e q^m is T^j(a + e 2^j); parity 0 gives (m, v/2), parity 1 gives (m+1, (q v + r)/2).
 //
 // Overflow: the host proves |b| and the intermediate v fit the chosen width before calling
-// (src/map.ts, widthLimit); for r > 0 the width is u64, for r < 0 it is i64.
+// (src/core/map.ts, kernelDepthLimit); for r > 0 the width is u64, for r < 0 it is i64.
 // The drop test q^m < 2^j is exact: the host passes bitlen(q^m) per m, and q^m < 2^j iff j >= bitlen(q^m).
 
 import { flush } from "./buffers";
-import { evenBit, evenImage, evenResidue, oddImage } from "./tree";
+import { CHANNEL_CHUNK, CHANNEL_EXCEPTIONS, CHANNEL_LEAVES, LEAF_CHUNK, TALLY_STRIDE, TALLY_TABLE_BYTES } from "./layout";
+import { dropDepth, evenBit, evenImage, evenResidue, oddImage, qpow, stepImage, stepValue, tally, useTables } from "./tree";
 
 export const MODE_SURVIVORS: i32 = 0;
 export const MODE_FULL: i32 = 1;
-
-/** Row stride of the tallies: entry (j, m) lives at index j * 64 + m. */
-const STRIDE_SHIFT: i32 = 6;
 
 let K: i32 = 0;
 let full: bool = false;
 let emit: bool = false;
 let Q: u64 = 0;
 let H: i64 = 0; // (q + r) / 2, exact since q and r are odd
-let qpowPtr: usize = 0; // u64[m] = q^m
-let thrPtr: usize = 0; // i32[m] = bitlen(q^m)
 let livePtr: usize = 0; // u64[j][m]: classes alive (not yet dropped) at depth j
 let stoppedPtr: usize = 0; // u64[j][m]: classes whose coefficient first drops at depth j
 let leafA: usize = 0;
 let leafB: usize = 0;
 let leafM: usize = 0;
-let leafCap: i32 = 0;
 let leafN: i32 = 0;
 let excPtr: usize = 0;
-let excCap: i32 = 0;
 let excN: i32 = 0;
 let nodes: u64 = 0;
-
-@inline function tally(base: usize, j: i32, m: i32): void {
-  const p = base + ((<usize>((j << STRIDE_SHIFT) + m)) << 3);
-  store<u64>(p, load<u64>(p) + 1);
-}
-
-@inline function qpow(m: i32): u64 {
-  return load<u64>(qpowPtr + (<usize>m << 3));
-}
-
-@inline function dropDepth(m: i32): i32 {
-  return load<i32>(thrPtr + (<usize>m << 2));
-}
 
 function pushLeaf(a: u64, b: u64, m: i32): void {
   const i = <usize>leafN;
   store<u64>(leafA + (i << 3), a);
   store<u64>(leafB + (i << 3), b);
   store<u8>(leafM + i, <u8>m);
-  if (++leafN == leafCap) {
-    flush(0, leafN);
+  if (++leafN == LEAF_CHUNK) {
+    flush(CHANNEL_LEAVES, leafN);
     leafN = 0;
   }
 }
@@ -68,8 +49,8 @@ function pushException(a: u64, b: u64, j: i32, m: i32): void {
   store<u64>(p, b, 8);
   store<u64>(p, <u64>j, 16);
   store<u64>(p, <u64>m, 24);
-  if (++excN == excCap) {
-    flush(1, excN);
+  if (++excN == CHANNEL_CHUNK) {
+    flush(CHANNEL_EXCEPTIONS, excN);
     excN = 0;
   }
 }
@@ -159,14 +140,10 @@ function run<T>(prefixBits: i32, prefix: u64, walkTallies: bool): void {
   }
   for (let j = 0; j < prefixBits; j++) {
     const e = (prefix >> <u64>j) & 1;
-    const v = b + select<T>(<T>qpow(m), <T>0, e != 0);
+    const v = stepValue<T>(b, <T>qpow(m), e);
     const even = (v & <T>1) == <T>0;
-    if (even) {
-      b = v >> 1;
-    } else {
-      b = <T>Q * (v >> 1) + <T>H;
-      m++;
-    }
+    b = stepImage<T>(v, <T>Q, <T>H);
+    if (!even) m++;
     a |= e << <u64>j;
     const jj = j + 1;
     const owned = walkTallies && (prefix >> <u64>jj) == 0;
@@ -194,9 +171,9 @@ function run<T>(prefixBits: i32, prefix: u64, walkTallies: bool): void {
 
 /**
  * Enumerates every class extending `prefix` mod 2^prefixBits down to `depth`.
- * tables: u64 q^m at [0, 512), i32 bitlen(q^m) at [512, 768), m = 0..63.
- * tallies: u64 live[64][64] then u64 stopped[64][64]; zeroed here for rows 0..depth.
- * leaves: u64 a[cap], u64 b[cap], u8 m[cap]; exceptions: 4 u64 (a, b, j, m) per class.
+ * tables: the per-m tables (layout.ts, TABLE_*); tallies: ENUM_TALLY_BYTES, live[64][64] then
+ * stopped[64][64], zeroed here for rows 0..depth; leaves: LEAF_BYTES, a[LEAF_CHUNK] (u64),
+ * b[LEAF_CHUNK] (u64), m[LEAF_CHUNK] (u8); exceptions: CHANNEL_CHUNK entries (a, b, j, m).
  * walkTallies = 0: tally only the levels below the prefix (a plan that counted the top itself).
  * Returns the number of tree nodes visited by this shard: the root and every live class in
  * survivors mode (cut classes are not visited), every node in full mode (2^(depth+1) - 1 in all).
@@ -211,39 +188,34 @@ export function enumerate(
   tables: usize,
   tallies: usize,
   leaves: usize,
-  leavesCap: i32,
   emitLeaves: i32,
   exceptions: usize,
-  exceptionsCap: i32,
   walkTallies: i32,
 ): u64 {
   assert(depth >= 0 && depth <= 63 && prefixBits >= 0 && prefixBits <= depth);
-  assert(leavesCap > 0 && exceptionsCap > 0 && (prefix >> <u64>prefixBits) == 0);
+  assert((prefix >> <u64>prefixBits) == 0);
   K = depth;
   full = mode == MODE_FULL;
   emit = emitLeaves != 0;
   Q = <u64>q;
   H = (<i64>q + <i64>r) >> 1;
-  qpowPtr = tables;
-  thrPtr = tables + 512;
+  useTables(tables);
   livePtr = tallies;
-  stoppedPtr = tallies + (64 * 64 * 8);
-  const rowBytes = <usize>(depth + 1) * 64 * 8;
+  stoppedPtr = tallies + TALLY_TABLE_BYTES;
+  const rowBytes = <usize>(depth + 1) * TALLY_STRIDE * 8;
   memory.fill(livePtr, 0, rowBytes);
   memory.fill(stoppedPtr, 0, rowBytes);
   leafA = leaves;
-  leafB = leaves + (<usize>leavesCap << 3);
-  leafM = leaves + (<usize>leavesCap << 4);
-  leafCap = leavesCap;
+  leafB = leaves + (<usize>LEAF_CHUNK << 3);
+  leafM = leaves + (<usize>LEAF_CHUNK << 4);
   leafN = 0;
   excPtr = exceptions;
-  excCap = exceptionsCap;
   excN = 0;
   nodes = 0;
   if (r < 0) run<i64>(prefixBits, prefix, walkTallies != 0);
   else run<u64>(prefixBits, prefix, walkTallies != 0);
-  if (leafN > 0) flush(0, leafN);
-  if (excN > 0) flush(1, excN);
+  if (leafN > 0) flush(CHANNEL_LEAVES, leafN);
+  if (excN > 0) flush(CHANNEL_EXCEPTIONS, excN);
   leafN = 0;
   excN = 0;
   return nodes;

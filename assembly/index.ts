@@ -1,4 +1,6 @@
-// The kernels' flat surface: numeric functions only, buffers by address.
+// The kernels' flat surface: numeric functions only, buffers by address, and the shared memory
+// layout as exported globals (read by the host's loader, src/engine/loader.ts).
+export * from "./layout";
 export { reserve } from "./buffers";
 export { enumerate, MODE_SURVIVORS, MODE_FULL } from "./enumerate";
 export { cycleSearch } from "./cycles";

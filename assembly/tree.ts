@@ -1,8 +1,35 @@
-// The Terras construction, one definition for every walker: the node (a mod 2^j, m, b) with
-// T^j(a + 2^j x) = q^m x + b has two children, extending a by the bit e that makes the next value
-// v = b + e q^m even (then the child is (m, v / 2)) or odd (then (m + 1, (q v + r) / 2)).
-// With v odd, (q v + r) / 2 = q (v >> 1) + (q + r) / 2, so no intermediate exceeds the child's b.
-// T is u64 or i64 (the host proves the width); >> is logical or arithmetic accordingly.
+// What every walker shares: the per-m tables the host writes, the tally update, and the Terras
+// construction, one definition each. The node (a mod 2^j, m, b) with T^j(a + 2^j x) = q^m x + b has
+// two children, extending a by the bit e that makes the next value v = b + e q^m even (then the child
+// is (m, v / 2)) or odd (then (m + 1, (q v + r) / 2)). With v odd, (q v + r) / 2 = q (v >> 1) +
+// (q + r) / 2, so no intermediate exceeds the child's b. T is u64 or i64 (the host proves the width);
+// >> is logical or arithmetic accordingly.
+import { TABLE_DROP, TABLE_QPOW, TALLY_SHIFT } from "./layout";
+
+let qpowBase: usize = 0;
+let dropBase: usize = 0;
+
+/** Points the helpers below at the host's per-m tables (layout.ts: TABLE_*). */
+export function useTables(tables: usize): void {
+  qpowBase = tables + TABLE_QPOW;
+  dropBase = tables + TABLE_DROP;
+}
+
+/** q^m (within the host-proven width). */
+@inline export function qpow(m: i32): u64 {
+  return load<u64>(qpowBase + (<usize>m << 3));
+}
+
+/** bitlen(q^m): the least depth at which a class with m odd steps has dropped (q^m < 2^j). */
+@inline export function dropDepth(m: i32): i32 {
+  return load<i32>(dropBase + (<usize>m << 2));
+}
+
+/** Adds one to entry (j, m) of a u64 [64][64] table. */
+@inline export function tally(base: usize, j: i32, m: i32): void {
+  const p = base + (<usize>((j << TALLY_SHIFT) + m) << 3);
+  store<u64>(p, load<u64>(p) + 1);
+}
 
 /** The extension bit of the even child: e0 = b mod 2 (the odd child takes 1 - e0). */
 @inline export function evenBit<T>(b: T): T {
@@ -22,4 +49,14 @@
 /** The even child's residue a + e0 2^j; the odd child's is this with bit j flipped. */
 @inline export function evenResidue<T>(a: u64, e0: T, j: i32): u64 {
   return a | (<u64>e0 << <u64>j);
+}
+
+/** Along a given extension bit e (a prefix walk): v = b + e q^m, whose parity is the step's. */
+@inline export function stepValue<T>(b: T, qm: T, e: u64): T {
+  return b + select<T>(qm, <T>0, e != 0);
+}
+
+/** The child's image from v = stepValue(...): v / 2 when v is even, q (v >> 1) + h when odd. */
+@inline export function stepImage<T>(v: T, q: T, h: T): T {
+  return (v & <T>1) == <T>0 ? v >> 1 : q * (v >> 1) + h;
 }

@@ -6,13 +6,13 @@ import { mkdtempSync, rmSync, writeFileSync } from "node:fs";
 import { join } from "node:path";
 import { parseMap } from "../src/core/map.js";
 import { exactCounts } from "../src/core/exact.js";
-import { runSieve } from "../src/jobs/sieve.js";
-import type { Mode } from "../src/engine/kernel.js";
+import { runSieve } from "../src/jobs/sieve/sieve.js";
+import type { Mode } from "../src/engine/messages.js";
 import { nodePool } from "../src/node/kernel.js";
 import { enumeratePlain } from "./ts-enumerate.js";
 import { webBench } from "./web.js";
-import { runCensus } from "../src/jobs/census.js";
-import { searchCycles } from "../src/jobs/cycles.js";
+import { runCensus } from "../src/jobs/census/census.js";
+import { searchCycles } from "../src/jobs/cycles/cycles.js";
 import { inspect } from "../src/jobs/inspect.js";
 
 const map = parseMap("3x+1");

@@ -1,7 +1,10 @@
 // Plain BigInt references written for the tests, independent of src/ arithmetic.
 import type { CollatzMap } from "../src/core/map.js";
-import { instantiateKernel } from "../src/engine/kernel.js";
-import type { KernelInstance, LeafChunk, ShardRequest, ShardResult } from "../src/engine/kernel.js";
+import { Kernel } from "../src/engine/loader.js";
+import type { CensusShard, CensusShardResult, CycleShard, CycleShardResult, LeafChunk, ShardRequest, ShardResult } from "../src/engine/messages.js";
+import { enumerateShard } from "../src/jobs/sieve/kernel.js";
+import { censusShard } from "../src/jobs/census/kernel.js";
+import { cycleShard } from "../src/jobs/cycles/kernel.js";
 import { loadKernelModule } from "../src/node/kernel.js";
 import type { Flavour } from "../src/node/kernel.js";
 
@@ -38,8 +41,16 @@ export function coefficientStop(map: CollatzMap, n: bigint, k: number): { j: num
   return null;
 }
 
+/** One kernel instance with the three jobs' adapters, as the workers call them. */
+export interface KernelInstance {
+  enumerate(req: ShardRequest, onLeaves?: (chunk: LeafChunk) => void): ShardResult;
+  census(req: CensusShard): CensusShardResult;
+  cycles(req: CycleShard): CycleShardResult;
+}
+
 export async function kernelOf(flavour: Flavour): Promise<KernelInstance> {
-  return instantiateKernel(await loadKernelModule(flavour));
+  const k = await Kernel.instantiate(await loadKernelModule(flavour));
+  return { enumerate: (req, onLeaves) => enumerateShard(k, req, onLeaves), census: (req) => censusShard(k, req), cycles: (req) => cycleShard(k, req) };
 }
 
 /** One whole-tree kernel run with its leaves collected. */

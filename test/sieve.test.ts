@@ -2,7 +2,7 @@
 import { afterAll, describe, expect, it } from "vitest";
 import { kernelDepthLimit, parseMap } from "../src/core/map.js";
 import { exactCounts } from "../src/core/exact.js";
-import { runSieve } from "../src/jobs/sieve.js";
+import { runSieve } from "../src/jobs/sieve/sieve.js";
 import { CancelledError } from "../src/engine/pool.js";
 import { LimitError } from "../src/core/errors.js";
 import { nodePool } from "../src/node/kernel.js";

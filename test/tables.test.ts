@@ -2,9 +2,9 @@
 import { describe, expect, it } from "vitest";
 import { passPlan, ResidueSorter } from "../src/outputs/tables.js";
 import { radixSortU32 } from "../src/outputs/sort.js";
-import type { LeafChunk } from "../src/engine/kernel.js";
+import type { LeafChunk } from "../src/engine/messages.js";
 import { parseMap } from "../src/core/map.js";
-import { runSieve } from "../src/jobs/sieve.js";
+import { runSieve } from "../src/jobs/sieve/sieve.js";
 import { nodePool } from "../src/node/kernel.js";
 import { toExactJson, parseExactJson } from "../src/outputs/json.js";
 import { sortBig } from "./helpers.js";

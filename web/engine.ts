@@ -1,7 +1,7 @@
 // The browser side of the engine: the kernel module fetched once, a pool of Web Workers through
 // comlink, and the runs the views start. Arithmetic stays in src/; this file only wires it up.
 import wasmUrl from "../build/release.wasm?url";
-import { compileKernel } from "../src/engine/kernel.js";
+import { compileKernel } from "../src/engine/loader.js";
 import { KernelPool } from "../src/engine/pool.js";
 import type { RunOptions, SpawnWorker, WorkerHandle } from "../src/engine/pool.js";
 import { wrap } from "comlink";

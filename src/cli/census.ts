@@ -1,7 +1,7 @@
 // glidepath census: every 2^K parity vector at once, its tallies as text, JSON or an Arrow file.
 import type { Command } from "commander";
-import { MAX_CENSUS_DEPTH, runCensus } from "../jobs/census.js";
-import type { CensusResult } from "../jobs/census.js";
+import { MAX_CENSUS_DEPTH, runCensus } from "../jobs/census/census.js";
+import type { CensusResult } from "../jobs/census/census.js";
 import { censusArrow } from "../outputs/arrow.js";
 import { group, plural } from "../outputs/format.js";
 import { toExactJson } from "../outputs/json.js";

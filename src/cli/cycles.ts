@@ -1,7 +1,7 @@
 // glidepath cycles: every integer cycle of period <= K, complete by construction.
 import type { Command } from "commander";
-import { MAX_CYCLE_PERIOD, searchCycles } from "../jobs/cycles.js";
-import type { CycleSearchResult } from "../jobs/cycles.js";
+import { MAX_CYCLE_PERIOD, searchCycles } from "../jobs/cycles/cycles.js";
+import type { CycleSearchResult } from "../jobs/cycles/cycles.js";
 import { cyclesArrow } from "../outputs/arrow.js";
 import { group, plural } from "../outputs/format.js";
 import { toExactJson } from "../outputs/json.js";

@@ -1,9 +1,108 @@
-// What crosses the worker boundary: one typed surface (comlink), plain data and typed arrays.
-import type { CensusShard, CensusShardResult, CycleShard, CycleShardResult, LeafChunk, ShardRequest, ShardResult } from "./kernel.js";
+// What crosses the worker boundary (comlink): shard requests and results of every kernel job, as
+// plain data and typed arrays, and the one object each worker exposes.
+
+export type Mode = "survivors" | "full";
+
+/**
+ * Row stride of every tally table in a result: entry (j, m) at j * TALLY_STRIDE + m. The kernels'
+ * own value (assembly/layout.ts) is checked against it when a kernel is loaded (engine/tables.ts).
+ */
+export const TALLY_STRIDE = 64;
+
+/** One sieve shard: every class extending `prefix` mod 2^prefixBits, enumerated to `depth`. */
+export interface ShardRequest {
+  readonly q: number;
+  readonly r: number;
+  readonly depth: number;
+  readonly mode: Mode;
+  readonly prefixBits: number;
+  readonly prefix: bigint;
+  /** Stream the leaves (a, m, b) at `depth`; tallies and exceptions always come back. */
+  readonly leaves: boolean;
+  /** Only the residues a of the leaves (b and m come back empty): for class tables. */
+  readonly residuesOnly?: boolean;
+  /**
+   * false: tally only levels deeper than prefixBits (the plan counted levels 0..prefixBits in a top
+   * run); true: also the ancestors this shard owns, so the 2^prefixBits shards sum to the whole run.
+   */
+  readonly walkTallies: boolean;
+}
+
+/** Leaves in struct-of-arrays form; b holds the raw 64 bits, signed when r < 0; b and m are empty
+ * when only residues were asked for. */
+export interface LeafChunk {
+  readonly a: BigUint64Array;
+  readonly b: BigInt64Array | BigUint64Array;
+  readonly m: Uint8Array;
+}
+
+export interface ShardResult {
+  readonly nodes: bigint;
+  /** live[j * 64 + m], j = 0..depth: classes at depth j whose coefficient has not dropped below 1. */
+  readonly live: BigUint64Array;
+  /** stopped[j * 64 + m]: classes whose coefficient q^m / 2^j first drops below 1 at depth j. */
+  readonly stopped: BigUint64Array;
+  /** Dropping classes with b >= a, 4 entries each: a, b (raw bits), j, m. */
+  readonly exceptionClasses: BigUint64Array;
+}
 
 export interface ShardOutput extends ShardResult {
   /** The shard's leaves at the target depth, when asked for (concatenated chunks). */
   readonly leaves?: LeafChunk;
+}
+
+/** One shard of the cycle search: every node of depth 1..depth below the prefix is a candidate. */
+export interface CycleShard {
+  readonly q: number;
+  readonly r: number;
+  readonly depth: number;
+  /** Signed 128-bit arithmetic (the host proved 64 bits insufficient and 128 sufficient). */
+  readonly wide: boolean;
+  readonly prefixBits: number;
+  readonly prefix: bigint;
+  readonly walkTallies: boolean;
+}
+
+export interface CycleShardResult {
+  readonly nodes: bigint;
+  /** 4 u64 per candidate: a, b low word, b high word (b signed 128-bit), (j << 32) | m. */
+  readonly candidates: BigUint64Array;
+}
+
+/** One shard of the census: every vector extending the prefix, tallies of assembly/census.ts. */
+export interface CensusShard {
+  readonly q: number;
+  readonly r: number;
+  readonly depth: number;
+  readonly prefixBits: number;
+  readonly prefix: bigint;
+  /** Also stream (a, parity vector as bits) for every leaf (the conjugacy permutation). */
+  readonly vectors: boolean;
+}
+
+export interface CensusShardResult {
+  readonly nodes: bigint;
+  /** [j * 64 + m], j = 0..depth. */
+  readonly live: BigUint64Array;
+  readonly stopped: BigUint64Array;
+  /** Parents: nodes at depth j < depth with m odd steps (each has two children). */
+  readonly vectors: BigUint64Array;
+  readonly peak: BigUint64Array;
+  /** bins[k + binOffset]: least members with floor(4 log2(T^K(a)/a)) = k, decided in the kernel. */
+  readonly bins: BigUint64Array;
+  readonly binOffset: number;
+  /** [nonpositive images, differing members, early descents, -, then per m the least members
+   * a >= 1 binned on the slow path]; the others with m odd steps belong in the bin of the
+   * coefficient q^m/2^K (coefficientBins). */
+  readonly counts: BigUint64Array;
+  /** 4 u64 per entry, (a, b raw bits, -, -): least members whose bin the host decides exactly. */
+  readonly ambiguous: BigUint64Array;
+  /** 4 u64 per entry, (a, kind, -, -): kind 1 early descent, 2 no descent at the drop. */
+  readonly differ: BigUint64Array;
+  /** 4 u64 per entry, (member, T^j(member) raw bits, j, -): may hold the largest ratio. */
+  readonly ratio: BigUint64Array;
+  /** (a, parity vector as bits) as u32 pairs, when asked for (depth <= 32). */
+  readonly leafVectors?: Uint32Array;
 }
 
 /** A class table export made in a worker: the rows' (m, b) come from each residue, in BigInt. */

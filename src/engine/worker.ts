@@ -1,9 +1,11 @@
 // The worker side of the pool, isomorphic: Node's entry (src/node/worker.ts) and the browser's
 // expose this same object through comlink on their own endpoints.
 import { transfer } from "comlink";
-import { instantiateKernel } from "./kernel.js";
-import type { KernelInstance, LeafChunk } from "./kernel.js";
-import type { KernelWorkerApi, ShardOutput } from "./messages.js";
+import { Kernel } from "./loader.js";
+import type { KernelWorkerApi, LeafChunk, ShardOutput } from "./messages.js";
+import { enumerateShard } from "../jobs/sieve/kernel.js";
+import { censusShard } from "../jobs/census/kernel.js";
+import { cycleShard } from "../jobs/cycles/kernel.js";
 import { makeMap } from "../core/map.js";
 import { classFromResidue } from "../core/padic.js";
 import { csvLines } from "../outputs/tables.js";
@@ -12,15 +14,15 @@ import { classTableArrow } from "../outputs/arrow.js";
 
 /** @example expose(createWorkerApi(), endpoint) */
 export function createWorkerApi(): KernelWorkerApi {
-  let kernel: KernelInstance | null = null;
+  let kernel: Kernel | null = null;
   return {
     async init(module) {
-      kernel = await instantiateKernel(module);
+      kernel = await Kernel.instantiate(module);
     },
     async runShard(req) {
       if (!kernel) throw new Error("worker used before init");
       const chunks: LeafChunk[] = [];
-      const res = kernel.enumerate(req, req.leaves ? (c) => chunks.push(c) : undefined);
+      const res = enumerateShard(kernel, req, req.leaves ? (c) => chunks.push(c) : undefined);
       const out: ShardOutput = req.leaves ? { ...res, leaves: concatLeaves(chunks, req.r < 0) } : res;
       const buffers: ArrayBuffer[] = [res.live.buffer, res.stopped.buffer, res.exceptionClasses.buffer].map(asArrayBuffer);
       if (out.leaves) buffers.push(...[out.leaves.a.buffer, out.leaves.b.buffer, out.leaves.m.buffer].map(asArrayBuffer));
@@ -28,7 +30,7 @@ export function createWorkerApi(): KernelWorkerApi {
     },
     async runCensus(req) {
       if (!kernel) throw new Error("worker used before init");
-      const res = kernel.census(req);
+      const res = censusShard(kernel, req);
       const arrays: ArrayBufferView[] = [res.live, res.stopped, res.vectors, res.peak, res.bins, res.counts, res.ambiguous, res.differ, res.ratio];
       if (res.leafVectors) arrays.push(res.leafVectors);
       return transfer(res, arrays.map((x) => asArrayBuffer(x.buffer)));
@@ -44,7 +46,7 @@ export function createWorkerApi(): KernelWorkerApi {
     },
     async runCycles(req) {
       if (!kernel) throw new Error("worker used before init");
-      const res = kernel.cycles(req);
+      const res = cycleShard(kernel, req);
       return transfer(res, [asArrayBuffer(res.candidates.buffer)]);
     },
   };

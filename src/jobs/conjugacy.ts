@@ -2,7 +2,7 @@
 // Q_k(n) = sum p_i 2^i permutes the residues mod 2^k (Terras). Its cycle structure.
 import type { CollatzMap } from "../core/map.js";
 import type { KernelPool, RunOptions } from "../engine/pool.js";
-import { censusShards } from "./census.js";
+import { censusShards } from "./census/census.js";
 import { UsageError } from "../core/errors.js";
 
 export const MAX_CONJUGACY_DEPTH = 26;

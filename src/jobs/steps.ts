@@ -3,7 +3,7 @@
 import type { CollatzMap } from "../core/map.js";
 import { checkKernelDepth } from "../core/map.js";
 import type { KernelPool, RunOptions } from "../engine/pool.js";
-import { runSieve } from "./sieve.js";
+import { runSieve } from "./sieve/sieve.js";
 import { UsageError } from "../core/errors.js";
 
 export const MAX_STEP_DEPTH = 24;

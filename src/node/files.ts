@@ -40,12 +40,13 @@ export class AtomicFile {
   static async create(path: string): Promise<AtomicFile> {
     const tempPath = join(dirname(path), `.${basename(path)}.partial-${process.pid}`);
     let fh: FileHandle;
+    pending.add(tempPath); // before the open: a signal during it must still remove the file
     try {
       fh = await open(tempPath, "wx");
     } catch (e) {
+      pending.delete(tempPath);
       throw new UsageError(`cannot write ${path}: ${(e as NodeJS.ErrnoException).code ?? String(e)}`);
     }
-    pending.add(tempPath);
     return new AtomicFile(path, tempPath, fh);
   }
 

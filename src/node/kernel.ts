@@ -4,7 +4,7 @@ import { readFile } from "node:fs/promises";
 import { availableParallelism } from "node:os";
 import { Worker } from "node:worker_threads";
 import nodeEndpoint from "comlink/dist/esm/node-adapter.mjs";
-import { compileKernel } from "../engine/kernel.js";
+import { compileKernel } from "../engine/loader.js";
 import { KernelPool } from "../engine/pool.js";
 import type { SpawnWorker } from "../engine/pool.js";
 import type { ToolStamp } from "../outputs/manifest.js";

@@ -3,8 +3,8 @@
 import { Field, Int32, List, Table, Uint64, Utf8, tableFromArrays, tableToIPC, vectorFromArray } from "apache-arrow";
 import type { CsvRow } from "./tables.js";
 import type { StepTable } from "../jobs/steps.js";
-import type { CensusResult } from "../jobs/census.js";
-import type { CycleSearchResult } from "../jobs/cycles.js";
+import type { CensusResult } from "../jobs/census/census.js";
+import type { CycleSearchResult } from "../jobs/cycles/cycles.js";
 
 /**
  * Class table: residue (uint32 for depth <= 32, else uint64), odd_steps (uint8), image (int64 when

@@ -1,8 +1,8 @@
 // The machine-readable summaries of a run, shared by the CLI (--json) and the web app
 // (data-run-summary): every count an exact integer (BigInt, written as digits by toExactJson).
-import type { SieveResult } from "../jobs/sieve.js";
-import type { CensusResult } from "../jobs/census.js";
-import type { CycleSearchResult } from "../jobs/cycles.js";
+import type { SieveResult } from "../jobs/sieve/sieve.js";
+import type { CensusResult } from "../jobs/census/census.js";
+import type { CycleSearchResult } from "../jobs/cycles/cycles.js";
 import type { ConjugacyResult } from "../jobs/conjugacy.js";
 import type { Card } from "../jobs/inspect.js";
 import type { Level } from "../core/exact.js";

@@ -1,6 +1,6 @@
 // The cycle search view: map and maximum period to the table of every integer cycle.
 import { parseMap } from "../../src/core/map.js";
-import { searchCycles, MAX_CYCLE_PERIOD, cycleWidth } from "../../src/jobs/cycles.js";
+import { searchCycles, MAX_CYCLE_PERIOD, cycleWidth } from "../../src/jobs/cycles/cycles.js";
 import { CancelledError } from "../../src/engine/pool.js";
 import { getPool } from "../engine.js";
 import { $, fieldError } from "../dom.js";

@@ -3,10 +3,10 @@ import { parseMap, checkKernelDepth, kernelDepthLimit } from "../../src/core/map
 import type { CollatzMap } from "../../src/core/map.js";
 import { exactCounts } from "../../src/core/exact.js";
 import type { Level } from "../../src/core/exact.js";
-import { runSieve } from "../../src/jobs/sieve.js";
-import type { SieveResult } from "../../src/jobs/sieve.js";
-import { runCensus } from "../../src/jobs/census.js";
-import type { CensusResult } from "../../src/jobs/census.js";
+import { runSieve } from "../../src/jobs/sieve/sieve.js";
+import type { SieveResult } from "../../src/jobs/sieve/sieve.js";
+import { runCensus } from "../../src/jobs/census/census.js";
+import type { CensusResult } from "../../src/jobs/census/census.js";
 import { CancelledError } from "../../src/engine/pool.js";
 import { ResidueSorter } from "../../src/outputs/tables.js";
 import { censusJson, log2Coefficient, sieveJson } from "../../src/outputs/summary.js";

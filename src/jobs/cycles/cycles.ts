@@ -3,14 +3,15 @@
 // periodic parity vectors, so each element's class at depth p is a node where 2^p - q^m divides
 // b - a (assembly/cycles.ts tests every node). The host solves for the periodic point, walks the
 // cycle in BigInt, and keeps each cycle once, with its minimal period.
-import type { CollatzMap } from "../core/map.js";
-import { kernelDepthLimit } from "../core/map.js";
-import { threadKernel } from "../engine/kernel.js";
-import type { CycleShard } from "../engine/kernel.js";
-import type { KernelPool, RunOptions } from "../engine/pool.js";
-import { choosePrefixBits } from "./sieve.js";
-import { cycleRepresentative, iterate } from "../core/padic.js";
-import { LimitError, UsageError } from "../core/errors.js";
+import type { CollatzMap } from "../../core/map.js";
+import { kernelDepthLimit } from "../../core/map.js";
+import { threadKernel } from "../../engine/loader.js";
+import type { CycleShard } from "../../engine/messages.js";
+import { choosePrefixBits } from "../../engine/plan.js";
+import { cycleShard } from "./kernel.js";
+import type { KernelPool, RunOptions } from "../../engine/pool.js";
+import { cycleRepresentative, iterate } from "../../core/padic.js";
+import { LimitError, UsageError } from "../../core/errors.js";
 
 export const MAX_CYCLE_PERIOD = 63;
 
@@ -110,7 +111,7 @@ export async function searchCycles(pool: KernelPool, map: CollatzMap, maxPeriod:
   const base = { q: map.q, r: map.r, wide: width === 128 } as const;
   const collector = new CycleCollector(map);
   // the top of the tree (depths 1..d) here, then one shard per prefix for depths d+1..maxPeriod
-  const top = kernel.cycles({ ...base, depth: d, prefixBits: 0, prefix: 0n, walkTallies: true });
+  const top = cycleShard(kernel, { ...base, depth: d, prefixBits: 0, prefix: 0n, walkTallies: true });
   collector.add(top.candidates);
   let nodes = top.nodes + 1n;
   if (d < maxPeriod) {

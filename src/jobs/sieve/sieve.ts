@@ -1,16 +1,18 @@
 // The sieve mod 2^K: plan shards by residue prefix, run them on the pool, merge the tallies,
 // expand the exceptions. One-shot (`runSieve`) and per-shard results agree by construction:
 // the top levels 0..d are counted once by a top run, each live prefix at depth d is one shard.
-import type { CollatzMap } from "../core/map.js";
-import { checkKernelDepth } from "../core/map.js";
-import { exactCounts } from "../core/exact.js";
-import type { Level } from "../core/exact.js";
-import { threadKernel, TALLY_STRIDE } from "../engine/kernel.js";
-import type { LeafChunk, Mode, ShardRequest, ShardResult } from "../engine/kernel.js";
-import type { KernelPool, RunOptions } from "../engine/pool.js";
+import type { CollatzMap } from "../../core/map.js";
+import { checkKernelDepth } from "../../core/map.js";
+import type { Level } from "../../core/exact.js";
+import { threadKernel } from "../../engine/loader.js";
+import { TALLY_STRIDE } from "../../engine/messages.js";
+import type { LeafChunk, Mode, ShardRequest, ShardResult } from "../../engine/messages.js";
+import { choosePrefixBits } from "../../engine/plan.js";
+import { enumerateShard } from "./kernel.js";
+import type { KernelPool, RunOptions } from "../../engine/pool.js";
 import { decodeExceptionClasses, EXCEPTION_LIMIT, expandExceptions } from "./exceptions.js";
 import type { ExceptionClass, SieveException } from "./exceptions.js";
-import { UsageError } from "../core/errors.js";
+import { UsageError } from "../../core/errors.js";
 
 export interface SieveRequest {
   readonly map: CollatzMap;
@@ -42,29 +44,6 @@ export interface SieveResult {
   readonly seconds: number;
 }
 
-/** Live classes per shard and nodes per shard that the plan aims below. */
-const SHARD_NODES = 2n ** 22n;
-const SHARD_LEAVES = 2n ** 18n;
-const MAX_PREFIX_BITS = 20;
-
-/**
- * The prefix depth d: the least d with at least 16 live prefixes per worker and shards of bounded
- * size, using the exact counter's survivor counts (full mode: 2^d prefixes).
- */
-export function choosePrefixBits(map: CollatzMap, depth: number, mode: Mode, workers: number, withLeaves: boolean, shardNodes = SHARD_NODES): number {
-  const levels = exactCounts(map, depth).levels;
-  const live = (d: number) => (mode === "full" ? 1n << BigInt(d) : levels[d]!.survivors);
-  const nodes = mode === "full" ? (1n << BigInt(depth + 1)) - 1n : levels.reduce((s, l) => s + l.survivors, 0n);
-  const leaves = live(depth);
-  const top = Math.min(depth, MAX_PREFIX_BITS);
-  for (let d = 0; d < top; d++) {
-    const n = live(d);
-    if (n === 0n) return d;
-    if (n >= BigInt(16 * workers) && nodes / n <= shardNodes && (!withLeaves || leaves / n <= SHARD_LEAVES)) return d;
-  }
-  return top;
-}
-
 /**
  * Runs the sieve on the pool (the top levels on this thread's own kernel instance).
  * @example const res = await runSieve(pool, { map: parseMap("3x+1"), depth: 30, mode: "survivors" });
@@ -80,7 +59,7 @@ export async function runSieve(pool: KernelPool, req: SieveRequest, options: Run
   const base = { q: map.q, r: map.r, depth, mode } as const;
   // Top run: levels 0..d exactly, and the live prefixes at depth d as its leaves.
   const prefixes: bigint[] = [];
-  const top = kernel.enumerate({ ...base, depth: d, prefixBits: 0, prefix: 0n, leaves: true, walkTallies: true }, (c) => {
+  const top = enumerateShard(kernel, { ...base, depth: d, prefixBits: 0, prefix: 0n, leaves: true, walkTallies: true }, (c) => {
     if (d === depth) req.onLeaves?.(c);
     for (const a of c.a) prefixes.push(a);
   });

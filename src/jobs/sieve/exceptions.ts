@@ -1,7 +1,7 @@
 // The sieve's exact exception list: positive members of a dropping class that do not descend.
 // For class a mod 2^j with T^j(a + 2^j x) = q^m x + b and q^m < 2^j, the member n = a + 2^j x
 // descends at step j (T^j(n) < n) exactly when (2^j - q^m) x > b - a; the rest are exceptions.
-import type { CollatzMap } from "../core/map.js";
+import type { CollatzMap } from "../../core/map.js";
 
 export interface ExceptionClass {
   readonly residue: bigint;

@@ -1,17 +1,18 @@
 // Census of all 2^K parity vectors: the kernel's full-tree tallies (assembly/census.ts) merged and
 // finished exactly here: ambiguous log2 bins and the largest ratio are decided in BigInt.
-import type { CollatzMap } from "../core/map.js";
-import { kernelDepthLimit } from "../core/map.js";
-import { BIN_COUNT, BIN_OFFSET, coefficientBins, TALLY_STRIDE } from "../engine/kernel.js";
-import type { CensusShard, CensusShardResult } from "../engine/kernel.js";
-import type { KernelPool, RunOptions } from "../engine/pool.js";
-import { exactCounts } from "../core/exact.js";
-import type { Level } from "../core/exact.js";
-import { choosePrefixBits } from "./sieve.js";
-import { classFromResidue, firstDescent } from "../core/padic.js";
-import { LimitError, UsageError } from "../core/errors.js";
-import { bitLength } from "../core/arith.js";
-import { Smallest } from "../core/smallest.js";
+import type { CollatzMap } from "../../core/map.js";
+import { kernelDepthLimit } from "../../core/map.js";
+import { TALLY_STRIDE } from "../../engine/messages.js";
+import type { CensusShard, CensusShardResult } from "../../engine/messages.js";
+import { choosePrefixBits } from "../../engine/plan.js";
+import { coefficientBins } from "./kernel.js";
+import type { KernelPool, RunOptions } from "../../engine/pool.js";
+import { exactCounts } from "../../core/exact.js";
+import type { Level } from "../../core/exact.js";
+import { classFromResidue, firstDescent } from "../../core/padic.js";
+import { LimitError, UsageError } from "../../core/errors.js";
+import { bitLength } from "../../core/arith.js";
+import { Smallest } from "../../core/smallest.js";
 
 export const MAX_CENSUS_DEPTH = 32;
 /** Least members listed among those whose descent differs (the smallest; the count is exact). */
@@ -87,7 +88,8 @@ export async function runCensus(pool: KernelPool, map: CollatzMap, depth: number
   const started = performance.now();
   const n = (depth + 1) * TALLY_STRIDE;
   const acc = { live: new BigUint64Array(n), stopped: new BigUint64Array(n), vectors: new BigUint64Array(n), peak: new BigUint64Array(n) };
-  const bins = new BigUint64Array(BIN_COUNT);
+  // sized and offset as the kernel's (binOffset)
+  const acc2: { bins: BigUint64Array | null; binOffset: number } = { bins: null, binOffset: 0 };
   let nonpositive = 0n, differCount = 0n, early = 0n, nodes = 0n;
   const ambiguous: [bigint, bigint][] = [];
   const slow = new BigUint64Array(depth + 1);
@@ -100,7 +102,9 @@ export async function runCensus(pool: KernelPool, map: CollatzMap, depth: number
     addInto(acc.stopped, out.stopped);
     addInto(acc.vectors, out.vectors);
     addInto(acc.peak, out.peak);
-    addInto(bins, out.bins);
+    acc2.bins ??= new BigUint64Array(out.bins.length);
+    acc2.binOffset = out.binOffset;
+    addInto(acc2.bins, out.bins);
     nonpositive += out.counts[0]!;
     differCount += out.counts[1]!;
     early += out.counts[2]!;
@@ -119,16 +123,19 @@ export async function runCensus(pool: KernelPool, map: CollatzMap, depth: number
   };
   await pool.run(censusShards(map, depth, pool.size, false), (api, s) => api.runCensus(s), (_s, out) => merge(out), options);
 
-  for (const [a, b] of ambiguous) bins[quarterLog2(a, b) + BIN_OFFSET]!++;
+  const binsOf = acc2.bins;
+  const binOffset = acc2.binOffset;
+  if (!binsOf) throw new Error("internal error: the census ran no shard");
+  for (const [a, b] of ambiguous) binsOf[quarterLog2(a, b) + binOffset]!++;
   // The fast-path leaves: with m odd steps, all leaves (nodes at depth K) but the slow ones and a = 0.
   const vectors = nodesFromParents(rows(acc.vectors, depth));
   coefficientBins(map.q, map.r, depth).forEach(({ k }, m) => {
     const fast = vectors[depth]![m]! - slow[m]! - (m === 0 ? 1n : 0n);
-    bins[k + BIN_OFFSET] = bins[k + BIN_OFFSET]! + fast;
+    binsOf[k + binOffset] = binsOf[k + binOffset]! + fast;
   });
   const ratioBins: CensusResult["ratioBins"] = [];
-  bins.forEach((count, i) => {
-    if (count > 0n) ratioBins.push({ bin: i - BIN_OFFSET, count });
+  binsOf.forEach((count, i) => {
+    if (count > 0n) ratioBins.push({ bin: i - binOffset, count });
   });
   const live = rows(acc.live, depth), stopped = rows(acc.stopped, depth);
   const exact = exactCounts(map, depth, { byOdd: true }).byOdd!;

@@ -1,0 +1,62 @@
+// The memory layout that the host and the kernels share, defined once. Every value is exported as a
+// global (assembly/index.ts); the host's loader (src/engine/loader.ts) reads them at instantiation,
+// so an offset or a size never has to be copied by hand into TypeScript.
+
+// ---- tallies: u64 tables [64][64], entry (j, m) at index (j << TALLY_SHIFT) + m ----
+export const TALLY_SHIFT: i32 = 6;
+export const TALLY_STRIDE: i32 = 1 << TALLY_SHIFT;
+export const TALLY_TABLE_BYTES: i32 = TALLY_STRIDE * TALLY_STRIDE * 8;
+
+// ---- per-m tables the host writes (m = 0..63) ----
+/** u64 q^m. */
+export const TABLE_QPOW: i32 = 0;
+/** i32 bitlen(q^m): q^m < 2^j exactly when j >= bitlen(q^m). */
+export const TABLE_DROP: i32 = 512;
+/** u64 per m (census only): least members above it lie in the coefficient's own log2 bin. */
+export const TABLE_BINMIN: i32 = 768;
+export const TABLE_BYTES: i32 = 1280;
+
+// ---- streaming: chunks handed to the host through env.flush(channel, count) ----
+export const CHANNEL_LEAVES: i32 = 0; // enumerate: (a, b, m) struct of arrays
+export const CHANNEL_EXCEPTIONS: i32 = 1; // enumerate: (a, b, j, m)
+export const CHANNEL_CYCLES: i32 = 2; // cycles: (a, b lo, b hi, j << 32 | m)
+export const CHANNEL_AMBIGUOUS: i32 = 3; // census: (a, b, -, -), bins the host decides
+export const CHANNEL_DIFFER: i32 = 4; // census: (a, kind, -, -)
+export const CHANNEL_RATIO: i32 = 5; // census: (member, T^j(member), j, -)
+export const CHANNEL_VECTORS: i32 = 6; // census: (a, parity vector, -, -)
+/** Entries of the 4-word channels: 4 u64. */
+export const ENTRY_BYTES: i32 = 32;
+export const CHANNEL_CHUNK: i32 = 1024;
+/** Leaves per chunk; the region holds a[LEAF_CHUNK] u64, b[LEAF_CHUNK] u64, m[LEAF_CHUNK] u8. */
+export const LEAF_CHUNK: i32 = 1 << 16;
+export const LEAF_BYTES: i32 = LEAF_CHUNK * 17;
+
+// ---- enumerate ----
+/** live[64][64] then stopped[64][64]. */
+export const ENUM_TALLY_BYTES: i32 = 2 * TALLY_TABLE_BYTES;
+export const ENUM_EXCEPTION_BYTES: i32 = CHANNEL_CHUNK * ENTRY_BYTES;
+
+// ---- census ----
+/** log2(T^K(a)/a) in quarter units, bin k at index k + CENSUS_BIN_OFFSET. */
+export const CENSUS_BINS: i32 = 1024;
+export const CENSUS_BIN_OFFSET: i32 = 512;
+/** counts: [0] nonpositive images, [1] differ, [2] early descents, [3] unused, [4 + m] slow-path leaves. */
+export const CENSUS_COUNTS: i32 = 68;
+/** live, stopped, vectors (parents), peak tables, then bins, then counts. */
+export const CENSUS_BINS_AT: i32 = 4 * TALLY_TABLE_BYTES;
+export const CENSUS_COUNTS_AT: i32 = CENSUS_BINS_AT + CENSUS_BINS * 8;
+export const CENSUS_TALLY_BYTES: i32 = CENSUS_COUNTS_AT + CENSUS_COUNTS * 8;
+/** Scratch: one region per channel 3..6 (channel c at (c - 3) * CENSUS_REGION_BYTES), a batch, the ratio bounds. */
+export const CENSUS_REGION_BYTES: i32 = CHANNEL_CHUNK * ENTRY_BYTES;
+export const CENSUS_BATCH: i32 = 1024;
+export const CENSUS_BATCH_AT: i32 = 4 * CENSUS_REGION_BYTES;
+/** f64 per m, written by the host: an upper bound on T^j(u)/u over members u >= 1 with m odd steps. */
+export const CENSUS_RATIO_AT: i32 = CENSUS_BATCH_AT + CENSUS_BATCH * 16;
+export const CENSUS_SCRATCH_BYTES: i32 = CENSUS_RATIO_AT + 64 * 8;
+
+// ---- cycles ----
+/** q^m low words at 0, high words at 512 (u64, m = 0..63). */
+export const CYCLE_QPOW_BYTES: i32 = 1024;
+/** Per (j, m), 32 bytes: inverse of |2^j - q^m| mod 2^w and floor((2^w - 1) / |2^j - q^m|), low then high words. */
+export const CYCLE_DIVISOR_BYTES: i32 = TALLY_STRIDE * TALLY_STRIDE * 32;
+export const CYCLE_CANDIDATE_BYTES: i32 = CHANNEL_CHUNK * ENTRY_BYTES;
