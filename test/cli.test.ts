@@ -9,7 +9,7 @@ import { afterAll, describe, expect, it } from "vitest";
 import { parseMap } from "../src/core/map.js";
 import { parseExactJson } from "../src/outputs/json.js";
 import { parseCsv } from "../src/outputs/tables.js";
-import { A076227 } from "./published.js";
+import { A076227 } from "../src/core/published.js";
 import { coefficientStop, T } from "./helpers.js";
 
 const BIN = new URL("../bin/glidepath.js", import.meta.url).pathname;
@@ -32,7 +32,7 @@ async function cli2(bin: string, ...args: string[]): Promise<{ code: number; std
 }
 
 describe("cli: reports", () => {
-  it("sieve --json: exact integers, levels equal A076227 (OEIS, from memory), exception n = 1", async () => {
+  it("sieve --json: exact integers, levels equal OEIS A076227 (published entry), exception n = 1", async () => {
     const { code, stdout } = await cli("sieve", "--depth", "28", "--json", "--workers", "2");
     expect(code).toBe(0);
     const j = parseExactJson(stdout) as { map: string; depth: bigint; levels: { survivors: bigint; stopped: bigint }[]; exceptions: { n: bigint }[]; nodes: bigint };
@@ -46,6 +46,13 @@ describe("cli: reports", () => {
     const { code, stdout } = await cli("sieve", "--depth", "16", "--workers", "1");
     expect(code).toBe(0);
     await expect(stdout.replace(/in [\d.]+ s/, "in <time> s")).toMatchFileSnapshot("golden/sieve-3x+1-depth16.txt");
+    // beyond the snapshot: the counts are OEIS A076227's, the densities exact quotients rounded here
+    const rows = [...stdout.matchAll(/^ +(\d+) +([\d,]+) +([\d,]+)  (\d\.\d{8})/gm)];
+    expect(rows.map((r) => BigInt(r[2]!.replaceAll(",", "")))).toEqual(A076227.slice(0, 17));
+    rows.forEach((r, j) => {
+      const scaled = (A076227[j]! * 10n ** 8n * 2n + (1n << BigInt(j))) / (1n << BigInt(j + 1)); // half up
+      expect(r[4]).toBe(`${scaled / 10n ** 8n}.${(scaled % 10n ** 8n).toString().padStart(8, "0")}`);
+    });
   });
 
   it("counts --by-odd --json agrees with counts text and A076227 at depth 32", async () => {

@@ -1,28 +1,89 @@
+// The exact counter against published tables and against a brute force over parity vectors.
 import { describe, expect, it } from "vitest";
-import { exactCounts } from "../src/core/exact.js";
+import { exactCounts, exactRows } from "../src/core/exact.js";
 import { makeMap, parseMap } from "../src/core/map.js";
-import { A076227, A100982, A100982_DEPTHS } from "./published.js";
+import type { CollatzMap } from "../src/core/map.js";
+import { A076227, A100982, A100982_DEPTHS } from "../src/core/published.js";
+
+/**
+ * Brute force written here: every parity vector of length K, walked step by step; a vector stops at
+ * the first j with q^m < 2^j (compared as BigInts). Returns live[j][m] and stopped[j][m].
+ */
+function bruteTable(map: CollatzMap, K: number): { live: bigint[][]; stopped: bigint[][] } {
+  const live = Array.from({ length: K + 1 }, (_, j) => new Array<bigint>(j + 1).fill(0n));
+  const stopped = Array.from({ length: K + 1 }, (_, j) => new Array<bigint>(j + 1).fill(0n));
+  const q = BigInt(map.q);
+  for (let w = 0; w < 1 << K; w++) {
+    let m = 0;
+    for (let j = 1; j <= K; j++) {
+      const prefixIsFirst = (w >> j) === 0; // count each prefix of length j once: by its zero extension
+      if ((w >> (j - 1)) & 1) m++;
+      if (q ** BigInt(m) < 1n << BigInt(j)) {
+        if (prefixIsFirst) stopped[j]![m]! += 1n;
+        break;
+      }
+      if (prefixIsFirst) live[j]![m]! += 1n;
+    }
+  }
+  live[0]![0] = 1n;
+  return { live, stopped };
+}
+
+function binomial(n: number, k: number): bigint {
+  let c = 1n;
+  for (let i = 0; i < k; i++) c = (c * BigInt(n - i)) / BigInt(i + 1);
+  return c;
+}
 
 describe("exact counter: sanity", () => {
   const levels = exactCounts(parseMap("3x+1"), 32).levels;
-  it("matches A076227 to depth 32", () => {
+  it("matches OEIS A076227 to depth 32 (https://oeis.org/A076227; terms checked against the published entry)", () => {
     expect(levels.map((l) => l.survivors)).toEqual(A076227);
   });
-  it("stops only at 1 + floor(m log2 3), with the A100982 counts", () => {
+  it("stops only at 1 + floor(m log2 3), with the counts of OEIS A100982 (https://oeis.org/A100982; terms checked against the published entry)", () => {
     const nonzero = levels.filter((l) => l.stopped > 0n);
     expect(nonzero.map((l) => l.depth)).toEqual(A100982_DEPTHS);
     expect(nonzero.map((l) => l.stopped)).toEqual(A100982);
   });
-  it("satisfies survivors(j) = 2 survivors(j-1) - stopped(j) (common practice)", () => {
+  it("survivors(j) = 2 survivors(j-1) - stopped(j) (common practice: every survivor has two children); survivors are summed from the (j, m) window, so this is a check", () => {
     for (let j = 1; j <= 32; j++) expect(levels[j]!.survivors).toBe(2n * levels[j - 1]!.survivors - levels[j]!.stopped);
   });
-  it("by-odd table sums to the level counts and is binomial before any stop (common practice)", () => {
-    const c = exactCounts(makeMap(5, 1), 20, { byOdd: true });
-    c.byOdd!.forEach((row, j) => {
-      expect(row.live.reduce((s, x) => s + x, 0n)).toBe(c.levels[j]!.survivors);
-      expect(row.stopped.reduce((s, x) => s + x, 0n)).toBe(c.levels[j]!.stopped);
+  for (const text of ["3x+1", "5x+1", "3x-1", "7x+3"]) {
+    it(`${text}: the (j, m) table equals a brute force over all 2^16 parity vectors`, () => {
+      const map = parseMap(text);
+      const K = 16;
+      const brute = bruteTable(map, K);
+      const c = exactCounts(map, K, { byOdd: true });
+      c.byOdd!.forEach((row, j) => {
+        for (let m = 0; m <= j; m++) {
+          const i = m - row.mLow;
+          expect(i >= 0 ? (row.live[i] ?? 0n) : 0n, `live(${j}, ${m})`).toBe(brute.live[j]![m]);
+          expect(i >= 0 ? (row.stopped[i] ?? 0n) : 0n, `stopped(${j}, ${m})`).toBe(brute.stopped[j]![m]);
+        }
+      });
     });
-    // 5x+1: the all-odd path survives; live(j, j) = 1 (common practice)
+  }
+  it("entries no lattice path can have stopped on the way to are binomial, C(j, m) (common practice)", () => {
+    for (const text of ["3x+1", "5x+1", "99x+1"]) {
+      const map = parseMap(text);
+      const q = BigInt(map.q);
+      const c = exactCounts(map, 40, { byOdd: true });
+      let checked = 0;
+      c.byOdd!.forEach((row, j) => {
+        for (let m = 0; m <= j; m++) {
+          // the fewest odd steps a path to (j, m) can have taken by depth i is max(0, m - (j - i))
+          let open = true;
+          for (let i = 1; i <= j && open; i++) if (q ** BigInt(Math.max(0, m - (j - i))) < 1n << BigInt(i)) open = false;
+          if (!open) continue;
+          checked++;
+          expect(m >= row.mLow ? row.live[m - row.mLow] : 0n, `live(${j}, ${m})`).toBe(binomial(j, m));
+        }
+      });
+      expect(checked).toBeGreaterThan(40);
+    }
+  });
+  it("5x+1: the all-odd path survives, live(j, j) = 1 (common practice)", () => {
+    const c = exactCounts(makeMap(5, 1), 20, { byOdd: true });
     expect(c.byOdd![20]!.live.at(-1)).toBe(1n);
   });
 });
@@ -31,14 +92,21 @@ describe("exact counter: special", () => {
   it("depth 0 is the single class, nothing stopped", () => {
     expect(exactCounts(parseMap("3x+1"), 0).levels).toEqual([{ depth: 0, survivors: 1n, stopped: 0n }]);
   });
-  it("reaches depth 10,000 with every class mod 2^K accounted for (conservation)", () => {
-    const levels = exactCounts(parseMap("3x+1"), 10_000).levels;
-    // every class mod 2^K either survives or stopped at some j <= K: sum stopped(j) 2^(K-j) + survivors(K) = 2^K
-    const K = 10_000n;
-    let total = levels[10_000]!.survivors;
-    for (const l of levels) total += l.stopped << (K - BigInt(l.depth));
-    expect(total).toBe(1n << K);
+  it("reaches depth 10,000 with every class mod 2^K accounted for (conservation: sum stopped(j) 2^(K-j) + survivors(K) = 2^K)", () => {
+    let total = 0n;
+    let last = 0n;
+    const K = 10_000;
+    for (const row of exactRows(parseMap("3x+1"), K)) {
+      total += row.stopped << BigInt(K - row.depth);
+      last = row.survivors;
+    }
+    expect(total + last).toBe(1n << BigInt(K));
   }, 60_000);
+  it("the streamed rows equal the collected counts", () => {
+    const map = parseMap("3x-1");
+    const rows = [...exactRows(map, 60)].map((r) => ({ depth: r.depth, survivors: r.survivors, stopped: r.stopped }));
+    expect(rows).toEqual(exactCounts(map, 60).levels);
+  });
   it("refuses depths out of range", () => {
     expect(() => exactCounts(parseMap("3x+1"), 10_001)).toThrow(/depth must be/);
     expect(() => exactCounts(parseMap("3x+1"), -1)).toThrow(/depth must be/);

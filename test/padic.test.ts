@@ -61,10 +61,27 @@ describe("padic: sanity", () => {
     expect(t.max * 2n).toBe(9232n); // T folds 3n+1 = 9232 and its halving into one step
   });
 
-  it("trajectories detect the cycle reached, here for a 10,000-bit start value", () => {
-    const t = trajectory(parseMap("3x+1"), 2n ** 200n - 1n);
-    expect(t.cycle?.min).toBe(1n);
-    const big = trajectory(parseMap("3x+1"), 2n ** 9999n - 1n, 10_000);
+  it("trajectories find the cycle when it is reached within the limit, and report none when it cannot be", () => {
+    const map = parseMap("3x+1");
+    // the step where a start first lands on a cycle, by plain iteration here
+    const entryInto = (start: bigint, onCycle: bigint) => {
+      const cycle = new Set<bigint>();
+      for (let v = onCycle; !cycle.has(v); v = T(3n, 1n, v)) cycle.add(v);
+      let v = start, steps = 0;
+      for (; !cycle.has(v); steps++) v = T(3n, 1n, v);
+      return { steps, period: cycle.size };
+    };
+    const e200 = entryInto(2n ** 200n - 1n, 1n);
+    expect(trajectory(map, 2n ** 200n - 1n).cycle).toEqual({ entry: e200.steps, min: 1n, period: 2, odd: 1 });
+    // 10,000-bit starts that must find their cycle: 2^9990 halves onto {1, 2} (at 2, step 9989);
+    // -17 * 2^5000 halves onto the cycle of -17 (period 11, common practice)
+    expect(entryInto(2n ** 9990n, 1n).steps).toBe(9989);
+    expect(trajectory(map, 2n ** 9990n, 10_000).cycle).toEqual({ entry: 9989, min: 1n, period: 2, odd: 1 });
+    const e17 = entryInto(-17n * 2n ** 5000n, -17n);
+    expect(e17.period).toBe(11);
+    expect(trajectory(map, -17n * 2n ** 5000n, 10_000).cycle).toMatchObject({ entry: e17.steps, min: -17n, period: 11 });
+    // 2^9999 - 1 takes 9999 odd steps up to 3^9999 - 1: no cycle can be reached within 10,000 steps
+    const big = trajectory(map, 2n ** 9999n - 1n, 10_000);
     expect(big.steps).toBe(10_000);
     expect(big.cycle).toBeNull();
   });

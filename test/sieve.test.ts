@@ -6,7 +6,7 @@ import { runSieve } from "../src/jobs/sieve/sieve.js";
 import { CancelledError } from "../src/engine/pool.js";
 import { LimitError } from "../src/core/errors.js";
 import { nodePool } from "../src/node/kernel.js";
-import { A076227 } from "./published.js";
+import { A076227 } from "../src/core/published.js";
 import { coefficientStop, kernelOf, rowSums, T } from "./helpers.js";
 
 const pool2 = await nodePool(2);
@@ -17,14 +17,17 @@ afterAll(() => {
 });
 
 describe("sieve on the pool: sanity", () => {
-  it("3x+1 survivors to depth 32 match A076227 (OEIS, from memory) and the exact counter", async () => {
+  it("3x+1 survivors to depth 32 match OEIS A076227 (published entry) and the exact counter", async () => {
     const res = await runSieve(pool2, { map: parseMap("3x+1"), depth: 32, mode: "survivors" });
     expect(res.levels.map((l) => l.survivors)).toEqual(A076227);
     expect(res.levels).toEqual(exactCounts(parseMap("3x+1"), 32).levels);
     // nodes visited = the root and every live class: sum of survivors(j) (common practice)
     expect(res.nodes).toBe(A076227.reduce((s, x) => s + x, 0n));
-    // the only positive exception for 3x+1 is n = 1 (Terras 1976, coefficient stopping time conjecture; common practice)
+    // Terras's coefficient stopping time conjecture (a conjecture, Terras 1976) says every n >= 2 descends
+    // at its coefficient stopping time. This run verifies it for every n whose class is cut by depth 32:
+    // the exceptions (members that do not descend at their class's cut) are exactly {1}.
     expect(res.exceptions).toEqual([{ n: 1n, residue: 1n, classDepth: 2 }]);
+    expect(res.exceptionCount).toBe(1n);
   });
 
   it("the (j, m) tallies equal the exact counter's by-odd table, in both modes (5x+1, 3x-1)", async () => {
@@ -139,30 +142,74 @@ describe("sieve on the pool: special", () => {
     dying.terminate();
   });
 
-  // Width boundaries: 3^40 < 2^64 < 3^41 and 5^27 < 2^64 < 5^28 (common practice).
-  for (const [text, limit] of [["3x+1", 40], ["5x+1", 27], ["3x-1", null], ["3x+5", null]] as const) {
-    it(`${text}: the deepest exact depth runs the extreme all-odd classes exactly; one deeper is refused`, async () => {
+  // Width boundaries. The bound is derived here, independently of src/core/map.ts: every image at
+  // depth j is b = T^j(a) for some a < 2^j, and every intermediate the kernel forms is b + q^m =
+  // T^j(a + 2^j) with a + 2^j < 2^(j+1). Since |T(v)| <= (q |v| + |r|) / 2, iterating that bound from
+  // the largest start bounds them all. A depth is safe when both fit the width (u64 for r > 0, i64
+  // for r < 0): 3^40 < 2^64 < 3^41 and 5^27 < 2^64 < 5^28 make 40 and 27 (common practice).
+  function independentLimit(q: bigint, r: bigint): number {
+    const top = r > 0n ? 1n << 64n : 1n << 63n;
+    const bound = (start: bigint, steps: number) => {
+      let x = start;
+      for (let i = 0; i < steps; i++) x = (q * x + (r < 0n ? -r : r) + 1n) / 2n;
+      return x;
+    };
+    let limit = 0;
+    for (let K = 1; K <= 63; K++) {
+      if (bound((1n << BigInt(K)) - 1n, K) >= top || bound((1n << BigInt(K)) - 1n, K - 1) >= top) break;
+      limit = K;
+    }
+    return limit;
+  }
+
+  /** The class of a parity word (first step first), built here bit by bit: (a, m, b). */
+  function classOfWord(q: bigint, r: bigint, word: number[]): { a: bigint; m: number; b: bigint } {
+    let a = 0n, b = 0n, qm = 1n, m = 0;
+    word.forEach((p, j) => {
+      const e = ((b % 2n) + 2n + BigInt(p)) % 2n; // makes b + e q^m have parity p (q^m odd)
+      const v = b + e * qm;
+      a += e << BigInt(j);
+      if (p === 0) b = v / 2n;
+      else {
+        b = (q * v + r) / 2n;
+        qm *= q;
+        m++;
+      }
+    });
+    return { a, m, b };
+  }
+
+  for (const [text, published] of [["3x+1", 40], ["5x+1", 27], ["3x-1", 39], ["3x+5", 40]] as const) {
+    it(`${text}: the limit depth is ${published} by an independent bound; the classes with the largest images run exactly there; one deeper is refused`, async () => {
       const map = parseMap(text);
-      const K = kernelDepthLimit(map);
-      if (limit !== null) expect(K).toBe(limit);
-      // the largest images: the shard of the all-ones prefix at depth K - 3 holds the all-odd path
+      const q = BigInt(map.q), r = BigInt(map.r);
+      const K = independentLimit(q, r);
+      expect(K).toBe(published);
+      expect(kernelDepthLimit(map)).toBe(K);
+      // The images nearest the bound, found here by a beam search over parity words: extend every
+      // kept class by both bits, keep the 128 of largest |b|; the six largest at depth K are checked.
+      const abs = (x: bigint) => (x < 0n ? -x : x);
+      let beam: number[][] = [[]];
+      for (let j = 0; j < K; j++) {
+        const next = beam.flatMap((w) => [[...w, 0], [...w, 1]]);
+        next.sort((u, v) => (abs(classOfWord(q, r, u).b) > abs(classOfWord(q, r, v).b) ? -1 : 1));
+        beam = next.slice(0, 128);
+      }
+      const extreme = beam.slice(0, 6).map((w) => classOfWord(q, r, w));
+      const top = r > 0n ? 1n << 64n : 1n << 63n;
+      expect(abs(extreme[0]!.b)).toBeGreaterThan(top / 16n); // near the bound (3x-1: its q^39 intermediates are the binding ones)
       const kernel = await kernelOf("debug");
       const d = K - 3;
-      const leaves: { a: bigint; m: number; b: bigint }[] = [];
-      kernel.enumerate({ q: map.q, r: map.r, depth: K, mode: "full", prefixBits: d, prefix: (1n << BigInt(d)) - 1n, leaves: true, walkTallies: false }, (c) => {
-        for (let i = 0; i < c.a.length; i++) leaves.push({ a: c.a[i]!, m: c.m[i]!, b: BigInt(c.b[i]!) });
-      });
-      expect(leaves.length).toBe(8);
-      const q = BigInt(map.q), r = BigInt(map.r);
-      for (const leaf of leaves) {
-        let v = leaf.a;
-        let m = 0;
-        for (let s = 0; s < K; s++) {
-          if (((v % 2n) + 2n) % 2n === 1n) m++;
-          v = T(q, r, v);
-        }
-        expect(leaf.m).toBe(m);
-        expect(leaf.b).toBe(v);
+      for (const c of extreme) {
+        const found: { a: bigint; m: number; b: bigint }[] = [];
+        kernel.enumerate({ q: map.q, r: map.r, depth: K, mode: "full", prefixBits: d, prefix: c.a & ((1n << BigInt(d)) - 1n), leaves: true, walkTallies: false }, (chunk) => {
+          for (let i = 0; i < chunk.a.length; i++) if (chunk.a[i] === c.a) found.push({ a: chunk.a[i]!, m: chunk.m[i]!, b: BigInt(chunk.b[i]!) });
+        });
+        expect(found).toEqual([c]);
+        // and (m, b) is T^K of the residue itself, by plain iteration
+        let v = c.a;
+        for (let i = 0; i < K; i++) v = T(q, r, v);
+        expect(v).toBe(c.b);
       }
       await expect(runSieve(pool2, { map, depth: K + 1, mode: "survivors" })).rejects.toBeInstanceOf(LimitError);
       await expect(runSieve(pool2, { map, depth: K + 1, mode: "survivors" })).rejects.toThrow(/beyond the exact 64-bit range/);

@@ -22,6 +22,16 @@ function iterateBig(map: CollatzMap, n: bigint, k: number): bigint {
   return n;
 }
 
+/** floor(4 log2(v / a)) for positive a, v, decided here by integer comparisons: 2^k a^4 <= v^4 < 2^(k+1) a^4. */
+function quarterBin(a: bigint, v: bigint): number {
+  const A = a ** 4n, V = v ** 4n;
+  const atMost = (k: number) => (k >= 0 ? A << BigInt(k) <= V : A <= V << BigInt(-k)); // 2^k a^4 <= v^4
+  let k = 0;
+  if (atMost(0)) while (atMost(k + 1)) k++;
+  else while (!atMost(k)) k--;
+  return k;
+}
+
 /** Cycles reached from every start value with |n| <= bound, by direct iteration (a set of seen values). */
 function bruteCycles(map: CollatzMap, bound: number, maxPeriod: number): Map<bigint, number> {
   const found = new Map<bigint, number>();
@@ -100,6 +110,7 @@ describe("census: brute force", () => {
       const peak = new Map<string, bigint>();
       const bins = new Map<number, bigint>();
       let nonpositive = 0n, differ = 0n;
+      const differList: bigint[] = []; // ascending, since a runs upwards
       let best = { n: 1n, value: 1n };
       for (let a = 0n; a < 1n << BigInt(K); a++) {
         // the vector of class a is a's own parity vector (Terras); its peak of q^m/2^j, exactly
@@ -118,9 +129,12 @@ describe("census: brute force", () => {
           if (v > 0n && v * best.n > best.value * a) best = { n: a, value: v };
         }
         if (v <= 0n) nonpositive++;
-        else bins.set(quarterLog2(a, v), (bins.get(quarterLog2(a, v)) ?? 0n) + 1n);
+        else bins.set(quarterBin(a, v), (bins.get(quarterBin(a, v)) ?? 0n) + 1n);
         const stop = coefficientStop(map, a, K);
-        if ((stop?.j ?? null) !== descent) differ++;
+        if ((stop?.j ?? null) !== descent) {
+          differ++;
+          if (differList.length < 1000) differList.push(a);
+        }
       }
       const kernelPeak = new Map<string, bigint>();
       c.peak.forEach((row, j) => row.forEach((n, m) => n > 0n && kernelPeak.set(`${j},${m}`, n)));
@@ -129,8 +143,33 @@ describe("census: brute force", () => {
       expect(c.nonpositive).toBe(nonpositive);
       expect(c.differ.count).toBe(differ);
       expect(c.maxRatio.value * best.n).toBe(best.value * c.maxRatio.n);
+      expect(c.maxRatio.n).toBe(best.n); // ties: the smallest member (best only moves on a strictly larger ratio)
+      expect(c.differ.listed.map((d) => d.n)).toEqual(differList.slice(0, c.differ.limit));
     });
   }
+  it("capped lists are the smallest entries and deterministic: 3x-1001 at depth 14 (over 1,000 members differ)", async () => {
+    const map = parseMap("3x-1001");
+    const K = 14;
+    const brute: bigint[] = [];
+    for (let a = 1n; a < 1n << BigInt(K); a++) {
+      let v = a, descent: number | null = null;
+      for (let j = 1; j <= K && descent === null; j++) {
+        v = T(3n, -1001n, v);
+        if (v < a) descent = j;
+      }
+      if ((coefficientStop(map, a, K)?.j ?? null) !== descent) brute.push(a);
+    }
+    expect(brute.length).toBeGreaterThan(1000);
+    const first = await runCensus(pool, map, K);
+    const second = await runCensus(pool, map, K);
+    expect(first.differ.count).toBe(BigInt(brute.length));
+    expect(first.differ.listed.map((d) => d.n)).toEqual(brute.slice(0, 1000));
+    expect(second.differ.listed).toEqual(first.differ.listed);
+  });
+  it("the largest ratio's ties go to the smallest n: 3x-7 at depth 2 is T^0(1)/1 = 1 (every member descends)", async () => {
+    const c = await runCensus(pool, parseMap("3x-7"), 2);
+    expect(c.maxRatio).toEqual({ n: 1n, step: 0, value: 1n });
+  });
   it("quarter-unit log2 is exact at the edges: log2(2^(5/4)) boundary cases (common practice)", () => {
     expect(quarterLog2(1n, 1n)).toBe(0);
     expect(quarterLog2(1n, 2n)).toBe(4);

@@ -8,6 +8,7 @@ import { runSieve } from "../src/jobs/sieve/sieve.js";
 import { nodePool } from "../src/node/kernel.js";
 import { toExactJson, parseExactJson } from "../src/outputs/json.js";
 import { sortBig } from "./helpers.js";
+import { classTableArrow } from "../src/outputs/arrow.js";
 
 function chunkOf(residues: bigint[]): LeafChunk {
   return { a: BigUint64Array.from(residues), b: new BigUint64Array(residues.length), m: new Uint8Array(residues.length) };
@@ -71,5 +72,24 @@ describe("json: exact integers", () => {
     const text = toExactJson({ n: 2n ** 70n, m: -5n, s: "a\"b", f: 0.5 });
     expect(text).toBe('{"n":1180591620717411303424,"m":-5,"s":"a\\"b","f":0.5}');
     expect(parseExactJson(text)).toEqual({ n: 2n ** 70n, m: -5n, s: 'a"b', f: 0.5 });
+  });
+});
+
+describe("Arrow class tables: the image column takes the kernel's width", () => {
+  it("3x+1 at depth 40: the all-odd class's image 3^40 - 1 >= 2^63 is kept exactly as uint64 (common practice: 3^40 < 2^64)", async () => {
+    const { tableFromIPC, Type } = await import("apache-arrow");
+    const image = 3n ** 40n - 1n; // T^40(2^40 - 1) for 3x+1: 40 odd steps
+    let v = (1n << 40n) - 1n;
+    for (let i = 0; i < 40; i++) v = v % 2n === 0n ? v / 2n : (3n * v + 1n) / 2n;
+    expect(v).toBe(image);
+    expect(image >= 1n << 63n).toBe(true);
+    const t = tableFromIPC(classTableArrow([{ residue: (1n << 40n) - 1n, odd: 40, image }], 40, false));
+    expect(t.schema.fields.find((f) => f.name === "image")!.type.typeId).toBe(Type.Int);
+    expect((t.schema.fields.find((f) => f.name === "image")!.type as { isSigned: boolean }).isSigned).toBe(false);
+    expect(t.getChild("image")!.get(0)).toBe(image);
+    // r < 0: signed, and a value that does not fit is refused rather than wrapped
+    const s = tableFromIPC(classTableArrow([{ residue: 3n, odd: 1, image: -7n }], 4, true));
+    expect(s.getChild("image")!.get(0)).toBe(-7n);
+    expect(() => classTableArrow([{ residue: 3n, odd: 1, image: 1n << 63n }], 4, true)).toThrow(/does not fit int64/);
   });
 });

@@ -5,7 +5,7 @@ import type { BrowserContext, Page } from "playwright-core";
 import { parseExactJson } from "../../src/outputs/json.js";
 import { parseCsv } from "../../src/outputs/tables.js";
 import { parseMap } from "../../src/core/map.js";
-import { A076227 } from "../published.js";
+import { A076227 } from "../../src/core/published.js";
 import { coefficientStop, T } from "../helpers.js";
 import { CHROMIUM, launch, serveDist, summaryOf } from "./harness.js";
 import { requireProgram } from "../system.js";
@@ -44,7 +44,7 @@ const summary = async (page: Page) => parseExactJson(await summaryOf(page)) as S
 const stable = (s: Summary): unknown => JSON.parse(JSON.stringify(s, (k, v: unknown) => (k === "seconds" ? 0 : typeof v === "bigint" ? v.toString() : v)));
 
 describe.skipIf(!hasChromium)("web app", () => {
-  it("runs a depth-20 sieve whose table agrees with A076227 (OEIS, from memory)", async () => {
+  it("runs a depth-20 sieve whose table agrees with OEIS A076227 (published entry)", async () => {
     const page = await open();
     await page.fill("#run-depth", "20");
     await page.click("#run-start");
