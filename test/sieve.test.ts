@@ -113,6 +113,36 @@ describe("sieve on the pool: special", () => {
     expect(again.levels[20]!.survivors).toBe(A076227[20]);
   });
 
+  it("the pool owner queues a job asked for during another, and resizes only between jobs", async () => {
+    const { PoolOwner } = await import("../src/engine/pool.js");
+    const made: number[] = [];
+    const owner = new PoolOwner(async (n) => {
+      made.push(n);
+      return nodePool(n);
+    });
+    const order: string[] = [];
+    const map = parseMap("3x+1");
+    const long = owner.use(2, async (pool) => {
+      const r = await runSieve(pool, { map, depth: 33, mode: "survivors" });
+      order.push("long");
+      return r;
+    });
+    const resized = owner.use(1, async (pool) => {
+      order.push(`short on ${pool.size}`);
+      return runSieve(pool, { map, depth: 20, mode: "survivors" });
+    });
+    expect(owner.pending).toBe(2);
+    const [a, b] = await Promise.all([long, resized]);
+    expect(order).toEqual(["long", "short on 1"]); // the running job was not stopped by the resize
+    expect(a.levels.map((l) => l.survivors)).toEqual(exactCounts(map, 33).levels.map((l) => l.survivors));
+    expect(b.levels[20]!.survivors).toBe(A076227[20]);
+    expect(made).toEqual([2, 1]);
+    // a job that fails does not block the next one
+    await expect(owner.use(1, async () => Promise.reject(new Error("boom")))).rejects.toThrow("boom");
+    expect((await owner.use(1, (pool) => runSieve(pool, { map, depth: 12, mode: "survivors" }))).levels[12]!.survivors).toBe(A076227[12]);
+    owner.terminate();
+  });
+
   it("a worker that fails rejects the run with a real Error, and the pool recovers (debug build assertions)", async () => {
     const debugPool = await nodePool(2, "debug");
     try {

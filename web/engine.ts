@@ -2,9 +2,9 @@
 // comlink, and the runs the views start. Arithmetic stays in src/; this file only wires it up.
 import wasmUrl from "../build/release.wasm?url";
 import { compileKernel } from "../src/engine/loader.js";
-import { KernelPool } from "../src/engine/pool.js";
-import type { RunOptions, SpawnWorker, WorkerHandle } from "../src/engine/pool.js";
-import { wrap } from "comlink";
+import { KernelPool, PoolOwner } from "../src/engine/pool.js";
+import type { SpawnWorker, WorkerHandle } from "../src/engine/pool.js";
+import { releaseProxy, wrap } from "comlink";
 import type { KernelWorkerApi } from "../src/engine/messages.js";
 
 const spawn: SpawnWorker = (): WorkerHandle => {
@@ -33,16 +33,20 @@ export async function kernelBuildId(): Promise<string> {
   return Array.from(new Uint8Array(d).slice(0, 8), (x) => x.toString(16).padStart(2, "0")).join("");
 }
 
-let pool: KernelPool | null = null;
-let poolSize = 0;
-/** The shared pool, rebuilt when the worker count changes. */
-export async function getPool(workers: number): Promise<KernelPool> {
-  if (!pool || poolSize !== workers) {
-    pool?.terminate();
-    pool = new KernelPool(spawn, await kernelModule(), workers);
-    poolSize = workers;
-  }
-  return pool;
+/** The page's one pool: jobs take turns on it, and a new worker count applies between jobs. */
+const owner = new PoolOwner(async (size) => new KernelPool(spawn, await kernelModule(), size));
+
+/**
+ * Runs `work` on the page's pool of `workers` workers, after any job already running there.
+ * @example await withPagePool(2, (pool) => runSieve(pool, req, options));
+ */
+export function withPagePool<T>(workers: number, work: (pool: KernelPool) => Promise<T>): Promise<T> {
+  return owner.use(workers, work);
+}
+
+/** Jobs running or waiting on the page's pool. */
+export function pagePoolPending(): number {
+  return owner.pending;
 }
 
 /** A one-off worker for exports (so the page never does the BigInt work itself). */
@@ -52,6 +56,7 @@ export async function withExportWorker<T>(work: (api: ReturnType<typeof wrap<Ker
   try {
     return await work(api);
   } finally {
+    api[releaseProxy]();
     h.terminate();
   }
 }
@@ -60,4 +65,3 @@ export function defaultWorkers(): number {
   return Math.max(1, Math.min(16, navigator.hardwareConcurrency || 2));
 }
 
-export type { RunOptions };

@@ -119,6 +119,11 @@ export class KernelPool {
     }
   }
 
+  /** Whether a run is in progress. */
+  get running(): boolean {
+    return this.busy;
+  }
+
   /** Stops every worker at once; the next run spawns fresh ones. */
   terminate(): void {
     for (const s of this.slots) {
@@ -126,5 +131,49 @@ export class KernelPool {
       s.handle.terminate();
     }
     this.slots = [];
+  }
+}
+
+/**
+ * Owns the one pool of a page (or a process) and runs work on it one job at a time: a job asked for
+ * while another runs waits its turn, and a new worker count takes effect between jobs, never by
+ * stopping one that is running.
+ * @example const owner = new PoolOwner((n) => makePool(n)); await owner.use(2, (pool) => runSieve(pool, req));
+ */
+export class PoolOwner {
+  private pool: KernelPool | null = null;
+  private tail: Promise<unknown> = Promise.resolve();
+  private queued = 0;
+
+  constructor(private readonly make: (size: number) => Promise<KernelPool>) {}
+
+  /** Jobs running or waiting. */
+  get pending(): number {
+    return this.queued;
+  }
+
+  /** Runs `work` on a pool of `size` workers once every earlier job has ended (however it ended). */
+  use<T>(size: number, work: (pool: KernelPool) => Promise<T>): Promise<T> {
+    this.queued++;
+    const job = this.tail.then(async () => {
+      try {
+        if (!this.pool || this.pool.size !== size) {
+          this.pool?.terminate();
+          this.pool = null;
+          this.pool = await this.make(size);
+        }
+        return await work(this.pool);
+      } finally {
+        this.queued--;
+      }
+    });
+    this.tail = job.catch(() => {});
+    return job;
+  }
+
+  /** Stops the workers (between jobs: a running job fails with the pool). */
+  terminate(): void {
+    this.pool?.terminate();
+    this.pool = null;
   }
 }

@@ -6,10 +6,15 @@ import type { ClassForm } from "../core/padic.js";
 import { bitLength } from "../core/arith.js";
 import { plural } from "./format.js";
 
+/** The right side q^m·x + b of a class's affine form. @example affineText(3, 2, 2n) // "3^2·x + 2" */
+export function affineText(q: number, odd: number, image: bigint): string {
+  return `${q}^${odd}·x ${image < 0n ? `- ${-image}` : `+ ${image}`}`;
+}
+
 function affine(f: ClassForm): string {
   const q = BigInt(f.map.q) ** BigInt(f.odd);
   const b = f.image < 0n ? ` - ${-f.image}` : ` + ${f.image}`;
-  return `T^${f.k}(${f.residue} + 2^${f.k}·x) = ${f.map.q}^${f.odd}·x${b}` + (f.k <= 64 ? `   (${q}·x${b})` : "");
+  return `T^${f.k}(${f.residue} + 2^${f.k}·x) = ${affineText(f.map.q, f.odd, f.image)}` + (f.k <= 64 ? `   (${q}·x${b})` : "");
 }
 
 /** s itself, or its first n characters and its length. */

@@ -72,6 +72,26 @@ describe.skipIf(!hasChromium)("web app", () => {
     await page.close();
   });
 
+  it("a worker-count change and a cycle search during a run wait their turn: the run completes, then the search", async () => {
+    const page = await open("?mode=full&depth=29");
+    await page.click("#run-start");
+    await page.waitForFunction(() => (document.querySelector("#run-progress") as HTMLProgressElement).value > 0, undefined, { timeout: 30_000 });
+    await page.fill("#run-workers", "1");
+    await page.click("#tab-cycles");
+    await page.fill("#cycles-map", "3x+1");
+    await page.fill("#cycles-period", "16");
+    await page.click("#cycles-go");
+    const s = await summary(page);
+    expect(s.census?.agreesWithExactCounter).toBe(true);
+    expect(s.levels[29]!.survivors).toBe(A076227[29]);
+    await page.waitForFunction(() => /integer cycles of 3x\+1/.test(document.querySelector("#cycles-message")!.textContent ?? ""), undefined, { timeout: 60_000 });
+    // 3x+1 to period 16: the cycles of 1, -1, -5 and -17 (common practice)
+    const reps = await page.$$eval("#cycles-table tbody tr", (rows) => rows.map((r) => r.children[2]!.textContent));
+    expect(reps).toEqual(["1", "-1", "-5", "-17"]);
+    expect(await page.textContent("#run-status")).toMatch(/^Done in/);
+    await page.close();
+  });
+
   it("exports the class table as CSV: each row's (m, b) is the class's affine form (BigInt check)", async () => {
     const page = await open("?depth=12&run=1");
     await summaryOf(page);
@@ -142,9 +162,13 @@ describe.skipIf(!hasChromium)("web app", () => {
     await page.click("#run-start");
     expect(await page.textContent("#run-map-error")).toMatch(/q must be odd/);
     await page.fill("#run-map", "3x+1");
-    await page.fill("#run-depth", "40");
+    await page.fill("#run-depth", "41");
     await page.click("#run-start");
-    expect(await page.textContent("#run-depth-error")).toMatch(/from 1 to 32/);
+    expect(await page.textContent("#run-depth-error")).toMatch(/beyond the exact range for 3x\+1 in survivors mode \(at most 40\)/);
+    await page.selectOption("#run-mode", "full");
+    await page.fill("#run-depth", "33");
+    await page.click("#run-start");
+    expect(await page.textContent("#run-depth-error")).toMatch(/in census mode \(at most 32\)/);
     await page.click("#tab-inspect");
     await page.fill("#inspect-input", "w:1021");
     await page.click("#inspect-go");

@@ -1,32 +1,44 @@
 // The run view: map, depth and mode in; per-depth table, exceptions, charts and the run summary out.
-import { parseMap, checkKernelDepth, kernelDepthLimit } from "../../src/core/map.js";
+import { parseMap, kernelDepthLimit } from "../../src/core/map.js";
 import type { CollatzMap } from "../../src/core/map.js";
 import { exactCounts } from "../../src/core/exact.js";
 import type { Level } from "../../src/core/exact.js";
 import { runSieve } from "../../src/jobs/sieve/sieve.js";
+import type { Mode } from "../../src/engine/messages.js";
+import type { RunOptions } from "../../src/engine/pool.js";
 import type { SieveResult } from "../../src/jobs/sieve/sieve.js";
-import { runCensus } from "../../src/jobs/census/census.js";
+import { MAX_CENSUS_DEPTH, runCensus } from "../../src/jobs/census/census.js";
 import type { CensusResult } from "../../src/jobs/census/census.js";
-import { CancelledError } from "../../src/engine/pool.js";
-import { ResidueSorter } from "../../src/outputs/tables.js";
+import { passPlan, ResidueSorter } from "../../src/outputs/tables.js";
 import { censusJson, log2Coefficient, sieveJson } from "../../src/outputs/summary.js";
 import { toExactJson } from "../../src/outputs/json.js";
 import { A076227 } from "../../src/core/published.js";
-import { group } from "../../src/outputs/format.js";
-import { getPool } from "../engine.js";
+import { density, group } from "../../src/outputs/format.js";
+import { pagePoolPending, withPagePool } from "../engine.js";
+import { RunController } from "../controller.js";
 import { drawCensus, drawDensity, drawHeat, drawStopped } from "./charts.js";
 import { showTable } from "./table.js";
 import type { PageState } from "../state.js";
 import { $, fieldError } from "../dom.js";
 
-/** Memory a run may take for its class table (4 bytes a residue, twice while sorting). */
+/** Memory a run may take for its class table (the sorter's bytes per residue; kept in one pass). */
 const TABLE_BUDGET = 1.5 * 2 ** 30;
+/** Deepest class table the page keeps (residues as u32); by default only up to TABLE_DEFAULT_DEPTH. */
+const TABLE_MAX_DEPTH = 32;
+const TABLE_DEFAULT_DEPTH = 30;
 
 export interface RunRequest {
   readonly map: CollatzMap;
   readonly depth: number;
-  readonly mode: "survivors" | "full";
+  readonly mode: Mode;
   readonly workers: number;
+  /** Keep the class table (survivors mode). */
+  readonly withTable: boolean;
+}
+
+/** The deepest run the library allows for this map and mode (the census also within its own cap). */
+export function depthLimit(map: CollatzMap, mode: Mode): number {
+  return mode === "full" ? Math.min(MAX_CENSUS_DEPTH, kernelDepthLimit(map, "i64")) : kernelDepthLimit(map);
 }
 
 /** Reads and checks the form; errors appear beside the fields and nothing runs. */
@@ -38,19 +50,20 @@ export function readRunForm(): RunRequest | null {
   } catch (e) {
     fieldError("run-map", (e as Error).message);
   }
-  const mode = ($("run-mode") as HTMLSelectElement).value === "full" ? "full" : "survivors";
+  const mode: Mode = ($("run-mode") as HTMLSelectElement).value === "full" ? "full" : "survivors";
   const text = ($("run-depth") as HTMLInputElement).value.trim();
-  const max = mode === "full" ? 30 : 32;
   const depth = Number(text);
-  let ok = /^\d+$/.test(text) && depth >= 1 && depth <= max;
-  if (!ok) fieldError("run-depth", `depth must be a whole number from 1 to ${max} in ${mode === "full" ? "census" : "survivors"} mode`);
+  let ok = /^\d+$/.test(text) && depth >= 1;
+  if (!ok) fieldError("run-depth", "depth must be a whole number from 1 up");
   else if (map) {
-    const limit = mode === "full" ? kernelDepthLimit(map, "i64") : kernelDepthLimit(map);
+    const limit = depthLimit(map, mode);
     ok = depth <= limit;
-    fieldError("run-depth", ok ? "" : `depth ${depth} is beyond the exact 64-bit range for ${map.name} (at most ${limit})`);
+    fieldError("run-depth", ok ? "" : `depth ${depth} is beyond the exact range for ${map.name} in ${mode === "full" ? "census" : "survivors"} mode (at most ${limit})`);
   }
+  const keep = ($("run-keep-table") as HTMLInputElement).checked;
+  const withTable = mode === "survivors" && (depth <= TABLE_DEFAULT_DEPTH || (keep && depth <= TABLE_MAX_DEPTH));
   const workers = Math.max(1, Math.min(16, Number(($("run-workers") as HTMLInputElement).value) || 1));
-  return map && ok ? { map, depth, mode, workers } : null;
+  return map && ok ? { map, depth, mode, workers, withTable } : null;
 }
 
 function renderLevels(map: CollatzMap, levels: readonly Level[]): void {
@@ -64,8 +77,7 @@ function renderLevels(map: CollatzMap, levels: readonly Level[]): void {
           ? "<td>–</td><td></td>"
           : `<td>${group(pub)}</td><td class="${pub === l.survivors ? "ok" : "bad"}" aria-label="${pub === l.survivors ? "agrees" : "differs"}">${pub === l.survivors ? "✓" : "✗"}</td>`
         : "";
-      const density = (Number(l.survivors) / 2 ** l.depth).toPrecision(6);
-      return `<tr><td>${l.depth}</td><td>${group(l.survivors)}</td><td>${group(l.stopped)}</td><td>${density}</td>${cells}</tr>`;
+      return `<tr><td>${l.depth}</td><td>${group(l.survivors)}</td><td>${group(l.stopped)}</td><td>${density(l.survivors, l.depth)}</td>${cells}</tr>`;
     })
     .join("");
   $("run-levels").innerHTML = head + `<tbody>${body}</tbody>`;
@@ -88,96 +100,81 @@ function renderCensus(c: CensusResult): void {
     `. Largest T^j(a)/a: T^${c.maxRatio.step}(${c.maxRatio.n}) = ${c.maxRatio.value}.</p>`;
 }
 
-let controller: AbortController | null = null;
+const controller = new RunController({ start: "run-start", cancel: "run-cancel", progress: "run-progress", status: "run-status", message: "run-message" });
+
+/** What a run gives the page: the sieve (always), the census (full mode), the class table (when kept). */
+interface RunResult {
+  readonly sieve: SieveResult;
+  readonly census: CensusResult | null;
+  readonly residues: Uint32Array | null;
+}
+
+/** Runs the request's jobs on the page's pool (after any job already running there). */
+async function executeRun(req: RunRequest, rows: bigint, options: RunOptions): Promise<RunResult> {
+  const { map, depth, mode } = req;
+  return withPagePool(req.workers, async (pool) => {
+    if (mode === "full") {
+      const census = await runCensus(pool, map, depth, options);
+      const sieve = await runSieve(pool, { map, depth, mode: "survivors" }, { signal: options.signal });
+      return { sieve, census, residues: null };
+    }
+    if (!req.withTable) return { sieve: await runSieve(pool, { map, depth, mode }, options), census: null, residues: null };
+    const plan = passPlan(depth, rows, TABLE_BUDGET);
+    const sorter = new ResidueSorter(depth, plan.bucketBits, 0, 1 << plan.bucketBits);
+    const sieve = await runSieve(pool, { map, depth, mode, onLeaves: (c) => sorter.add(c), residuesOnly: true }, options);
+    return { sieve, census: null, residues: await collectSorted(sorter, Number(rows)) };
+  });
+}
 
 /** Starts a run; resolves when it has finished, failed or been cancelled. */
 export async function startRun(req: RunRequest, onState: (s: Partial<PageState>) => void): Promise<void> {
   const { map, depth, mode } = req;
   const exact = exactCounts(map, depth).levels;
-  const tableRows = exact[depth]!.survivors;
-  const withTable = mode === "survivors" && (depth <= 30 || ($("run-keep-table") as HTMLInputElement).checked);
-  const bytes = Number(tableRows) * 8;
-  const message = $("run-message");
-  message.className = "message";
-  if (withTable && bytes > TABLE_BUDGET) {
-    message.className = "message bad";
-    message.textContent = `This run's class table needs about ${Math.round(bytes / 2 ** 20)} MiB, more than the ${Math.round(TABLE_BUDGET / 2 ** 20)} MiB this page allows; choose a smaller depth.`;
+  const rows = exact[depth]!.survivors;
+  if (req.withTable && passPlan(depth, rows, TABLE_BUDGET).passes > 1) {
+    controller.say(`This run's class table of ${group(rows)} rows needs more than the ${Math.round(TABLE_BUDGET / 2 ** 20)} MiB this page allows; untick the class table or choose a smaller depth.`, true);
     return;
   }
-  checkKernelDepth(map, depth);
   onState({ map: map.name, depth, mode, workers: req.workers });
-  controller = new AbortController();
-  const started = performance.now();
-  const progress = $("run-progress") as HTMLProgressElement;
-  const status = $("run-status");
-  ($("run-start") as HTMLButtonElement).disabled = true;
-  ($("run-cancel") as HTMLButtonElement).disabled = false;
-  progress.value = 0;
-  status.textContent = "Starting workers...";
-  message.textContent = "";
   $("run-summary").textContent = "";
-  const onProgress = (done: number, total: number) => {
-    const elapsed = (performance.now() - started) / 1000;
-    progress.value = done / total;
-    const remaining = done > 0 ? (elapsed * (total - done)) / done : NaN;
-    status.textContent = `${done} of ${total} shards, ${elapsed.toFixed(1)} s elapsed${Number.isFinite(remaining) ? `, about ${remaining.toFixed(1)} s left` : ""}`;
-  };
-  try {
-    const pool = await getPool(req.workers);
-    const options = { signal: controller.signal, onProgress };
-    let sieve: SieveResult;
-    let census: CensusResult | null = null;
-    let residues: Uint32Array | null = null;
-    if (mode === "full") {
-      census = await runCensus(pool, map, depth, options);
-      sieve = await runSieve(pool, { map, depth, mode: "survivors" }, { signal: controller.signal });
-    } else {
-      const sorter = new ResidueSorter(depth, Math.min(depth, 10), 0, 1 << Math.min(depth, 10));
-      sieve = await runSieve(pool, { map, depth, mode: "survivors", ...(withTable ? { onLeaves: (c) => sorter.add(c), residuesOnly: true } : {}) }, options);
-      if (withTable) residues = await collectSorted(sorter, Number(tableRows));
-    }
-    const seconds = (performance.now() - started) / 1000;
-    const levels = census ? census.levels : sieve.levels;
-    const last = levels[depth]!;
-    $("run-headline").innerHTML =
-      `Survivors mod 2^${depth}: <strong>${group(last.survivors)}</strong> of ${group(1n << BigInt(depth))} classes ` +
-      `<span class="sub">${map.name}: density ${(Number(last.survivors) / 2 ** depth).toPrecision(6)}, ` +
-      `${group(census ? census.nodes : sieve.nodes)} nodes in ${seconds.toFixed(2)} s (${req.workers} worker${req.workers === 1 ? "" : "s"})` +
-      `${map.q === 3 && map.r === 1 && A076227[depth] !== undefined ? `; A076227 ${A076227[depth] === last.survivors ? "agrees" : "DIFFERS"}` : ""}</span>`;
-    renderLevels(map, levels);
-    renderExceptions(sieve);
-    // one chart per task, so that no single task keeps the page busy for long
-    for (const el of document.querySelectorAll<HTMLElement>(".census-only")) el.hidden = !census;
-    for (const draw of [() => drawDensity(levels, exact), () => drawStopped(levels), () => drawHeat(census ? census.live : sieve.live)]) {
-      await yieldToPage();
-      draw();
-    }
-    $("run-census").innerHTML = "";
-    if (census) {
-      await yieldToPage();
-      renderCensus(census);
-    }
+  const waiting = pagePoolPending() > 0 ? "Waiting for the job already running..." : "Starting workers...";
+  const out = await controller.run((options) => executeRun(req, rows, options), waiting);
+  if (out.ok) await renderRun(req, out.value, exact, out.seconds);
+}
+
+/** Puts a finished run on the page: headline, table, exceptions, charts (one per task), summary. */
+async function renderRun(req: RunRequest, r: RunResult, exact: readonly Level[], seconds: number): Promise<void> {
+  const { map, depth, mode } = req;
+  const { sieve, census, residues } = r;
+  const levels = census ? census.levels : sieve.levels;
+  const last = levels[depth]!;
+  $("run-headline").innerHTML =
+    `Survivors mod 2^${depth}: <strong>${group(last.survivors)}</strong> of ${group(1n << BigInt(depth))} classes ` +
+    `<span class="sub">${map.name}: density ${density(last.survivors, depth)}, ` +
+    `${group(census ? census.nodes : sieve.nodes)} nodes in ${seconds.toFixed(2)} s (${req.workers} worker${req.workers === 1 ? "" : "s"})` +
+    `${map.q === 3 && map.r === 1 && A076227[depth] !== undefined ? `; A076227 ${A076227[depth] === last.survivors ? "agrees" : "DIFFERS"}` : ""}</span>`;
+  renderLevels(map, levels);
+  renderExceptions(sieve);
+  for (const el of document.querySelectorAll<HTMLElement>(".census-only")) el.hidden = !census;
+  for (const draw of [() => drawDensity(levels, exact), () => drawStopped(levels), () => drawHeat(census ? census.live : sieve.live)]) {
     await yieldToPage();
-    showTable(residues ? { map, depth, residues } : null);
-    if (!residues && mode === "survivors") $("table-caption").textContent = `The class table of this run was not kept (depth ${depth} > 30): tick "Class table above depth 30" to keep it.`;
-    const summary = { ...sieveJson(sieve), mode, seconds: Number(seconds.toFixed(3)), ...(census ? { nodes: census.nodes, census: censusJson(census) } : {}) };
-    $("run-summary").textContent = toExactJson(summary);
-    progress.value = 1;
-    status.textContent = `Done in ${seconds.toFixed(2)} s.`;
-  } catch (e) {
-    progress.value = 0;
-    if (e instanceof CancelledError) {
-      status.textContent = "Cancelled.";
-    } else {
-      status.textContent = "Failed.";
-      message.className = "message bad";
-      message.textContent = `The run stopped: ${(e as Error).message}`;
-    }
-  } finally {
-    controller = null;
-    ($("run-start") as HTMLButtonElement).disabled = false;
-    ($("run-cancel") as HTMLButtonElement).disabled = true;
+    draw();
   }
+  $("run-census").innerHTML = "";
+  if (census) {
+    await yieldToPage();
+    renderCensus(census);
+  }
+  await yieldToPage();
+  showTable(residues ? { map, depth, residues } : null);
+  if (!residues && mode === "survivors") {
+    $("table-caption").textContent =
+      depth > TABLE_MAX_DEPTH
+        ? `The class table is kept up to depth ${TABLE_MAX_DEPTH}.`
+        : `The class table of this run was not kept (depth ${depth} > ${TABLE_DEFAULT_DEPTH}): tick "Class table above depth ${TABLE_DEFAULT_DEPTH}" to keep it.`;
+  }
+  const summary = { ...sieveJson(sieve), mode, seconds: Number(seconds.toFixed(3)), ...(census ? { nodes: census.nodes, census: censusJson(census) } : {}) };
+  $("run-summary").textContent = toExactJson(summary);
 }
 
 function yieldToPage(): Promise<void> {
@@ -202,5 +199,5 @@ async function collectSorted(sorter: ResidueSorter, rows: number): Promise<Uint3
 }
 
 export function cancelRun(): void {
-  controller?.abort();
+  controller.cancel();
 }

@@ -6,6 +6,7 @@ import { classFromResidue } from "../../src/core/padic.js";
 import { CSV_ROW_GUARD } from "../../src/outputs/tables.js";
 import { tableManifest } from "../../src/outputs/manifest.js";
 import { toExactJson } from "../../src/outputs/json.js";
+import { affineText } from "../../src/outputs/card.js";
 import { kernelBuildId, withExportWorker } from "../engine.js";
 import pkg from "../../package.json";
 import { $, fieldError } from "../dom.js";
@@ -65,8 +66,7 @@ function render(): void {
     div.className = i === hit ? "vlist-row hit" : "vlist-row";
     div.setAttribute("role", "row");
     div.setAttribute("aria-rowindex", String(i + 1));
-    const b = c.image < 0n ? `- ${-c.image}` : `+ ${c.image}`;
-    for (const text of [String(i + 1), String(c.residue), String(c.odd), String(c.image), `${map.q}^${c.odd}·x ${b}`]) {
+    for (const text of [String(i + 1), String(c.residue), String(c.odd), String(c.image), affineText(map.q, c.odd, c.image)]) {
       const s = document.createElement("span");
       s.setAttribute("role", "gridcell");
       s.textContent = text;

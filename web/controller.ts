@@ -1,0 +1,83 @@
+// One run controller for every view: the Run and Cancel buttons, the progress bar with elapsed and
+// remaining time, the cancelled and failed states, and the abort signal handed to the library.
+import { CancelledError } from "../src/engine/pool.js";
+import type { RunOptions } from "../src/engine/pool.js";
+import { $ } from "./dom.js";
+
+export interface RunElements {
+  readonly start: string;
+  readonly cancel: string;
+  readonly progress: string;
+  readonly status: string;
+  readonly message: string;
+}
+
+/** What a finished run gives back: its value, or null when it was cancelled or failed (shown already). */
+export type Outcome<T> = { readonly ok: true; readonly value: T; readonly seconds: number } | { readonly ok: false };
+
+/**
+ * @example const c = new RunController({ start: "cycles-go", ... }); const out = await c.run((o) => searchCycles(pool, map, K, o));
+ */
+export class RunController {
+  private abort: AbortController | null = null;
+
+  constructor(private readonly el: RunElements) {}
+
+  get running(): boolean {
+    return this.abort !== null;
+  }
+
+  /** Stops the run in progress (its workers are terminated at once). */
+  cancel(): void {
+    this.abort?.abort();
+  }
+
+  /** Shows a message under the form (bad: styled as an error). */
+  say(text: string, bad = false): void {
+    const m = $(this.el.message);
+    m.className = bad ? "message bad" : "message";
+    m.textContent = text;
+  }
+
+  /**
+   * Runs `work` with the signal and a progress callback; the buttons, the bar and the status line
+   * follow it, and a failure or a cancel is shown in words rather than thrown.
+   */
+  async run<T>(work: (options: RunOptions) => Promise<T>, waiting = "Starting workers..."): Promise<Outcome<T>> {
+    const abort = new AbortController();
+    this.abort = abort;
+    const started = performance.now();
+    const progress = $(this.el.progress) as HTMLProgressElement;
+    const status = $(this.el.status);
+    ($(this.el.start) as HTMLButtonElement).disabled = true;
+    ($(this.el.cancel) as HTMLButtonElement).disabled = false;
+    progress.value = 0;
+    status.textContent = waiting;
+    this.say("");
+    const onProgress = (done: number, total: number) => {
+      const elapsed = (performance.now() - started) / 1000;
+      progress.value = done / total;
+      const remaining = done > 0 ? (elapsed * (total - done)) / done : Number.NaN;
+      status.textContent = `${done} of ${total} shards, ${elapsed.toFixed(1)} s elapsed${Number.isFinite(remaining) ? `, about ${remaining.toFixed(1)} s left` : ""}`;
+    };
+    try {
+      const value = await work({ signal: abort.signal, onProgress });
+      const seconds = (performance.now() - started) / 1000;
+      progress.value = 1;
+      status.textContent = `Done in ${seconds.toFixed(2)} s.`;
+      return { ok: true, value, seconds };
+    } catch (e) {
+      progress.value = 0;
+      if (e instanceof CancelledError) status.textContent = "Cancelled.";
+      else {
+        status.textContent = "Failed.";
+        this.say(`The run stopped: ${(e as Error).message}`, true);
+      }
+      return { ok: false };
+    } finally {
+      if (this.abort === abort) this.abort = null;
+      ($(this.el.start) as HTMLButtonElement).disabled = false;
+      ($(this.el.cancel) as HTMLButtonElement).disabled = true;
+    }
+  }
+}
