@@ -46,7 +46,11 @@ for (const depth of [28, 30]) {
   if (cores > 1) await kernelRun("full", depth, cores);
 }
 
-async function structureRun(what: string, workers: number, run: (pool: Awaited<ReturnType<typeof nodePool>>) => Promise<{ nodes: bigint }>): Promise<void> {
+async function structureRun(
+  what: string,
+  workers: number,
+  run: (pool: Awaited<ReturnType<typeof nodePool>>) => Promise<{ nodes: bigint }>,
+): Promise<void> {
   const pool = await nodePool(workers);
   try {
     await runCensus(pool, map, 16); // warm the workers and the JIT

@@ -47,9 +47,19 @@ export async function webBench(): Promise<string[][]> {
       ["survivors depth 30 (with its class table)", "?depth=30&workers=2"],
     ] as const) {
       const r = await timedRun(page, u + q);
-      rows.push([`browser: ${what}, click to summary`, "2", r.seconds.toFixed(2), `longest task ${r.longest.toFixed(0)} ms (${r.longTasks} over 50 ms)`]);
+      rows.push([
+        `browser: ${what}, click to summary`,
+        "2",
+        r.seconds.toFixed(2),
+        `longest task ${r.longest.toFixed(0)} ms (${r.longTasks} over 50 ms)`,
+      ]);
     }
-    rows.push(["browser: class table at depth 30 (12,771,274 rows), scrolling", "-", "-", `${(await scrollFps(page)).toFixed(0)} frames/s`]);
+    rows.push([
+      "browser: class table at depth 30 (12,771,274 rows), scrolling",
+      "-",
+      "-",
+      `${(await scrollFps(page)).toFixed(0)} frames/s`,
+    ]);
   } finally {
     await done();
     await server.close();

@@ -35,7 +35,13 @@ describe("cli: reports", () => {
   it("sieve --json: exact integers, levels equal OEIS A076227 (published entry), exception n = 1", async () => {
     const { code, stdout } = await cli("sieve", "--depth", "28", "--json", "--workers", "2");
     expect(code).toBe(0);
-    const j = parseExactJson(stdout) as { map: string; depth: bigint; levels: { survivors: bigint; stopped: bigint }[]; exceptions: { n: bigint }[]; nodes: bigint };
+    const j = parseExactJson(stdout) as {
+      map: string;
+      depth: bigint;
+      levels: { survivors: bigint; stopped: bigint }[];
+      exceptions: { n: bigint }[];
+      nodes: bigint;
+    };
     expect(j.map).toBe("3x+1");
     expect(j.levels.map((l) => l.survivors)).toEqual(A076227.slice(0, 29));
     expect(j.exceptions.map((e) => e.n)).toEqual([1n]);
@@ -47,7 +53,7 @@ describe("cli: reports", () => {
     expect(code).toBe(0);
     await expect(stdout.replace(/in [\d.]+ s/, "in <time> s")).toMatchFileSnapshot("golden/sieve-3x+1-depth16.txt");
     // beyond the snapshot: the counts are OEIS A076227's, the densities exact quotients rounded here
-    const rows = [...stdout.matchAll(/^ +(\d+) +([\d,]+) +([\d,]+)  (\d\.\d{8})/gm)];
+    const rows = [...stdout.matchAll(/^ +(\d+) +([\d,]+) +([\d,]+) {2}(\d\.\d{8})/gm)];
     expect(rows.map((r) => BigInt(r[2]!.replaceAll(",", "")))).toEqual(A076227.slice(0, 17));
     rows.forEach((r, j) => {
       const scaled = (A076227[j]! * 10n ** 8n * 2n + (1n << BigInt(j))) / (1n << BigInt(j + 1)); // half up
@@ -58,14 +64,17 @@ describe("cli: reports", () => {
   it("counts --by-odd --json agrees with counts text and A076227 at depth 32", async () => {
     const { code, stdout } = await cli("counts", "--depth", "32", "--by-odd", "--json");
     expect(code).toBe(0);
-    const j = parseExactJson(stdout) as { levels: { survivors: bigint; stopped: bigint }[]; byOdd: { depth: bigint; odd: bigint; live: bigint; stopped: bigint }[] };
+    const j = parseExactJson(stdout) as {
+      levels: { survivors: bigint; stopped: bigint }[];
+      byOdd: { depth: bigint; odd: bigint; live: bigint; stopped: bigint }[];
+    };
     expect(j.levels.map((l) => l.survivors)).toEqual(A076227);
     const at32 = j.byOdd.filter((r) => r.depth === 32n).reduce((s, r) => s + r.live, 0n);
     expect(at32).toBe(A076227[32]);
     // the text mode, parsed back: the same levels and the same (j, m) entries
     const text = await cli("counts", "--depth", "32", "--by-odd");
     expect(text.code).toBe(0);
-    const rows = [...text.stdout.matchAll(/^ +(\d+) +([\d,]+) +([\d,]+)  (\d\.\d{8})/gm)];
+    const rows = [...text.stdout.matchAll(/^ +(\d+) +([\d,]+) +([\d,]+) {2}(\d\.\d{8})/gm)];
     expect(rows.map((r) => BigInt(r[2]!.replaceAll(",", "")))).toEqual(A076227);
     expect(rows.map((r) => BigInt(r[3]!.replaceAll(",", "")))).toEqual(j.levels.map((l) => l.stopped));
     // densities: survivors / 2^j rounded half up to 8 decimals, computed here from the published counts
@@ -74,7 +83,9 @@ describe("cli: reports", () => {
       expect(r[4]!.replace(".", "")).toBe(exact.toString().padStart(9, "0"));
     });
     const odd = [...text.stdout.matchAll(/^ {2}j=(\d+) m=(\d+) live=(\d+)(?: stopped=(\d+))?$/gm)];
-    expect(odd.map((r) => [BigInt(r[1]!), BigInt(r[2]!), BigInt(r[3]!), BigInt(r[4] ?? 0)])).toEqual(j.byOdd.map((r) => [r.depth, r.odd, r.live, r.stopped]));
+    expect(odd.map((r) => [BigInt(r[1]!), BigInt(r[2]!), BigInt(r[3]!), BigInt(r[4] ?? 0)])).toEqual(
+      j.byOdd.map((r) => [r.depth, r.odd, r.live, r.stopped]),
+    );
   });
 });
 
@@ -202,7 +213,8 @@ describe("cli: structure commands", () => {
   it("class 27 mod 128: the least member's first descent is found past the word (step 59, A006877 lore: 27 rises to 9232)", async () => {
     const { stdout } = await cli("class", "27", "mod", "128", "--json");
     const j = parseExactJson(stdout) as { card: { leastMember: { descent: bigint } } };
-    let v = 27n, steps = 0n;
+    let v = 27n,
+      steps = 0n;
     do {
       v = T(3n, 1n, v);
       steps++;
@@ -213,7 +225,10 @@ describe("cli: structure commands", () => {
   it("class 3 mod 16 --json: stopping time 4, affine form 9x + 2 (common practice)", async () => {
     const { code, stdout } = await cli("class", "3", "mod", "16", "--json");
     expect(code).toBe(0);
-    const j = parseExactJson(stdout) as { kind: string; card: { form: { residue: bigint; odd: bigint; image: bigint; stoppingTime: bigint } } };
+    const j = parseExactJson(stdout) as {
+      kind: string;
+      card: { form: { residue: bigint; odd: bigint; image: bigint; stoppingTime: bigint } };
+    };
     expect(j.kind).toBe("class");
     expect(j.card.form).toMatchObject({ residue: 3n, odd: 2n, image: 2n, stoppingTime: 4n });
   });
@@ -236,11 +251,16 @@ describe("cli: structure commands", () => {
     const out = join(dir, "steps10.bin");
     expect((await cli("steps", "--map", "3x-1", "--depth", "10", "--out", out)).code).toBe(0);
     const data = readFileSync(out);
-    const man = parseExactJson(readFileSync(`${out}.json`, "utf8")) as { sha256: string; arrays: { name: string; offset: bigint; length: bigint; type: string }[] };
+    const man = parseExactJson(readFileSync(`${out}.json`, "utf8")) as {
+      sha256: string;
+      arrays: { name: string; offset: bigint; length: bigint; type: string }[];
+    };
     expect(man.sha256).toBe(createHash("sha256").update(data).digest("hex"));
     const img = man.arrays[1]!;
     expect(img.type).toBe("i64");
-    const images = new BigInt64Array(data.buffer.slice(data.byteOffset + Number(img.offset), data.byteOffset + Number(img.offset) + 8 * 1024));
+    const images = new BigInt64Array(
+      data.buffer.slice(data.byteOffset + Number(img.offset), data.byteOffset + Number(img.offset) + 8 * 1024),
+    );
     for (const a of [0, 1, 7, 27, 1023]) {
       let v = BigInt(a) + 1024n * 5n;
       for (let s = 0; s < 10; s++) v = T(3n, -1n, v);
@@ -273,7 +293,11 @@ describe("cli: errors give one line and the documented exit code", () => {
     [["sieve", "--depth", "10", "--format", "csv"], 2, /--format needs --out/],
     [["sieve", "--depth", "10", "--out", "x.bin", "--format", "xml"], 2, /--format must be raw or csv or arrow here/],
     [["sieve", "--depth", "30", "--out", "x.csv"], 2, /over the 1,000,000-row guard/],
-    [["sieve", "--depth", "10", "--out", "/nonexistent-dir/x.u32"], 2, /cannot write \/nonexistent-dir\/x.u32: the folder \/nonexistent-dir does not exist/],
+    [
+      ["sieve", "--depth", "10", "--out", "/nonexistent-dir/x.u32"],
+      2,
+      /cannot write \/nonexistent-dir\/x.u32: the folder \/nonexistent-dir does not exist/,
+    ],
     [["sieve", "--depth", "10", "--out", "/tmp"], 2, /cannot write \/tmp: it is a directory/],
     [["sieve", "--depth", "10", "--out", "x.csv", "--format", "arrow"], 2, /x.csv is named as csv but --format is arrow/],
     [["counts", "--depth", "10001"], 2, /--depth must be from 0 to 10000/],

@@ -16,7 +16,7 @@ function bruteTable(map: CollatzMap, K: number): { live: bigint[][]; stopped: bi
   for (let w = 0; w < 1 << K; w++) {
     let m = 0;
     for (let j = 1; j <= K; j++) {
-      const prefixIsFirst = (w >> j) === 0; // count each prefix of length j once: by its zero extension
+      const prefixIsFirst = w >> j === 0; // count each prefix of length j once: by its zero extension
       if ((w >> (j - 1)) & 1) m++;
       if (q ** BigInt(m) < 1n << BigInt(j)) {
         if (prefixIsFirst) stopped[j]![m]! += 1n;

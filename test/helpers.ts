@@ -1,7 +1,15 @@
 // Plain BigInt references written for the tests, independent of src/ arithmetic.
 import type { CollatzMap } from "../src/core/map.js";
 import { Kernel } from "../src/engine/loader.js";
-import type { CensusShard, CensusShardResult, CycleShard, CycleShardResult, LeafChunk, ShardRequest, ShardResult } from "../src/engine/messages.js";
+import type {
+  CensusShard,
+  CensusShardResult,
+  CycleShard,
+  CycleShardResult,
+  LeafChunk,
+  ShardRequest,
+  ShardResult,
+} from "../src/engine/messages.js";
 import { enumerateShard } from "../src/jobs/sieve/kernel.js";
 import { censusShard } from "../src/jobs/census/kernel.js";
 import { cycleShard } from "../src/jobs/cycles/kernel.js";
@@ -15,7 +23,8 @@ export function T(q: bigint, r: bigint, n: bigint): bigint {
 
 /** The first `k` parities of n, first step first. */
 export function parities(map: CollatzMap, n: bigint, k: number): number[] {
-  const q = BigInt(map.q), r = BigInt(map.r);
+  const q = BigInt(map.q),
+    r = BigInt(map.r);
   const out: number[] = [];
   for (let i = 0; i < k; i++) {
     const p = ((n % 2n) + 2n) % 2n;
@@ -30,7 +39,8 @@ export function parities(map: CollatzMap, n: bigint, k: number): number[] {
  * q^m < 2^j (m = odd steps among the first j), with T^j(n); null if none within k.
  */
 export function coefficientStop(map: CollatzMap, n: bigint, k: number): { j: number; m: number; image: bigint } | null {
-  const q = BigInt(map.q), r = BigInt(map.r);
+  const q = BigInt(map.q),
+    r = BigInt(map.r);
   let m = 0;
   let v = n;
   for (let j = 1; j <= k; j++) {
@@ -50,11 +60,18 @@ export interface KernelInstance {
 
 export async function kernelOf(flavour: Flavour): Promise<KernelInstance> {
   const k = await Kernel.instantiate(await loadKernelModule(flavour));
-  return { enumerate: (req, onLeaves) => enumerateShard(k, req, onLeaves), census: (req) => censusShard(k, req), cycles: (req) => cycleShard(k, req) };
+  return {
+    enumerate: (req, onLeaves) => enumerateShard(k, req, onLeaves),
+    census: (req) => censusShard(k, req),
+    cycles: (req) => cycleShard(k, req),
+  };
 }
 
 /** One whole-tree kernel run with its leaves collected. */
-export function runAll(kernel: KernelInstance, req: Omit<ShardRequest, "prefixBits" | "prefix" | "walkTallies"> & Partial<ShardRequest>): { res: ShardResult; leaves: LeafChunk[] } {
+export function runAll(
+  kernel: KernelInstance,
+  req: Omit<ShardRequest, "prefixBits" | "prefix" | "walkTallies"> & Partial<ShardRequest>,
+): { res: ShardResult; leaves: LeafChunk[] } {
   const leaves: LeafChunk[] = [];
   const res = kernel.enumerate({ prefixBits: 0, prefix: 0n, walkTallies: true, ...req }, (c) => leaves.push(c));
   return { res, leaves };

@@ -1,7 +1,6 @@
 // The enumeration kernel, debug build (assertions on) and release build, against BigInt references.
 import { describe, expect, it } from "vitest";
 import { parseMap } from "../src/core/map.js";
-import type { CollatzMap } from "../src/core/map.js";
 import { exactCounts } from "../src/core/exact.js";
 import { decodeExceptionClasses, expandExceptions } from "../src/jobs/sieve/exceptions.js";
 import { allResidues, coefficientStop, kernelOf, parities, rowSums, runAll, sortBig, T } from "./helpers.js";

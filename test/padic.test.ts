@@ -13,7 +13,8 @@ function Tq(map: CollatzMap, num: bigint, den: bigint): [bigint, bigint] {
   return odd ? [BigInt(map.q) * num + BigInt(map.r) * den, 2n * den] : [num, 2n * den];
 }
 function reduce([n, d]: [bigint, bigint]): [bigint, bigint] {
-  let a = n < 0n ? -n : n, b = d;
+  let a = n < 0n ? -n : n,
+    b = d;
   while (b) [a, b] = [b, a % b];
   return [n / a, d / a];
 }
@@ -27,7 +28,10 @@ describe("padic: sanity", () => {
       for (let trial = 0; trial < 40; trial++) {
         const k = 1 + (trial % 14);
         let word = "";
-        for (let i = 0; i < k; i++) word += (seed = (seed * 1103515245 + 12345) % 2147483648) & 1024 ? "1" : "0";
+        for (let i = 0; i < k; i++) {
+          seed = (seed * 1103515245 + 12345) % 2147483648;
+          word += seed & 1024 ? "1" : "0";
+        }
         const c = classFromWord(map, word);
         expect(c.residue >= 0n && c.residue < 1n << BigInt(k)).toBe(true);
         expect(parities(map, c.residue, k).join("")).toBe(word);
@@ -67,7 +71,8 @@ describe("padic: sanity", () => {
     const entryInto = (start: bigint, onCycle: bigint) => {
       const cycle = new Set<bigint>();
       for (let v = onCycle; !cycle.has(v); v = T(3n, 1n, v)) cycle.add(v);
-      let v = start, steps = 0;
+      let v = start,
+        steps = 0;
       for (; !cycle.has(v); steps++) v = T(3n, 1n, v);
       return { steps, period: cycle.size };
     };
@@ -119,7 +124,12 @@ describe("padic: periodic points (Böhm and Sontacchi 1978; Lagarias 1985, from 
 
   it("u·w^∞: first |u| parities are u, then T^|u| lands on the point of w^∞", () => {
     const m = parseMap("3x+5");
-    for (const [u, w] of [["0", "10"], ["1", "10"], ["110", "01"], ["0000", "1"]] as const) {
+    for (const [u, w] of [
+      ["0", "10"],
+      ["1", "10"],
+      ["110", "01"],
+      ["0000", "1"],
+    ] as const) {
       const p = periodicPoint(m, u, w);
       const zw = periodicPoint(m, "", w);
       let z: [bigint, bigint] = [p.num, p.den];

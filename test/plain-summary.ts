@@ -4,7 +4,9 @@ import type { Reporter, TestModule } from "vitest/node";
 
 export default class PlainSummary implements Reporter {
   onTestRunEnd(modules: ReadonlyArray<TestModule>): void {
-    let passed = 0, failed = 0, skipped = 0;
+    let passed = 0,
+      failed = 0,
+      skipped = 0;
     for (const m of modules) {
       for (const t of m.children.allTests()) {
         const state = t.result().state;

@@ -38,7 +38,9 @@ describe("sieve on the pool: sanity", () => {
         const res = await runSieve(pool2, { map, depth: 22, mode });
         res.live.forEach((row, j) => {
           const e = exact[j]!;
-          row.forEach((c, m) => expect(c).toBe(m >= e.mLow ? (e.live[m - e.mLow] ?? 0n) : 0n));
+          row.forEach((c, m) => {
+            expect(c).toBe(m >= e.mLow ? (e.live[m - e.mLow] ?? 0n) : 0n);
+          });
         });
         expect(res.levels.map((l) => l.stopped)).toEqual(exactCounts(map, 22).levels.map((l) => l.stopped));
         if (mode === "full") expect(res.nodes).toBe((1n << 23n) - 1n);
@@ -65,8 +67,12 @@ describe("sieve on the pool: sanity", () => {
     let exc = 0;
     for (let s = 0n; s < 1n << BigInt(d); s++) {
       const part = kernel.enumerate({ ...req, prefixBits: d, prefix: s });
-      rowSums(part.live, 20).forEach((x, j) => (live[j]! += x));
-      rowSums(part.stopped, 20).forEach((x, j) => (stopped[j]! += x));
+      rowSums(part.live, 20).forEach((x, j) => {
+        live[j]! += x;
+      });
+      rowSums(part.stopped, 20).forEach((x, j) => {
+        stopped[j]! += x;
+      });
       nodes += part.nodes;
       exc += part.exceptionClasses.length;
     }
@@ -147,7 +153,13 @@ describe("sieve on the pool: special", () => {
     const debugPool = await nodePool(2, "debug");
     try {
       const bad = { q: 3, r: 1, depth: 10, mode: "survivors" as const, prefixBits: 2, prefix: 7n, leaves: false, walkTallies: false };
-      await expect(debugPool.run([bad], (api, s) => api.runShard(s), () => {})).rejects.toThrow(/kernel assertion failed/);
+      await expect(
+        debugPool.run(
+          [bad],
+          (api, s) => api.runShard(s),
+          () => {},
+        ),
+      ).rejects.toThrow(/kernel assertion failed/);
       const ok = await runSieve(debugPool, { map: parseMap("3x+1"), depth: 16, mode: "survivors" });
       expect(ok.levels[16]!.survivors).toBe(A076227[16]);
     } finally {
@@ -162,13 +174,23 @@ describe("sieve on the pool: special", () => {
     const dying = new KernelPool(
       () => {
         const w = new Worker("setTimeout(() => { throw new Error('simulated out of memory') }, 20)", { eval: true });
-        return { endpoint: nodeEndpoint(w), terminate: () => void w.terminate(), onError: (l) => w.on("error", (e) => l(new Error(`worker failed: ${e.message}`))) };
+        return {
+          endpoint: nodeEndpoint(w),
+          terminate: () => void w.terminate(),
+          onError: (l) => w.on("error", (e) => l(new Error(`worker failed: ${e.message}`))),
+        };
       },
       pool1.module,
       1,
     );
     const shard = { q: 3, r: 1, depth: 10, mode: "survivors" as const, prefixBits: 0, prefix: 0n, leaves: false, walkTallies: true };
-    await expect(dying.run([shard], (api, s) => api.runShard(s), () => {})).rejects.toThrow(/worker failed: simulated out of memory/);
+    await expect(
+      dying.run(
+        [shard],
+        (api, s) => api.runShard(s),
+        () => {},
+      ),
+    ).rejects.toThrow(/worker failed: simulated out of memory/);
     dying.terminate();
   });
 
@@ -194,7 +216,10 @@ describe("sieve on the pool: special", () => {
 
   /** The class of a parity word (first step first), built here bit by bit: (a, m, b). */
   function classOfWord(q: bigint, r: bigint, word: number[]): { a: bigint; m: number; b: bigint } {
-    let a = 0n, b = 0n, qm = 1n, m = 0;
+    let a = 0n,
+      b = 0n,
+      qm = 1n,
+      m = 0;
     word.forEach((p, j) => {
       const e = ((b % 2n) + 2n + BigInt(p)) % 2n; // makes b + e q^m have parity p (q^m odd)
       const v = b + e * qm;
@@ -209,10 +234,16 @@ describe("sieve on the pool: special", () => {
     return { a, m, b };
   }
 
-  for (const [text, published] of [["3x+1", 40], ["5x+1", 27], ["3x-1", 39], ["3x+5", 40]] as const) {
+  for (const [text, published] of [
+    ["3x+1", 40],
+    ["5x+1", 27],
+    ["3x-1", 39],
+    ["3x+5", 40],
+  ] as const) {
     it(`${text}: the limit depth is ${published} by an independent bound; the classes with the largest images run exactly there; one deeper is refused`, async () => {
       const map = parseMap(text);
-      const q = BigInt(map.q), r = BigInt(map.r);
+      const q = BigInt(map.q),
+        r = BigInt(map.r);
       const K = independentLimit(q, r);
       expect(K).toBe(published);
       expect(kernelDepthLimit(map)).toBe(K);
@@ -221,7 +252,10 @@ describe("sieve on the pool: special", () => {
       const abs = (x: bigint) => (x < 0n ? -x : x);
       let beam: number[][] = [[]];
       for (let j = 0; j < K; j++) {
-        const next = beam.flatMap((w) => [[...w, 0], [...w, 1]]);
+        const next = beam.flatMap((w) => [
+          [...w, 0],
+          [...w, 1],
+        ]);
         next.sort((u, v) => (abs(classOfWord(q, r, u).b) > abs(classOfWord(q, r, v).b) ? -1 : 1));
         beam = next.slice(0, 128);
       }
@@ -232,9 +266,22 @@ describe("sieve on the pool: special", () => {
       const d = K - 3;
       for (const c of extreme) {
         const found: { a: bigint; m: number; b: bigint }[] = [];
-        kernel.enumerate({ q: map.q, r: map.r, depth: K, mode: "full", prefixBits: d, prefix: c.a & ((1n << BigInt(d)) - 1n), leaves: true, walkTallies: false }, (chunk) => {
-          for (let i = 0; i < chunk.a.length; i++) if (chunk.a[i] === c.a) found.push({ a: chunk.a[i]!, m: chunk.m[i]!, b: BigInt(chunk.b[i]!) });
-        });
+        kernel.enumerate(
+          {
+            q: map.q,
+            r: map.r,
+            depth: K,
+            mode: "full",
+            prefixBits: d,
+            prefix: c.a & ((1n << BigInt(d)) - 1n),
+            leaves: true,
+            walkTallies: false,
+          },
+          (chunk) => {
+            for (let i = 0; i < chunk.a.length; i++)
+              if (chunk.a[i] === c.a) found.push({ a: chunk.a[i]!, m: chunk.m[i]!, b: BigInt(chunk.b[i]!) });
+          },
+        );
         expect(found).toEqual([c]);
         // and (m, b) is T^K of the residue itself, by plain iteration
         let v = c.a;

@@ -24,7 +24,8 @@ function iterateBig(map: CollatzMap, n: bigint, k: number): bigint {
 
 /** floor(4 log2(v / a)) for positive a, v, decided here by integer comparisons: 2^k a^4 <= v^4 < 2^(k+1) a^4. */
 function quarterBin(a: bigint, v: bigint): number {
-  const A = a ** 4n, V = v ** 4n;
+  const A = a ** 4n,
+    V = v ** 4n;
   const atMost = (k: number) => (k >= 0 ? A << BigInt(k) <= V : A <= V << BigInt(-k)); // 2^k a^4 <= v^4
   let k = 0;
   if (atMost(0)) while (atMost(k + 1)) k++;
@@ -56,18 +57,34 @@ function bruteCycles(map: CollatzMap, bound: number, maxPeriod: number): Map<big
 describe("cycles: published values", () => {
   it("3x+1 to period 30: {1, 2} the only positive cycle; negative cycles of -1, -5, -17 with periods 1, 3, 11 (common practice)", async () => {
     const r = await searchCycles(pool, parseMap("3x+1"), 30);
-    expect(r.cycles.map((c) => [c.representative, c.period])).toEqual([[1n, 2], [-1n, 1], [-5n, 3], [-17n, 11]]);
+    expect(r.cycles.map((c) => [c.representative, c.period])).toEqual([
+      [1n, 2],
+      [-1n, 1],
+      [-5n, 3],
+      [-17n, 11],
+    ]);
     expect(r.nodes).toBe((1n << 31n) - 1n);
   });
   it("3x+5 to period 27: minima 1 (3), 5 (2), 19 (5), 23 (5), 187 (27), 347 (27) (Lagarias 1990, from memory)", async () => {
     const r = await searchCycles(pool, parseMap("3x+5"), 27);
     const pos = r.cycles.filter((c) => c.representative > 0n).map((c) => [c.min, c.period]);
-    expect(pos).toEqual([[1n, 3], [5n, 2], [19n, 5], [23n, 5], [187n, 27], [347n, 27]]);
+    expect(pos).toEqual([
+      [1n, 3],
+      [5n, 2],
+      [19n, 5],
+      [23n, 5],
+      [187n, 27],
+      [347n, 27],
+    ]);
   });
   it("5x+1 to period 28 (past the 64-bit range: the 128-bit path): 1 (5), 13 (7), 17 (7) (common practice)", async () => {
     const r = await searchCycles(pool, parseMap("5x+1"), 28);
     expect(r.width).toBe(128);
-    expect(r.cycles.filter((c) => c.representative > 0n).map((c) => [c.min, c.period])).toEqual([[1n, 5], [13n, 7], [17n, 7]]);
+    expect(r.cycles.filter((c) => c.representative > 0n).map((c) => [c.min, c.period])).toEqual([
+      [1n, 5],
+      [13n, 7],
+      [17n, 7],
+    ]);
   });
 });
 
@@ -77,7 +94,11 @@ describe("cycles: brute force and widths", () => {
       const K = 20;
       const r = await searchCycles(pool, map, K);
       const brute = bruteCycles(map, 1000, K);
-      const listed = new Map(r.cycles.filter((c) => (c.representative < 0n ? -c.representative : c.representative) <= 1000n).map((c) => [c.representative, c.period]));
+      const listed = new Map(
+        r.cycles
+          .filter((c) => (c.representative < 0n ? -c.representative : c.representative) <= 1000n)
+          .map((c) => [c.representative, c.period]),
+      );
       expect(listed).toEqual(brute);
       for (const c of r.cycles) expect(iterateBig(map, c.representative, c.period)).toBe(c.representative);
     });
@@ -85,7 +106,8 @@ describe("cycles: brute force and widths", () => {
   it("the 128-bit kernel path finds exactly what the 64-bit path finds (3x+1, 3x-1 to depth 18)", async () => {
     const kernel = await kernelOf("debug");
     for (const map of [parseMap("3x+1"), parseMap("3x-1")]) {
-      const narrow = new CycleCollector(map), wide = new CycleCollector(map);
+      const narrow = new CycleCollector(map),
+        wide = new CycleCollector(map);
       const base = { q: map.q, r: map.r, depth: 18, prefixBits: 0, prefix: 0n, walkTallies: true };
       narrow.add(kernel.cycles({ ...base, wide: false }).candidates);
       wide.add(kernel.cycles({ ...base, wide: true }).candidates);
@@ -109,20 +131,24 @@ describe("census: brute force", () => {
       const q = BigInt(map.q);
       const peak = new Map<string, bigint>();
       const bins = new Map<number, bigint>();
-      let nonpositive = 0n, differ = 0n;
+      let nonpositive = 0n,
+        differ = 0n;
       const differList: bigint[] = []; // ascending, since a runs upwards
       let best = { n: 1n, value: 1n };
       for (let a = 0n; a < 1n << BigInt(K); a++) {
         // the vector of class a is a's own parity vector (Terras); its peak of q^m/2^j, exactly
         const word = parities(map, a, K);
-        let m = 0, pj = 0, pm = 0;
+        let m = 0,
+          pj = 0,
+          pm = 0;
         word.forEach((p, i) => {
           m += p;
           if (q ** BigInt(m) * 2n ** BigInt(pj) > q ** BigInt(pm) * 2n ** BigInt(i + 1)) [pj, pm] = [i + 1, m];
         });
         peak.set(`${pj},${pm}`, (peak.get(`${pj},${pm}`) ?? 0n) + 1n);
         if (a === 0n) continue;
-        let v = a, descent: number | null = null;
+        let v = a,
+          descent: number | null = null;
         for (let j = 1; j <= K; j++) {
           v = T(q, BigInt(map.r), v);
           if (descent === null && v < a) descent = j;
@@ -137,7 +163,11 @@ describe("census: brute force", () => {
         }
       }
       const kernelPeak = new Map<string, bigint>();
-      c.peak.forEach((row, j) => row.forEach((n, m) => n > 0n && kernelPeak.set(`${j},${m}`, n)));
+      c.peak.forEach((row, j) => {
+        row.forEach((n, m) => {
+          if (n > 0n) kernelPeak.set(`${j},${m}`, n);
+        });
+      });
       expect(kernelPeak).toEqual(peak);
       expect(new Map(c.ratioBins.map((b) => [b.bin, b.count]))).toEqual(bins);
       expect(c.nonpositive).toBe(nonpositive);
@@ -152,7 +182,8 @@ describe("census: brute force", () => {
     const K = 14;
     const brute: bigint[] = [];
     for (let a = 1n; a < 1n << BigInt(K); a++) {
-      let v = a, descent: number | null = null;
+      let v = a,
+        descent: number | null = null;
       for (let j = 1; j <= K && descent === null; j++) {
         v = T(3n, -1001n, v);
         if (v < a) descent = j;

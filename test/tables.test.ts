@@ -69,7 +69,7 @@ describe("tables: sorting", () => {
 
 describe("json: exact integers", () => {
   it("writes BigInt as bare digits and reads them back exactly (special: 2^70, negative)", () => {
-    const text = toExactJson({ n: 2n ** 70n, m: -5n, s: "a\"b", f: 0.5 });
+    const text = toExactJson({ n: 2n ** 70n, m: -5n, s: 'a"b', f: 0.5 });
     expect(text).toBe('{"n":1180591620717411303424,"m":-5,"s":"a\\"b","f":0.5}');
     expect(parseExactJson(text)).toEqual({ n: 2n ** 70n, m: -5n, s: 'a"b', f: 0.5 });
   });

@@ -58,7 +58,9 @@ export class RunController {
       const elapsed = (performance.now() - started) / 1000;
       progress.value = done / total;
       const remaining = done > 0 ? (elapsed * (total - done)) / done : Number.NaN;
-      status.textContent = `${done} of ${total} shards, ${elapsed.toFixed(1)} s elapsed${Number.isFinite(remaining) ? `, about ${remaining.toFixed(1)} s left` : ""}`;
+      status.textContent =
+        `${done} of ${total} shards, ${elapsed.toFixed(1)} s elapsed` +
+        `${Number.isFinite(remaining) ? `, about ${remaining.toFixed(1)} s left` : ""}`;
     };
     try {
       const value = await work({ signal: abort.signal, onProgress });

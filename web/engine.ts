@@ -64,4 +64,3 @@ export async function withExportWorker<T>(work: (api: ReturnType<typeof wrap<Ker
 export function defaultWorkers(): number {
   return Math.max(1, Math.min(16, navigator.hardwareConcurrency || 2));
 }
-

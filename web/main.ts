@@ -69,7 +69,9 @@ function setup(): void {
     const req = readRunForm();
     if (req) void startRun(req, update);
   });
-  $("run-mode").addEventListener("change", () => update({ mode: ($("run-mode") as HTMLSelectElement).value === "full" ? "full" : "survivors" }));
+  $("run-mode").addEventListener("change", () =>
+    update({ mode: ($("run-mode") as HTMLSelectElement).value === "full" ? "full" : "survivors" }),
+  );
   $("run-cancel").addEventListener("click", cancelRun);
   $("inspect-form").addEventListener("submit", (e) => {
     e.preventDefault();

@@ -59,7 +59,8 @@ function censusText(c: CensusResult, workers: number): string {
   const shown = c.differ.listed.slice(0, TEXT_DIFFER);
   const more = c.differ.count - BigInt(shown.length);
   const lines = [
-    `census of all 2^${c.depth} parity vectors of ${c.map.name} (full tree: ${group(c.nodes)} nodes, ${c.seconds.toFixed(2)} s, ${plural(workers, "worker")})`,
+    `census of all 2^${c.depth} parity vectors of ${c.map.name} (full tree: ${group(c.nodes)} nodes, ${c.seconds.toFixed(2)} s, ` +
+      `${plural(workers, "worker")})`,
     "",
     "classes whose coefficient q^m/2^j has not dropped below 1, and first drops by depth:",
     levelTable(c.map, c.levels),
@@ -69,19 +70,30 @@ function censusText(c: CensusResult, workers: number): string {
     `peak coefficient max_j q^(m_j)/2^j, by the (j, m) where it is reached (${peaks.length} distinct; the 12 most common):`,
     ...peaks
       .slice(0, 12)
-      .map((p) => `  j=${String(p.j).padStart(2)} m=${String(p.m).padStart(2)}  log2 = ${log2Coefficient(c.map.q, p.m, p.j).toFixed(3).padStart(8)}  ${group(p.n).padStart(14)} vectors`),
+      .map(
+        (p) =>
+          `  j=${String(p.j).padStart(2)} m=${String(p.m).padStart(2)}  log2 = ` +
+          `${log2Coefficient(c.map.q, p.m, p.j).toFixed(3).padStart(8)}  ${group(p.n).padStart(14)} vectors`,
+      ),
     "",
     `log2(T^${c.depth}(a)/a) of each class's least member a in [1, 2^${c.depth}), in quarter units:`,
-    ...c.ratioBins.map((b) => `  [${(b.bin / 4).toFixed(2).padStart(7)}, ${((b.bin + 1) / 4).toFixed(2).padStart(7)})  ${group(b.count).padStart(13)}  ${bar(b.count)}`),
+    ...c.ratioBins.map(
+      (b) =>
+        `  [${(b.bin / 4).toFixed(2).padStart(7)}, ${((b.bin + 1) / 4).toFixed(2).padStart(7)})  ${group(b.count).padStart(13)}  ` +
+        `${bar(b.count)}`,
+    ),
     ...(c.nonpositive > 0n ? [`  T^${c.depth}(a) <= 0: ${group(c.nonpositive)}`] : []),
     "",
-    `least members whose first descent differs from the coefficient stopping time: ${group(c.differ.count)} (early descents ${group(c.differ.early)})`,
+    `least members whose first descent differs from the coefficient stopping time: ${group(c.differ.count)} (early descents ` +
+      `${group(c.differ.early)})`,
     ...shown.map(
       (d) =>
-        `  a = ${d.n}: ${d.descent === null ? `does not descend within ${c.depth} steps` : `descends at step ${d.descent}`}, coefficient stopping time ${d.stoppingTime ?? `> ${c.depth}`}`,
+        `  a = ${d.n}: ${d.descent === null ? `does not descend within ${c.depth} steps` : `descends at step ${d.descent}`}, ` +
+        `coefficient stopping time ${d.stoppingTime ?? `> ${c.depth}`}`,
     ),
     ...(more > 0n ? [`  ... and ${group(more)} more (the smallest are listed; --json lists up to ${group(c.differ.limit)})`] : []),
-    `largest T^j(a)/a: T^${c.maxRatio.step}(${c.maxRatio.n}) = ${c.maxRatio.value}, a ratio of ${ratioText(c.maxRatio.value, c.maxRatio.n)} (class ${c.maxRatio.n} mod 2^${c.depth})`,
+    `largest T^j(a)/a: T^${c.maxRatio.step}(${c.maxRatio.n}) = ${c.maxRatio.value}, a ratio of ` +
+      `${ratioText(c.maxRatio.value, c.maxRatio.n)} (class ${c.maxRatio.n} mod 2^${c.depth})`,
     "",
   ];
   return lines.join("\n");

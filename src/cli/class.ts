@@ -16,7 +16,10 @@ interface ClassOptions extends RawOptions {
 export function classCommand(program: Command): Command {
   return program
     .command("class")
-    .description("the class card: residue, parity word, affine form T^k(a + 2^k x) = q^m x + b, stopping times, 2-adic digits; for a number, its trajectory")
+    .description(
+      "the class card: residue, parity word, affine form T^k(a + 2^k x) = q^m x + b, stopping times, 2-adic digits; " +
+        "for a number, its trajectory",
+    )
     .argument("<input...>", "a number (27, -5), a residue (3 mod 16, 3 mod 2^4) or a parity word (w:1100)")
     .option("--map <qx+r>", "the map", "3x+1")
     .option("--steps <L>", `most steps to follow a trajectory: 1 to ${MAX_INSPECT_STEPS}`)

@@ -27,7 +27,8 @@ async function run(o: RawOptions): Promise<void> {
   if (o.json) return print(`${toExactJson(conjugacyJson(r))}\n`);
   print(
     [
-      `conjugacy permutation a -> Q_${depth}(a) (first ${depth} parities read as a ${depth}-bit number, first step lowest) of ${map.name} on the residues mod 2^${depth}`,
+      `conjugacy permutation a -> Q_${depth}(a) (first ${depth} parities read as a ${depth}-bit number, first step lowest) of ` +
+        `${map.name} on the residues mod 2^${depth}`,
       `cycles: ${r.cycles}, fixed points: ${r.fixedPoints}, ${r.seconds.toFixed(2)} s`,
       "cycle lengths (length: how many cycles):",
       ...r.lengths.map((l) => `  ${String(l.length).padStart(9)}: ${l.count}`),

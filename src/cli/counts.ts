@@ -21,7 +21,9 @@ interface CountsOptions extends RawOptions {
 export function countsCommand(program: Command): Command {
   return program
     .command("counts")
-    .description(`survivor and stopped counts by exact dynamic programming (BigInt), any depth up to ${MAX_EXACT_DEPTH.toLocaleString("en-US")}`)
+    .description(
+      `survivor and stopped counts by exact dynamic programming (BigInt), any depth up to ${MAX_EXACT_DEPTH.toLocaleString("en-US")}`,
+    )
     .option("--map <qx+r>", "the map", "3x+1")
     .option("--depth <K>", `depth: 0 to ${MAX_EXACT_DEPTH}`)
     .option("--by-odd", "add the table by (depth, odd steps m): classes alive and stopping at (j, m)")

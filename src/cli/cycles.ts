@@ -56,10 +56,14 @@ function cyclesText(r: CycleSearchResult, workers: number): string {
   const neg = r.cycles.filter((c) => c.representative < 0n);
   const row = (c: CycleSearchResult["cycles"][number]) => {
     const els = c.elements.length <= 12 ? c.elements.join(" ") : `${c.elements.slice(0, 12).join(" ")} ... (${c.elements.length})`;
-    return `  ${String(c.representative).padStart(10)}  period ${String(c.period).padStart(2)}  odd ${String(c.odd).padStart(2)}  max ${c.max}  elements: ${els}`;
+    return (
+      `  ${String(c.representative).padStart(10)}  period ${String(c.period).padStart(2)}  odd ${String(c.odd).padStart(2)}  max ` +
+      `${c.max}  elements: ${els}`
+    );
   };
   return [
-    `integer cycles of ${r.map.name} with period <= ${r.maxPeriod} (complete: every node of the full tree tested, ${group(r.nodes)} nodes, ${r.width}-bit, ${r.seconds.toFixed(2)} s, ${plural(workers, "worker")})`,
+    `integer cycles of ${r.map.name} with period <= ${r.maxPeriod} (complete: every node of the full tree tested, ` +
+      `${group(r.nodes)} nodes, ${r.width}-bit, ${r.seconds.toFixed(2)} s, ${plural(workers, "worker")})`,
     `positive cycles: ${pos.length} (listed by minimum)`,
     ...pos.map(row),
     `negative cycles: ${neg.length} (listed by the element of least |x|)`,

@@ -53,7 +53,8 @@ function program(): Command {
     .action((name: string | undefined) => {
       if (name === undefined) return void p.outputHelp();
       const cmd = p.commands.find((c) => c.name() === name);
-      if (!cmd || cmd.name() === "help") throw new CommanderError(2, "glidepath.unknownCommand", `unknown command "${name}" (glidepath --help lists them)`);
+      if (!cmd || cmd.name() === "help")
+        throw new CommanderError(2, "glidepath.unknownCommand", `unknown command "${name}" (glidepath --help lists them)`);
       cmd.outputHelp();
     });
   return p;
@@ -95,7 +96,8 @@ export async function main(argv: string[]): Promise<number> {
       if (e.code === "commander.helpDisplayed" || e.code === "commander.version") return 0;
       const msg = e.message.replace(/^error: /, "");
       const cmd = argv.find((a) => !a.startsWith("-"));
-      process.stderr.write(`glidepath: ${msg}${e.code === "glidepath.unknownCommand" || e.code === "commander.unknownCommand" || !cmd ? "" : ` (see glidepath ${cmd} --help)`}\n`);
+      const unknown = e.code === "glidepath.unknownCommand" || e.code === "commander.unknownCommand";
+      process.stderr.write(`glidepath: ${msg}${unknown || !cmd ? "" : ` (see glidepath ${cmd} --help)`}\n`);
       return 2;
     }
     const msg = e instanceof Error ? e.message : String(e);

@@ -77,11 +77,14 @@ export function outputOption<F extends FileFormat>(o: RawOptions, allowed: reado
   const named = ENDINGS.find(([end]) => path.toLowerCase().endsWith(end))?.[1];
   let format: F;
   if (o.format !== undefined) {
-    if (!(allowed as readonly string[]).includes(o.format)) throw new UsageError(`--format must be ${allowed.join(" or ")} here, got "${o.format}"`);
+    if (!(allowed as readonly string[]).includes(o.format))
+      throw new UsageError(`--format must be ${allowed.join(" or ")} here, got "${o.format}"`);
     format = o.format as F;
-    if (named !== undefined && named !== format) throw new UsageError(`${path} is named as ${named} but --format is ${format}: rename the file or change --format`);
+    if (named !== undefined && named !== format)
+      throw new UsageError(`${path} is named as ${named} but --format is ${format}: rename the file or change --format`);
   } else if (named !== undefined) {
-    if (!(allowed as readonly string[]).includes(named)) throw new UsageError(`${path} is named as ${named}, which this command does not write (it writes ${allowed.join(" or ")})`);
+    if (!(allowed as readonly string[]).includes(named))
+      throw new UsageError(`${path} is named as ${named}, which this command does not write (it writes ${allowed.join(" or ")})`);
     format = named as F;
   } else format = fallback;
   checkWritableTarget(path);

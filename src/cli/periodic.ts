@@ -32,7 +32,10 @@ export function periodicCommand(program: Command): Command {
       lines.push(`  2-adic digits (least significant first, ${digits}): ${abbreviate(expansion)}`);
       if (p.integer !== null && p.cycle) {
         const where = pre.length > 0 ? `reaches after ${pre.length} steps` : "lies on";
-        lines.push(`  an integer: it ${where} the cycle of ${cycleRepresentative(p.cycle)} (least |x|), period ${p.cycle.length}: ${abbreviate(p.cycle.join(" -> "), 400)}`);
+        lines.push(
+          `  an integer: it ${where} the cycle of ${cycleRepresentative(p.cycle)} (least |x|), period ${p.cycle.length}: ` +
+            `${abbreviate(p.cycle.join(" -> "), 400)}`,
+        );
       } else {
         lines.push("  not an integer: no integer has this parity vector");
       }

@@ -17,7 +17,15 @@ export function progressBar(label: string, delayMs = 1000): Progress {
     update(done, total) {
       if (!bar) {
         if (Date.now() - started < delayMs) return;
-        bar = new SingleBar({ stream: process.stderr, format: `${label} [{bar}] {percentage}% | {value}/{total} shards | eta {eta_formatted}`, hideCursor: true, clearOnComplete: true }, Presets.shades_classic);
+        bar = new SingleBar(
+          {
+            stream: process.stderr,
+            format: `${label} [{bar}] {percentage}% | {value}/{total} shards | eta {eta_formatted}`,
+            hideCursor: true,
+            clearOnComplete: true,
+          },
+          Presets.shades_classic,
+        );
         bar.start(total, done);
       }
       bar.setTotal(total);

@@ -28,7 +28,10 @@ export function levelLine(w: Widths, l: Level, stoppedOdd: number | null): strin
 }
 
 function line(w: Widths, cells: string[]): string {
-  return cells.map((c, i) => (i >= 3 ? c.padEnd(w[i]!) : c.padStart(w[i]!))).join("  ").trimEnd();
+  return cells
+    .map((c, i) => (i >= 3 ? c.padEnd(w[i]!) : c.padStart(w[i]!)))
+    .join("  ")
+    .trimEnd();
 }
 
 /** The whole table for levels held in memory. */

@@ -48,13 +48,19 @@ async function sieve(o: RawOptions): Promise<void> {
   const out = outputOption<TableFormat>(o, ["raw", "csv", "arrow"], "raw");
   const rows = exactCounts(map, depth).levels[depth]!.survivors;
   if (out && out.format !== "raw" && rows > BigInt(CSV_ROW_GUARD) && !o.force) {
-    throw new UsageError(`a ${out.format === "csv" ? "CSV" : "full Arrow"} table of ${group(rows)} rows is over the ${group(CSV_ROW_GUARD)}-row guard: use --format raw, or --force`);
+    throw new UsageError(
+      `a ${out.format === "csv" ? "CSV" : "full Arrow"} table of ${group(rows)} rows is over the ` +
+        `${group(CSV_ROW_GUARD)}-row guard: use --format raw, or --force`,
+    );
   }
   const stamp = await toolStamp();
   const result = await withPool(workers, `sieve ${map.name} mod 2^${depth}`, (pool, onProgress) =>
     withManifestOutput(
       out?.path,
-      (file) => (file && out ? writeTable(pool, map, depth, out.format, file, rows, onProgress) : runSieve(pool, { map, depth, mode: "survivors" }, { onProgress })),
+      (file) =>
+        file && out
+          ? writeTable(pool, map, depth, out.format, file, rows, onProgress)
+          : runSieve(pool, { map, depth, mode: "survivors" }, { onProgress }),
       (_r, data) => tableManifest(map, depth, rows, out!.format, data, stamp),
     ),
   );
@@ -111,7 +117,12 @@ function sieveText(r: SieveResult, workers: number): string {
     `survivors mod 2^${r.depth}: ${group(r.levels[r.depth]!.survivors)}`,
     `exceptions (positive members that do not descend at their class's stopping depth): ${group(r.exceptionCount)}`,
     ...shown.map((e) => `  n = ${e.n}   class ${e.residue} mod 2^${e.classDepth}`),
-    ...(r.exceptionCount > BigInt(shown.length) ? [`  ... and ${group(r.exceptionCount - BigInt(shown.length))} more (the smallest are listed; --json lists up to ${group(r.exceptionLimit)})`] : []),
+    ...(r.exceptionCount > BigInt(shown.length)
+      ? [
+          `  ... and ${group(r.exceptionCount - BigInt(shown.length))} more (the smallest are listed; --json lists up to ` +
+            `${group(r.exceptionLimit)})`,
+        ]
+      : []),
     `nodes visited: ${group(r.nodes)} in ${r.seconds.toFixed(2)} s (${plural(workers, "worker")})`,
     "",
   ];

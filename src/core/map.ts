@@ -36,7 +36,8 @@ export function parseMap(text: string): CollatzMap {
 /** Builds a map from validated parts. @example makeMap(3, 1).name // "3x+1" */
 export function makeMap(q: number, r: number): CollatzMap {
   if (!(Number.isInteger(q) && q % 2 === 1 && q >= 3 && q <= MAX_Q)) throw new UsageError(`q = ${q}: must be odd, 3 <= q <= ${MAX_Q}`);
-  if (!(Number.isInteger(r) && Math.abs(r) % 2 === 1 && Math.abs(r) < MAX_ABS_R)) throw new UsageError(`r = ${r}: must be odd with |r| < 2^20`);
+  if (!(Number.isInteger(r) && Math.abs(r) % 2 === 1 && Math.abs(r) < MAX_ABS_R))
+    throw new UsageError(`r = ${r}: must be odd with |r| < 2^20`);
   return { q, r, name: `${q}x${r < 0 ? "-" : "+"}${Math.abs(r)}` };
 }
 
@@ -93,7 +94,7 @@ function imageBounds(map: CollatzMap, m: number, scale: bigint): [bigint, bigint
   const qm = q ** BigInt(m);
   const twoM = 1n << BigInt(m);
   const den = (q - 2n) * twoM;
-  const eCeil = ((qm - twoM) + den - 1n) / den; // ceil(E(m))
+  const eCeil = (qm - twoM + den - 1n) / den; // ceil(E(m))
   const r = BigInt(map.r);
   // + |r| + q covers q (v >> 1) = b' - (q + r) / 2, the product formed before H is added.
   const upper = scale * qm + (r > 0n ? r * eCeil : 0n) + (r < 0n ? -r : r) + q + 1n;
@@ -130,7 +131,8 @@ export function checkKernelDepth(map: CollatzMap, depth: number): void {
   const limit = kernelDepthLimit(map);
   if (depth > limit) {
     throw new LimitError(
-      `depth ${depth} is beyond the exact 64-bit range for ${map.name} (at most ${limit}: q^m and the class images must fit ${map.r > 0 ? "u64" : "i64"}); no wider kernel path exists yet`,
+      `depth ${depth} is beyond the exact 64-bit range for ${map.name} (at most ${limit}: q^m and the class images must fit ` +
+        `${map.r > 0 ? "u64" : "i64"}); no wider kernel path exists yet`,
     );
   }
 }

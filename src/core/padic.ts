@@ -30,7 +30,8 @@ export interface ClassForm {
 
 function checkWord(word: string, what = "parity word"): void {
   if (word.length === 0) throw new UsageError(`${what} is empty`);
-  if (!/^[01]+$/.test(word)) throw new UsageError(`${what} "${word.length > 40 ? word.slice(0, 40) + "..." : word}" must contain only 0 and 1`);
+  if (!/^[01]+$/.test(word))
+    throw new UsageError(`${what} "${word.length > 40 ? word.slice(0, 40) + "..." : word}" must contain only 0 and 1`);
   if (word.length > MAX_INSPECT_STEPS) throw new UsageError(`${what} is longer than ${MAX_INSPECT_STEPS}`);
 }
 
@@ -40,9 +41,14 @@ function checkWord(word: string, what = "parity word"): void {
  */
 export function classFromWord(map: CollatzMap, word: string): ClassForm {
   checkWord(word);
-  const q = BigInt(map.q), r = BigInt(map.r);
-  let a = 0n, b = 0n, qm = 1n, m = 0;
-  let stop: number | null = null, stopOdd: number | null = null;
+  const q = BigInt(map.q),
+    r = BigInt(map.r);
+  let a = 0n,
+    b = 0n,
+    qm = 1n,
+    m = 0;
+  let stop: number | null = null,
+    stopOdd: number | null = null;
   let pow2 = 1n;
   for (let j = 0; j < word.length; j++) {
     const p = word.charCodeAt(j) - 48;
@@ -67,7 +73,8 @@ export function classFromWord(map: CollatzMap, word: string): ClassForm {
 
 /** The first k parities of n (any integer), first step first. */
 export function parityWord(map: CollatzMap, n: bigint, k: number): string {
-  const q = BigInt(map.q), r = BigInt(map.r);
+  const q = BigInt(map.q),
+    r = BigInt(map.r);
   let out = "";
   for (let i = 0; i < k; i++) {
     const odd = (n & 1n) === 1n;
@@ -86,7 +93,8 @@ export function classFromResidue(map: CollatzMap, a: bigint, k: number): ClassFo
 
 /** T^j(n) for the least member: j steps of the map on a BigInt. */
 export function iterate(map: CollatzMap, n: bigint, steps: number): bigint {
-  const q = BigInt(map.q), r = BigInt(map.r);
+  const q = BigInt(map.q),
+    r = BigInt(map.r);
   for (let i = 0; i < steps; i++) n = (n & 1n) === 1n ? (q * n + r) >> 1n : n >> 1n;
   return n;
 }
@@ -107,8 +115,10 @@ export function firstDescent(map: CollatzMap, n: bigint, steps: number): number 
  * @example coefficientStoppingTime(parseMap("3x+5"), 7n, 100) // 24
  */
 export function coefficientStoppingTime(map: CollatzMap, n: bigint, steps: number): number | null {
-  const q = BigInt(map.q), r = BigInt(map.r);
-  let qm = 1n, v = n;
+  const q = BigInt(map.q),
+    r = BigInt(map.r);
+  let qm = 1n,
+    v = n;
   for (let j = 1; j <= steps; j++) {
     const odd = (v & 1n) === 1n;
     if (odd) qm *= q;
@@ -143,7 +153,11 @@ export interface Trajectory {
  * enters a cycle within about `limit` steps (no set of visited values: big orbits stay cheap).
  */
 function findCycle(step: (v: bigint) => bigint, n: bigint, limit: number): { mu: number; lambda: number } | null {
-  let power = 1, lambda = 1, tortoise = n, hare = step(n), taken = 1;
+  let power = 1,
+    lambda = 1,
+    tortoise = n,
+    hare = step(n),
+    taken = 1;
   while (tortoise !== hare) {
     if (taken > 3 * limit + 3) return null;
     if (power === lambda) {
@@ -171,11 +185,18 @@ function findCycle(step: (v: bigint) => bigint, n: bigint, limit: number): { mu:
  * @example trajectory(parseMap("3x+1"), 27n).cycle // { entry: 69, min: 1n, period: 2, odd: 1 }
  */
 export function trajectory(map: CollatzMap, n: bigint, maxSteps = MAX_INSPECT_STEPS): Trajectory {
-  const q = BigInt(map.q), r = BigInt(map.r);
+  const q = BigInt(map.q),
+    r = BigInt(map.r);
   const step = (v: bigint) => ((v & 1n) === 1n ? (q * v + r) >> 1n : v >> 1n);
   const found = findCycle(step, n, maxSteps);
   const steps = found ? Math.min(maxSteps, found.mu + found.lambda) : maxSteps;
-  let v = n, word = "", descent: number | null = null, max = n, maxAt = 0, min = 0n, odd = 0;
+  let v = n,
+    word = "",
+    descent: number | null = null,
+    max = n,
+    maxAt = 0,
+    min = 0n,
+    odd = 0;
   for (let i = 0; i < steps; i++) {
     const isOdd = (v & 1n) === 1n;
     word += isOdd ? "1" : "0";
@@ -231,7 +252,8 @@ export function periodicPoint(map: CollatzMap, pre: string, word: string): Perio
   if (pre.length > 0) checkWord(pre, "pre-period");
   const w = classFromWord(map, word);
   const q = BigInt(map.q);
-  const k2 = 1n << BigInt(w.k), qm = q ** BigInt(w.odd);
+  const k2 = 1n << BigInt(w.k),
+    qm = q ** BigInt(w.odd);
   // z_w = (2^k b - q^m a) / (2^k - q^m): a + 2^k x with q^m x + b = a + 2^k x
   let num = k2 * w.image - qm * w.residue;
   let den = k2 - qm;
@@ -251,7 +273,8 @@ export function periodicPoint(map: CollatzMap, pre: string, word: string): Perio
     num /= g;
     den /= g;
   }
-  let integer: bigint | null = null, cycle: bigint[] | null = null;
+  let integer: bigint | null = null,
+    cycle: bigint[] | null = null;
   if (den === 1n) {
     integer = num;
     // the cycle: from T^|pre|(z), the periodic point itself, with its minimal period
@@ -278,4 +301,3 @@ export function parsePeriodicWord(text: string): { pre: string; word: string } {
   if (/^[01]+$/.test(text)) return { pre: "", word: text };
   throw new UsageError(`"${text}" is not a parity word: write w, (w) or u(w) with digits 0 and 1, e.g. 10 or 1(10)`);
 }
-

@@ -1,10 +1,13 @@
 // Published tables, each with its source, for display beside computed counts (web app) and as
 // check values in the tests.
 
-/** OEIS A076227 (https://oeis.org/A076227; terms checked against the published entry): survivors of the 3x+1 coefficient stopping time sieve mod 2^k, k = 0..32. */
+/**
+ * OEIS A076227 (https://oeis.org/A076227; terms checked against the published entry): survivors of
+ * the 3x+1 coefficient stopping time sieve mod 2^k, k = 0..32.
+ */
 export const A076227: readonly bigint[] = [
-  1, 1, 1, 2, 3, 4, 8, 13, 19, 38, 64, 128, 226, 367, 734, 1295, 2114, 4228, 7495, 14990, 27328, 46611, 93222,
-  168807, 286581, 573162, 1037374, 1762293, 3524586, 6385637, 12771274, 23642078, 41347483,
+  1, 1, 1, 2, 3, 4, 8, 13, 19, 38, 64, 128, 226, 367, 734, 1295, 2114, 4228, 7495, 14990, 27328, 46611, 93222, 168807, 286581, 573162,
+  1037374, 1762293, 3524586, 6385637, 12771274, 23642078, 41347483,
 ].map(BigInt);
 
 /**

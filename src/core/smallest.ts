@@ -26,7 +26,8 @@ export class Smallest<T> {
   private trim(): void {
     const k = this.key;
     this.items.sort((u, v) => {
-      const a = k(u), b = k(v);
+      const a = k(u),
+        b = k(v);
       return a < b ? -1 : a > b ? 1 : 0;
     });
     if (this.items.length > this.limit) this.items.length = this.limit;

@@ -13,7 +13,14 @@ const MAX_PREFIX_BITS = 20;
  * The prefix depth d: the least d with at least 16 live prefixes per worker and shards of bounded
  * size, using the exact counter's survivor counts (full mode: 2^d prefixes).
  */
-export function choosePrefixBits(map: CollatzMap, depth: number, mode: Mode, workers: number, withLeaves: boolean, shardNodes = SHARD_NODES): number {
+export function choosePrefixBits(
+  map: CollatzMap,
+  depth: number,
+  mode: Mode,
+  workers: number,
+  withLeaves: boolean,
+  shardNodes = SHARD_NODES,
+): number {
   const levels = exactCounts(map, depth).levels;
   const live = (d: number) => (mode === "full" ? 1n << BigInt(d) : levels[d]!.survivors);
   const nodes = mode === "full" ? (1n << BigInt(depth + 1)) - 1n : levels.reduce((s, l) => s + l.survivors, 0n);
@@ -26,4 +33,3 @@ export function choosePrefixBits(map: CollatzMap, depth: number, mode: Mode, wor
   }
   return top;
 }
-

@@ -6,7 +6,8 @@ import { TALLY_STRIDE } from "./messages.js";
 
 /** The kernel build's tally stride is the one results are read with. */
 export function checkTallyStride(kernel: Kernel): void {
-  if (kernel.layout("TALLY_STRIDE") !== TALLY_STRIDE) throw new Error(`kernel build has tally stride ${kernel.layout("TALLY_STRIDE")}, the host reads ${TALLY_STRIDE}: rebuild`);
+  if (kernel.layout("TALLY_STRIDE") !== TALLY_STRIDE)
+    throw new Error(`kernel build has tally stride ${kernel.layout("TALLY_STRIDE")}, the host reads ${TALLY_STRIDE}: rebuild`);
 }
 
 /** Writes q^m and bitlen(q^m) for m <= depth at `at`; entries past depth are set out of reach. */

@@ -31,9 +31,22 @@ export function createWorkerApi(): KernelWorkerApi {
     async runCensus(req) {
       if (!kernel) throw new Error("worker used before init");
       const res = censusShard(kernel, req);
-      const arrays: ArrayBufferView[] = [res.live, res.stopped, res.vectors, res.peak, res.bins, res.counts, res.ambiguous, res.differ, res.ratio];
+      const arrays: ArrayBufferView[] = [
+        res.live,
+        res.stopped,
+        res.vectors,
+        res.peak,
+        res.bins,
+        res.counts,
+        res.ambiguous,
+        res.differ,
+        res.ratio,
+      ];
       if (res.leafVectors) arrays.push(res.leafVectors);
-      return transfer(res, arrays.map((x) => asArrayBuffer(x.buffer)));
+      return transfer(
+        res,
+        arrays.map((x) => asArrayBuffer(x.buffer)),
+      );
     },
     async exportTable(req) {
       const map = makeMap(req.q, req.r);
@@ -41,7 +54,8 @@ export function createWorkerApi(): KernelWorkerApi {
         const c = classFromResidue(map, BigInt(a), req.depth);
         return { residue: c.residue, odd: c.odd, image: c.image };
       });
-      const bytes = req.format === "arrow" ? classTableArrow(rows, req.depth, req.r < 0) : new TextEncoder().encode([...csvLines(rows)].join(""));
+      const bytes =
+        req.format === "arrow" ? classTableArrow(rows, req.depth, req.r < 0) : new TextEncoder().encode([...csvLines(rows)].join(""));
       return transfer(bytes, [asArrayBuffer(bytes.buffer)]);
     },
     async runCycles(req) {
@@ -63,7 +77,8 @@ export function concatLeaves(chunks: LeafChunk[], signed: boolean): LeafChunk {
   const a = new BigUint64Array(n);
   const b = signed ? new BigInt64Array(nb) : new BigUint64Array(nb);
   const m = new Uint8Array(nb);
-  let o = 0, ob = 0;
+  let o = 0,
+    ob = 0;
   for (const c of chunks) {
     a.set(c.a, o);
     if (b instanceof BigInt64Array) b.set(c.b as BigInt64Array, ob);

@@ -39,17 +39,28 @@ export function cycleStructure(perm: Uint32Array): { cycles: number; fixedPoints
  * The permutation a -> Q_k(a) mod 2^k from the kernel's full tree (each leaf's path is its parity vector).
  * @example const p = await conjugacyPermutation(pool, parseMap("3x+1"), 3); // Uint32Array [0, 3, 1, 2, ...]
  */
-export async function conjugacyPermutation(pool: KernelPool, map: CollatzMap, depth: number, options: RunOptions = {}): Promise<Uint32Array> {
-  if (!Number.isInteger(depth) || depth < 1 || depth > MAX_CONJUGACY_DEPTH) throw new UsageError(`conjugacy depth must be between 1 and ${MAX_CONJUGACY_DEPTH}`);
+export async function conjugacyPermutation(
+  pool: KernelPool,
+  map: CollatzMap,
+  depth: number,
+  options: RunOptions = {},
+): Promise<Uint32Array> {
+  if (!Number.isInteger(depth) || depth < 1 || depth > MAX_CONJUGACY_DEPTH)
+    throw new UsageError(`conjugacy depth must be between 1 and ${MAX_CONJUGACY_DEPTH}`);
   const perm = new Uint32Array(2 ** depth);
   const filled = new Uint8Array(2 ** depth);
-  await pool.run(censusShards(map, depth, pool.size, true), (api, s) => api.runCensus(s), (_s, out) => {
-    const pairs = out.leafVectors!;
-    for (let i = 0; i < pairs.length; i += 2) {
-      perm[pairs[i]!] = pairs[i + 1]!;
-      filled[pairs[i]!] = 1;
-    }
-  }, options);
+  await pool.run(
+    censusShards(map, depth, pool.size, true),
+    (api, s) => api.runCensus(s),
+    (_s, out) => {
+      const pairs = out.leafVectors!;
+      for (let i = 0; i < pairs.length; i += 2) {
+        perm[pairs[i]!] = pairs[i + 1]!;
+        filled[pairs[i]!] = 1;
+      }
+    },
+    options,
+  );
   if (!filled.every((x) => x === 1)) throw new Error("internal error: the census did not reach every residue");
   return perm;
 }

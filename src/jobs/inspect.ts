@@ -1,7 +1,16 @@
 // The class inspector: one input (parity word, number, or residue a mod 2^k) to a class card.
 import type { CollatzMap } from "../core/map.js";
 import { UsageError } from "../core/errors.js";
-import { classFromResidue, classFromWord, coefficientStoppingTime, firstDescent, iterate, MAX_INSPECT_STEPS, parityWord, trajectory } from "../core/padic.js";
+import {
+  classFromResidue,
+  classFromWord,
+  coefficientStoppingTime,
+  firstDescent,
+  iterate,
+  MAX_INSPECT_STEPS,
+  parityWord,
+  trajectory,
+} from "../core/padic.js";
 import type { ClassForm, Trajectory } from "../core/padic.js";
 
 export type InspectInput =
@@ -37,7 +46,12 @@ export function parseInspectInput(text: string): InspectInput {
 export interface ClassCard {
   readonly form: ClassForm;
   /** The least member's own trajectory: its first descent (within `steps`), its value at the stopping time. */
-  readonly leastMember: { readonly n: bigint; readonly descent: number | null; readonly searched: number; readonly imageAtStop: bigint | null };
+  readonly leastMember: {
+    readonly n: bigint;
+    readonly descent: number | null;
+    readonly searched: number;
+    readonly imageAtStop: bigint | null;
+  };
 }
 
 export interface NumberCard {
@@ -61,7 +75,8 @@ function classCard(form: ClassForm, steps: number): ClassCard {
  * @example inspect(parseMap("3x+1"), parseInspectInput("3 mod 16")).card.form.stoppingTime // 4
  */
 export function inspect(map: CollatzMap, input: InspectInput, steps = MAX_INSPECT_STEPS): Card {
-  if (!Number.isInteger(steps) || steps < 1 || steps > MAX_INSPECT_STEPS) throw new UsageError(`steps must be between 1 and ${MAX_INSPECT_STEPS}`);
+  if (!Number.isInteger(steps) || steps < 1 || steps > MAX_INSPECT_STEPS)
+    throw new UsageError(`steps must be between 1 and ${MAX_INSPECT_STEPS}`);
   switch (input.kind) {
     case "word":
       return { kind: "class", card: classCard(classFromWord(map, input.word), steps) };

@@ -22,24 +22,31 @@ export interface StepTable {
  * @example const t = await stepTable(pool, parseMap("3x+1"), 2); t.image // [0n, 1n, 1n, 8n]
  */
 export async function stepTable(pool: KernelPool, map: CollatzMap, depth: number, options: RunOptions = {}): Promise<StepTable> {
-  if (!Number.isInteger(depth) || depth < 1 || depth > MAX_STEP_DEPTH) throw new UsageError(`step table depth must be between 1 and ${MAX_STEP_DEPTH}`);
+  if (!Number.isInteger(depth) || depth < 1 || depth > MAX_STEP_DEPTH)
+    throw new UsageError(`step table depth must be between 1 and ${MAX_STEP_DEPTH}`);
   checkKernelDepth(map, depth);
   const size = 2 ** depth;
   const odd = new Uint8Array(size);
   const image = map.r < 0 ? new BigInt64Array(size) : new BigUint64Array(size);
   let filled = 0;
-  await runSieve(pool, {
-    map, depth, mode: "full",
-    onLeaves: (c) => {
-      const words = new Uint32Array(c.a.buffer, c.a.byteOffset, c.a.length * 2);
-      for (let i = 0; i < c.a.length; i++) {
-        const a = words[2 * i]!; // a < 2^24
-        odd[a] = c.m[i]!;
-        image[a] = c.b[i]!;
-      }
-      filled += c.a.length;
+  await runSieve(
+    pool,
+    {
+      map,
+      depth,
+      mode: "full",
+      onLeaves: (c) => {
+        const words = new Uint32Array(c.a.buffer, c.a.byteOffset, c.a.length * 2);
+        for (let i = 0; i < c.a.length; i++) {
+          const a = words[2 * i]!; // a < 2^24
+          odd[a] = c.m[i]!;
+          image[a] = c.b[i]!;
+        }
+        filled += c.a.length;
+      },
     },
-  }, options);
+    options,
+  );
   if (filled !== size) throw new Error(`internal error: ${filled} of ${size} residues enumerated`);
   return { map, depth, odd, image };
 }

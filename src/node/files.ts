@@ -93,7 +93,9 @@ async function placeAll(files: readonly AtomicFile[]): Promise<void> {
   } catch (e) {
     for (const f of placed) await unlink(f.path).catch(() => {});
     for (const f of files) await f.abort();
-    throw new Error(`cannot place ${files.map((f) => f.path).join(" and ")}: ${(e as NodeJS.ErrnoException).code ?? String(e)}; nothing was written`);
+    throw new Error(
+      `cannot place ${files.map((f) => f.path).join(" and ")}: ${(e as NodeJS.ErrnoException).code ?? String(e)}; nothing was written`,
+    );
   }
 }
 

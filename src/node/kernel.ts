@@ -29,7 +29,10 @@ export async function loadKernelModule(flavour: Flavour = "release"): Promise<We
 
 /** Content hash of the kernel build (16 hex digits), stamped into manifests. */
 export async function kernelBuildId(flavour: Flavour = "release"): Promise<string> {
-  return createHash("sha256").update(await kernelBytes(flavour)).digest("hex").slice(0, 16);
+  return createHash("sha256")
+    .update(await kernelBytes(flavour))
+    .digest("hex")
+    .slice(0, 16);
 }
 
 /** The tool version and kernel build that manifests carry. */
@@ -60,7 +63,11 @@ export async function nodePool(workers = availableParallelism(), flavour: Flavou
  * before the result is returned and the threads are released however `work` ends.
  * @example const r = await withPool(2, "census", (pool, onProgress) => runCensus(pool, map, 20, { onProgress }));
  */
-export async function withPool<T>(workers: number, label: string, work: (pool: KernelPool, onProgress: (done: number, total: number) => void) => Promise<T>): Promise<T> {
+export async function withPool<T>(
+  workers: number,
+  label: string,
+  work: (pool: KernelPool, onProgress: (done: number, total: number) => void) => Promise<T>,
+): Promise<T> {
   const pool = await nodePool(workers);
   const bar = progressBar(label);
   try {

@@ -37,7 +37,11 @@ export function stepTableArrow(t: StepTable): Uint8Array {
  * count (uint64); unused coordinates are -1.
  */
 export function censusArrow(c: CensusResult): Uint8Array {
-  const tally: string[] = [], depth: number[] = [], odd: number[] = [], bin: number[] = [], count: bigint[] = [];
+  const tally: string[] = [],
+    depth: number[] = [],
+    odd: number[] = [],
+    bin: number[] = [],
+    count: bigint[] = [];
   const add = (t: string, j: number, m: number, k: number, n: bigint) => {
     tally.push(t);
     depth.push(j);
@@ -45,8 +49,17 @@ export function censusArrow(c: CensusResult): Uint8Array {
     bin.push(k);
     count.push(n);
   };
-  for (const [name, table] of [["live", c.live], ["stopped", c.stopped], ["vectors", c.vectors], ["peak", c.peak]] as const) {
-    table.forEach((row, j) => row.forEach((n, m) => n > 0n && add(name, j, m, -1, n)));
+  for (const [name, table] of [
+    ["live", c.live],
+    ["stopped", c.stopped],
+    ["vectors", c.vectors],
+    ["peak", c.peak],
+  ] as const) {
+    table.forEach((row, j) => {
+      row.forEach((n, m) => {
+        if (n > 0n) add(name, j, m, -1, n);
+      });
+    });
   }
   for (const b of c.ratioBins) add("log2_ratio_quarter", c.depth, -1, b.bin, b.count);
   if (c.nonpositive > 0n) add("nonpositive_image", c.depth, -1, -1, c.nonpositive);
@@ -70,12 +83,30 @@ export function cyclesArrow(r: CycleSearchResult): Uint8Array {
   const cycles = r.cycles;
   return tableToIPC(
     new Table({
-      representative: vectorFromArray(cycles.map((c) => String(c.representative)), new Utf8()),
-      min: vectorFromArray(cycles.map((c) => String(c.min)), new Utf8()),
-      max: vectorFromArray(cycles.map((c) => String(c.max)), new Utf8()),
-      period: vectorFromArray(cycles.map((c) => c.period), new Int32()),
-      odd_steps: vectorFromArray(cycles.map((c) => c.odd), new Int32()),
-      elements: vectorFromArray(cycles.map((c) => c.elements.map(String)), new List(new Field("item", new Utf8(), false))),
+      representative: vectorFromArray(
+        cycles.map((c) => String(c.representative)),
+        new Utf8(),
+      ),
+      min: vectorFromArray(
+        cycles.map((c) => String(c.min)),
+        new Utf8(),
+      ),
+      max: vectorFromArray(
+        cycles.map((c) => String(c.max)),
+        new Utf8(),
+      ),
+      period: vectorFromArray(
+        cycles.map((c) => c.period),
+        new Int32(),
+      ),
+      odd_steps: vectorFromArray(
+        cycles.map((c) => c.odd),
+        new Int32(),
+      ),
+      elements: vectorFromArray(
+        cycles.map((c) => c.elements.map(String)),
+        new List(new Field("item", new Utf8(), false)),
+      ),
     }),
     "file",
   );

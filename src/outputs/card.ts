@@ -25,7 +25,8 @@ export function abbreviate(s: string, n = 200): string {
 function stopLine(f: ClassForm): string {
   return f.stoppingTime === null
     ? `coefficient stays >= 1 for all ${f.k} steps: no coefficient stopping time within the word`
-    : `coefficient stopping time ${f.stoppingTime} (${f.stoppingTime + f.stoppingOdd!} standard steps): ${f.map.q}^${f.stoppingOdd} < 2^${f.stoppingTime}`;
+    : `coefficient stopping time ${f.stoppingTime} (${f.stoppingTime + f.stoppingOdd!} standard steps): ${f.map.q}^${f.stoppingOdd} < 2^` +
+        `${f.stoppingTime}`;
 }
 
 function classText(c: ClassCard): string {
@@ -38,8 +39,15 @@ function classText(c: ClassCard): string {
     `  odd steps m = ${f.odd}, ${plural(f.k - f.odd, "halving")}; ${plural(f.k + f.odd, "standard step")}`,
     `  ${stopLine(f)}`,
     `  least member ${abbreviate(String(lm.n), 80)}: ` +
-      (lm.n === 0n ? "0 is not positive" : lm.descent === null ? `does not descend within ${lm.searched} steps` : `first descends at step ${lm.descent}`) +
-      (lm.imageAtStop !== null && lm.n > 0n ? `; at the stopping time T^${f.stoppingTime}(${abbreviate(String(lm.n), 40)}) = ${abbreviate(String(lm.imageAtStop), 40)} (${lm.imageAtStop < lm.n ? "descends" : "does not descend: an exception of the sieve"})` : ""),
+      (lm.n === 0n
+        ? "0 is not positive"
+        : lm.descent === null
+          ? `does not descend within ${lm.searched} steps`
+          : `first descends at step ${lm.descent}`) +
+      (lm.imageAtStop !== null && lm.n > 0n
+        ? `; at the stopping time T^${f.stoppingTime}(${abbreviate(String(lm.n), 40)}) = ${abbreviate(String(lm.imageAtStop), 40)} (` +
+          `${lm.imageAtStop < lm.n ? "descends" : "does not descend: an exception of the sieve"})`
+        : ""),
     `  2-adic digits of the residue (least significant first): ${abbreviate(digitsOf(f.residue, f.k))}`,
   ].join("\n");
 }
@@ -48,11 +56,20 @@ function numberText(map: CollatzMap, c: NumberCard): string {
   const t = c.trajectory;
   const lines = [`n = ${abbreviate(String(c.n), 80)} under ${map.name}`];
   lines.push(`  parity vector (${t.steps} steps${t.cycle ? ", to the cycle and once round it" : ""}): ${abbreviate(t.word)}`);
-  lines.push(`  stopping time (first T^j(n) < n): ${t.descent === null ? `none within ${t.steps} steps` : `${t.descent} (${t.descent + [...t.word.slice(0, t.descent)].filter((x) => x === "1").length} standard steps)`}`);
+  const oddBefore = (j: number) => [...t.word.slice(0, j)].filter((x) => x === "1").length;
+  const descent = t.descent === null ? `none within ${t.steps} steps` : `${t.descent} (${t.descent + oddBefore(t.descent)} standard steps)`;
+  lines.push(`  stopping time (first T^j(n) < n): ${descent}`);
   if (c.form) lines.push(`  ${stopLine(c.form)}`);
   lines.push(`  largest value ${abbreviate(String(t.max), 80)} at step ${t.maxAt}`);
-  lines.push(t.cycle ? `  enters the cycle of ${t.cycle.min} (least |x|) (period ${t.cycle.period}, ${t.cycle.odd} odd) at step ${t.cycle.entry}` : `  no cycle reached within ${t.steps} steps`);
-  lines.push(`  2-adic digits (least significant first): ${abbreviate(digitsOf(c.n < 0n ? (1n << 64n) + c.n : c.n, Math.max(1, c.n < 0n ? 64 : bitLength(c.n))))}${c.n < 0n ? " ..." : ""}`);
+  lines.push(
+    t.cycle
+      ? `  enters the cycle of ${t.cycle.min} (least |x|) (period ${t.cycle.period}, ${t.cycle.odd} odd) at step ${t.cycle.entry}`
+      : `  no cycle reached within ${t.steps} steps`,
+  );
+  lines.push(
+    `  2-adic digits (least significant first): ` +
+      `${abbreviate(digitsOf(c.n < 0n ? (1n << 64n) + c.n : c.n, Math.max(1, c.n < 0n ? 64 : bitLength(c.n))))}${c.n < 0n ? " ..." : ""}`,
+  );
   return lines.join("\n");
 }
 

@@ -32,7 +32,14 @@ export interface ManifestCommon {
  * A manifest: the common fields, then the job's own (depth, rows, layout...).
  * @example manifest("glidepath census", map, "arrow", data, tool, { depth: 20 })
  */
-export function manifest<E extends object>(kind: string, map: CollatzMap, format: string, data: DataFile, tool: ToolStamp, extra: E): ManifestCommon & E {
+export function manifest<E extends object>(
+  kind: string,
+  map: CollatzMap,
+  format: string,
+  data: DataFile,
+  tool: ToolStamp,
+  extra: E,
+): ManifestCommon & E {
   return {
     kind,
     map: map.name,

@@ -41,7 +41,10 @@ export function vectorsAreBinomial(c: CensusResult): boolean {
 /** The fields of `glidepath census --json`. */
 export function censusJson(c: CensusResult) {
   const q = c.map.q;
-  const cells = (t: bigint[][]) => t.flatMap((row, j) => row.flatMap((count, m) => (count > 0n ? [{ depth: j, odd: m, count, log2Coefficient: log2Coefficient(q, m, j) }] : [])));
+  const cells = (t: bigint[][]) =>
+    t.flatMap((row, j) =>
+      row.flatMap((count, m) => (count > 0n ? [{ depth: j, odd: m, count, log2Coefficient: log2Coefficient(q, m, j) }] : [])),
+    );
   return {
     map: c.map.name,
     depth: c.depth,
@@ -80,7 +83,14 @@ export function cyclesJson(r: CycleSearchResult) {
     map: r.map.name,
     maxPeriod: r.maxPeriod,
     width: r.width,
-    cycles: r.cycles.map((c) => ({ representative: c.representative, min: c.min, max: c.max, period: c.period, odd: c.odd, elements: c.elements })),
+    cycles: r.cycles.map((c) => ({
+      representative: c.representative,
+      min: c.min,
+      max: c.max,
+      period: c.period,
+      odd: c.odd,
+      elements: c.elements,
+    })),
     candidates: r.candidates,
     nodes: r.nodes,
     seconds: Number(r.seconds.toFixed(3)),
@@ -89,7 +99,14 @@ export function cyclesJson(r: CycleSearchResult) {
 
 /** The fields of `glidepath conjugacy --json`. */
 export function conjugacyJson(r: ConjugacyResult) {
-  return { map: r.map.name, depth: r.depth, cycles: r.cycles, fixedPoints: r.fixedPoints, lengths: r.lengths, seconds: Number(r.seconds.toFixed(3)) };
+  return {
+    map: r.map.name,
+    depth: r.depth,
+    cycles: r.cycles,
+    fixedPoints: r.fixedPoints,
+    lengths: r.lengths,
+    seconds: Number(r.seconds.toFixed(3)),
+  };
 }
 
 /** The fields of `glidepath class --json`. */

@@ -27,7 +27,8 @@ export function passPlan(depth: number, rows: bigint, budget = DEFAULT_PASS_BUDG
   const bucketBits = Math.min(depth, 10);
   const bytes = rows * BigInt(SORTER_BYTES_PER_ROW);
   const passes = Number((bytes + BigInt(budget) - 1n) / BigInt(budget)) || 1;
-  if (passes > 1 << bucketBits) throw new LimitError(`a table of ${rows} rows needs more than ${1 << bucketBits} passes at this memory budget`);
+  if (passes > 1 << bucketBits)
+    throw new LimitError(`a table of ${rows} rows needs more than ${1 << bucketBits} passes at this memory budget`);
   return { bucketBits, passes };
 }
 
@@ -134,4 +135,3 @@ export function parseCsv(text: string): CsvRow[] {
     return { residue: BigInt(a!), odd: Number(m), image: BigInt(b!) };
   });
 }
-

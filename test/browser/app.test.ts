@@ -38,10 +38,17 @@ async function open(query = ""): Promise<Page> {
   return page;
 }
 
-type Summary = { map: string; depth: bigint; levels: { depth: bigint; survivors: bigint; stopped: bigint }[]; exceptions: { n: bigint }[]; census?: { agreesWithExactCounter: boolean } };
+type Summary = {
+  map: string;
+  depth: bigint;
+  levels: { depth: bigint; survivors: bigint; stopped: bigint }[];
+  exceptions: { n: bigint }[];
+  census?: { agreesWithExactCounter: boolean };
+};
 const summary = async (page: Page) => parseExactJson(await summaryOf(page)) as Summary;
 /** The summary without its timings (they differ from run to run). */
-const stable = (s: Summary): unknown => JSON.parse(JSON.stringify(s, (k, v: unknown) => (k === "seconds" ? 0 : typeof v === "bigint" ? v.toString() : v)));
+const stable = (s: Summary): unknown =>
+  JSON.parse(JSON.stringify(s, (k, v: unknown) => (k === "seconds" ? 0 : typeof v === "bigint" ? v.toString() : v)));
 
 describe.skipIf(!hasChromium)("web app", () => {
   it("runs a depth-20 sieve whose table agrees with OEIS A076227 (published entry)", async () => {
@@ -61,7 +68,9 @@ describe.skipIf(!hasChromium)("web app", () => {
     const page = await open();
     await page.fill("#run-depth", "32");
     await page.click("#run-start");
-    await page.waitForFunction(() => (document.querySelector("#run-progress") as HTMLProgressElement).value > 0, undefined, { timeout: 30_000 });
+    await page.waitForFunction(() => (document.querySelector("#run-progress") as HTMLProgressElement).value > 0, undefined, {
+      timeout: 30_000,
+    });
     await page.click("#run-cancel");
     await page.waitForFunction(() => document.querySelector("#run-status")!.textContent === "Cancelled.", undefined, { timeout: 2_000 });
     expect(await page.isEnabled("#run-start")).toBe(true);
@@ -75,7 +84,9 @@ describe.skipIf(!hasChromium)("web app", () => {
   it("a worker-count change and a cycle search during a run wait their turn: the run completes, then the search", async () => {
     const page = await open("?mode=full&depth=29");
     await page.click("#run-start");
-    await page.waitForFunction(() => (document.querySelector("#run-progress") as HTMLProgressElement).value > 0, undefined, { timeout: 30_000 });
+    await page.waitForFunction(() => (document.querySelector("#run-progress") as HTMLProgressElement).value > 0, undefined, {
+      timeout: 30_000,
+    });
     await page.fill("#run-workers", "1");
     await page.click("#tab-cycles");
     await page.fill("#cycles-map", "3x+1");
@@ -84,7 +95,11 @@ describe.skipIf(!hasChromium)("web app", () => {
     const s = await summary(page);
     expect(s.census?.agreesWithExactCounter).toBe(true);
     expect(s.levels[29]!.survivors).toBe(A076227[29]);
-    await page.waitForFunction(() => /integer cycles of 3x\+1/.test(document.querySelector("#cycles-message")!.textContent ?? ""), undefined, { timeout: 60_000 });
+    await page.waitForFunction(
+      () => /integer cycles of 3x\+1/.test(document.querySelector("#cycles-message")!.textContent ?? ""),
+      undefined,
+      { timeout: 60_000 },
+    );
     // 3x+1 to period 16: the cycles of 1, -1, -5 and -17 (common practice)
     const reps = await page.$$eval("#cycles-table tbody tr", (rows) => rows.map((r) => r.children[2]!.textContent));
     expect(reps).toEqual(["1", "-1", "-5", "-17"]);
@@ -119,9 +134,15 @@ describe.skipIf(!hasChromium)("web app", () => {
     page.on("download", (d) => downloads.push(d));
     await page.click("#export-raw");
     for (let i = 0; i < 50 && downloads.length < 2; i++) await page.waitForTimeout(100);
-    const byName = new Map(await Promise.all(downloads.map(async (d) => [d.suggestedFilename(), readFileSync((await d.path())!)] as const)));
+    const byName = new Map(
+      await Promise.all(downloads.map(async (d) => [d.suggestedFilename(), readFileSync((await d.path())!)] as const)),
+    );
     const data = byName.get("survivors-3x+1-14.u32")!;
-    const manifest = parseExactJson(byName.get("survivors-3x+1-14.u32.json")!.toString("utf8")) as { sha256: string; rows: bigint; tool: { kernelBuild: string } };
+    const manifest = parseExactJson(byName.get("survivors-3x+1-14.u32.json")!.toString("utf8")) as {
+      sha256: string;
+      rows: bigint;
+      tool: { kernelBuild: string };
+    };
     expect(manifest.sha256).toBe(createHash("sha256").update(data).digest("hex"));
     const wasm = readFileSync(new URL("../../build/release.wasm", import.meta.url));
     expect(manifest.tool.kernelBuild).toBe(createHash("sha256").update(wasm).digest("hex").slice(0, 16));
@@ -179,9 +200,13 @@ describe.skipIf(!hasChromium)("web app", () => {
 
   it("labels every control and works from the keyboard", async () => {
     const page = await open();
-    const unlabeled = await page.$$eval("input, select", (els) => els.filter((e) => (e as HTMLInputElement).labels?.length === 0 && !e.getAttribute("aria-label")).map((e) => e.id));
+    const unlabeled = await page.$$eval("input, select", (els) =>
+      els.filter((e) => (e as HTMLInputElement).labels?.length === 0 && !e.getAttribute("aria-label")).map((e) => e.id),
+    );
     expect(unlabeled).toEqual([]);
-    const nameless = await page.$$eval("button", (els) => els.filter((b) => !(b.textContent ?? "").trim() && !b.getAttribute("aria-label")).map((b) => b.id));
+    const nameless = await page.$$eval("button", (els) =>
+      els.filter((b) => !(b.textContent ?? "").trim() && !b.getAttribute("aria-label")).map((b) => b.id),
+    );
     expect(nameless).toEqual([]);
     await page.focus("#run-depth");
     await page.fill("#run-depth", "10");

@@ -49,7 +49,16 @@ export async function launch(): Promise<{ browser: BrowserContext; done: () => P
     headless: true,
     acceptDownloads: true,
     viewport: { width: 1366, height: 900 },
-    args: ["--headless", "--no-sandbox", "--disable-gpu", "--disable-background-networking", "--disable-component-update", "--disable-sync", "--no-first-run", "--disable-quic"],
+    args: [
+      "--headless",
+      "--no-sandbox",
+      "--disable-gpu",
+      "--disable-background-networking",
+      "--disable-component-update",
+      "--disable-sync",
+      "--no-first-run",
+      "--disable-quic",
+    ],
   });
   return {
     browser,

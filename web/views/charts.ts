@@ -6,7 +6,17 @@ import { GridComponent, LegendComponent, TooltipComponent, VisualMapComponent } 
 import { CanvasRenderer } from "echarts/renderers";
 import type { Level } from "../../src/core/exact.js";
 
-echarts.use([BarChart, HeatmapChart, LineChart, ScatterChart, GridComponent, LegendComponent, TooltipComponent, VisualMapComponent, CanvasRenderer]);
+echarts.use([
+  BarChart,
+  HeatmapChart,
+  LineChart,
+  ScatterChart,
+  GridComponent,
+  LegendComponent,
+  TooltipComponent,
+  VisualMapComponent,
+  CanvasRenderer,
+]);
 
 const PALETTE = ["#0072B2", "#E69F00", "#009E73", "#D55E00", "#CC79A7", "#56B4E9", "#F0E442"];
 const charts = new Map<string, echarts.ECharts>();
@@ -76,15 +86,34 @@ export function drawStopped(levels: readonly Level[]): void {
 /** The (j, m) table of alive classes as a heat map (colour: log10 of the count). */
 export function drawHeat(live: readonly bigint[][]): void {
   const data: [number, number, number, string][] = [];
-  live.forEach((row, j) => row.forEach((c, m) => c > 0n && data.push([j, m, Math.log10(Number(c)), c.toString()])));
+  live.forEach((row, j) => {
+    row.forEach((c, m) => {
+      if (c > 0n) data.push([j, m, Math.log10(Number(c)), c.toString()]);
+    });
+  });
   const max = Math.max(1, ...data.map((x) => x[2]));
   chart("chart-heat").setOption(
     {
       ...base(),
-      tooltip: { trigger: "item", formatter: (p: { data: [number, number, number, string] }) => `j = ${p.data[0]}, m = ${p.data[1]}: ${p.data[3]}` },
+      tooltip: {
+        trigger: "item",
+        formatter: (p: { data: [number, number, number, string] }) => `j = ${p.data[0]}, m = ${p.data[1]}: ${p.data[3]}`,
+      },
       xAxis: axis("category", "depth j", { data: live.map((_, j) => String(j)) }),
       yAxis: axis("category", "odd steps m", { data: live.map((_, m) => String(m)) }),
-      visualMap: { min: 0, max, dimension: 2, calculable: false, orient: "horizontal", right: 0, top: 0, itemHeight: 80, text: ["log10", ""], textStyle: { color: base().textStyle.color }, inRange: { color: ["#440154", "#3b528b", "#21918c", "#5ec962", "#fde725"] } }, // viridis: ordered in lightness, readable in both schemes
+      visualMap: {
+        min: 0,
+        max,
+        dimension: 2,
+        calculable: false,
+        orient: "horizontal",
+        right: 0,
+        top: 0,
+        itemHeight: 80,
+        text: ["log10", ""],
+        textStyle: { color: base().textStyle.color },
+        inRange: { color: ["#440154", "#3b528b", "#21918c", "#5ec962", "#fde725"] },
+      }, // viridis: ordered in lightness, readable in both schemes
       series: [{ type: "heatmap", data: data.map((x) => [x[0], x[1], x[2], x[3]]) }],
     },
     true,
@@ -104,7 +133,8 @@ export function drawCensus(peaks: { log2: number; count: bigint }[], bins: { bin
     true,
   );
   // every quarter-unit bin from the lowest to the highest, empty ones included, so the axis is even
-  const lo = Math.min(...bins.map((b) => b.bin)), hi = Math.max(...bins.map((b) => b.bin));
+  const lo = Math.min(...bins.map((b) => b.bin)),
+    hi = Math.max(...bins.map((b) => b.bin));
   const byBin = new Map(bins.map((b) => [b.bin, Number(b.count)]));
   const all = bins.length ? Array.from({ length: hi - lo + 1 }, (_, i) => lo + i) : [];
   chart("chart-ratio").setOption(

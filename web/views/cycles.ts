@@ -7,7 +7,13 @@ import { RunController } from "../controller.js";
 import { $, fieldError } from "../dom.js";
 import { pagePoolPending, withPagePool } from "../engine.js";
 
-const controller = new RunController({ start: "cycles-go", cancel: "cycles-cancel", progress: "cycles-progress", status: "cycles-status", message: "cycles-message" });
+const controller = new RunController({
+  start: "cycles-go",
+  cancel: "cycles-cancel",
+  progress: "cycles-progress",
+  status: "cycles-status",
+  message: "cycles-message",
+});
 
 /** Reads and checks the form; errors appear beside the fields. */
 function readCyclesForm(mapText: string, periodText: string): { map: CollatzMap; period: number } | null {
@@ -33,15 +39,21 @@ function readCyclesForm(mapText: string, periodText: string): { map: CollatzMap;
 }
 
 function renderCycles(r: CycleSearchResult): void {
-  controller.say(`${r.cycles.length} integer cycles of ${r.map.name} with period <= ${r.maxPeriod} (complete search, ${r.width}-bit, ${r.seconds.toFixed(2)} s).`);
+  controller.say(
+    `${r.cycles.length} integer cycles of ${r.map.name} with period <= ${r.maxPeriod} (complete search, ${r.width}-bit, ` +
+      `${r.seconds.toFixed(2)} s).`,
+  );
   const rows = r.cycles
     .map(
       (c) =>
-        `<tr><td>${c.representative > 0n ? "positive" : "negative"}</td><td>${c.min}</td><td>${c.representative}</td><td>${c.period}</td><td>${c.odd}</td><td class="left">${c.elements.length <= 40 ? c.elements.join(" ") : `${c.elements.slice(0, 40).join(" ")} …`}</td></tr>`,
+        `<tr><td>${c.representative > 0n ? "positive" : "negative"}</td><td>${c.min}</td><td>${c.representative}</td><td>` +
+        `${c.period}</td><td>${c.odd}</td><td class="left">` +
+        `${c.elements.length <= 40 ? c.elements.join(" ") : `${c.elements.slice(0, 40).join(" ")} …`}</td></tr>`,
     )
     .join("");
   $("cycles-table").innerHTML =
-    `<thead><tr><th>sign</th><th>minimum</th><th>least |x|</th><th>period</th><th>odd steps</th><th class="left">elements</th></tr></thead><tbody>${rows}</tbody>`;
+    "<thead><tr><th>sign</th><th>minimum</th><th>least |x|</th><th>period</th><th>odd steps</th>" +
+    `<th class="left">elements</th></tr></thead><tbody>${rows}</tbody>`;
 }
 
 /** Runs the search when the form is valid; returns false (errors beside the fields) when it is not. */

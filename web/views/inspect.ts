@@ -1,6 +1,8 @@
 // The inspector: a parity word, a number or a residue to a class card, and a number's trajectory.
 import { parseMap } from "../../src/core/map.js";
 import { inspect, parseInspectInput } from "../../src/jobs/inspect.js";
+import type { Card, InspectInput } from "../../src/jobs/inspect.js";
+import type { CollatzMap } from "../../src/core/map.js";
 import { iterate } from "../../src/core/padic.js";
 import { cardText } from "../../src/outputs/card.js";
 import { drawTrajectory } from "./charts.js";
@@ -9,7 +11,7 @@ import { $, fieldError } from "../dom.js";
 /** Shows the card for `text`; returns false (with a message beside the field) on bad input. */
 export function runInspect(text: string, mapText: string): boolean {
   let ok = true;
-  let map;
+  let map: CollatzMap | undefined;
   try {
     map = parseMap(mapText.trim());
     fieldError("inspect-map", "");
@@ -17,7 +19,7 @@ export function runInspect(text: string, mapText: string): boolean {
     fieldError("inspect-map", (e as Error).message);
     ok = false;
   }
-  let input;
+  let input: InspectInput | undefined;
   try {
     input = parseInspectInput(text);
     fieldError("inspect-input", "");
@@ -26,7 +28,7 @@ export function runInspect(text: string, mapText: string): boolean {
     ok = false;
   }
   if (!ok || !map || !input) return false;
-  let card;
+  let card: Card;
   try {
     card = inspect(map, input);
   } catch (e) {
@@ -39,7 +41,10 @@ export function runInspect(text: string, mapText: string): boolean {
   if (card.kind === "number") {
     const t = card.card.trajectory;
     const values: bigint[] = [t.n];
-    for (let i = 0, v = t.n; i < t.steps; i++) values.push((v = iterate(map, v, 1)));
+    for (let i = 0, v = t.n; i < t.steps; i++) {
+      v = iterate(map, v, 1);
+      values.push(v);
+    }
     drawTrajectory(values);
   }
   return true;

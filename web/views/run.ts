@@ -58,7 +58,12 @@ export function readRunForm(): RunRequest | null {
   else if (map) {
     const limit = depthLimit(map, mode);
     ok = depth <= limit;
-    fieldError("run-depth", ok ? "" : `depth ${depth} is beyond the exact range for ${map.name} in ${mode === "full" ? "census" : "survivors"} mode (at most ${limit})`);
+    fieldError(
+      "run-depth",
+      ok
+        ? ""
+        : `depth ${depth} is beyond the exact range for ${map.name} in ${mode === "full" ? "census" : "survivors"} mode (at most ${limit})`,
+    );
   }
   const keep = ($("run-keep-table") as HTMLInputElement).checked;
   const withTable = mode === "survivors" && (depth <= TABLE_DEFAULT_DEPTH || (keep && depth <= TABLE_MAX_DEPTH));
@@ -68,16 +73,22 @@ export function readRunForm(): RunRequest | null {
 
 function renderLevels(map: CollatzMap, levels: readonly Level[]): void {
   const published = map.q === 3 && map.r === 1;
-  const head = `<thead><tr><th>depth</th><th>survivors</th><th>stopped</th><th>density</th>${published ? "<th>A076227</th><th>agrees</th>" : ""}</tr></thead>`;
+  const head =
+    `<thead><tr><th>depth</th><th>survivors</th><th>stopped</th><th>density</th>` +
+    `${published ? "<th>A076227</th><th>agrees</th>" : ""}</tr></thead>`;
   const body = levels
     .map((l) => {
       const pub = A076227[l.depth];
       const cells = published
         ? pub === undefined
           ? "<td>–</td><td></td>"
-          : `<td>${group(pub)}</td><td class="${pub === l.survivors ? "ok" : "bad"}" aria-label="${pub === l.survivors ? "agrees" : "differs"}">${pub === l.survivors ? "✓" : "✗"}</td>`
+          : `<td>${group(pub)}</td><td class="${pub === l.survivors ? "ok" : "bad"}" aria-label="` +
+            `${pub === l.survivors ? "agrees" : "differs"}">${pub === l.survivors ? "✓" : "✗"}</td>`
         : "";
-      return `<tr><td>${l.depth}</td><td>${group(l.survivors)}</td><td>${group(l.stopped)}</td><td>${density(l.survivors, l.depth)}</td>${cells}</tr>`;
+      return (
+        `<tr><td>${l.depth}</td><td>${group(l.survivors)}</td><td>${group(l.stopped)}</td><td>${density(l.survivors, l.depth)}</td>` +
+        `${cells}</tr>`
+      );
     })
     .join("");
   $("run-levels").innerHTML = head + `<tbody>${body}</tbody>`;
@@ -86,7 +97,8 @@ function renderLevels(map: CollatzMap, levels: readonly Level[]): void {
 function renderExceptions(r: SieveResult): void {
   const list = r.exceptions.slice(0, 200).map((e) => `n = ${e.n} (class ${e.residue} mod 2^${e.classDepth})`);
   $("run-exceptions").textContent =
-    `${group(r.exceptionCount)} positive member${r.exceptionCount === 1n ? " that does" : "s that do"} not descend at the stopping depth of its class` +
+    `${group(r.exceptionCount)} positive member` +
+    `${r.exceptionCount === 1n ? " that does" : "s that do"} not descend at the stopping depth of its class` +
     (list.length ? `: ${list.join(", ")}${r.exceptionCount > 200n ? ", ..." : ""}` : ".");
 }
 
@@ -94,13 +106,25 @@ function renderCensus(c: CensusResult): void {
   const peaks = c.peak.flatMap((row, j) => row.flatMap((n, m) => (n > 0n ? [{ log2: log2Coefficient(c.map.q, m, j), count: n }] : [])));
   drawCensus(peaks, c.ratioBins);
   $("run-census").innerHTML =
-    `<p>Census of all 2^${c.depth} vectors: alive and dropping classes agree with the exact counter at every (j, m): <strong>${c.agreesWithExactCounter ? "yes" : "no"}</strong>. ` +
+    `<p>Census of all 2^${c.depth} vectors: alive and dropping classes agree with the exact counter at every (j, m): <strong>` +
+    `${c.agreesWithExactCounter ? "yes" : "no"}</strong>. ` +
     `Least members whose first descent differs from the coefficient stopping time: <strong>${group(c.differ.count)}</strong>` +
-    (c.differ.listed.length ? ` (${c.differ.listed.slice(0, 20).map((d) => d.n).join(", ")}${c.differ.listed.length > 20 ? ", ..." : ""})` : "") +
+    (c.differ.listed.length
+      ? ` (${c.differ.listed
+          .slice(0, 20)
+          .map((d) => d.n)
+          .join(", ")}${c.differ.listed.length > 20 ? ", ..." : ""})`
+      : "") +
     `. Largest T^j(a)/a: T^${c.maxRatio.step}(${c.maxRatio.n}) = ${c.maxRatio.value}.</p>`;
 }
 
-const controller = new RunController({ start: "run-start", cancel: "run-cancel", progress: "run-progress", status: "run-status", message: "run-message" });
+const controller = new RunController({
+  start: "run-start",
+  cancel: "run-cancel",
+  progress: "run-progress",
+  status: "run-status",
+  message: "run-message",
+});
 
 /** What a run gives the page: the sieve (always), the census (full mode), the class table (when kept). */
 interface RunResult {
@@ -132,7 +156,11 @@ export async function startRun(req: RunRequest, onState: (s: Partial<PageState>)
   const exact = exactCounts(map, depth).levels;
   const rows = exact[depth]!.survivors;
   if (req.withTable && passPlan(depth, rows, TABLE_BUDGET).passes > 1) {
-    controller.say(`This run's class table of ${group(rows)} rows needs more than the ${Math.round(TABLE_BUDGET / 2 ** 20)} MiB this page allows; untick the class table or choose a smaller depth.`, true);
+    controller.say(
+      `This run's class table of ${group(rows)} rows needs more than the ` +
+        `${Math.round(TABLE_BUDGET / 2 ** 20)} MiB this page allows; untick the class table or choose a smaller depth.`,
+      true,
+    );
     return;
   }
   onState({ map: map.name, depth, mode, workers: req.workers });
@@ -148,11 +176,13 @@ async function renderRun(req: RunRequest, r: RunResult, exact: readonly Level[],
   const { sieve, census, residues } = r;
   const levels = census ? census.levels : sieve.levels;
   const last = levels[depth]!;
+  const published = map.q === 3 && map.r === 1 ? A076227[depth] : undefined;
   $("run-headline").innerHTML =
     `Survivors mod 2^${depth}: <strong>${group(last.survivors)}</strong> of ${group(1n << BigInt(depth))} classes ` +
     `<span class="sub">${map.name}: density ${density(last.survivors, depth)}, ` +
-    `${group(census ? census.nodes : sieve.nodes)} nodes in ${seconds.toFixed(2)} s (${req.workers} worker${req.workers === 1 ? "" : "s"})` +
-    `${map.q === 3 && map.r === 1 && A076227[depth] !== undefined ? `; A076227 ${A076227[depth] === last.survivors ? "agrees" : "DIFFERS"}` : ""}</span>`;
+    `${group(census ? census.nodes : sieve.nodes)} nodes in ${seconds.toFixed(2)} s (${req.workers} worker` +
+    `${req.workers === 1 ? "" : "s"})` +
+    `${published !== undefined ? `; A076227 ${published === last.survivors ? "agrees" : "DIFFERS"}` : ""}</span>`;
   renderLevels(map, levels);
   renderExceptions(sieve);
   for (const el of document.querySelectorAll<HTMLElement>(".census-only")) el.hidden = !census;
@@ -171,9 +201,15 @@ async function renderRun(req: RunRequest, r: RunResult, exact: readonly Level[],
     $("table-caption").textContent =
       depth > TABLE_MAX_DEPTH
         ? `The class table is kept up to depth ${TABLE_MAX_DEPTH}.`
-        : `The class table of this run was not kept (depth ${depth} > ${TABLE_DEFAULT_DEPTH}): tick "Class table above depth ${TABLE_DEFAULT_DEPTH}" to keep it.`;
+        : `The class table of this run was not kept (depth ${depth} > ${TABLE_DEFAULT_DEPTH}): tick "Class table above depth ` +
+          `${TABLE_DEFAULT_DEPTH}" to keep it.`;
   }
-  const summary = { ...sieveJson(sieve), mode, seconds: Number(seconds.toFixed(3)), ...(census ? { nodes: census.nodes, census: censusJson(census) } : {}) };
+  const summary = {
+    ...sieveJson(sieve),
+    mode,
+    seconds: Number(seconds.toFixed(3)),
+    ...(census ? { nodes: census.nodes, census: censusJson(census) } : {}),
+  };
   $("run-summary").textContent = toExactJson(summary);
 }
 

@@ -99,7 +99,8 @@ export function showTable(t: ClassTable | null): void {
 }
 
 function lowerBound(xs: Uint32Array, v: number): number {
-  let lo = 0, hi = xs.length;
+  let lo = 0,
+    hi = xs.length;
   while (lo < hi) {
     const mid = (lo + hi) >>> 1;
     if (xs[mid]! < v) lo = mid + 1;
@@ -130,7 +131,9 @@ async function exportTable(format: "raw" | "csv" | "arrow"): Promise<void> {
   if (!t) return;
   const name = `survivors-${t.map.name}-${t.depth}`;
   if (format !== "raw" && t.residues.length > CSV_ROW_GUARD) {
-    msg.textContent = `${t.residues.length.toLocaleString("en-US")} rows is over the ${CSV_ROW_GUARD.toLocaleString("en-US")}-row guard for ${format.toUpperCase()}: export raw instead.`;
+    msg.textContent =
+      `${t.residues.length.toLocaleString("en-US")} rows is over the ` +
+      `${CSV_ROW_GUARD.toLocaleString("en-US")}-row guard for ${format.toUpperCase()}: export raw instead.`;
     msg.className = "message bad";
     return;
   }
@@ -139,13 +142,24 @@ async function exportTable(format: "raw" | "csv" | "arrow"): Promise<void> {
   try {
     if (format === "raw") {
       const bytes = new Uint8Array(t.residues.buffer as ArrayBuffer, t.residues.byteOffset, t.residues.byteLength);
-      const manifest = tableManifest(t.map, t.depth, BigInt(t.residues.length), "raw", { file: `${name}.u32`, bytes: BigInt(bytes.byteLength), sha256: await sha256(bytes) }, { version: pkg.version, kernelBuild: await kernelBuildId() });
+      const manifest = tableManifest(
+        t.map,
+        t.depth,
+        BigInt(t.residues.length),
+        "raw",
+        { file: `${name}.u32`, bytes: BigInt(bytes.byteLength), sha256: await sha256(bytes) },
+        { version: pkg.version, kernelBuild: await kernelBuildId() },
+      );
       download(`${name}.u32`, [bytes], "application/octet-stream");
       download(`${name}.u32.json`, [toExactJson(manifest, 2) + "\n"], "application/json");
     } else {
       const residues = t.residues.slice();
       const bytes = await withExportWorker((api) => api.exportTable({ q: t.map.q, r: t.map.r, depth: t.depth, format, residues }));
-      download(`${name}.${format === "csv" ? "csv" : "arrow"}`, [bytes as Uint8Array<ArrayBuffer>], format === "csv" ? "text/csv" : "application/vnd.apache.arrow.file");
+      download(
+        `${name}.${format === "csv" ? "csv" : "arrow"}`,
+        [bytes as Uint8Array<ArrayBuffer>],
+        format === "csv" ? "text/csv" : "application/vnd.apache.arrow.file",
+      );
     }
     msg.textContent = `Exported ${name} (${format}).`;
   } catch (e) {
@@ -180,7 +194,8 @@ export function setupTable(): void {
     const v = ($("table-jump") as HTMLInputElement).value.trim();
     if (!current) return;
     const i = Number(v);
-    if (!/^\d+$/.test(v) || i < 1 || i > current.residues.length) return fieldError("table-jump", `a row from 1 to ${current.residues.length}`);
+    if (!/^\d+$/.test(v) || i < 1 || i > current.residues.length)
+      return fieldError("table-jump", `a row from 1 to ${current.residues.length}`);
     fieldError("table-jump", "");
     hit = i - 1;
     scrollToRow(hit);

@@ -49,7 +49,8 @@ export interface CensusResult {
 
 /** Exact floor(4 log2(b / a)) for positive a, b. */
 export function quarterLog2(a: bigint, b: bigint): number {
-  const num = b ** 4n, den = a ** 4n;
+  const num = b ** 4n,
+    den = a ** 4n;
   let k = bitLength(num) - bitLength(den);
   const fits = (t: number) => (t >= 0 ? den << BigInt(t) <= num : den <= num << BigInt(-t));
   while (!fits(k)) k--;
@@ -82,15 +83,20 @@ export function censusShards(map: CollatzMap, depth: number, workers: number, ve
  * @example const c = await runCensus(pool, parseMap("3x+1"), 20); c.agreesWithExactCounter // true
  */
 export async function runCensus(pool: KernelPool, map: CollatzMap, depth: number, options: RunOptions = {}): Promise<CensusResult> {
-  if (!Number.isInteger(depth) || depth < 1 || depth > MAX_CENSUS_DEPTH) throw new UsageError(`census depth must be between 1 and ${MAX_CENSUS_DEPTH}`);
+  if (!Number.isInteger(depth) || depth < 1 || depth > MAX_CENSUS_DEPTH)
+    throw new UsageError(`census depth must be between 1 and ${MAX_CENSUS_DEPTH}`);
   const limit = kernelDepthLimit(map, "i64");
-  if (depth > limit) throw new LimitError(`census depth ${depth} is beyond the exact signed 64-bit range for ${map.name} (at most ${limit})`);
+  if (depth > limit)
+    throw new LimitError(`census depth ${depth} is beyond the exact signed 64-bit range for ${map.name} (at most ${limit})`);
   const started = performance.now();
   const n = (depth + 1) * TALLY_STRIDE;
   const acc = { live: new BigUint64Array(n), stopped: new BigUint64Array(n), vectors: new BigUint64Array(n), peak: new BigUint64Array(n) };
   // sized and offset as the kernel's (binOffset)
   const acc2: { bins: BigUint64Array | null; binOffset: number } = { bins: null, binOffset: 0 };
-  let nonpositive = 0n, differCount = 0n, early = 0n, nodes = 0n;
+  let nonpositive = 0n,
+    differCount = 0n,
+    early = 0n,
+    nodes = 0n;
   const ambiguous: [bigint, bigint][] = [];
   const slow = new BigUint64Array(depth + 1);
   const differ = new Smallest<bigint>(DIFFER_LISTED, (n) => n);
@@ -110,18 +116,27 @@ export async function runCensus(pool: KernelPool, map: CollatzMap, depth: number
     early += out.counts[2]!;
     for (let m = 0; m <= depth; m++) slow[m] = slow[m]! + out.counts[4 + m]!;
     nodes += out.nodes;
-    for (let i = 0; i < out.ambiguous.length; i += 4) ambiguous.push([out.ambiguous[i]!, signed ? BigInt.asIntN(64, out.ambiguous[i + 1]!) : out.ambiguous[i + 1]!]);
+    for (let i = 0; i < out.ambiguous.length; i += 4)
+      ambiguous.push([out.ambiguous[i]!, signed ? BigInt.asIntN(64, out.ambiguous[i + 1]!) : out.ambiguous[i + 1]!]);
     for (let i = 0; i < out.differ.length; i += 4) differ.add(out.differ[i]!);
     for (let i = 0; i < out.ratio.length; i += 4) {
-      const u = out.ratio[i]!, v = out.ratio[i + 1]!, step = Number(out.ratio[i + 2]!);
+      const u = out.ratio[i]!,
+        v = out.ratio[i + 1]!,
+        step = Number(out.ratio[i + 2]!);
       // exact comparison v / u > best.value / best.n by cross multiplication (positive values);
       // ties go to the smaller member, then the earlier step
       const best = top.best;
-      const lhs = v * best.n, rhs = best.value * u;
+      const lhs = v * best.n,
+        rhs = best.value * u;
       if (lhs > rhs || (lhs === rhs && (u < best.n || (u === best.n && step < best.step)))) top.best = { n: u, value: v, step };
     }
   };
-  await pool.run(censusShards(map, depth, pool.size, false), (api, s) => api.runCensus(s), (_s, out) => merge(out), options);
+  await pool.run(
+    censusShards(map, depth, pool.size, false),
+    (api, s) => api.runCensus(s),
+    (_s, out) => merge(out),
+    options,
+  );
 
   const binsOf = acc2.bins;
   const binOffset = acc2.binOffset;
@@ -137,16 +152,35 @@ export async function runCensus(pool: KernelPool, map: CollatzMap, depth: number
   binsOf.forEach((count, i) => {
     if (count > 0n) ratioBins.push({ bin: i - binOffset, count });
   });
-  const live = rows(acc.live, depth), stopped = rows(acc.stopped, depth);
+  const live = rows(acc.live, depth),
+    stopped = rows(acc.stopped, depth);
   const exact = exactCounts(map, depth, { byOdd: true }).byOdd!;
-  const agrees = live.every((row, j) => row.every((c, m) => c === at(exact[j]!, "live", m))) && stopped.every((row, j) => row.every((c, m) => c === at(exact[j]!, "stopped", m)));
-  const levels = live.map((row, j) => ({ depth: j, survivors: row.reduce((s, x) => s + x, 0n), stopped: stopped[j]!.reduce((s, x) => s + x, 0n) }));
-  const listed = differ.sorted().map((n) => ({ n, descent: firstDescent(map, n, depth), stoppingTime: classFromResidue(map, n, depth).stoppingTime }));
+  const agrees =
+    live.every((row, j) => row.every((c, m) => c === at(exact[j]!, "live", m))) &&
+    stopped.every((row, j) => row.every((c, m) => c === at(exact[j]!, "stopped", m)));
+  const levels = live.map((row, j) => ({
+    depth: j,
+    survivors: row.reduce((s, x) => s + x, 0n),
+    stopped: stopped[j]!.reduce((s, x) => s + x, 0n),
+  }));
+  const listed = differ
+    .sorted()
+    .map((n) => ({ n, descent: firstDescent(map, n, depth), stoppingTime: classFromResidue(map, n, depth).stoppingTime }));
   return {
-    map, depth, levels, live, stopped, vectors, peak: rows(acc.peak, depth),
-    ratioBins, nonpositive, differ: { count: differCount, early, listed, limit: DIFFER_LISTED },
+    map,
+    depth,
+    levels,
+    live,
+    stopped,
+    vectors,
+    peak: rows(acc.peak, depth),
+    ratioBins,
+    nonpositive,
+    differ: { count: differCount, early, listed, limit: DIFFER_LISTED },
     maxRatio: top.best,
-    agreesWithExactCounter: agrees, nodes, seconds: (performance.now() - started) / 1000,
+    agreesWithExactCounter: agrees,
+    nodes,
+    seconds: (performance.now() - started) / 1000,
   };
 }
 

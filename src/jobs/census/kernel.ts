@@ -35,8 +35,10 @@ export function censusShard(kernel: Kernel, req: CensusShard): CensusShardResult
     [L("CHANNEL_RATIO"), ratio],
     [L("CHANNEL_VECTORS"), vectors],
   ]);
-  const nodes = kernel.call("census", [q, r, depth, req.prefixBits, req.prefix, tables, tallies, scratch, req.vectors ? 1 : 0], (channel, count) =>
-    sinks.get(channel)?.take(count),
+  const nodes = kernel.call(
+    "census",
+    [q, r, depth, req.prefixBits, req.prefix, tables, tallies, scratch, req.vectors ? 1 : 0],
+    (channel, count) => sinks.get(channel)?.take(count),
   );
   const buf = kernel.memory;
   const rows = (depth + 1) * L("TALLY_STRIDE");
@@ -111,8 +113,8 @@ function coefficientBin(q: number, r: number, m: number, K: number): { k: number
  */
 function writeRatioBounds(out: Float64Array, q: number, r: number, depth: number): void {
   for (let m = 0; m <= depth; m++) {
-    const e = (Math.pow(q / 2, m) - 1) / (q - 2);
-    out[m] = (Math.pow(q / 2, m) + Math.max(r, 0) * e) * (1 + 2 ** -30) + 1e-300;
+    const e = ((q / 2) ** m - 1) / (q - 2);
+    out[m] = ((q / 2) ** m + Math.max(r, 0) * e) * (1 + 2 ** -30) + 1e-300;
   }
 }
 

@@ -82,7 +82,8 @@ export class CycleCollector {
     if (this.found.has(rep)) return;
     const k = elements.indexOf(rep);
     const ordered = [...elements.slice(k), ...elements.slice(0, k)];
-    let min = rep, max = rep;
+    let min = rep,
+      max = rep;
     for (const v of ordered) {
       if (v < min) min = v;
       if (v > max) max = v;
@@ -102,8 +103,14 @@ export class CycleCollector {
  * Every integer cycle of period <= maxPeriod.
  * @example (await searchCycles(pool, parseMap("3x+1"), 12)).cycles.map((c) => c.representative) // [1n, -1n, -5n, -17n]
  */
-export async function searchCycles(pool: KernelPool, map: CollatzMap, maxPeriod: number, options: RunOptions = {}): Promise<CycleSearchResult> {
-  if (!Number.isInteger(maxPeriod) || maxPeriod < 1 || maxPeriod > MAX_CYCLE_PERIOD) throw new UsageError(`maximum period must be between 1 and ${MAX_CYCLE_PERIOD}`);
+export async function searchCycles(
+  pool: KernelPool,
+  map: CollatzMap,
+  maxPeriod: number,
+  options: RunOptions = {},
+): Promise<CycleSearchResult> {
+  if (!Number.isInteger(maxPeriod) || maxPeriod < 1 || maxPeriod > MAX_CYCLE_PERIOD)
+    throw new UsageError(`maximum period must be between 1 and ${MAX_CYCLE_PERIOD}`);
   const width = cycleWidth(map, maxPeriod);
   const started = performance.now();
   const kernel = await threadKernel(pool.module);
@@ -117,10 +124,23 @@ export async function searchCycles(pool: KernelPool, map: CollatzMap, maxPeriod:
   if (d < maxPeriod) {
     const shards: CycleShard[] = [];
     for (let s = 0n; s < 1n << BigInt(d); s++) shards.push({ ...base, depth: maxPeriod, prefixBits: d, prefix: s, walkTallies: false });
-    await pool.run(shards, (api, shard) => api.runCycles(shard), (_s, out) => {
-      collector.add(out.candidates);
-      nodes += out.nodes;
-    }, options);
+    await pool.run(
+      shards,
+      (api, shard) => api.runCycles(shard),
+      (_s, out) => {
+        collector.add(out.candidates);
+        nodes += out.nodes;
+      },
+      options,
+    );
   }
-  return { map, maxPeriod, width, cycles: collector.sorted(), candidates: collector.candidates, nodes, seconds: (performance.now() - started) / 1000 };
+  return {
+    map,
+    maxPeriod,
+    width,
+    cycles: collector.sorted(),
+    candidates: collector.candidates,
+    nodes,
+    seconds: (performance.now() - started) / 1000,
+  };
 }

@@ -17,9 +17,13 @@ export function cycleShard(kernel: Kernel, req: CycleShard): CycleShardResult {
   const candidates = kernel.region("cycles.candidates", L("CYCLE_CANDIDATE_BYTES"));
   kernel.tablesFor("cycles", `${q} ${depth} ${wide}`, () => writeCycleTables(kernel.memory, qTables, dTable, q, depth, wide ? 128 : 64));
   const found = collector(kernel, candidates);
-  const nodes = kernel.call("cycleSearch", [q, r, depth, wide ? 1 : 0, req.prefixBits, req.prefix, qTables, dTable, candidates, req.walkTallies ? 1 : 0], (channel, count) => {
-    if (channel === L("CHANNEL_CYCLES")) found.take(count);
-  });
+  const nodes = kernel.call(
+    "cycleSearch",
+    [q, r, depth, wide ? 1 : 0, req.prefixBits, req.prefix, qTables, dTable, candidates, req.walkTallies ? 1 : 0],
+    (channel, count) => {
+      if (channel === L("CHANNEL_CYCLES")) found.take(count);
+    },
+  );
   return { nodes: BigInt.asUintN(64, BigInt(nodes)), candidates: found.all() };
 }
 
@@ -55,4 +59,3 @@ function writeCycleTables(mem: ArrayBuffer, qTables: number, dTable: number, q: 
     }
   }
 }
-

@@ -38,7 +38,11 @@ export const EXCEPTION_LIMIT = 100_000;
  * (deterministic: it does not depend on the order the classes arrive in).
  * @example expandExceptions(makeMap(3, 1), [{ residue: 1n, image: 1n, classDepth: 2, odd: 1 }]).list // [{ n: 1n, ... }]
  */
-export function expandExceptions(map: CollatzMap, classes: readonly ExceptionClass[], limit = EXCEPTION_LIMIT): { list: SieveException[]; count: bigint } {
+export function expandExceptions(
+  map: CollatzMap,
+  classes: readonly ExceptionClass[],
+  limit = EXCEPTION_LIMIT,
+): { list: SieveException[]; count: bigint } {
   let count = 0n;
   let list: SieveException[] = [];
   // members above `cutoff` cannot be among the smallest `limit` once `limit` are known below it

@@ -7,7 +7,8 @@ import { checkTallyStride, writeDropTables } from "../../engine/tables.js";
 
 /**
  * Runs one shard; leaves go to `onLeaves` chunk by chunk (copies, safe to keep).
- * @example enumerateShard(kernel, { q: 3, r: 1, depth: 20, mode: "survivors", prefixBits: 0, prefix: 0n, leaves: false, walkTallies: true })
+ * @example enumerateShard(kernel, { q: 3, r: 1, depth: 20, mode: "survivors", prefixBits: 0, prefix: 0n, leaves: false,
+ *   walkTallies: true })
  */
 export function enumerateShard(kernel: Kernel, req: ShardRequest, onLeaves?: (chunk: LeafChunk) => void): ShardResult {
   const { q, r, depth } = req;
@@ -24,7 +25,20 @@ export function enumerateShard(kernel: Kernel, req: ShardRequest, onLeaves?: (ch
   const excParts: BigUint64Array[] = [];
   const nodes = kernel.call(
     "enumerate",
-    [q, r, depth, req.mode === "full" ? L("MODE_FULL") : L("MODE_SURVIVORS"), req.prefixBits, req.prefix, tables, tallies, leaves, req.leaves && onLeaves ? 1 : 0, exceptions, req.walkTallies ? 1 : 0],
+    [
+      q,
+      r,
+      depth,
+      req.mode === "full" ? L("MODE_FULL") : L("MODE_SURVIVORS"),
+      req.prefixBits,
+      req.prefix,
+      tables,
+      tallies,
+      leaves,
+      req.leaves && onLeaves ? 1 : 0,
+      exceptions,
+      req.walkTallies ? 1 : 0,
+    ],
     (channel, count) => {
       const buf = kernel.memory;
       if (channel === L("CHANNEL_LEAVES")) {

@@ -67,7 +67,14 @@ export async function runSieve(pool: KernelPool, req: SieveRequest, options: Run
   merged.add(top, d);
 
   if (d < depth) {
-    const shards: ShardRequest[] = prefixes.map((prefix) => ({ ...base, prefixBits: d, prefix, leaves: req.onLeaves !== undefined, residuesOnly: req.residuesOnly === true, walkTallies: false }));
+    const shards: ShardRequest[] = prefixes.map((prefix) => ({
+      ...base,
+      prefixBits: d,
+      prefix,
+      leaves: req.onLeaves !== undefined,
+      residuesOnly: req.residuesOnly === true,
+      walkTallies: false,
+    }));
     await pool.run(
       shards,
       (api, shard) => api.runShard(shard),
@@ -81,7 +88,9 @@ export async function runSieve(pool: KernelPool, req: SieveRequest, options: Run
   const exceptionLimit = req.exceptionLimit ?? EXCEPTION_LIMIT;
   const { list, count } = expandExceptions(map, merged.exceptionClasses, exceptionLimit);
   return {
-    map, depth, mode,
+    map,
+    depth,
+    mode,
     ...merged.tables(),
     exceptionClasses: merged.exceptionClasses,
     exceptions: list,
