@@ -82,6 +82,35 @@ describe("sieve on the pool: sanity", () => {
     expect(exc).toBe(whole.exceptionClasses.length);
   });
 
+  it("a capped exception list is the smallest exceptions (3x+1048575, depth 12: over a million exceptions)", async () => {
+    const map = parseMap("3x+1048575");
+    const K = 12;
+    const res = await runSieve(pool2, { map, depth: K, mode: "survivors" });
+    expect(res.exceptionCount).toBeGreaterThan(BigInt(res.exceptionLimit));
+    expect(res.exceptions).toHaveLength(res.exceptionLimit);
+    const last = Number(res.exceptions.at(-1)!.n);
+    // every n up to the last listed one, by direct iteration (numbers stay below 2^53 here): an
+    // exception is an n whose coefficient stops at some j <= K with T^j(n) >= n
+    const brute: number[] = [];
+    for (let n = 1; n <= last; n++) {
+      let v = n,
+        m = 0;
+      for (let j = 1; j <= K; j++) {
+        if (v % 2 === 1) {
+          m++;
+          v = (3 * v + 1048575) / 2;
+        } else v /= 2;
+        if (3 ** m < 2 ** j) {
+          if (v >= n) brute.push(n);
+          break;
+        }
+      }
+    }
+    expect(res.exceptions.map((e) => Number(e.n))).toEqual(brute);
+    expect(brute).toContain(9);
+    expect(brute).toContain(13);
+  });
+
   it("3x+5: every member of its cycles whose class stops is listed as an exception (cycles found by direct iteration)", async () => {
     const map = parseMap("3x+5");
     const K = 30;

@@ -9,7 +9,7 @@ import { manifest } from "../outputs/manifest.js";
 import { censusJson, log2Coefficient, vectorsAreBinomial } from "../outputs/summary.js";
 import { withManifestOutput } from "../node/files.js";
 import { toolStamp, withPool } from "../node/kernel.js";
-import { intOption, mapOption, outputOption, workersOption } from "./options.js";
+import { intOption, jobCommand, mapOption, outputOption, workersOption } from "./options.js";
 import type { RawOptions } from "./options.js";
 import { confirmOutput, print } from "./print.js";
 import { levelTable } from "./report.js";
@@ -17,15 +17,14 @@ import { levelTable } from "./report.js";
 const TEXT_DIFFER = 20;
 
 export function censusCommand(program: Command): Command {
-  return program
-    .command("census")
-    .description("all 2^K parity vectors: alive and dropping classes by (j, m), peak coefficients, log2(T^K(a)/a), descents that differ")
-    .option("--map <qx+r>", "the map", "3x+1")
+  return jobCommand(
+    program,
+    "census",
+    "all 2^K parity vectors: alive and dropping classes by (j, m), peak coefficients, log2(T^K(a)/a), descents that differ",
+  )
     .option("--depth <K>", `depth: 1 to ${MAX_CENSUS_DEPTH}, within the signed 64-bit range`)
     .option("--out <FILE>", "write the tallies as an Arrow file, with FILE.json beside it")
     .option("--format <arrow>", "output format (arrow)")
-    .option("--workers <N>", "worker threads (default: the available cores)")
-    .option("--json", "print JSON (exact integers)")
     .action((o: RawOptions) => census(o));
 }
 

@@ -5,7 +5,7 @@ import { inspect, parseInspectInput } from "../jobs/inspect.js";
 import { cardText } from "../outputs/card.js";
 import { toExactJson } from "../outputs/json.js";
 import { classJson } from "../outputs/summary.js";
-import { intOption, mapOption } from "./options.js";
+import { intOption, jobCommand, mapOption } from "./options.js";
 import type { RawOptions } from "./options.js";
 import { print } from "./print.js";
 
@@ -14,16 +14,15 @@ interface ClassOptions extends RawOptions {
 }
 
 export function classCommand(program: Command): Command {
-  return program
-    .command("class")
-    .description(
-      "the class card: residue, parity word, affine form T^k(a + 2^k x) = q^m x + b, stopping times, 2-adic digits; " +
-        "for a number, its trajectory",
-    )
+  return jobCommand(
+    program,
+    "class",
+    "the class card: residue, parity word, affine form T^k(a + 2^k x) = q^m x + b, stopping times, 2-adic digits; " +
+      "for a number, its trajectory",
+    { workers: false },
+  )
     .argument("<input...>", "a number (27, -5), a residue (3 mod 16, 3 mod 2^4) or a parity word (w:1100)")
-    .option("--map <qx+r>", "the map", "3x+1")
     .option("--steps <L>", `most steps to follow a trajectory: 1 to ${MAX_INSPECT_STEPS}`)
-    .option("--json", "print JSON (exact integers)")
     .action((input: string[], o: ClassOptions) => {
       const map = mapOption(o.map);
       const steps = intOption("steps", o.steps, 1, MAX_INSPECT_STEPS, MAX_INSPECT_STEPS);

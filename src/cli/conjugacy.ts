@@ -4,18 +4,13 @@ import { conjugacy, MAX_CONJUGACY_DEPTH } from "../jobs/conjugacy.js";
 import { toExactJson } from "../outputs/json.js";
 import { conjugacyJson } from "../outputs/summary.js";
 import { withPool } from "../node/kernel.js";
-import { intOption, mapOption, workersOption } from "./options.js";
+import { intOption, jobCommand, mapOption, workersOption } from "./options.js";
 import type { RawOptions } from "./options.js";
 import { print } from "./print.js";
 
 export function conjugacyCommand(program: Command): Command {
-  return program
-    .command("conjugacy")
-    .description("cycle structure of the permutation a -> Q_K(a) (the first K parities as a number)")
-    .option("--map <qx+r>", "the map", "3x+1")
+  return jobCommand(program, "conjugacy", "cycle structure of the permutation a -> Q_K(a) (the first K parities as a number)")
     .option("--depth <K>", `depth: 1 to ${MAX_CONJUGACY_DEPTH}`)
-    .option("--workers <N>", "worker threads (default: the available cores)")
-    .option("--json", "print JSON (exact integers)")
     .action((o: RawOptions) => run(o));
 }
 

@@ -8,7 +8,7 @@ import type { ExactRow } from "../core/exact.js";
 import type { CollatzMap } from "../core/map.js";
 import { toExactJson } from "../outputs/json.js";
 import { countsHeadJson, countsOddJson, levelJson } from "../outputs/summary.js";
-import { intOption, mapOption } from "./options.js";
+import { intOption, jobCommand, mapOption } from "./options.js";
 import type { RawOptions } from "./options.js";
 import { print, yielder } from "./print.js";
 import { progressBar } from "./progress.js";
@@ -19,15 +19,14 @@ interface CountsOptions extends RawOptions {
 }
 
 export function countsCommand(program: Command): Command {
-  return program
-    .command("counts")
-    .description(
-      `survivor and stopped counts by exact dynamic programming (BigInt), any depth up to ${MAX_EXACT_DEPTH.toLocaleString("en-US")}`,
-    )
-    .option("--map <qx+r>", "the map", "3x+1")
+  return jobCommand(
+    program,
+    "counts",
+    `survivor and stopped counts by exact dynamic programming (BigInt), any depth up to ${MAX_EXACT_DEPTH.toLocaleString("en-US")}`,
+    { workers: false },
+  )
     .option("--depth <K>", `depth: 0 to ${MAX_EXACT_DEPTH}`)
     .option("--by-odd", "add the table by (depth, odd steps m): classes alive and stopping at (j, m)")
-    .option("--json", "print JSON (exact integers)")
     .action((o: CountsOptions) => counts(o));
 }
 

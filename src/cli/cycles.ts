@@ -9,7 +9,7 @@ import { manifest } from "../outputs/manifest.js";
 import { cyclesJson } from "../outputs/summary.js";
 import { withManifestOutput } from "../node/files.js";
 import { toolStamp, withPool } from "../node/kernel.js";
-import { intOption, mapOption, outputOption, workersOption } from "./options.js";
+import { intOption, jobCommand, mapOption, outputOption, workersOption } from "./options.js";
 import type { RawOptions } from "./options.js";
 import { confirmOutput, print } from "./print.js";
 
@@ -18,15 +18,10 @@ interface CyclesOptions extends RawOptions {
 }
 
 export function cyclesCommand(program: Command): Command {
-  return program
-    .command("cycles")
-    .description("every integer cycle (positive and negative) of period <= K, complete by construction")
-    .option("--map <qx+r>", "the map", "3x+1")
+  return jobCommand(program, "cycles", "every integer cycle (positive and negative) of period <= K, complete by construction")
     .option("--max-period <K>", `largest period in steps of T: 1 to ${MAX_CYCLE_PERIOD}, within the 128-bit range`)
     .option("--out <FILE>", "write the cycles as an Arrow file, with FILE.json beside it")
     .option("--format <arrow>", "output format (arrow)")
-    .option("--workers <N>", "worker threads (default: the available cores)")
-    .option("--json", "print JSON (exact integers)")
     .action((o: CyclesOptions) => cycles(o));
 }
 

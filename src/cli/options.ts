@@ -1,5 +1,6 @@
 // Option values for every command: text turned into validated values once, at the edge.
 // Commander (src/cli/main.ts) reads the words; these functions decide what they mean.
+import type { Command } from "commander";
 import { statSync } from "node:fs";
 import { availableParallelism } from "node:os";
 import { dirname } from "node:path";
@@ -93,9 +94,25 @@ export function outputOption<F extends FileFormat>(o: RawOptions, allowed: reado
 }
 
 /** The target is not a directory and its folder exists (the write itself is tried when the file is opened). */
-export function checkWritableTarget(path: string): void {
+function checkWritableTarget(path: string): void {
   const stat = statSync(path, { throwIfNoEntry: false });
   if (stat?.isDirectory()) throw new UsageError(`cannot write ${path}: it is a directory`);
   const folder = statSync(dirname(path), { throwIfNoEntry: false });
   if (!folder?.isDirectory()) throw new UsageError(`cannot write ${path}: the folder ${dirname(path)} does not exist`);
+}
+
+/**
+ * A new command with the options most commands share: --map, and --workers and --json unless left out.
+ * @example jobCommand(program, "census", "all 2^K parity vectors").option("--depth <K>", "depth")
+ */
+export function jobCommand(
+  program: Command,
+  name: string,
+  description: string,
+  shared: { workers?: boolean; json?: boolean } = {},
+): Command {
+  const cmd = program.command(name).description(description).option("--map <qx+r>", "the map", "3x+1");
+  if (shared.workers !== false) cmd.option("--workers <N>", "worker threads (default: the available cores)");
+  if (shared.json !== false) cmd.option("--json", "print JSON (exact integers)");
+  return cmd;
 }

@@ -4,7 +4,7 @@ import { cycleRepresentative, parsePeriodicWord, periodicPoint, twoAdicDigits } 
 import { abbreviate } from "../outputs/card.js";
 import { toExactJson } from "../outputs/json.js";
 import { periodicJson } from "../outputs/summary.js";
-import { intOption, mapOption } from "./options.js";
+import { intOption, jobCommand, mapOption } from "./options.js";
 import type { RawOptions } from "./options.js";
 import { print } from "./print.js";
 
@@ -13,13 +13,14 @@ interface PeriodicOptions extends RawOptions {
 }
 
 export function periodicCommand(program: Command): Command {
-  return program
-    .command("periodic")
-    .description("the 2-adic point whose parity vector is w (or u then w) repeated forever, and its cycle when it is an integer")
+  return jobCommand(
+    program,
+    "periodic",
+    "the 2-adic point whose parity vector is w (or u then w) repeated forever, and its cycle when it is an integer",
+    { workers: false },
+  )
     .argument("<word>", "w, (w) or u(w), with digits 0 and 1, first step first")
-    .option("--map <qx+r>", "the map", "3x+1")
     .option("--digits <P>", "2-adic digits to print: 1 to 100000", "64")
-    .option("--json", "print JSON (exact integers)")
     .action((text: string, o: PeriodicOptions) => {
       const map = mapOption(o.map);
       const digits = intOption("digits", o.digits, 1, 100_000);

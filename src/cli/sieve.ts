@@ -18,7 +18,7 @@ import type { CsvRow, TableFormat } from "../outputs/tables.js";
 import type { AtomicFile } from "../node/files.js";
 import { withManifestOutput } from "../node/files.js";
 import { toolStamp, withPool } from "../node/kernel.js";
-import { intOption, mapOption, outputOption, workersOption } from "./options.js";
+import { intOption, jobCommand, mapOption, outputOption, workersOption } from "./options.js";
 import type { RawOptions } from "./options.js";
 import { confirmOutput, print } from "./print.js";
 import { levelTable } from "./report.js";
@@ -27,16 +27,15 @@ import { levelTable } from "./report.js";
 const TEXT_EXCEPTIONS = 50;
 
 export function sieveCommand(program: Command): Command {
-  return program
-    .command("sieve")
-    .description("the classes mod 2^K whose coefficient q^m/2^j has not dropped below 1, stopped classes and exceptions; export the table")
-    .option("--map <qx+r>", "the map", "3x+1")
+  return jobCommand(
+    program,
+    "sieve",
+    "the classes mod 2^K whose coefficient q^m/2^j has not dropped below 1, stopped classes and exceptions; export the table",
+  )
     .option("--depth <K>", `depth: steps of T (0 to the map's exact 64-bit limit, 40 for 3x+1)`)
     .option("--out <FILE>", "write the survivors' class table, with FILE.json beside it")
     .option("--format <raw|csv|arrow>", "table format (default: from the name's ending, else raw)")
     .option("--force", `allow CSV or Arrow above ${group(CSV_ROW_GUARD)} rows`)
-    .option("--workers <N>", "worker threads (default: the available cores)")
-    .option("--json", "print the report as JSON (exact integers)")
     .action((o: RawOptions) => sieve(o));
 }
 

@@ -7,19 +7,17 @@ import { group } from "../outputs/format.js";
 import { stepImageOffset, stepManifest } from "../outputs/manifest.js";
 import { withManifestOutput } from "../node/files.js";
 import { toolStamp, withPool } from "../node/kernel.js";
-import { intOption, mapOption, outputOption, workersOption } from "./options.js";
+import { intOption, jobCommand, mapOption, outputOption, workersOption } from "./options.js";
 import type { RawOptions } from "./options.js";
 import { confirmOutput } from "./print.js";
 
 export function stepsCommand(program: Command): Command {
-  return program
-    .command("steps")
-    .description("the table (m, b) with T^k(a + 2^k x) = q^m x + b for every a mod 2^k, for verification kernels")
-    .option("--map <qx+r>", "the map", "3x+1")
+  return jobCommand(program, "steps", "the table (m, b) with T^k(a + 2^k x) = q^m x + b for every a mod 2^k, for verification kernels", {
+    json: false,
+  })
     .option("--depth <k>", `steps per table lookup: 1 to ${MAX_STEP_DEPTH}`)
     .option("--out <FILE>", "the table file (required), with FILE.json beside it")
     .option("--format <raw|arrow>", "table format (default: from the name's ending, else raw)")
-    .option("--workers <N>", "worker threads (default: the available cores)")
     .action((o: RawOptions) => steps(o));
 }
 

@@ -71,7 +71,7 @@ function asArrayBuffer(b: ArrayBufferLike): ArrayBuffer {
 }
 
 /** Joins streamed chunks into one struct-of-arrays. */
-export function concatLeaves(chunks: LeafChunk[], signed: boolean): LeafChunk {
+function concatLeaves(chunks: LeafChunk[], signed: boolean): LeafChunk {
   const n = chunks.reduce((s, c) => s + c.a.length, 0);
   const nb = chunks.reduce((s, c) => s + c.b.length, 0); // 0 when only residues were streamed
   const a = new BigUint64Array(n);

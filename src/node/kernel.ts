@@ -43,7 +43,7 @@ export async function toolStamp(): Promise<ToolStamp> {
 /** Worker entry compiled to lib/ (tsc), so it runs under plain node from src/ and lib/ alike. */
 const workerUrl = new URL("../../lib/node/worker.js", import.meta.url);
 
-export const spawnNodeWorker: SpawnWorker = () => {
+const spawnNodeWorker: SpawnWorker = () => {
   const w = new Worker(workerUrl, { execArgv: [] }); // plain JS: no loaders or -e flags of the parent
   w.unref();
   return {
