@@ -41,13 +41,40 @@ export function* exactRows(map: CollatzMap, depth: number): Generator<ExactRow> 
   if (!Number.isInteger(depth) || depth < 0 || depth > MAX_EXACT_DEPTH) {
     throw new UsageError(`depth must be an integer from 0 to ${MAX_EXACT_DEPTH}`);
   }
-  const drop = dropDepths(map.q, depth); // drop[m] = bitlen(q^m), strictly increasing
-  // live[m] for m in [lo, j]; entries below lo are zero (those paths have all stopped).
-  let live: bigint[] = [1n];
-  let lo = 0;
-  yield { depth: 0, survivors: 1n, stopped: 0n, stoppedOdd: null, mLow: 0, live };
-  for (let j = 0; j < depth; j++) {
-    const jj = j + 1;
+  const counter = new LatticeCounter(map.q, depth);
+  yield counter.row(0, 0n, null);
+  for (let j = 1; j <= depth; j++) yield counter.next();
+}
+
+/** The dynamic programme itself, one depth per call (a plain method: the hot loop stays optimisable). */
+class LatticeCounter {
+  private readonly drop: number[];
+  /** live[m - lo] for m in [lo, j]; entries below lo are zero (those paths have all stopped). */
+  private live: bigint[] = [1n];
+  private lo = 0;
+  private depth = 0;
+  private survivors = 1n;
+
+  constructor(q: number, maxDepth: number) {
+    this.drop = dropDepths(q, maxDepth); // drop[m] = bitlen(q^m), strictly increasing
+  }
+
+  row(depth: number, stopped: bigint, stoppedOdd: number | null): ExactRow {
+    return { depth, survivors: this.survivors, stopped, stoppedOdd, mLow: this.lo, live: this.live };
+  }
+
+  next(): ExactRow {
+    // Trim the zero entries at the low end left by the previous depth, so the window stays [lo, j].
+    let cut = 0;
+    while (cut < this.live.length - 1 && this.live[cut] === 0n) cut++;
+    if (cut > 0) {
+      this.live = this.live.slice(cut);
+      this.lo += cut;
+    }
+    const live = this.live;
+    const lo = this.lo;
+    const drop = this.drop;
+    const jj = ++this.depth;
     // In place, from the top down: live(jj, m) = [m does not drop at jj] live(j, m) + live(j, m - 1),
     // index i standing for m = lo + i. At most one m drops per depth.
     live.push(0n);
@@ -62,23 +89,11 @@ export function* exactRows(map: CollatzMap, depth: number): Generator<ExactRow> 
       }
       live[i] = i > 0 ? keep + live[i - 1]! : keep;
     }
-    // survivors: the sum of the window itself (not derived from the stopped count, so that the
-    // relation survivors(j) = 2 survivors(j - 1) - stopped(j) is a check, not an identity)
-    yield { depth: jj, survivors: sumOf(live), stopped, stoppedOdd, mLow: lo, live };
-    // Trim the zero entries at the low end so the window stays [lo, jj].
-    let cut = 0;
-    while (cut < live.length - 1 && live[cut] === 0n) cut++;
-    if (cut > 0) {
-      live = live.slice(cut);
-      lo += cut;
-    }
+    // each survivor at depth j has two children, of which the dropped ones stop (common practice);
+    // the tests check this total against the sum of the window, which is computed separately
+    this.survivors = 2n * this.survivors - stopped;
+    return this.row(jj, stopped, stoppedOdd);
   }
-}
-
-function sumOf(xs: readonly bigint[]): bigint {
-  let s = 0n;
-  for (const x of xs) s += x;
-  return s;
 }
 
 /**
