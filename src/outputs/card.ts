@@ -24,7 +24,7 @@ export function abbreviate(s: string, n = 200): string {
 
 function stopLine(f: ClassForm): string {
   return f.stoppingTime === null
-    ? `coefficient stays >= 1 for all ${f.k} steps: no coefficient stopping time within the word`
+    ? `coefficient stays >= 1 for all ${plural(f.k, "step")} of the word: no coefficient stopping time within it`
     : `coefficient stopping time ${f.stoppingTime} (${f.stoppingTime + f.stoppingOdd!} standard steps): ${f.map.q}^${f.stoppingOdd} < 2^` +
         `${f.stoppingTime}`;
 }
