@@ -60,3 +60,22 @@ export const CYCLE_QPOW_BYTES: i32 = 1024;
 /** Per (j, m), 32 bytes: inverse of |2^j - q^m| mod 2^w and floor((2^w - 1) / |2^j - q^m|), low then high words. */
 export const CYCLE_DIVISOR_BYTES: i32 = TALLY_STRIDE * TALLY_STRIDE * 32;
 export const CYCLE_CANDIDATE_BYTES: i32 = CHANNEL_CHUNK * ENTRY_BYTES;
+
+// ---- verify ----
+export const CHANNEL_GLIDE_RECORDS: i32 = 7; // (n, glide in T steps, glide in standard steps, -)
+export const CHANNEL_PATH_RECORDS: i32 = 8; // (n, path low word, path high word, -)
+export const CHANNEL_HANDOFFS: i32 = 9; // (n, 1 when the host already counts n as sieved, -, -)
+export const CHANNEL_CYCLE_MEMBERS: i32 = 10; // (n, period, -, -)
+export const CHANNEL_UNRESOLVED: i32 = 11; // (n, -, -, -)
+/** Scratch: one region per channel 7..11, channel c at (c - 7) * VERIFY_REGION_BYTES. */
+export const VERIFY_REGION_BYTES: i32 = CHANNEL_CHUNK * ENTRY_BYTES;
+export const VERIFY_SCRATCH_BYTES: i32 = 5 * VERIFY_REGION_BYTES;
+/** u64 counts: survivors checked, exceptions that descended, cycle members, unresolved, handoffs,
+ * then (ranged blocks) sieved n by cut depth j at VERIFY_COUNT_SIEVED + j. */
+export const VERIFY_COUNT_CHECKED: i32 = 0;
+export const VERIFY_COUNT_EXCEPTIONS: i32 = 1;
+export const VERIFY_COUNT_CYCLES: i32 = 2;
+export const VERIFY_COUNT_UNRESOLVED: i32 = 3;
+export const VERIFY_COUNT_HANDOFFS: i32 = 4;
+export const VERIFY_COUNT_SIEVED: i32 = 8;
+export const VERIFY_COUNTS: i32 = VERIFY_COUNT_SIEVED + 64;

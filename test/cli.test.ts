@@ -335,3 +335,69 @@ describe("cli: errors give one line and the documented exit code", () => {
     });
   }
 });
+
+describe("cli: verify", () => {
+  it("SIGINT at a random moment, then --resume: the same result as an uninterrupted run; without a checkpoint, no certificate", async () => {
+    const sub = mkdtempSync(join(dir, "verify-"));
+    const ck = join(sub, "run.ck.json");
+    const cert = join(sub, "cert.json");
+    const args = ["verify", "--from", "2^40", "--to", "2^40+2^31", "--sieve-depth", "20", "--json"];
+    const child = spawn("node", [BIN, ...args, "--checkpoint", ck, "--out", cert], { stdio: "ignore" });
+    const exited = new Promise<number | null>((res) => child.on("exit", (code) => res(code)));
+    while (!existsSync(ck)) await new Promise((r) => setTimeout(r, 20));
+    await new Promise((r) => setTimeout(r, Math.floor(Math.random() * 800)));
+    child.kill("SIGINT");
+    expect(await exited).toBe(130);
+    expect(existsSync(cert)).toBe(false); // no partial certificate
+    const resumed = await cli("verify", "--resume", ck, "--json");
+    expect(resumed.code).toBe(0);
+    const straight = await cli(...args);
+    const strip = (s: string) => s.replace(/,"seconds":[\d.]+/, "");
+    expect(strip(resumed.stdout)).toBe(strip(straight.stdout));
+    expect(readdirSync(sub).filter((f) => f.includes("partial"))).toEqual([]);
+  });
+
+  it("--out writes a certificate that --check accepts, and a changed count or record is refused", async () => {
+    const cert = join(dir, "v.cert.json");
+    const r = await cli("verify", "--from", "1", "--to", "2^18", "--sieve-depth", "12", "--out", cert);
+    expect(r.code).toBe(0);
+    expect(r.stdout).toMatch(/glide records/);
+    expect(r.stdout).toMatch(/wrote the certificate to/);
+    const ok = await cli("verify", "--check", cert, "--sample", "200");
+    expect(ok.code).toBe(0);
+    expect(ok.stdout).toMatch(/^the certificate holds/);
+    const text = readFileSync(cert, "utf8");
+    const j = parseExactJson(text) as { counts: { checked: bigint }; records: { glide: { n: bigint }[] } };
+    expect(j.records.glide.map((g) => g.n).slice(0, 5)).toEqual([2n, 3n, 7n, 27n, 703n]); // OEIS A060412
+    const bad = join(dir, "v.bad.json");
+    const { writeFileSync } = await import("node:fs");
+    writeFileSync(bad, text.replace(`"checked": ${j.counts.checked}`, `"checked": ${j.counts.checked + 1n}`));
+    const refused = await cli("verify", "--check", bad);
+    expect(refused.code).toBe(1);
+    expect(refused.stdout).toMatch(/does NOT hold/);
+    writeFileSync(bad, text.replace(/"n": 703,\n(\s+)"standardSteps": 132/, '"n": 703,\n$1"standardSteps": 133'));
+    expect((await cli("verify", "--check", bad)).stdout).toMatch(/glide record 703/);
+  });
+
+  const bad: [string[], number, RegExp][] = [
+    [["verify", "--from", "10", "--to", "10"], 2, /--to must be above --from/],
+    [["verify", "--from", "-5", "--to", "10"], 2, /--from must be a whole number/],
+    [["verify", "--from", "1.5", "--to", "10"], 2, /--from must be a whole number/],
+    [["verify", "--from", "0", "--to", "10"], 2, /--from must be at least 1/],
+    [["verify", "--map", "3y+1", "--from", "1", "--to", "10"], 2, /not of the form/],
+    [["verify", "--from", "1", "--to", "10", "--sieve-depth", "31"], 2, /--sieve-depth must be from 1 to 30/],
+    [["verify", "--from", "1", "--to", "2^70"], 2, /numbers at or above 2\^64 are verified in BigInt/],
+    [["verify", "--check", "/nonexistent.json"], 2, /cannot read/],
+    [["verify", "--resume", "/nonexistent.json"], 2, /cannot read/],
+  ];
+  for (const [args, code, msg] of bad) {
+    it(`${args.join(" ")} -> exit ${code}, one line, no certificate`, async () => {
+      const out = join(dir, "never.json");
+      const r = await cli(...args, ...(args.includes("--check") || args.includes("--resume") ? [] : ["--out", out]));
+      expect(r.code).toBe(code);
+      expect(r.stderr.trim().split("\n")).toHaveLength(1);
+      expect(r.stderr).toMatch(msg);
+      expect(existsSync(out)).toBe(false);
+    });
+  }
+});

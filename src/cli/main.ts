@@ -14,6 +14,7 @@ import { cyclesCommand } from "./cycles.js";
 import { periodicCommand } from "./periodic.js";
 import { sieveCommand } from "./sieve.js";
 import { stepsCommand } from "./steps.js";
+import { verifyCommand } from "./verify.js";
 
 /** Each entry adds one command (its options, help text and action) to the program. */
 const COMMANDS: readonly ((program: Command) => Command)[] = [
@@ -25,6 +26,7 @@ const COMMANDS: readonly ((program: Command) => Command)[] = [
   cyclesCommand,
   conjugacyCommand,
   stepsCommand,
+  verifyCommand,
 ];
 
 const ABOUT = "parity vectors, residue-class sieves and 2-adic structure of T(n) = n/2 | (q n + r)/2";

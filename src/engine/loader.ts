@@ -27,7 +27,7 @@ export function compileKernel(key: string, bytes: BufferSource): Promise<WebAsse
  */
 export class Kernel {
   private sink: FlushSink | null = null;
-  private readonly regions = new Map<string, number>();
+  private readonly regions = new Map<string, { at: number; bytes: number }>();
   private readonly written = new Map<string, string>();
 
   private constructor(
@@ -67,13 +67,16 @@ export class Kernel {
     return (this.exports.memory as WebAssembly.Memory).buffer;
   }
 
-  /** The address of the region `name`, reserved once per instance. */
+  /**
+   * The address of the region `name`, reserved once per instance, and again (larger) when a later
+   * run needs more than it holds (the old space is not reused: sizes stay within a few runs' worth).
+   */
   region(name: string, bytes: number): number {
-    let at = this.regions.get(name);
-    if (at === undefined) {
-      at = Number(this.fn("reserve")(bytes));
-      this.regions.set(name, at);
-    }
+    const had = this.regions.get(name);
+    if (had !== undefined && had.bytes >= bytes) return had.at;
+    const at = Number(this.fn("reserve")(Math.max(8, bytes)));
+    this.regions.set(name, { at, bytes });
+    this.written.delete(name);
     return at;
   }
 

@@ -6,6 +6,8 @@ import type { KernelWorkerApi, LeafChunk, ShardOutput } from "./messages.js";
 import { enumerateShard } from "../jobs/sieve/kernel.js";
 import { censusShard } from "../jobs/census/kernel.js";
 import { cycleShard } from "../jobs/cycles/kernel.js";
+import { verifyBlock, verifyPrepare } from "../jobs/verify/kernel.js";
+import type { VerifyTables } from "./messages.js";
 import { makeMap } from "../core/map.js";
 import { classFromResidue } from "../core/padic.js";
 import { csvLines } from "../outputs/tables.js";
@@ -15,6 +17,7 @@ import { classTableArrow } from "../outputs/arrow.js";
 /** @example expose(createWorkerApi(), endpoint) */
 export function createWorkerApi(): KernelWorkerApi {
   let kernel: Kernel | null = null;
+  let verifyTables: VerifyTables | null = null;
   return {
     async init(module) {
       kernel = await Kernel.instantiate(module);
@@ -57,6 +60,21 @@ export function createWorkerApi(): KernelWorkerApi {
       const bytes =
         req.format === "arrow" ? classTableArrow(rows, req.depth, req.r < 0) : new TextEncoder().encode([...csvLines(rows)].join(""));
       return transfer(bytes, [asArrayBuffer(bytes.buffer)]);
+    },
+    async verifyPrepare(tables) {
+      if (!kernel) throw new Error("worker used before init");
+      verifyPrepare(kernel, tables);
+      verifyTables = tables;
+    },
+    async verifyBlock(block) {
+      if (!kernel) throw new Error("worker used before init");
+      if (!verifyTables || verifyTables.key !== block.key) throw new Error("internal error: a verification block before its run's tables");
+      const res = verifyBlock(kernel, verifyTables, block);
+      const arrays = [res.counts, res.glideRecords, res.pathRecords, res.handoffs, res.cycleMembers, res.unresolved];
+      return transfer(
+        res,
+        arrays.map((x) => asArrayBuffer(x.buffer)),
+      );
     },
     async runCycles(req) {
       if (!kernel) throw new Error("worker used before init");

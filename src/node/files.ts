@@ -12,6 +12,7 @@ import { toExactJson } from "../outputs/json.js";
 import type { DataFile } from "../outputs/manifest.js";
 
 const pending = new Set<string>();
+let made = 0;
 
 /** Removes every temporary file still open (for signal handlers; synchronous). */
 export function removePendingFiles(): void {
@@ -38,7 +39,7 @@ export class AtomicFile {
 
   /** Creates the temporary file now, so an unwritable path fails before any long work. */
   static async create(path: string): Promise<AtomicFile> {
-    const tempPath = join(dirname(path), `.${basename(path)}.partial-${process.pid}`);
+    const tempPath = join(dirname(path), `.${basename(path)}.partial-${process.pid}-${made++}`);
     let fh: FileHandle;
     pending.add(tempPath); // before the open: a signal during it must still remove the file
     try {
@@ -124,6 +125,19 @@ export async function withManifestOutput<T>(
   } catch (e) {
     await data.abort();
     await meta?.abort();
+    throw e;
+  }
+}
+
+/** Writes one whole file atomically (a temporary name, then a rename). */
+export async function writeFileAtomic(path: string, data: string | Uint8Array): Promise<void> {
+  const f = await AtomicFile.create(path);
+  try {
+    await f.write(data);
+    await f.finish();
+    await f.place();
+  } catch (e) {
+    await f.abort();
     throw e;
   }
 }

@@ -8,6 +8,7 @@ import type { Card } from "../jobs/inspect.js";
 import type { Level } from "../core/exact.js";
 import type { CollatzMap } from "../core/map.js";
 import type { PeriodicPoint } from "../core/padic.js";
+import type { VerifyResult } from "../jobs/verify/verify.js";
 
 /** The fields of `glidepath sieve --json`. */
 export function sieveJson(r: SieveResult) {
@@ -117,4 +118,35 @@ export function classJson(map: CollatzMap, card: Card) {
 /** The fields of `glidepath periodic --json`. */
 export function periodicJson(map: CollatzMap, p: PeriodicPoint, digits: string) {
   return { map: map.name, pre: p.pre, word: p.word, numerator: p.num, denominator: p.den, digits, integer: p.integer, cycle: p.cycle };
+}
+
+/** The fields of `glidepath verify --json` (the certificate holds the same and the run's provenance). */
+export function verifyJson(r: VerifyResult) {
+  return {
+    map: r.map.name,
+    from: r.from,
+    to: r.to,
+    sieveDepth: r.sieveDepth,
+    stepDepth: r.stepDepth,
+    maxSteps: r.maxSteps,
+    engine: r.engine,
+    counts: {
+      numbers: r.counts.numbers,
+      checked: r.counts.checked,
+      sieved: r.counts.sieved,
+      sievedByDepth: r.counts.sievedByDepth.flatMap((count, depth) => (count > 0n ? [{ depth, count }] : [])),
+      exceptions: r.counts.exceptions,
+      cycleMembers: r.counts.cycleMembers,
+      unresolved: r.counts.unresolved,
+    },
+    maxGlide: r.maxGlide,
+    maxPath: r.maxPath,
+    glideRecords: r.glideRecords,
+    pathRecords: r.pathRecords,
+    cycleMembers: r.cycleMembers,
+    unresolved: r.unresolvedList,
+    handoffs: r.handoffs,
+    blocks: r.blocks,
+    seconds: Number(r.seconds.toFixed(3)),
+  };
 }

@@ -1,0 +1,531 @@
+// Convergence verification of a block of consecutive n (r > 0): every n is shown to reach a value
+// below n (its glide), or found on a cycle (it returns to n), or left unresolved past a step cap.
+//
+// Aligned blocks (whole periods n = a + 2^K h, h0 <= h < h0 + periods) visit only the survivors of
+// the depth-K sieve: a survivor starts at step K in one multiply-add, T^K(n) = q^m h + b, then takes
+// table steps of KS steps, T^KS(x 2^KS + c) = q^mc x + bc, while v >= n 2^KS (no step more than
+// halves, so a table step cannot pass the first value below n), and single steps near the end.
+// Sieved n (their class is cut at depth j) descend at step j exactly (coefficient stopping time);
+// the host counts them. They are iterated here only when they could be a record of the block (a
+// glide or path larger than every smaller n of the block) and when they are the sieve's exceptions.
+// Ranged blocks (any [lo, hi)) iterate every n exactly and find its class's cut depth on the way.
+//
+// Arithmetic is unsigned 128-bit (hi, lo) with the carry out of every product and sum checked; a
+// value at or above 2^limitBits (128 at most) hands n to the host, which finishes it in BigInt.
+// Path maxima are exact whenever they could matter: a table step adds a bound on the values inside
+// it (from the peak coefficient of its class, q^mp / 2^ip); when the bound could beat the block's
+// largest path so far, n is iterated again in single steps.
+
+import { flush } from "./buffers";
+import {
+  CHANNEL_CHUNK,
+  CHANNEL_CYCLE_MEMBERS,
+  CHANNEL_GLIDE_RECORDS,
+  CHANNEL_HANDOFFS,
+  CHANNEL_PATH_RECORDS,
+  CHANNEL_UNRESOLVED,
+  VERIFY_COUNT_CHECKED,
+  VERIFY_COUNT_CYCLES,
+  VERIFY_COUNT_EXCEPTIONS,
+  VERIFY_COUNT_HANDOFFS,
+  VERIFY_COUNT_SIEVED,
+  VERIFY_COUNT_UNRESOLVED,
+  VERIFY_COUNTS,
+  VERIFY_REGION_BYTES,
+} from "./layout";
+import { mulhi } from "./u128";
+import { dropDepth, useTables } from "./tree";
+
+const DONE_DESCENT: i32 = 0;
+const DONE_CYCLE: i32 = 1;
+const DONE_UNRESOLVED: i32 = 2;
+const DONE_HANDOFF: i32 = 3;
+
+let Q: u64 = 0;
+let slackK: u64 = 0; // r (q/2)^K, rounded up (the first K steps of a survivor)
+let slackKS: u64 = 0; // r (q/2)^KS, rounded up (one table step of depth KS)
+let slackPtr: usize = 0; // u64 r (q/2)^d rounded up, d = 0..KS (host)
+let HQ: u64 = 0; // (q + r) / 2: the odd step is q (v >> 1) + HQ
+let K: i32 = 0; // sieve depth
+let KS: i32 = 0; // table step depth
+let maxSteps: i32 = 0;
+let limitBits: i32 = 128;
+let qpowPtr: usize = 0; // u64 q^m, m = 0..63
+let survA: usize = 0; // u32 residues of the survivors mod 2^K, ascending
+let survM: usize = 0; // u8 m
+let survB: usize = 0; // u64 b
+let survPeak: usize = 0; // u8 ip, u8 mp per survivor: the peak of q^(m_i)/2^i over i < K
+// Step tables of every depth d = 1..KS, the one of depth d at entry 2^d - 2: m (u8), b (u64) and the
+// peak (u8 ip, u8 mp) of the coefficients over its d steps, per residue mod 2^d.
+let stepM: usize = 0;
+let stepB: usize = 0;
+let stepPeak: usize = 0;
+let countsPtr: usize = 0;
+let regions: usize = 0; // one region per channel 7..11
+const chanN = new StaticArray<i32>(5);
+// the largest values so far in the block (glide in standard steps; path as u128)
+let bestGlide: i32 = -1;
+let bestPathLo: u64 = 0;
+let bestPathHi: u64 = 0;
+let bestPathBits: i32 = 0;
+// results of the last iteration
+let glideT: i32 = 0;
+let glideOdd: i32 = 0;
+let pathLo: u64 = 0;
+let pathHi: u64 = 0;
+let cutDepth: i32 = 0; // the depth where n's class coefficient first drops (0: not within K)
+let exceededPath: bool = false; // the path bound could exceed the block's best (fast mode)
+// u128 results
+let rl: u64 = 0;
+let rh: u64 = 0;
+let carry: bool = false;
+
+@inline function bump(i: i32): void {
+  const p = countsPtr + (<usize>i << 3);
+  store<u64>(p, load<u64>(p) + 1);
+}
+
+function push(ch: i32, x0: u64, x1: u64, x2: u64): void {
+  const slot = ch - CHANNEL_GLIDE_RECORDS;
+  const n = unchecked(chanN[slot]);
+  const p = regions + <usize>slot * <usize>VERIFY_REGION_BYTES + (<usize>n << 5);
+  store<u64>(p, x0);
+  store<u64>(p, x1, 8);
+  store<u64>(p, x2, 16);
+  store<u64>(p, 0, 24);
+  if (n + 1 == CHANNEL_CHUNK) {
+    flush(ch, n + 1);
+    unchecked((chanN[slot] = 0));
+  } else unchecked((chanN[slot] = n + 1));
+}
+
+/** (hi, lo) * y + add into (rh, rl); carry when the result needs more than 128 bits. */
+@inline function mulAdd(lo: u64, hi: u64, y: u64, add: u64): void {
+  if (hi == 0 && clz(lo) + clz(y) >= 64) {
+    // bits(lo) + bits(y) <= 64: the product fits one word
+    const p = lo * y + add;
+    rl = p;
+    rh = select<u64>(1, 0, p < add);
+    carry = false;
+    return;
+  }
+  const l = lo * y;
+  const c1 = mulhi(lo, y);
+  let hh = c1;
+  carry = false;
+  if (hi != 0) {
+    const h = hi * y;
+    hh = h + c1;
+    carry = mulhi(hi, y) != 0 || hh < h;
+  }
+  const l2 = l + add;
+  if (l2 < l) {
+    hh++;
+    if (hh == 0) carry = true;
+  }
+  rl = l2;
+  rh = hh;
+}
+
+/** The value is at or above 2^limitBits (so n goes to the host). */
+@inline function tooLarge(lo: u64, hi: u64): bool {
+  if (limitBits >= 128) return false;
+  if (limitBits >= 64) return (hi >> <u64>(limitBits - 64)) != 0;
+  return hi != 0 || (lo >> <u64>limitBits) != 0;
+}
+
+@inline function slackD(d: i32): u64 {
+  return load<u64>(slackPtr + (<usize>d << 3));
+}
+
+@inline function less(alo: u64, ahi: u64, blo: u64, bhi: u64): bool {
+  return ahi < bhi || (ahi == bhi && alo < blo);
+}
+
+/**
+ * n iterated one step at a time from step 0: the exact glide, odd steps and path, and the depth at
+ * which its class's coefficient first drops (cutDepth, 0 when not within K).
+ */
+function exact(n: u64): i32 {
+  let vl = n, vh: u64 = 0;
+  let steps = 0, odd = 0;
+  let pl = n, ph: u64 = 0;
+  cutDepth = 0;
+  while (true) {
+    if ((vl & 1) == 0) {
+      vl = (vl >> 1) | (vh << 63);
+      vh >>= 1;
+    } else {
+      // q (v >> 1) + (q + r) / 2
+      mulAdd((vl >> 1) | (vh << 63), vh >> 1, Q, HQ);
+      if (carry || tooLarge(rl, rh)) return DONE_HANDOFF;
+      vl = rl;
+      vh = rh;
+      odd++;
+    }
+    steps++;
+    if (cutDepth == 0 && steps <= K && steps >= dropDepth(odd)) cutDepth = steps;
+    if (less(pl, ph, vl, vh)) {
+      pl = vl;
+      ph = vh;
+    }
+    if (vh == 0 && vl < n) break;
+    if (vh == 0 && vl == n) {
+      glideT = steps;
+      glideOdd = odd;
+      return DONE_CYCLE;
+    }
+    if (steps >= maxSteps) return DONE_UNRESOLVED;
+  }
+  glideT = steps;
+  glideOdd = odd;
+  pathLo = pl;
+  pathHi = ph;
+  return DONE_DESCENT;
+}
+
+/**
+ * An upper bound on the values T^i(v) inside L steps from v, given the peak (ip, mp) of the
+ * coefficients q^(m_i)/2^i over those steps and slack >= r (q/2)^L (host, BigInt): with
+ * T^i(v) = (q^(m_i) v + c_i) / 2^i and c_i / 2^i <= r (q/2)^(m_i), the bound is
+ * q^mp v / 2^ip + slack + 1. carry: too large for 128 bits (treat as unbounded).
+ */
+@inline function peakBound(vl: u64, vh: u64, ip: i32, mp: i32, slack: u64): void {
+  mulAdd(vl, vh, load<u64>(qpowPtr + (<usize>mp << 3)), 0);
+  const over = carry;
+  if (ip > 0) {
+    rl = (rl >> <u64>ip) | (rh << <u64>(64 - ip));
+    rh >>= <u64>ip;
+  }
+  const l = rl + slack;
+  if (l < rl) rh++;
+  rl = l + 1;
+  if (rl == 0) rh++;
+  carry = over || rh == 0xffffffffffffffff;
+}
+
+/**
+ * Survivor i of the sieve at period h: n = a + 2^K h. The exact glide; the path only as a bound
+ * (exceededPath says whether it could beat the block's best, in which case the caller iterates
+ * n exactly).
+ */
+function fast(n: u64, i: i32, h: u64): i32 {
+  const m = <i32>load<u8>(survM + <usize>i);
+  // values inside the first K steps: at most q^mp (n + r) / 2^ip
+  const pk = survPeak + (<usize>i << 1);
+  const ip = <i32>load<u8>(pk), mp = <i32>load<u8>(pk, 1);
+  const nBits = 64 - <i32>clz(n);
+  let bl = n, bh: u64 = 0;
+  if (nBits + dropDepth(mp) - ip + 2 >= bestPathBits || 64 - <i32>clz(slackK) > nBits) {
+    peakBound(n, 0, ip, mp, slackK);
+    bl = rl;
+    bh = carry ? <u64>-1 : rh;
+  }
+  mulAdd(h, 0, load<u64>(qpowPtr + (<usize>m << 3)), load<u64>(survB + (<usize>i << 3)));
+  if (carry || tooLarge(rl, rh)) return DONE_HANDOFF;
+  let vl = rl, vh = rh;
+  let steps = K, odd = m;
+  while (true) {
+    if (less(bl, bh, vl, vh)) {
+      bl = vl;
+      bh = vh;
+    }
+    if (vh == 0 && vl < n) break;
+    if (vh == 0 && vl == n) {
+      glideT = steps;
+      glideOdd = odd;
+      return DONE_CYCLE;
+    }
+    if (steps >= maxSteps) return DONE_UNRESOLVED;
+    // v >= n 2^d for d = bitlen(v) - bitlen(n) - 1: a table step of depth d cannot pass below n
+    const bits = vh != 0 ? 128 - <i32>clz(vh) : 64 - <i32>clz(vl);
+    let d = bits - nBits - 1;
+    if (d > KS) d = KS;
+    if (d >= 2) {
+      const c = <usize>(vl & (((<u64>1) << <u64>d) - 1)) + (((<usize>1) << <usize>d) - 2);
+      const sp = stepPeak + (c << 1);
+      const ip = <i32>load<u8>(sp), mp = <i32>load<u8>(sp, 1);
+      const sl = d == KS ? slackKS : slackD(d);
+      // the bound is below 2^(bits + bitlen(q^mp) - ip + 1) when the slack is below 2^bits: skip it
+      // while that cannot reach the block's best path
+      if (bits + dropDepth(mp) - ip + 2 >= bestPathBits || 64 - <i32>clz(sl) > bits) {
+        peakBound(vl, vh, ip, mp, sl);
+        if (carry) bh = <u64>-1;
+        else if (less(bl, bh, rl, rh)) {
+          bl = rl;
+          bh = rh;
+        }
+      }
+      const sm = <i32>load<u8>(stepM + c);
+      const xl = (vl >> <u64>d) | (vh << <u64>(64 - d)), xh = vh >> <u64>d;
+      mulAdd(xl, xh, load<u64>(qpowPtr + (<usize>sm << 3)), load<u64>(stepB + (c << 3)));
+      if (carry || tooLarge(rl, rh)) return DONE_HANDOFF;
+      vl = rl;
+      vh = rh;
+      steps += d;
+      odd += sm;
+    } else if ((vl & 1) == 0) {
+      vl = (vl >> 1) | (vh << 63);
+      vh >>= 1;
+      steps++;
+    } else {
+      mulAdd((vl >> 1) | (vh << 63), vh >> 1, Q, HQ);
+      if (carry || tooLarge(rl, rh)) return DONE_HANDOFF;
+      vl = rl;
+      vh = rh;
+      steps++;
+      odd++;
+    }
+  }
+  glideT = steps;
+  glideOdd = odd;
+  exceededPath = less(bestPathLo, bestPathHi, bl, bh);
+  return DONE_DESCENT;
+}
+
+/** Records of the block: a glide (standard steps) or a path above every smaller n's so far. */
+@inline function noteRecords(n: u64, glideStd: i32): void {
+  if (glideStd > bestGlide) {
+    bestGlide = glideStd;
+    push(CHANNEL_GLIDE_RECORDS, n, <u64>glideT, <u64>glideStd);
+  }
+  if (less(bestPathLo, bestPathHi, pathLo, pathHi)) {
+    bestPathLo = pathLo;
+    bestPathHi = pathHi;
+    bestPathBits = pathHi != 0 ? 128 - <i32>clz(pathHi) : 64 - <i32>clz(pathLo);
+    push(CHANNEL_PATH_RECORDS, n, pathLo, pathHi);
+  }
+}
+
+/** Finishes n after `exact`: counts, records, and the lists of the other outcomes. */
+function settle(n: u64, done: i32, counted: i32): void {
+  if (done == DONE_DESCENT) {
+    if (counted >= 0) bump(counted);
+    noteRecords(n, glideT + glideOdd);
+  } else if (done == DONE_CYCLE) {
+    // a cycle member never goes below n; for the path records it counts as n itself
+    bump(VERIFY_COUNT_CYCLES);
+    push(CHANNEL_CYCLE_MEMBERS, n, <u64>glideT, 0);
+    pathLo = n;
+    pathHi = 0;
+    if (less(bestPathLo, bestPathHi, pathLo, pathHi)) {
+      bestPathLo = pathLo;
+      bestPathHi = pathHi;
+      bestPathBits = pathHi != 0 ? 128 - <i32>clz(pathHi) : 64 - <i32>clz(pathLo);
+      push(CHANNEL_PATH_RECORDS, n, pathLo, pathHi);
+    }
+  } else if (done == DONE_UNRESOLVED) {
+    bump(VERIFY_COUNT_UNRESOLVED);
+    push(CHANNEL_UNRESOLVED, n, 0, 0);
+  } else {
+    // counted < 0: the host's arithmetic already counts n (a sieved n iterated as a possible record)
+    bump(VERIFY_COUNT_HANDOFFS);
+    push(CHANNEL_HANDOFFS, n, counted < 0 ? 1 : 0, 0);
+  }
+}
+
+function begin(q: u32, r: u32, depth: i32, stepDepth: i32, steps: i32, limit: i32, tables: usize, counts: usize, scratch: usize): void {
+  Q = <u64>q;
+  HQ = (<u64>q + <u64>r) >> 1;
+  K = depth;
+  KS = stepDepth;
+  maxSteps = steps;
+  limitBits = limit;
+  useTables(tables);
+  qpowPtr = tables;
+  countsPtr = counts;
+  memory.fill(counts, 0, VERIFY_COUNTS * 8);
+  regions = scratch;
+  for (let s = 0; s < 5; s++) unchecked((chanN[s] = 0));
+  bestGlide = -1;
+  bestPathLo = 0;
+  bestPathHi = 0;
+  bestPathBits = 0;
+}
+
+function end(): void {
+  for (let s = 0; s < 5; s++) {
+    const n = unchecked(chanN[s]);
+    if (n > 0) flush(s + CHANNEL_GLIDE_RECORDS, n);
+    unchecked((chanN[s] = 0));
+  }
+}
+
+/** The peak (ip, mp) of q^(m_i) / 2^i over i < len along the parities of a (exact comparison). */
+function peakOf(a: u64, len: i32, out: usize): void {
+  let v = a, m = 0, ip = 0, mp = 0;
+  for (let i = 1; i < len; i++) {
+    if ((v & 1) == 0) v >>= 1;
+    else {
+      v = Q * (v >> 1) + HQ; // within the host-proven width for i < len <= the sieve's limit
+      m++;
+    }
+    // q^m / 2^i > q^mp / 2^ip iff q^(m - mp) > 2^(i - ip) iff i - ip < bitlen(q^(m - mp))
+    if (m > mp && i - ip < dropDepth(m - mp)) {
+      ip = i;
+      mp = m;
+    }
+  }
+  store<u8>(out, <u8>ip);
+  store<u8>(out, <u8>mp, 1);
+}
+
+/**
+ * Prepares a run's tables once per worker: for every survivor a of the depth-K sieve (given as
+ * ascending u32 residues) its (m, b) with T^K(a + 2^K x) = q^m x + b and the peak of its first K
+ * steps; the step tables of every depth d <= KS (entry 2^d - 2 onwards: m, b and the peak of its d
+ * steps). tables: the per-m tables (TABLE_*). Every other address is an output.
+ */
+export function verifyPrepare(
+  q: u32, r: u32, depth: i32, stepDepth: i32, tables: usize, survivors: i32,
+  a: usize, m: usize, b: usize, peak: usize, sm: usize, sb: usize, speak: usize,
+): void {
+  assert(r > 0 && depth >= 1 && depth <= 32 && stepDepth >= 1 && stepDepth <= 24 && survivors >= 0);
+  Q = <u64>q;
+  HQ = (<u64>q + <u64>r) >> 1;
+  useTables(tables);
+  survA = a;
+  survM = m;
+  survB = b;
+  survPeak = peak;
+  stepM = sm;
+  stepB = sb;
+  stepPeak = speak;
+  for (let i = 0; i < survivors; i++) {
+    const at = <usize>i;
+    const res = <u64>load<u32>(a + (at << 2));
+    peakOf(res, depth, peak + (at << 1));
+    // the class's (m, b): T^K of its least member (within the host-proven width)
+    let v = res, odd = 0;
+    for (let j = 0; j < depth; j++) {
+      if ((v & 1) == 0) v >>= 1;
+      else {
+        v = Q * (v >> 1) + HQ;
+        odd++;
+      }
+    }
+    store<u8>(m + at, <u8>odd);
+    store<u64>(b + (at << 3), v);
+  }
+  for (let d = 1; d <= stepDepth; d++) {
+    const base = ((<usize>1) << <usize>d) - 2;
+    for (let c: u64 = 0; c < (<u64>1) << <u64>d; c++) {
+      const at = base + <usize>c;
+      peakOf(c, d, speak + (at << 1));
+      let v = c, odd = 0;
+      for (let j = 0; j < d; j++) {
+        if ((v & 1) == 0) v >>= 1;
+        else {
+          v = Q * (v >> 1) + HQ;
+          odd++;
+        }
+      }
+      store<u8>(sm + at, <u8>odd);
+      store<u64>(sb + (at << 3), v);
+    }
+  }
+}
+
+/**
+ * An aligned block: n = a + 2^K h for h0 <= h < h0 + periods, in increasing n. Survivors are
+ * iterated; sieved n only where they could be records (or are in the sorted exception list
+ * exc[0..excN)). Counts by outcome go to `counts`, lists to the channels. Returns the survivors
+ * visited. The caller ensures n < 2^64 throughout and n > 0.
+ */
+export function verifyAligned(
+  q: u32, r: u32, depth: i32, stepDepth: i32, steps: i32, limit: i32, tables: usize, survivors: i32,
+  h0: u64, periods: u64, exc: usize, excN: i32, sievedGlide: i32, sievedPeak: i32, sievedSlack: u64,
+  survivorSlack: u64, slacks: usize, counts: usize, scratch: usize,
+): u64 {
+  assert(r > 0 && survivors > 0 && depth >= 1 && depth <= 32 && stepDepth >= 1 && stepDepth <= 24 && limit >= 1 && limit <= 128);
+  begin(q, r, depth, stepDepth, steps, limit, tables, counts, scratch);
+  slackK = survivorSlack;
+  slackPtr = slacks;
+  slackKS = slackD(stepDepth);
+  const sievedPeakBits = dropDepth(sievedPeak) - sievedPeak; // bitlen(q^mp) - ip, the bound's extra bits
+  let e = 0; // next exception
+  let visited: u64 = 0;
+  for (let h = h0; h < h0 + periods; h++) {
+    const base = h << <u64>depth;
+    let prev: u64 = base; // first n of the current gap
+    for (let i = 0; i <= survivors; i++) {
+      const next: u64 = i < survivors ? base + <u64>load<u32>(survA + (<usize>i << 2)) : base + ((<u64>1) << <u64>depth);
+      // the gap [prev, next) of sieved n: records are possible only while the block's best glide
+      // is below the deepest cut's, or its best path below a bound on theirs: a class cut by depth K
+      // has m_i <= sievedPeak odd steps among its first i < j steps, so T^i(n) <= (q/2)^sievedPeak n + slack
+      if (prev < next) {
+        let candidate = bestGlide < sievedGlide;
+        if (!candidate) {
+          const bits = 64 - <i32>clz(next);
+          if (bits + sievedPeakBits + 2 >= bestPathBits || 64 - <i32>clz(sievedSlack) > bits) {
+            peakBound(next, 0, sievedPeak, sievedPeak, sievedSlack);
+            candidate = carry || less(bestPathLo, bestPathHi, rl, rh);
+          }
+        }
+        for (let n = prev; n < next; n++) {
+          const isException = e < excN && load<u64>(exc + (<usize>e << 3)) == n;
+          if (!candidate && !isException) {
+            // jump to the next exception in the gap, if any
+            if (e < excN && load<u64>(exc + (<usize>e << 3)) < next) {
+              n = load<u64>(exc + (<usize>e << 3)) - 1;
+              continue;
+            }
+            break;
+          }
+          if (n == 0) continue;
+          const done = exact(n);
+          if (isException) {
+            e++;
+            settle(n, done, VERIFY_COUNT_EXCEPTIONS);
+          } else if (done == DONE_DESCENT) noteRecords(n, glideT + glideOdd); // counted by the host
+          else settle(n, done, -1);
+        }
+      }
+      if (i == survivors) break;
+      const n = next;
+      visited++;
+      let done = fast(n, i, h);
+      if (done == DONE_DESCENT) {
+        bump(VERIFY_COUNT_CHECKED);
+        if (exceededPath || glideT + glideOdd > bestGlide) {
+          // its path could be a record: the exact path, in single steps
+          const again = exact(n);
+          if (again == DONE_DESCENT) noteRecords(n, glideT + glideOdd);
+        }
+      } else if (done == DONE_CYCLE) settle(n, done, -1);
+      else {
+        // past the cap, or too large for the kernel: single steps settle which (and find the cycle)
+        done = exact(n);
+        settle(n, done, VERIFY_COUNT_CHECKED);
+      }
+      prev = n + 1;
+    }
+  }
+  end();
+  return visited;
+}
+
+/**
+ * Any block first..last (inclusive, so that it may end at 2^64 - 1), every n iterated exactly (the
+ * range's partial periods): sieved n are counted by their cut depth (counts[VERIFY_COUNT_SIEVED + j]),
+ * survivors as checked, exceptions apart. Returns the numbers visited.
+ */
+export function verifyRange(
+  q: u32, r: u32, depth: i32, steps: i32, limit: i32, tables: usize, first: u64, last: u64, counts: usize, scratch: usize,
+): u64 {
+  assert(r > 0 && depth >= 1 && depth <= 32 && first >= 1 && first <= last && limit >= 1 && limit <= 128);
+  begin(q, r, depth, 1, steps, limit, tables, counts, scratch);
+  for (let n = first; ; n++) {
+    const done = exact(n);
+    if (done == DONE_DESCENT && cutDepth > 0) {
+      if (glideT == cutDepth) {
+        bump(VERIFY_COUNT_SIEVED + cutDepth);
+        noteRecords(n, glideT + glideOdd);
+      } else settle(n, done, VERIFY_COUNT_EXCEPTIONS);
+    } else if (cutDepth > 0) settle(n, done, VERIFY_COUNT_EXCEPTIONS);
+    else settle(n, done, VERIFY_COUNT_CHECKED);
+    if (n == last) break;
+  }
+  end();
+  return last - first + 1;
+}

@@ -1,0 +1,236 @@
+// glidepath verify: a convergence-verification run over [FROM, TO) on the kernel pool, with its
+// record lists, a certificate (--out), checkpoints (--checkpoint, --resume) and --check.
+import { createHash, randomBytes } from "node:crypto";
+import { readFileSync } from "node:fs";
+import type { Command } from "commander";
+import { UsageError } from "../core/errors.js";
+import type { CollatzMap } from "../core/map.js";
+import { CHECKPOINT_KIND, certificate, checkCertificate, checkpoint, readCertificate, readCheckpoint } from "../jobs/verify/certificate.js";
+import type { TableHashes } from "../jobs/verify/certificate.js";
+import {
+  DEFAULT_MAX_STEPS,
+  MAX_VERIFY_SIEVE_DEPTH,
+  MAX_VERIFY_STEP_DEPTH,
+  planVerify,
+  runVerify,
+  verifyTables,
+} from "../jobs/verify/verify.js";
+import type { StoredBlock, VerifyRequest, VerifyResult, VerifyTableData } from "../jobs/verify/verify.js";
+import { group, plural } from "../outputs/format.js";
+import { toExactJson } from "../outputs/json.js";
+import { verifyJson } from "../outputs/summary.js";
+import { writeFileAtomic } from "../node/files.js";
+import { toolStamp, withPool } from "../node/kernel.js";
+import { intOption, jobCommand, mapOption, outputOption, workersOption } from "./options.js";
+import type { RawOptions } from "./options.js";
+import { print } from "./print.js";
+
+interface VerifyOptions extends RawOptions {
+  readonly from?: string;
+  readonly to?: string;
+  readonly sieveDepth?: string;
+  readonly stepDepth?: string;
+  readonly maxSteps?: string;
+  readonly checkpoint?: string;
+  readonly resume?: string;
+  readonly check?: string;
+  readonly sample?: string;
+}
+
+/** Records shown in the text report (all of them are in --json and the certificate). */
+const TEXT_RECORDS = 40;
+
+export function verifyCommand(program: Command): Command {
+  return jobCommand(
+    program,
+    "verify",
+    "check that every n in [FROM, TO) reaches a value below n; glide and path records; certificates and checkpoints",
+  )
+    .option("--from <FROM>", "first number (decimal, or a sum of powers such as 2^50+2^32)")
+    .option("--to <TO>", "the end of the range, not included")
+    .option("--sieve-depth <K>", `sieve depth: 1 to ${MAX_VERIFY_SIEVE_DEPTH} (default 26)`)
+    .option("--step-depth <k>", `table step depth: 1 to ${MAX_VERIFY_STEP_DEPTH} (default 16)`)
+    .option("--max-steps <S>", `steps after which a trajectory is reported unresolved (default ${DEFAULT_MAX_STEPS})`)
+    .option("--out <FILE>", "write the certificate (JSON)")
+    .option("--checkpoint <FILE>", "keep the run's state in FILE after every block (resume with --resume FILE)")
+    .option("--resume <FILE>", "continue the run a checkpoint describes (its options are the checkpoint's)")
+    .option("--check <FILE>", "re-derive what a certificate says (table hashes, counts, records, a sample) and say whether it holds")
+    .option("--sample <N>", "with --check: random n of the range to iterate again (default 1000)")
+    .action((o: VerifyOptions) => (o.check !== undefined ? check(o) : verify(o)));
+}
+
+/**
+ * A number of any size: decimal digits, or a sum of terms each decimal or b^e (2^50+2^32).
+ * @example parseBound("from", "2^40+5") // 1099511627781n
+ */
+export function parseBound(name: string, text: string | undefined): bigint {
+  if (text === undefined) throw new UsageError(`--${name} is required`);
+  const t = text.replace(/\s+/g, "");
+  if (!/^(\d+(\^\d+)?)(\+\d+(\^\d+)?)*$/.test(t))
+    throw new UsageError(`--${name} must be a whole number (digits, or powers such as 2^50+2^32), got "${text}"`);
+  return t.split("+").reduce((s, term) => {
+    const [b, e] = term.split("^");
+    if (e !== undefined && Number(e) > 100_000) throw new UsageError(`--${name}: exponent ${e} is too large`);
+    return s + (e === undefined ? BigInt(b!) : BigInt(b!) ** BigInt(e));
+  }, 0n);
+}
+
+function request(o: VerifyOptions, map: CollatzMap): VerifyRequest {
+  return {
+    map,
+    from: parseBound("from", o.from),
+    to: parseBound("to", o.to),
+    sieveDepth: intOption("sieve-depth", o.sieveDepth, 1, MAX_VERIFY_SIEVE_DEPTH, 26),
+    stepDepth: intOption("step-depth", o.stepDepth, 1, MAX_VERIFY_STEP_DEPTH, 16),
+    maxSteps: intOption("max-steps", o.maxSteps, 1, 100_000_000, DEFAULT_MAX_STEPS),
+  };
+}
+
+/** sha256 of the tables as their raw files hold them. */
+export function tableHashes(data: VerifyTableData): TableHashes {
+  const sha = (b: Uint8Array) => createHash("sha256").update(b).digest("hex");
+  return {
+    sieve: { rows: data.tables.residues.length, sha256: sha(data.sieveBytes) },
+    steps: { rows: 2 ** data.tables.stepDepth, sha256: sha(data.stepBytes) },
+  };
+}
+
+async function verify(o: VerifyOptions): Promise<void> {
+  let req: VerifyRequest;
+  let done = new Map<number, StoredBlock>();
+  let checkpointPath = o.checkpoint;
+  if (o.resume !== undefined) {
+    if (
+      o.from !== undefined ||
+      o.to !== undefined ||
+      o.sieveDepth !== undefined ||
+      o.stepDepth !== undefined ||
+      o.maxSteps !== undefined ||
+      o.map !== "3x+1"
+    )
+      throw new UsageError("--resume takes the run's options from the checkpoint: give no --map, --from, --to or depths");
+    let text: string;
+    try {
+      text = readFileSync(o.resume, "utf8");
+    } catch (e) {
+      throw new UsageError(`cannot read ${o.resume}: ${(e as NodeJS.ErrnoException).code ?? String(e)}`);
+    }
+    const c = readCheckpoint(text);
+    req = c.request;
+    const plan = planVerify(req);
+    if (plan.key !== c.key || plan.blocks.length !== c.blocks)
+      throw new UsageError(`${o.resume} was written by another plan or build of glidepath: it cannot be resumed here`);
+    done = c.done;
+    checkpointPath ??= o.resume;
+  } else req = request(o, mapOption(o.map));
+  const plan = planVerify(req); // checks the request before anything is opened
+  const workers = workersOption(o.workers);
+  const out = outputOption<"raw">({ ...o, format: undefined }, ["raw"], "raw");
+  const stamp = await toolStamp();
+  const started = new Date().toISOString();
+  let hashes: TableHashes | null = null;
+  const result = await withPool(workers, `verify ${req.map.name}`, async (pool, onProgress) => {
+    const tables = plan.engine === "kernel" ? await verifyTables(pool, plan) : undefined;
+    if (tables) hashes = tableHashes(tables);
+    return runVerify(pool, req, {
+      tables,
+      done,
+      onProgress,
+      onBlock: async (res) => {
+        done.set(res.index, res);
+        if (checkpointPath)
+          await writeFileAtomic(
+            checkpointPath,
+            `${toExactJson(checkpoint({ ...req, from: req.from, to: req.to }, plan.key, plan.blocks.length, done))}\n`,
+          );
+      },
+    });
+  });
+  if (out) {
+    const cert = certificate(result, hashes, stamp, { started, finished: new Date().toISOString(), workers });
+    await writeFileAtomic(out.path, `${toExactJson(cert, 2)}\n`);
+  }
+  print(o.json ? `${toExactJson(verifyJson(result))}\n` : verifyText(result, workers));
+  if (out) (o.json ? process.stderr : process.stdout).write(`wrote the certificate to ${out.path}\n`);
+  if (checkpointPath && o.resume === undefined)
+    (o.json ? process.stderr : process.stdout).write(`checkpoint: ${checkpointPath} (complete)\n`);
+}
+
+function verifyText(r: VerifyResult, workers: number): string {
+  const c = r.counts;
+  const rate = Number(c.numbers) / Math.max(r.seconds, 1e-9);
+  const lines = [
+    `verification of ${r.map.name} over [${r.from}, ${r.to}): ${group(c.numbers)} numbers, sieve depth ${r.sieveDepth}, table steps of ${r.stepDepth}`,
+    `every n reaches a value below n, except the cycle members and unresolved numbers listed below`,
+    "",
+    `  sieved (descend at their class's depth)  ${group(c.sieved).padStart(22)}`,
+    `  checked (survivors iterated)             ${group(c.checked).padStart(22)}`,
+    `  exceptions of the sieve (iterated)       ${group(c.exceptions).padStart(22)}`,
+    `  cycle members                            ${group(c.cycleMembers).padStart(22)}`,
+    `  ${`unresolved after ${group(r.maxSteps)} steps`.padEnd(39)}  ${group(c.unresolved).padStart(22)}`,
+    "",
+    r.maxGlide
+      ? `largest glide: ${r.maxGlide.standardSteps} standard steps (${r.maxGlide.steps} steps of T), n = ${r.maxGlide.n}`
+      : "largest glide: none (no n in the range descends)",
+    r.maxPath ? `largest path: ${r.maxPath.value}, n = ${r.maxPath.n}` : "largest path: none",
+    "",
+    `glide records (n whose glide beats every smaller n of the range; standard steps): ${r.glideRecords.length}`,
+    ...r.glideRecords.slice(0, TEXT_RECORDS).map((g) => `  ${String(g.n).padStart(22)}  ${g.standardSteps}`),
+    ...(r.glideRecords.length > TEXT_RECORDS ? [`  ... and ${r.glideRecords.length - TEXT_RECORDS} more (--json lists them all)`] : []),
+    `path records: ${r.pathRecords.length}`,
+    ...r.pathRecords.slice(0, TEXT_RECORDS).map((p) => `  ${String(p.n).padStart(22)}  ${p.value}`),
+    ...(r.pathRecords.length > TEXT_RECORDS ? [`  ... and ${r.pathRecords.length - TEXT_RECORDS} more (--json lists them all)`] : []),
+    ...(r.cycleMembers.length ? [`cycle members: ${r.cycleMembers.map((m) => `${m.n} (period ${m.period})`).join(", ")}`] : []),
+    ...(r.unresolvedList.length
+      ? [
+          `unresolved: ${r.unresolvedList.slice(0, 50).join(", ")}${r.unresolvedList.length > 50 ? `, ... and ${r.unresolvedList.length - 50} more` : ""}`,
+        ]
+      : []),
+    "",
+    `${r.seconds.toFixed(2)} s, ${group(BigInt(Math.round(rate)))} numbers/s (${plural(workers, "worker")}, ${r.blocks} blocks, ${r.engine} engine` +
+      `${r.handoffs > 0n ? `, ${group(r.handoffs)} finished in BigInt` : ""})`,
+    "",
+  ];
+  return lines.join("\n");
+}
+
+async function check(o: VerifyOptions): Promise<void> {
+  if (o.from !== undefined || o.to !== undefined || o.out !== undefined || o.resume !== undefined || o.checkpoint !== undefined)
+    throw new UsageError("--check reads everything from the certificate: give no range, --out or checkpoint");
+  let text: string;
+  try {
+    text = readFileSync(o.check!, "utf8");
+  } catch (e) {
+    throw new UsageError(`cannot read ${o.check}: ${(e as NodeJS.ErrnoException).code ?? String(e)}`);
+  }
+  if (text.includes(`"kind":"${CHECKPOINT_KIND}"`))
+    throw new UsageError(`${o.check} is a checkpoint, not a certificate: finish it with --resume`);
+  const c = readCertificate(text);
+  const sampleSize = intOption("sample", o.sample, 0, 1_000_000, 1000);
+  const span = c.to - c.from;
+  const sample: bigint[] = [];
+  for (let i = 0; i < sampleSize && span > 0n; i++) sample.push(c.from + (BigInt(`0x${randomBytes(16).toString("hex")}`) % span));
+  const report = checkCertificate(c, sample);
+  const findings = [...report.findings];
+  if (c.tables) {
+    const plan = planVerify({ map: c.map, from: c.from, to: c.to, sieveDepth: c.sieveDepth, stepDepth: c.stepDepth, maxSteps: c.maxSteps });
+    const hashes = await withPool(workersOption(o.workers), "verify --check tables", async (pool) =>
+      tableHashes(await verifyTables(pool, plan)),
+    );
+    if (hashes.sieve.sha256 !== c.tables.sieve.sha256)
+      findings.push(`the sieve table's sha256 is ${hashes.sieve.sha256}, the certificate says ${c.tables.sieve.sha256}`);
+    if (hashes.steps.sha256 !== c.tables.steps.sha256)
+      findings.push(`the step table's sha256 is ${hashes.steps.sha256}, the certificate says ${c.tables.steps.sha256}`);
+  }
+  const holds = findings.length === 0;
+  if (o.json) print(`${toExactJson({ holds, findings, iterated: report.sampled })}\n`);
+  else {
+    print(
+      holds
+        ? `the certificate holds: ${c.map.name} over [${c.from}, ${c.to}); tables rebuilt and their hashes equal; counts add up; ` +
+            `${report.sampled} numbers iterated again in BigInt (every record, cycle member and unresolved n, and ${sample.length} at random) agree\n`
+        : `the certificate does NOT hold:\n${findings.map((f) => `  ${f}`).join("\n")}\n`,
+    );
+  }
+  if (!holds) throw new Error(`the certificate ${o.check} does not hold`);
+}

@@ -1,0 +1,101 @@
+// The verification kernel's adapter: the run's tables written into a worker's kernel once
+// (verifyPrepare), then one block at a time (verifyAligned or verifyRange), results copied out.
+import type { Kernel } from "../../engine/loader.js";
+import { collector } from "../../engine/loader.js";
+import type { VerifyBlock, VerifyBlockResult, VerifyTables } from "../../engine/messages.js";
+import { writeDropTables } from "../../engine/tables.js";
+
+/** Writes the run's tables into the kernel (once per run and worker; `tables.key` names the run). */
+export function verifyPrepare(kernel: Kernel, t: VerifyTables): void {
+  const L = (name: string) => kernel.layout(name);
+  const S = t.residues.length;
+  const size = 2 ** (t.stepDepth + 1) - 2; // the step tables of depths 1..KS, built by the kernel
+  const tables = kernel.region("tables", L("TABLE_BYTES"));
+  const a = kernel.region("verify.residues", 4 * S);
+  const m = kernel.region("verify.odd", S);
+  const b = kernel.region("verify.image", 8 * S);
+  const peak = kernel.region("verify.peak", 2 * S);
+  const sm = kernel.region("verify.stepOdd", size);
+  const sb = kernel.region("verify.stepImage", 8 * size);
+  const speak = kernel.region("verify.stepPeak", 2 * size);
+  kernel.region("verify.counts", L("VERIFY_COUNTS") * 8);
+  kernel.region("verify.scratch", L("VERIFY_SCRATCH_BYTES"));
+  const slacks = kernel.region("verify.slacks", 8 * t.slacks.length);
+  new BigUint64Array(kernel.memory, slacks, t.slacks.length).set(t.slacks);
+  const mem = () => kernel.memory;
+  writeDropTables(kernel, tables, t.q, Math.max(t.depth, t.stepDepth));
+  new Uint32Array(mem(), a, S).set(t.residues);
+  kernel.call("verifyPrepare", [t.q, t.r, t.depth, t.stepDepth, tables, S, a, m, b, peak, sm, sb, speak]);
+  kernel.tablesFor("tables", `verify ${t.key}`, () => {});
+}
+
+/** Runs one block on tables already prepared. */
+export function verifyBlock(kernel: Kernel, t: VerifyTables, block: VerifyBlock): VerifyBlockResult {
+  const L = (name: string) => kernel.layout(name);
+  const tables = kernel.region("tables", L("TABLE_BYTES"));
+  const counts = kernel.region("verify.counts", L("VERIFY_COUNTS") * 8);
+  const scratch = kernel.region("verify.scratch", L("VERIFY_SCRATCH_BYTES"));
+  const slacks = kernel.region("verify.slacks", 8 * t.slacks.length);
+  const region = (channel: string) => scratch + (L(channel) - L("CHANNEL_GLIDE_RECORDS")) * L("VERIFY_REGION_BYTES");
+  const lists = {
+    glide: collector(kernel, region("CHANNEL_GLIDE_RECORDS")),
+    path: collector(kernel, region("CHANNEL_PATH_RECORDS")),
+    handoffs: collector(kernel, region("CHANNEL_HANDOFFS")),
+    cycles: collector(kernel, region("CHANNEL_CYCLE_MEMBERS")),
+    unresolved: collector(kernel, region("CHANNEL_UNRESOLVED")),
+  };
+  const sinks = new Map<number, { take(count: number): void }>([
+    [L("CHANNEL_GLIDE_RECORDS"), lists.glide],
+    [L("CHANNEL_PATH_RECORDS"), lists.path],
+    [L("CHANNEL_HANDOFFS"), lists.handoffs],
+    [L("CHANNEL_CYCLE_MEMBERS"), lists.cycles],
+    [L("CHANNEL_UNRESOLVED"), lists.unresolved],
+  ]);
+  const sink = (channel: number, count: number) => sinks.get(channel)?.take(count);
+  let visited: number | bigint;
+  if (block.kind === "aligned") {
+    const exc = kernel.region("verify.exceptions", 8 * Math.max(1, block.exceptions.length));
+    new BigUint64Array(kernel.memory, exc, block.exceptions.length).set(block.exceptions);
+    visited = kernel.call(
+      "verifyAligned",
+      [
+        t.q,
+        t.r,
+        t.depth,
+        t.stepDepth,
+        block.maxSteps,
+        block.limitBits,
+        tables,
+        t.residues.length,
+        block.h0,
+        block.periods,
+        exc,
+        block.exceptions.length,
+        t.sievedGlide,
+        t.sievedPeak,
+        t.sievedSlack,
+        t.survivorSlack,
+        slacks,
+        counts,
+        scratch,
+      ],
+      sink,
+    );
+  } else {
+    visited = kernel.call(
+      "verifyRange",
+      [t.q, t.r, t.depth, block.maxSteps, block.limitBits, tables, block.first, block.last, counts, scratch],
+      sink,
+    );
+  }
+  return {
+    index: block.index,
+    visited: BigInt.asUintN(64, BigInt(visited)),
+    counts: new BigUint64Array(kernel.memory, counts, L("VERIFY_COUNTS")).slice(),
+    glideRecords: lists.glide.all(),
+    pathRecords: lists.path.all(),
+    handoffs: lists.handoffs.all(),
+    cycleMembers: lists.cycles.all(),
+    unresolved: lists.unresolved.all(),
+  };
+}

@@ -1,0 +1,233 @@
+// Verification runs against published record lists and a plain BigInt brute force written here.
+import { afterAll, describe, expect, it } from "vitest";
+import { parseMap } from "../src/core/map.js";
+import type { CollatzMap } from "../src/core/map.js";
+import { runVerify, planVerify } from "../src/jobs/verify/verify.js";
+import type { StoredBlock, VerifyResult } from "../src/jobs/verify/verify.js";
+import { LimitError, UsageError } from "../src/core/errors.js";
+import { toExactJson } from "../src/outputs/json.js";
+import { verifyJson } from "../src/outputs/summary.js";
+import { nodePool } from "../src/node/kernel.js";
+
+const pool = await nodePool(2);
+const pool1 = await nodePool(1);
+afterAll(() => {
+  pool.terminate();
+  pool1.terminate();
+});
+
+/** Every n of [from, to) iterated here in BigInt: its glide, path, cycle, or none within `cap` steps. */
+function brute(map: CollatzMap, from: bigint, to: bigint, cap: number) {
+  const q = BigInt(map.q),
+    r = BigInt(map.r);
+  const glideRecords: bigint[] = [];
+  const pathRecords: bigint[] = [];
+  const cycles: bigint[] = [];
+  const unresolved: bigint[] = [];
+  let bestGlide = -1,
+    bestPath = -1n,
+    maxGlideN = -1n,
+    maxPathN = -1n;
+  for (let n = from; n < to; n++) {
+    let v = n,
+      steps = 0,
+      odd = 0,
+      path = n,
+      outcome = "unresolved";
+    while (steps < cap) {
+      if (v % 2n === 0n) v /= 2n;
+      else {
+        v = (q * v + r) / 2n;
+        odd++;
+      }
+      steps++;
+      if (v > path) path = v;
+      if (v < n) {
+        outcome = "descent";
+        break;
+      }
+      if (v === n) {
+        outcome = "cycle";
+        break;
+      }
+    }
+    if (outcome === "unresolved") {
+      unresolved.push(n);
+      continue;
+    }
+    if (outcome === "cycle") {
+      cycles.push(n);
+      path = n;
+    } else if (steps + odd > bestGlide) {
+      bestGlide = steps + odd;
+      glideRecords.push(n);
+      maxGlideN = n;
+    }
+    if (path > bestPath) {
+      bestPath = path;
+      pathRecords.push(n);
+      maxPathN = n;
+    }
+  }
+  return { glideRecords, pathRecords, cycles, unresolved, bestGlide, bestPath, maxGlideN, maxPathN };
+}
+
+function expectAgrees(r: VerifyResult, b: ReturnType<typeof brute>) {
+  expect(r.glideRecords.map((g) => g.n)).toEqual(b.glideRecords);
+  expect(r.pathRecords.map((p) => p.n)).toEqual(b.pathRecords);
+  expect(r.cycleMembers.map((c) => c.n)).toEqual(b.cycles);
+  expect(r.unresolvedList).toEqual(b.unresolved);
+  expect(r.maxGlide?.standardSteps ?? -1).toBe(b.bestGlide);
+  expect(r.maxPath?.value ?? -1n).toBe(b.bestPath);
+  expect(r.maxGlide?.n ?? -1n).toBe(b.maxGlideN);
+  expect(r.maxPath?.n ?? -1n).toBe(b.maxPathN);
+  const c = r.counts;
+  expect(c.checked + c.sieved + c.exceptions + c.cycleMembers + c.unresolved).toBe(r.to - r.from);
+  expect(c.cycleMembers).toBe(BigInt(b.cycles.length));
+  expect(c.unresolved).toBe(BigInt(b.unresolved.length));
+}
+
+const stable = (r: VerifyResult) => toExactJson({ ...verifyJson(r), seconds: 0, blocks: 0 });
+
+describe("verify: published records", () => {
+  it("3x+1 from 1 below 2^28: glide records are OEIS A060412 (both odd and halving steps counted)", async () => {
+    const r = await runVerify(pool, { map: parseMap("3x+1"), from: 1n, to: 1n << 28n, sieveDepth: 20 });
+    // OEIS A060412, the first 20 terms (the issue's list; terms below 2^28)
+    const a060412 = [
+      2, 3, 7, 27, 703, 10087, 35655, 270271, 362343, 381727, 626331, 1027431, 1126015, 8088063, 13421671, 20638335, 26716671, 56924955,
+      63728127, 217740015,
+    ].map(BigInt);
+    expect(r.glideRecords.map((g) => g.n)).toEqual(a060412);
+    expect(r.cycleMembers).toEqual([{ n: 1n, period: 2 }]);
+    expect(r.counts.unresolved).toBe(0n);
+    // the published path records (OEIS A006884, from memory) up to 704511, in the same run
+    const a006884 = [
+      1, 2, 3, 7, 15, 27, 255, 447, 639, 703, 1819, 4255, 4591, 9663, 20895, 26623, 31911, 60975, 77671, 113383, 138367, 159487, 270271,
+      665215, 704511,
+    ].map(BigInt);
+    expect(r.pathRecords.slice(0, a006884.length).map((p) => p.n)).toEqual(a006884);
+    // their maxima, by direct iteration here (T's values: the standard 3n+1 value is twice the largest)
+    for (const p of r.pathRecords.slice(1, a006884.length)) {
+      let v = p.n,
+        max = p.n;
+      do {
+        v = v % 2n === 0n ? v / 2n : (3n * v + 1n) / 2n;
+        if (v > max) max = v;
+      } while (v >= p.n);
+      expect(max).toBe(p.value);
+    }
+    expect(r.pathRecords.find((p) => p.n === 27n)!.value).toBe(9232n / 2n); // 27 rises to 9232 (common practice)
+  });
+
+  it("agrees with a plain BigInt brute force on every n of [1, 2^16), for sieve depths 6, 12 and 16", async () => {
+    const map = parseMap("3x+1");
+    const b = brute(map, 1n, 1n << 16n, 100_000);
+    for (const sieveDepth of [6, 12, 16])
+      expectAgrees(await runVerify(pool, { map, from: 1n, to: 1n << 16n, sieveDepth, stepDepth: 8 }), b);
+  });
+});
+
+describe("verify: far ranges and other maps, against the brute force", () => {
+  const cases: [string, bigint, bigint, number][] = [
+    ["3x+1", 1n << 40n, (1n << 40n) + (1n << 20n), 20],
+    ["3x+1", 1n << 60n, (1n << 60n) + (1n << 16n), 12],
+    ["3x+1", (1n << 64n) - (1n << 16n), 1n << 64n, 16],
+  ];
+  for (const [text, from, to, sieveDepth] of cases) {
+    it(`${text} over [${from}, ${to}): every n's glide and path summarised identically`, async () => {
+      const map = parseMap(text);
+      const r = await runVerify(pool, { map, from, to, sieveDepth, stepDepth: 16 });
+      expect(r.engine).toBe("kernel");
+      expectAgrees(r, brute(map, from, to, 100_000));
+    });
+  }
+  it("3x+5: its cycle members are reported as such (minima 1, 5, 19, 23, 187, 347; Lagarias 1990, from memory)", async () => {
+    const map = parseMap("3x+5");
+    const r = await runVerify(pool, { map, from: 1n, to: 40_000n, sieveDepth: 12, stepDepth: 8 });
+    expectAgrees(r, brute(map, 1n, 40_000n, 100_000));
+    expect(r.cycleMembers.map((c) => c.n)).toEqual([1n, 5n, 19n, 23n, 187n, 347n]);
+  });
+  it("5x+1: the trajectories that pass the step cap are listed exactly as unresolved", async () => {
+    const map = parseMap("5x+1");
+    const r = await runVerify(pool, { map, from: 1n, to: 4000n, sieveDepth: 8, stepDepth: 8, maxSteps: 5000 });
+    const b = brute(map, 1n, 4000n, 5000);
+    expect(b.unresolved.length).toBeGreaterThan(100);
+    expectAgrees(r, b);
+    // 5x+1 cycles: 1 (period 5), 13 and 17 (7) (common practice)
+    expect(r.cycleMembers.map((c) => [c.n, c.period])).toEqual([
+      [1n, 5],
+      [13n, 7],
+      [17n, 7],
+    ]);
+  });
+  it("3x-1 (r < 0) goes through BigInt and agrees too (cycles of 1, 5, 17: common practice)", async () => {
+    const map = parseMap("3x-1");
+    const r = await runVerify(pool, { map, from: 1n, to: 5000n, sieveDepth: 10 });
+    expect(r.engine).toBe("bigint");
+    expectAgrees(r, brute(map, 1n, 5000n, 100_000));
+    expect(r.cycleMembers.map((c) => c.n)).toEqual([1n, 5n, 17n]);
+  });
+});
+
+describe("verify: splits, resumes and the BigInt handoff give the same result", () => {
+  const map = parseMap("3x+1");
+  const from = (1n << 36n) + 12345n,
+    to = from + (1n << 24n);
+  it("1, 7 and 64 blocks, one worker or two: identical", async () => {
+    const ref = await runVerify(pool, { map, from, to, sieveDepth: 14, blocks: 1 });
+    for (const [p, blocks] of [
+      [pool, 7],
+      [pool1, 64],
+      [pool, 64],
+    ] as const) {
+      expect(stable(await runVerify(p, { map, from, to, sieveDepth: 14, blocks }))).toBe(stable(ref));
+    }
+  });
+  it("a run resumed from some of its blocks equals the whole run", async () => {
+    const req = { map, from, to, sieveDepth: 14, blocks: 16 };
+    const whole = await runVerify(pool, req);
+    const done = new Map<number, StoredBlock>();
+    await runVerify(pool, req, { onBlock: (res) => void (res.index % 3 === 0 && done.set(res.index, res)) });
+    let ran = 0;
+    const resumed = await runVerify(pool, req, { done, onBlock: () => void ran++ });
+    expect(ran).toBe(planVerify(req).blocks.length - done.size);
+    expect(stable(resumed)).toBe(stable(whole));
+  });
+  it("values past a lowered limit (2^44) are finished in BigInt with the same result", async () => {
+    const f = 1n << 40n,
+      t = f + (1n << 18n);
+    const ref = await runVerify(pool, { map, from: f, to: t, sieveDepth: 12 });
+    const low = await runVerify(pool, { map, from: f, to: t, sieveDepth: 12, limitBits: 44 });
+    expect(low.handoffs).toBeGreaterThan(100n);
+    expect(ref.handoffs).toBe(0n);
+    expect({ ...verifyJson(low), handoffs: 0n, seconds: 0 }).toEqual({ ...verifyJson(ref), seconds: 0 });
+  });
+  it("consecutive ranges merge in order into the union's records (sweep against the running maximum)", async () => {
+    const mid = from + (1n << 23n) + 99n;
+    const a = await runVerify(pool, { map, from, to: mid, sieveDepth: 14 });
+    const b = await runVerify(pool1, { map, from: mid, to, sieveDepth: 14 });
+    const u = await runVerify(pool, { map, from, to, sieveDepth: 14 });
+    const sweep = <T>(xs: T[], v: (x: T) => bigint) => {
+      let best = -1n;
+      return xs.filter((x) => {
+        if (v(x) <= best) return false;
+        best = v(x);
+        return true;
+      });
+    };
+    expect(sweep([...a.glideRecords, ...b.glideRecords], (g) => BigInt(g.standardSteps))).toEqual(u.glideRecords);
+    expect(sweep([...a.pathRecords, ...b.pathRecords], (p) => p.value)).toEqual(u.pathRecords);
+  });
+});
+
+describe("verify: bad requests", () => {
+  const map = parseMap("3x+1");
+  it("refuses empty or reversed ranges, 0, depths out of range and huge BigInt runs", () => {
+    expect(() => planVerify({ map, from: 10n, to: 10n })).toThrow(UsageError);
+    expect(() => planVerify({ map, from: 0n, to: 10n })).toThrow(/at least 1/);
+    expect(() => planVerify({ map, from: 1n, to: 10n, sieveDepth: 31 })).toThrow(LimitError);
+    expect(() => planVerify({ map, from: 1n, to: 10n, stepDepth: 21 })).toThrow(LimitError);
+    expect(() => planVerify({ map: parseMap("3x-1"), from: 1n, to: 1n << 30n })).toThrow(/verified in BigInt/);
+    expect(() => planVerify({ map, from: 1n << 64n, to: (1n << 64n) + (1n << 30n) })).toThrow(/at or above 2\^64/);
+  });
+});
