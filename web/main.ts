@@ -5,6 +5,7 @@ import { cancelRun, readRunForm, startRun } from "./views/run.js";
 import { refreshTable, setupTable } from "./views/table.js";
 import { runInspect } from "./views/inspect.js";
 import { cancelCycles, runCycles } from "./views/cycles.js";
+import { applyPreset, cancelVerify, downloadCertificate, startVerify } from "./views/verify.js";
 import { resizeCharts } from "./views/charts.js";
 import { defaultWorkers } from "./engine.js";
 import { $ } from "./dom.js";
@@ -85,6 +86,13 @@ function setup(): void {
     void runCycles(mapText, period, workers()).then((ok) => ok && update({ cyclesMap: mapText.trim(), period: Number(period) }));
   });
   $("cycles-cancel").addEventListener("click", cancelCycles);
+  $("verify-form").addEventListener("submit", (e) => {
+    e.preventDefault();
+    void startVerify(workers());
+  });
+  $("verify-cancel").addEventListener("click", cancelVerify);
+  $("verify-certificate").addEventListener("click", downloadCertificate);
+  $("verify-preset").addEventListener("change", () => applyPreset(($("verify-preset") as HTMLSelectElement).value));
   addEventListener("resize", () => {
     resizeCharts();
     refreshTable();

@@ -1,5 +1,5 @@
 // The page state in the URL, so that a link reproduces a run: map, depth, mode, view, inspected value.
-export type View = "run" | "table" | "inspect" | "cycles";
+export type View = "run" | "table" | "inspect" | "cycles" | "verify";
 
 export interface PageState {
   view: View;
@@ -13,7 +13,7 @@ export interface PageState {
   run: boolean;
 }
 
-const VIEWS: readonly View[] = ["run", "table", "inspect", "cycles"];
+const VIEWS: readonly View[] = ["run", "table", "inspect", "cycles", "verify"];
 
 function int(v: string | null, fallback: number): number {
   return v !== null && /^\d+$/.test(v) ? Number(v) : fallback;

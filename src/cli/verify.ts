@@ -11,6 +11,7 @@ import {
   DEFAULT_MAX_STEPS,
   MAX_VERIFY_SIEVE_DEPTH,
   MAX_VERIFY_STEP_DEPTH,
+  parseBound,
   planVerify,
   runVerify,
   verifyTables,
@@ -57,22 +58,6 @@ export function verifyCommand(program: Command): Command {
     .option("--check <FILE>", "re-derive what a certificate says (table hashes, counts, records, a sample) and say whether it holds")
     .option("--sample <N>", "with --check: random n of the range to iterate again (default 1000)")
     .action((o: VerifyOptions) => (o.check !== undefined ? check(o) : verify(o)));
-}
-
-/**
- * A number of any size: decimal digits, or a sum of terms each decimal or b^e (2^50+2^32).
- * @example parseBound("from", "2^40+5") // 1099511627781n
- */
-export function parseBound(name: string, text: string | undefined): bigint {
-  if (text === undefined) throw new UsageError(`--${name} is required`);
-  const t = text.replace(/\s+/g, "");
-  if (!/^(\d+(\^\d+)?)(\+\d+(\^\d+)?)*$/.test(t))
-    throw new UsageError(`--${name} must be a whole number (digits, or powers such as 2^50+2^32), got "${text}"`);
-  return t.split("+").reduce((s, term) => {
-    const [b, e] = term.split("^");
-    if (e !== undefined && Number(e) > 100_000) throw new UsageError(`--${name}: exponent ${e} is too large`);
-    return s + (e === undefined ? BigInt(b!) : BigInt(b!) ** BigInt(e));
-  }, 0n);
 }
 
 function request(o: VerifyOptions, map: CollatzMap): VerifyRequest {

@@ -107,6 +107,43 @@ describe.skipIf(!hasChromium)("web app", () => {
     await page.close();
   });
 
+  it("verifies 1 to 2^20 in the Verify view: OEIS A060412's glide records, and a certificate to download", async () => {
+    const page = await open("?view=verify");
+    await page.fill("#verify-from", "1");
+    await page.fill("#verify-to", "2^20");
+    await page.fill("#verify-depth", "12");
+    await page.click("#verify-go");
+    const s = parseExactJson(await summaryOf(page)) as { verify: { glideRecords: { n: bigint }[]; counts: { numbers: bigint } } };
+    // OEIS A060412 below 2^20
+    expect(s.verify.glideRecords.map((g) => g.n)).toEqual([
+      2n,
+      3n,
+      7n,
+      27n,
+      703n,
+      10087n,
+      35655n,
+      270271n,
+      362343n,
+      381727n,
+      626331n,
+      1027431n,
+    ]);
+    expect(s.verify.counts.numbers).toBe((1n << 20n) - 1n);
+    const [download] = await Promise.all([page.waitForEvent("download"), page.click("#verify-certificate")]);
+    const cert = parseExactJson(readFileSync((await download.path())!, "utf8")) as {
+      kind: string;
+      from: bigint;
+      tables: { sieve: { rows: bigint } };
+    };
+    expect(cert.kind).toBe("glidepath verification certificate");
+    expect(cert.tables.sieve.rows).toBe(A076227[12]);
+    await page.fill("#verify-to", "0");
+    await page.click("#verify-go");
+    expect(await page.textContent("#verify-to-error")).toMatch(/must be above/);
+    await page.close();
+  });
+
   it("exports the class table as CSV: each row's (m, b) is the class's affine form (BigInt check)", async () => {
     const page = await open("?depth=12&run=1");
     await summaryOf(page);

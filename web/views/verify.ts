@@ -1,0 +1,156 @@
+// The Verify view: a range of n checked in the page's workers, with its counts, maxima, record
+// lists and a certificate to download (the same library and certificate format as the CLI).
+import { parseMap } from "../../src/core/map.js";
+import type { CollatzMap } from "../../src/core/map.js";
+import { certificate } from "../../src/jobs/verify/certificate.js";
+import type { TableHashes } from "../../src/jobs/verify/certificate.js";
+import { MAX_VERIFY_SIEVE_DEPTH, parseBound, planVerify, runVerify, verifyTables } from "../../src/jobs/verify/verify.js";
+import type { VerifyRequest, VerifyResult, VerifyTableData } from "../../src/jobs/verify/verify.js";
+import { group } from "../../src/outputs/format.js";
+import { toExactJson } from "../../src/outputs/json.js";
+import { verifyJson } from "../../src/outputs/summary.js";
+import pkg from "../../package.json";
+import { RunController } from "../controller.js";
+import { $, fieldError } from "../dom.js";
+import { kernelBuildId, pagePoolPending, withPagePool } from "../engine.js";
+
+const controller = new RunController({
+  start: "verify-go",
+  cancel: "verify-cancel",
+  progress: "verify-progress",
+  status: "verify-status",
+  message: "verify-message",
+});
+let lastCertificate: string | null = null;
+
+/** Reads and checks the form; errors appear beside the fields and nothing runs. */
+export function readVerifyForm(): VerifyRequest | null {
+  let map: CollatzMap | null = null;
+  try {
+    map = parseMap(($("verify-map") as HTMLInputElement).value.trim());
+    fieldError("verify-map", "");
+  } catch (e) {
+    fieldError("verify-map", (e as Error).message);
+  }
+  const bound = (id: string, name: string): bigint | null => {
+    try {
+      const v = parseBound(name, ($(id) as HTMLInputElement).value);
+      fieldError(id, "");
+      return v;
+    } catch (e) {
+      fieldError(id, (e as Error).message.replace(/^--\w+ /, `${name} `));
+      return null;
+    }
+  };
+  const from = bound("verify-from", "from");
+  const to = bound("verify-to", "to");
+  const text = ($("verify-depth") as HTMLInputElement).value.trim();
+  const depth = Number(text);
+  const depthOk = /^\d+$/.test(text) && depth >= 1 && depth <= MAX_VERIFY_SIEVE_DEPTH;
+  fieldError("verify-depth", depthOk ? "" : `a whole number from 1 to ${MAX_VERIFY_SIEVE_DEPTH}`);
+  if (!map || from === null || to === null || !depthOk) return null;
+  const req: VerifyRequest = { map, from, to, sieveDepth: depth };
+  try {
+    planVerify(req);
+  } catch (e) {
+    fieldError("verify-to", (e as Error).message);
+    return null;
+  }
+  return req;
+}
+
+async function sha256(bytes: Uint8Array): Promise<string> {
+  const d = await crypto.subtle.digest("SHA-256", bytes as Uint8Array<ArrayBuffer>);
+  return Array.from(new Uint8Array(d), (x) => x.toString(16).padStart(2, "0")).join("");
+}
+
+function rows(head: string[], body: string[][]): string {
+  return `<thead><tr>${head.map((h) => `<th>${h}</th>`).join("")}</tr></thead><tbody>${body.map((r) => `<tr>${r.map((c) => `<td>${c}</td>`).join("")}</tr>`).join("")}</tbody>`;
+}
+
+function render(r: VerifyResult): void {
+  const c = r.counts;
+  const rate = Number(c.numbers) / Math.max(r.seconds, 1e-9);
+  controller.say(
+    `Every n in [${r.from}, ${r.to}) of ${r.map.name} reaches a value below n` +
+      `${c.cycleMembers + c.unresolved > 0n ? ", except the cycle members and unresolved numbers counted below" : ""}. ` +
+      `${group(c.numbers)} numbers in ${r.seconds.toFixed(2)} s (${group(BigInt(Math.round(rate)))} a second).`,
+  );
+  const counts: [string, string][] = [
+    ["numbers in the range", group(c.numbers)],
+    ["sieved (descend at their class's depth)", group(c.sieved)],
+    ["checked (survivors iterated)", group(c.checked)],
+    ["exceptions of the sieve", group(c.exceptions)],
+    ["cycle members", group(c.cycleMembers)],
+    [`unresolved after ${group(r.maxSteps)} steps`, group(c.unresolved)],
+    ["largest glide (standard steps)", r.maxGlide ? `${r.maxGlide.standardSteps} at n = ${r.maxGlide.n}` : "–"],
+    ["largest path", r.maxPath ? `${r.maxPath.value} at n = ${r.maxPath.n}` : "–"],
+  ];
+  $("verify-counts").innerHTML =
+    `<tbody>${counts.map(([k, v]) => `<tr><th scope="row" class="left">${k}</th><td>${v}</td></tr>`).join("")}</tbody>`;
+  $("verify-glide").innerHTML = rows(
+    ["glide record n", "standard steps", "steps of T"],
+    r.glideRecords.map((g) => [String(g.n), String(g.standardSteps), String(g.steps)]),
+  );
+  $("verify-path").innerHTML = rows(
+    ["path record n", "largest value"],
+    r.pathRecords.map((p) => [String(p.n), String(p.value)]),
+  );
+  $("run-summary").textContent = toExactJson({ verify: verifyJson(r) });
+}
+
+/** Runs the form's verification; returns false (errors beside the fields) when the form is invalid. */
+export async function startVerify(workers: number): Promise<boolean> {
+  const req = readVerifyForm();
+  if (!req) return false;
+  ($("verify-certificate") as HTMLButtonElement).disabled = true;
+  $("run-summary").textContent = "";
+  const started = new Date().toISOString();
+  const waiting = pagePoolPending() > 0 ? "Waiting for the job already running..." : "Building the sieve and step tables...";
+  let hashes: TableHashes | null = null;
+  const out = await controller.run(
+    (options) =>
+      withPagePool(workers, async (pool) => {
+        const plan = planVerify(req);
+        let tables: VerifyTableData | undefined;
+        if (plan.engine === "kernel") {
+          tables = await verifyTables(pool, plan, options);
+          hashes = {
+            sieve: { rows: tables.tables.residues.length, sha256: await sha256(tables.sieveBytes) },
+            steps: { rows: 2 ** tables.tables.stepDepth, sha256: await sha256(tables.stepBytes) },
+          };
+        }
+        return runVerify(pool, req, { ...options, tables });
+      }),
+    waiting,
+  );
+  if (!out.ok) return true;
+  render(out.value);
+  const stamp = { version: pkg.version, kernelBuild: await kernelBuildId() };
+  lastCertificate = `${toExactJson(certificate(out.value, hashes, stamp, { started, finished: new Date().toISOString(), workers }), 2)}\n`;
+  ($("verify-certificate") as HTMLButtonElement).disabled = false;
+  return true;
+}
+
+export function cancelVerify(): void {
+  controller.cancel();
+}
+
+/** Hands the last run's certificate over as a download. */
+export function downloadCertificate(): void {
+  if (!lastCertificate) return;
+  const url = URL.createObjectURL(new Blob([lastCertificate], { type: "application/json" }));
+  const a = document.createElement("a");
+  a.href = url;
+  a.download = "verification-certificate.json";
+  a.click();
+  setTimeout(() => URL.revokeObjectURL(url), 10_000);
+}
+
+/** Fills From and To from the preset list. */
+export function applyPreset(value: string): void {
+  if (!value) return;
+  const [from, to] = value.split("|");
+  ($("verify-from") as HTMLInputElement).value = from!;
+  ($("verify-to") as HTMLInputElement).value = to!;
+}
