@@ -5,4 +5,4 @@ export { reserve } from "./buffers";
 export { enumerate, MODE_SURVIVORS, MODE_FULL } from "./enumerate";
 export { cycleSearch } from "./cycles";
 export { census } from "./census";
-export { verifyPrepare, verifyAligned, verifyRange } from "./verify";
+export { verifyPrepare, verifyAligned, verifyRange, verifyDelays } from "./verify";

@@ -529,3 +529,66 @@ export function verifyRange(
   end();
   return last - first + 1;
 }
+
+/**
+ * Delays (total stopping times) of first..last: the steps each n takes to reach 1, with the step
+ * tables where a table step cannot pass over 1 (v >= 2^(d+1)), single steps below. Records go to
+ * CHANNEL_GLIDE_RECORDS as (n, steps of T, standard steps); n that do not reach 1 within the step
+ * cap to CHANNEL_UNRESOLVED; values past 2^limitBits to CHANNEL_HANDOFFS. Needs verifyPrepare.
+ */
+export function verifyDelays(
+  q: u32, r: u32, stepDepth: i32, steps: i32, limit: i32, tables: usize, first: u64, last: u64, counts: usize, scratch: usize,
+): u64 {
+  assert(r > 0 && stepDepth >= 1 && stepDepth <= 24 && first >= 1 && first <= last && limit >= 1 && limit <= 128);
+  begin(q, r, 1, stepDepth, steps, limit, tables, counts, scratch);
+  for (let n = first; ; n++) {
+    let vl = n, vh: u64 = 0, t = 0, odd = 0, done = DONE_DESCENT;
+    while (vh != 0 || vl != 1) {
+      if (t >= maxSteps) {
+        done = DONE_UNRESOLVED;
+        break;
+      }
+      const bits = vh != 0 ? 128 - <i32>clz(vh) : 64 - <i32>clz(vl);
+      let d = bits - 2;
+      if (d > KS) d = KS;
+      if (d >= 2) {
+        const c = <usize>(vl & (((<u64>1) << <u64>d) - 1)) + (((<usize>1) << <usize>d) - 2);
+        const sm = <i32>load<u8>(stepM + c);
+        mulAdd((vl >> <u64>d) | (vh << <u64>(64 - d)), vh >> <u64>d, load<u64>(qpowPtr + (<usize>sm << 3)), load<u64>(stepB + (c << 3)));
+        t += d;
+        odd += sm;
+      } else if ((vl & 1) == 0) {
+        rl = (vl >> 1) | (vh << 63);
+        rh = vh >> 1;
+        carry = false;
+        t++;
+      } else {
+        mulAdd((vl >> 1) | (vh << 63), vh >> 1, Q, HQ);
+        t++;
+        odd++;
+      }
+      if (carry || tooLarge(rl, rh)) {
+        done = DONE_HANDOFF;
+        break;
+      }
+      vl = rl;
+      vh = rh;
+    }
+    if (done == DONE_DESCENT) {
+      bump(VERIFY_COUNT_CHECKED);
+      if (t + odd > bestGlide) {
+        bestGlide = t + odd;
+        push(CHANNEL_GLIDE_RECORDS, n, <u64>t, <u64>(t + odd));
+      }
+    } else if (done == DONE_UNRESOLVED) {
+      bump(VERIFY_COUNT_UNRESOLVED);
+      push(CHANNEL_UNRESOLVED, n, 0, 0);
+    } else {
+      bump(VERIFY_COUNT_HANDOFFS);
+      push(CHANNEL_HANDOFFS, n, 0, 0);
+    }
+    if (n == last) break;
+  }
+  end();
+  return last - first + 1;
+}

@@ -14,6 +14,8 @@ import { webBench } from "./web.js";
 import { runCensus } from "../src/jobs/census/census.js";
 import { searchCycles } from "../src/jobs/cycles/cycles.js";
 import { inspect } from "../src/jobs/inspect.js";
+import { runVerify } from "../src/jobs/verify/verify.js";
+import type { VerifyRequest } from "../src/jobs/verify/verify.js";
 
 const map = parseMap("3x+1");
 const cores = availableParallelism();
@@ -80,6 +82,32 @@ await structureRun("cycles 5x+1 to period 30 (128-bit)", cores, (pool) => search
   rows.push(["inspector: class of a 10,000-letter word", "1", "-", (tWord / 1000).toFixed(3), "-"]);
 }
 
+// Verification: numbers per second over [2^50, 2^50 + 2^32), with the step tables and (baseline) with
+// single steps only after the survivors' start at step K (step depth 1: no table steps).
+async function verifyRun(what: string, workers: number, req: Omit<VerifyRequest, "map">): Promise<number> {
+  const pool = await nodePool(workers);
+  try {
+    await runVerify(pool, { map, ...req, to: req.from + (1n << 24n) }); // warm the workers and the JIT
+    const t0 = performance.now();
+    const r = await runVerify(pool, { map, ...req });
+    const sec = (performance.now() - t0) / 1000;
+    const numbers = Number(req.to - req.from);
+    rows.push([what, String(workers), `${numbers.toLocaleString("en-US")} n`, sec.toFixed(3), `${(numbers / sec / 1e6).toFixed(0)} M n/s`]);
+    if (r.counts.numbers !== req.to - req.from) throw new Error("verify bench: counts do not add up");
+    return numbers / sec;
+  } finally {
+    pool.terminate();
+  }
+}
+const v50 = { from: 1n << 50n, to: (1n << 50n) + (1n << 32n), sieveDepth: 26, stepDepth: 16 };
+const verifyRates: number[] = [];
+for (const w of cores > 1 ? [1, cores] : [1])
+  verifyRates.push(await verifyRun("verify [2^50, 2^50 + 2^32), K 26, step tables to 16", w, v50));
+await verifyRun("verify baseline: same survivors, single steps", cores, { ...v50, stepDepth: 1 });
+const v40 = { from: 1n << 40n, to: (1n << 40n) + (1n << 24n), sieveDepth: 20, stepDepth: 16 };
+await verifyRun("verify [2^40, 2^40 + 2^24)", cores, v40);
+await verifyRun("verify [2^40, 2^40 + 2^24) with --delay", cores, { ...v40, delay: true });
+
 const plainDepth = 30;
 enumeratePlain(3, 1, 20);
 let t = performance.now();
@@ -97,6 +125,7 @@ const widths = rows[0]!.map((_, i) => Math.max(...rows.map((r) => r[i]!.length))
 for (const r of rows) console.log(r.map((c, i) => (i === 0 ? c.padEnd(widths[i]!) : c.padStart(widths[i]!))).join("  "));
 const best = Math.max(...perWorker);
 console.log(`kernel / plain TypeScript (survivors, 1 worker): ${(best / plainRate).toFixed(1)}x`);
+if (verifyRates.length > 1) console.log(`verify: ${cores} workers / 1 worker: ${(verifyRates[1]! / verifyRates[0]!).toFixed(2)}x`);
 
 // Peak memory of a depth-34 raw export (the child reports its own max RSS, worker threads included).
 const dir = mkdtempSync(join(tmpdir(), "glidepath-bench-"));

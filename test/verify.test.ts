@@ -127,6 +127,45 @@ describe("verify: published records", () => {
   });
 });
 
+describe("verify: delays", () => {
+  it("3x+1 delay records from 1 are OEIS A006877 (steps to reach 1, standard steps), also through BigInt handoffs", async () => {
+    // OEIS A006877: the first 30 terms (the list)
+    const a006877 = [
+      1, 2, 3, 6, 7, 9, 18, 25, 27, 54, 73, 97, 129, 171, 231, 313, 327, 649, 703, 871, 1161, 2223, 2463, 2919, 3711, 6171, 10971, 13255,
+      17647, 23529,
+    ].map(BigInt);
+    const map = parseMap("3x+1");
+    const r = await runVerify(pool, { map, from: 1n, to: 1n << 15n, sieveDepth: 10, delay: true });
+    expect(r.delay!.records.map((d) => d.n).slice(0, a006877.length)).toEqual(a006877);
+    expect(r.delay!.unreached).toBe(0n);
+    // every delay of the range by plain iteration here: the same records and maximum
+    let best = -1;
+    const brute: bigint[] = [];
+    for (let n = 1n; n < 1n << 15n; n++) {
+      let v = n,
+        std = 0;
+      while (v !== 1n) {
+        if (v % 2n === 0n) {
+          v /= 2n;
+          std++;
+        } else {
+          v = (3n * v + 1n) / 2n;
+          std += 2;
+        }
+      }
+      if (std > best) {
+        best = std;
+        brute.push(n);
+      }
+    }
+    expect(r.delay!.records.map((d) => d.n)).toEqual(brute);
+    expect(r.delay!.max!.standardSteps).toBe(best);
+    const low = await runVerify(pool, { map, from: 1n, to: 1n << 15n, sieveDepth: 10, delay: true, limitBits: 20 });
+    expect(low.handoffs).toBeGreaterThan(0n);
+    expect(low.delay).toEqual(r.delay);
+  });
+});
+
 describe("verify: far ranges and other maps, against the brute force", () => {
   const cases: [string, bigint, bigint, number][] = [
     ["3x+1", 1n << 40n, (1n << 40n) + (1n << 20n), 20],

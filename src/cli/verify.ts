@@ -36,6 +36,7 @@ interface VerifyOptions extends RawOptions {
   readonly resume?: string;
   readonly check?: string;
   readonly sample?: string;
+  readonly delay?: boolean;
 }
 
 /** Records shown in the text report (all of them are in --json and the certificate). */
@@ -51,6 +52,7 @@ export function verifyCommand(program: Command): Command {
     .option("--to <TO>", "the end of the range, not included")
     .option("--sieve-depth <K>", `sieve depth: 1 to ${MAX_VERIFY_SIEVE_DEPTH} (default 26)`)
     .option("--step-depth <k>", `table step depth: 1 to ${MAX_VERIFY_STEP_DEPTH} (default 16)`)
+    .option("--delay", "also the delay of every n (steps to reach 1) and its records: each n iterated to the end, slower")
     .option("--max-steps <S>", `steps after which a trajectory is reported unresolved (default ${DEFAULT_MAX_STEPS})`)
     .option("--out <FILE>", "write the certificate (JSON)")
     .option("--checkpoint <FILE>", "keep the run's state in FILE after every block (resume with --resume FILE)")
@@ -68,6 +70,7 @@ function request(o: VerifyOptions, map: CollatzMap): VerifyRequest {
     sieveDepth: intOption("sieve-depth", o.sieveDepth, 1, MAX_VERIFY_SIEVE_DEPTH, 26),
     stepDepth: intOption("step-depth", o.stepDepth, 1, MAX_VERIFY_STEP_DEPTH, 16),
     maxSteps: intOption("max-steps", o.maxSteps, 1, 100_000_000, DEFAULT_MAX_STEPS),
+    delay: o.delay === true,
   };
 }
 
@@ -91,6 +94,7 @@ async function verify(o: VerifyOptions): Promise<void> {
       o.sieveDepth !== undefined ||
       o.stepDepth !== undefined ||
       o.maxSteps !== undefined ||
+      o.delay === true ||
       o.map !== "3x+1"
     )
       throw new UsageError("--resume takes the run's options from the checkpoint: give no --map, --from, --to or depths");
@@ -165,6 +169,16 @@ function verifyText(r: VerifyResult, workers: number): string {
     `path records: ${r.pathRecords.length}`,
     ...r.pathRecords.slice(0, TEXT_RECORDS).map((p) => `  ${String(p.n).padStart(22)}  ${p.value}`),
     ...(r.pathRecords.length > TEXT_RECORDS ? [`  ... and ${r.pathRecords.length - TEXT_RECORDS} more (--json lists them all)`] : []),
+    ...(r.delay
+      ? [
+          `delay records (n whose steps to reach 1 beat every smaller n of the range; standard steps): ${r.delay.records.length}` +
+            `${r.delay.unreached > 0n ? `; ${group(r.delay.unreached)} n do not reach 1 within ${group(r.maxSteps)} steps` : ""}`,
+          ...r.delay.records.slice(0, TEXT_RECORDS).map((g) => `  ${String(g.n).padStart(22)}  ${g.standardSteps}`),
+          ...(r.delay.records.length > TEXT_RECORDS
+            ? [`  ... and ${r.delay.records.length - TEXT_RECORDS} more (--json lists them all)`]
+            : []),
+        ]
+      : []),
     ...(r.cycleMembers.length ? [`cycle members: ${r.cycleMembers.map((m) => `${m.n} (period ${m.period})`).join(", ")}`] : []),
     ...(r.unresolvedList.length
       ? [

@@ -150,11 +150,14 @@ export interface VerifyTables {
   readonly slacks: BigUint64Array;
 }
 
-/** One block of a verification run: whole periods of the sieve (aligned) or any first..last (range). */
+/**
+ * One block of a verification run: whole periods of the sieve (aligned), any first..last (range), or
+ * the delays (steps to reach 1) of first..last (delay).
+ */
 export interface VerifyBlock {
   readonly key: string;
   readonly index: number;
-  readonly kind: "aligned" | "range";
+  readonly kind: "aligned" | "range" | "delay";
   /** The numbers first..last (inclusive). */
   readonly first: bigint;
   readonly last: bigint;

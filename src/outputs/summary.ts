@@ -145,6 +145,7 @@ export function verifyJson(r: VerifyResult) {
     pathRecords: r.pathRecords,
     cycleMembers: r.cycleMembers,
     unresolved: r.unresolvedList,
+    delay: r.delay,
     handoffs: r.handoffs,
     blocks: r.blocks,
     seconds: Number(r.seconds.toFixed(3)),

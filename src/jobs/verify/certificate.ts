@@ -59,6 +59,12 @@ export function certificate(
     },
     cycleMembers: r.cycleMembers,
     unresolved: r.unresolvedList,
+    delay: r.delay && {
+      records: r.delay.records.map((g) => ({ n: g.n, standardSteps: g.standardSteps, steps: g.steps })),
+      max: r.delay.max,
+      unreached: r.delay.unreached,
+      unreachedList: r.delay.unreachedList,
+    },
     handoffs: r.handoffs,
     blocks: r.blocks,
     tool: { name: "glidepath", ...tool },
@@ -88,6 +94,7 @@ export function checkpoint(
       sieveDepth: req.sieveDepth,
       stepDepth: req.stepDepth,
       maxSteps: req.maxSteps,
+      delay: req.delay === true,
     },
     blocks,
     done: [...done.values()]
@@ -114,7 +121,15 @@ export function readCheckpoint(text: string): { request: VerifyRequest; key: str
     throw new UsageError("the checkpoint is not JSON");
   }
   if (j.kind !== CHECKPOINT_KIND) throw new UsageError(`not a glidepath verification checkpoint (kind: ${String(j.kind)})`);
-  const req = j.request as { map: string; from: bigint; to: bigint; sieveDepth: bigint; stepDepth: bigint; maxSteps: bigint };
+  const req = j.request as {
+    map: string;
+    from: bigint;
+    to: bigint;
+    sieveDepth: bigint;
+    stepDepth: bigint;
+    maxSteps: bigint;
+    delay?: boolean;
+  };
   const u64 = (xs: unknown) => BigUint64Array.from(xs as bigint[]);
   const done = new Map<number, VerifyBlockResult>();
   for (const b of j.done as Record<string, unknown>[]) {
@@ -138,6 +153,7 @@ export function readCheckpoint(text: string): { request: VerifyRequest; key: str
       sieveDepth: Number(req.sieveDepth),
       stepDepth: Number(req.stepDepth),
       maxSteps: Number(req.maxSteps),
+      delay: req.delay === true,
     },
     key: String(j.key),
     blocks: Number(j.blocks),

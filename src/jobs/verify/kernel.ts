@@ -81,6 +81,12 @@ export function verifyBlock(kernel: Kernel, t: VerifyTables, block: VerifyBlock)
       ],
       sink,
     );
+  } else if (block.kind === "delay") {
+    visited = kernel.call(
+      "verifyDelays",
+      [t.q, t.r, t.stepDepth, block.maxSteps, block.limitBits, tables, block.first, block.last, counts, scratch],
+      sink,
+    );
   } else {
     visited = kernel.call(
       "verifyRange",

@@ -43,6 +43,17 @@ export interface VerifyRequest {
   readonly blocks?: number;
   /** Values at or above 2^limitBits are finished in BigInt (128; lower it only to test that path). */
   readonly limitBits?: number;
+  /** Also the delay of every n (its total stopping time: the steps to reach 1) and its records. */
+  readonly delay?: boolean;
+}
+
+/** Delays of a run: the records (steps to reach 1, in standard steps and steps of T) and the n that do not reach 1. */
+export interface DelayResult {
+  readonly records: GlideRecord[];
+  readonly max: GlideRecord | null;
+  /** n that did not reach 1 within maxSteps (on another cycle, or unresolved): their count and the smallest. */
+  readonly unreached: bigint;
+  readonly unreachedList: bigint[];
 }
 
 /**
@@ -144,6 +155,8 @@ export interface VerifyResult {
   readonly cycleMembers: { readonly n: bigint; readonly period: number }[];
   /** n that neither descended nor returned within maxSteps (exact). */
   readonly unresolvedList: bigint[];
+  /** With `delay`: the delays' records. */
+  readonly delay: DelayResult | null;
   /** Numbers the kernel handed to BigInt (values past 2^limitBits). */
   readonly handoffs: bigint;
   readonly blocks: number;
@@ -160,6 +173,7 @@ export interface VerifyPlan {
   readonly maxSteps: number;
   readonly limitBits: number;
   readonly engine: "kernel" | "bigint";
+  readonly delay: boolean;
   /** Names the parameters: checkpoints of another plan are refused. */
   readonly key: string;
   readonly blocks: readonly Omit<VerifyBlock, "exceptions">[];
@@ -190,7 +204,8 @@ export function planVerify(req: VerifyRequest): VerifyPlan {
     const why = map.r < 0 ? `maps with r < 0 (${map.name})` : "numbers at or above 2^64";
     throw new LimitError(`${why} are verified in BigInt, one by one: at most ${MAX_BIGINT_NUMBERS} numbers a run, got ${to - from}`);
   }
-  const key = `${map.name}|${from}|${to}|${sieveDepth}|${stepDepth}|${maxSteps}|${limitBits}`;
+  const delay = req.delay === true;
+  const key = `${map.name}|${from}|${to}|${sieveDepth}|${stepDepth}|${maxSteps}|${limitBits}${delay ? "|delay" : ""}`;
   const base = { key, maxSteps, limitBits, h0: 0n, periods: 0n } as const;
   const blocks: Omit<VerifyBlock, "exceptions">[] = [];
   const ranged = (first: bigint, last: bigint) => {
@@ -198,6 +213,11 @@ export function planVerify(req: VerifyRequest): VerifyPlan {
       const e = s + RANGE_BLOCK - 1n < last ? s + RANGE_BLOCK - 1n : last;
       blocks.push({ ...base, index: blocks.length, kind: "range", first: s, last: e });
     }
+  };
+  const delays = (size: bigint) => {
+    if (!delay) return;
+    for (let s = from; s < to; s += size)
+      blocks.push({ ...base, index: blocks.length, kind: "delay", first: s, last: s + size <= to ? s + size - 1n : to - 1n });
   };
   if (engine === "bigint") {
     for (let s = from; s < to; s += BIGINT_BLOCK)
@@ -208,7 +228,8 @@ export function planVerify(req: VerifyRequest): VerifyPlan {
         first: s,
         last: s + BIGINT_BLOCK <= to ? s + BIGINT_BLOCK - 1n : to - 1n,
       });
-    return { map, from, to, sieveDepth, stepDepth, maxSteps, limitBits, engine, key, blocks };
+    delays(BIGINT_BLOCK);
+    return { map, from, to, sieveDepth, stepDepth, maxSteps, limitBits, engine, delay, key, blocks };
   }
   const period = 1n << BigInt(sieveDepth);
   // aligned periods: [hA 2^K, hB 2^K), below 2^64 - 2^K so that no period's end wraps
@@ -237,7 +258,8 @@ export function planVerify(req: VerifyRequest): VerifyPlan {
     }
     if (hB * period < to) ranged(hB * period, to - 1n);
   }
-  return { map, from, to, sieveDepth, stepDepth, maxSteps, limitBits, engine, key, blocks };
+  delays(RANGE_BLOCK);
+  return { map, from, to, sieveDepth, stepDepth, maxSteps, limitBits, engine, delay, key, blocks };
 }
 
 /** ceil(r (q/2)^L), at most 2^64 - 1. */
@@ -336,8 +358,58 @@ function exceptionsIn(data: VerifyTableData, first: bigint, last: bigint) {
   return out;
 }
 
+/** n's delay in BigInt: steps of T to reach 1 and the odd steps among them, or null past maxSteps. */
+export function delayBig(map: CollatzMap, n: bigint, maxSteps: number): { steps: number; odd: number } | null {
+  const q = BigInt(map.q);
+  const r = BigInt(map.r);
+  let v = n;
+  let odd = 0;
+  for (let steps = 0; steps <= maxSteps; steps++) {
+    if (v === 1n) return { steps, odd };
+    if ((v & 1n) === 1n) {
+      v = (q * v + r) >> 1n;
+      odd++;
+    } else v >>= 1n;
+  }
+  return null;
+}
+
+/** A delay block in BigInt (the BigInt engine). */
+function bigintDelayBlock(plan: VerifyPlan, block: Omit<VerifyBlock, "exceptions">): VerifyBlockResult {
+  const counts = new BigUint64Array(8 + 64);
+  const records: bigint[] = [];
+  const unreached: bigint[] = [];
+  let best = -1;
+  for (let n = block.first; n <= block.last; n++) {
+    const d = delayBig(plan.map, n, plan.maxSteps);
+    if (d === null) {
+      counts[3]!++;
+      unreached.push(n, 0n, 0n, 0n);
+    } else {
+      counts[0]!++;
+      if (d.steps + d.odd > best) {
+        best = d.steps + d.odd;
+        records.push(n, BigInt(d.steps), BigInt(d.steps + d.odd), 0n);
+      }
+    }
+  }
+  const u64 = (xs: bigint[]) => BigUint64Array.from(xs, (x) => BigInt.asUintN(64, x));
+  const empty = new BigUint64Array(0);
+  return {
+    index: block.index,
+    visited: block.last - block.first + 1n,
+    counts,
+    glideRecords: u64(records),
+    pathRecords: empty,
+    handoffs: empty,
+    cycleMembers: empty,
+    unresolved: u64(unreached),
+  };
+}
+
 /** A block done on the host in BigInt (the BigInt engine), in the form the kernel gives its results. */
 function bigintBlock(plan: VerifyPlan, block: Omit<VerifyBlock, "exceptions">): VerifyBlockResult {
+  if (block.kind === "delay") return bigintDelayBlock(plan, block);
   const counts = new BigUint64Array(8 + 64);
   const glides: bigint[] = [];
   const paths: bigint[] = [];
@@ -472,9 +544,38 @@ export function mergeVerify(
   const pathRecords: PathRecord[] = [];
   let bestGlide = -1;
   let bestPath = -1n;
+  const delayRecords: GlideRecord[] = [];
+  const unreachedList: bigint[] = [];
+  let unreached = 0n;
+  let bestDelay = -1;
   for (const block of plan.blocks) {
     const res = results.get(block.index);
     if (!res) throw new Error(`internal error: block ${block.index} has no result`);
+    if (block.kind === "delay") {
+      // delays: the kernel's records, and its handoffs finished here, swept in n order
+      const found: GlideRecord[] = [];
+      for (let i = 0; i < res.glideRecords.length; i += 4)
+        found.push({ n: res.glideRecords[i]!, steps: Number(res.glideRecords[i + 1]!), standardSteps: Number(res.glideRecords[i + 2]!) });
+      for (let i = 0; i < res.unresolved.length; i += 4) unreachedList.push(res.unresolved[i]!);
+      unreached += res.counts[3]!;
+      for (let i = 0; i < res.handoffs.length; i += 4) {
+        const n = res.handoffs[i]!;
+        if (plan.engine === "kernel") handoffCount++;
+        const d = delayBig(map, n, plan.maxSteps);
+        if (d === null) {
+          unreached++;
+          unreachedList.push(n);
+        } else found.push({ n, steps: d.steps, standardSteps: d.steps + d.odd });
+      }
+      found.sort((u, v) => (u.n < v.n ? -1 : u.n > v.n ? 1 : 0));
+      for (const g of found) {
+        if (g.standardSteps > bestDelay) {
+          bestDelay = g.standardSteps;
+          delayRecords.push(g);
+        }
+      }
+      continue;
+    }
     const c = res.counts;
     checked += c[0]!;
     exceptions += c[1]!;
@@ -558,6 +659,14 @@ export function mergeVerify(
     maxPath: pathRecords.at(-1) ?? null,
     cycleMembers,
     unresolvedList: unresolvedList.slice(0, EXCEPTION_LIMIT),
+    delay: plan.delay
+      ? {
+          records: delayRecords,
+          max: delayRecords.at(-1) ?? null,
+          unreached,
+          unreachedList: unreachedList.sort((u, v) => (u < v ? -1 : 1)).slice(0, EXCEPTION_LIMIT),
+        }
+      : null,
     handoffs: handoffCount,
     blocks: plan.blocks.length,
     seconds,
