@@ -370,6 +370,20 @@ function peakOf(a: u64, len: i32, out: usize): void {
   store<u8>(out, <u8>mp, 1);
 }
 
+/** The class of a mod 2^len: (m, b) with T^len(a + 2^len x) = q^m x + b, b = T^len(a) (within the proven width). */
+function classOf(a: u64, len: i32, mOut: usize, bOut: usize): void {
+  let v = a, odd = 0;
+  for (let j = 0; j < len; j++) {
+    if ((v & 1) == 0) v >>= 1;
+    else {
+      v = Q * (v >> 1) + HQ;
+      odd++;
+    }
+  }
+  store<u8>(mOut, <u8>odd);
+  store<u64>(bOut, v);
+}
+
 /**
  * Prepares a run's tables once per worker: for every survivor a of the depth-K sieve (given as
  * ascending u32 residues) its (m, b) with T^K(a + 2^K x) = q^m x + b and the peak of its first K
@@ -395,33 +409,14 @@ export function verifyPrepare(
     const at = <usize>i;
     const res = <u64>load<u32>(a + (at << 2));
     peakOf(res, depth, peak + (at << 1));
-    // the class's (m, b): T^K of its least member (within the host-proven width)
-    let v = res, odd = 0;
-    for (let j = 0; j < depth; j++) {
-      if ((v & 1) == 0) v >>= 1;
-      else {
-        v = Q * (v >> 1) + HQ;
-        odd++;
-      }
-    }
-    store<u8>(m + at, <u8>odd);
-    store<u64>(b + (at << 3), v);
+    classOf(res, depth, m + at, b + (at << 3));
   }
   for (let d = 1; d <= stepDepth; d++) {
     const base = ((<usize>1) << <usize>d) - 2;
     for (let c: u64 = 0; c < (<u64>1) << <u64>d; c++) {
       const at = base + <usize>c;
       peakOf(c, d, speak + (at << 1));
-      let v = c, odd = 0;
-      for (let j = 0; j < d; j++) {
-        if ((v & 1) == 0) v >>= 1;
-        else {
-          v = Q * (v >> 1) + HQ;
-          odd++;
-        }
-      }
-      store<u8>(sm + at, <u8>odd);
-      store<u64>(sb + (at << 3), v);
+      classOf(c, d, sm + at, sb + (at << 3));
     }
   }
 }

@@ -120,6 +120,20 @@ export function periodicJson(map: CollatzMap, p: PeriodicPoint, digits: string) 
   return { map: map.name, pre: p.pre, word: p.word, numerator: p.num, denominator: p.den, digits, integer: p.integer, cycle: p.cycle };
 }
 
+/** A verification's counts, as the JSON and the certificate give them. */
+export function verifyCountsJson(r: VerifyResult) {
+  const c = r.counts;
+  return {
+    numbers: c.numbers,
+    checked: c.checked,
+    sieved: c.sieved,
+    sievedByDepth: c.sievedByDepth.flatMap((count, depth) => (count > 0n ? [{ depth, count }] : [])),
+    exceptions: c.exceptions,
+    cycleMembers: c.cycleMembers,
+    unresolved: c.unresolved,
+  };
+}
+
 /** The fields of `glidepath verify --json` (the certificate holds the same and the run's provenance). */
 export function verifyJson(r: VerifyResult) {
   return {
@@ -130,15 +144,7 @@ export function verifyJson(r: VerifyResult) {
     stepDepth: r.stepDepth,
     maxSteps: r.maxSteps,
     engine: r.engine,
-    counts: {
-      numbers: r.counts.numbers,
-      checked: r.counts.checked,
-      sieved: r.counts.sieved,
-      sievedByDepth: r.counts.sievedByDepth.flatMap((count, depth) => (count > 0n ? [{ depth, count }] : [])),
-      exceptions: r.counts.exceptions,
-      cycleMembers: r.counts.cycleMembers,
-      unresolved: r.counts.unresolved,
-    },
+    counts: verifyCountsJson(r),
     maxGlide: r.maxGlide,
     maxPath: r.maxPath,
     glideRecords: r.glideRecords,

@@ -5,6 +5,7 @@ import type { CollatzMap } from "../../core/map.js";
 import { parseMap } from "../../core/map.js";
 import type { VerifyBlockResult } from "../../engine/messages.js";
 import { parseExactJson } from "../../outputs/json.js";
+import { verifyCountsJson } from "../../outputs/summary.js";
 import type { ToolStamp } from "../../outputs/manifest.js";
 import { traceBig } from "./verify.js";
 import type { StoredBlock, VerifyRequest, VerifyResult } from "./verify.js";
@@ -40,15 +41,7 @@ export function certificate(
     maxSteps: r.maxSteps,
     engine: r.engine,
     tables,
-    counts: {
-      numbers: r.counts.numbers,
-      checked: r.counts.checked,
-      sieved: r.counts.sieved,
-      sievedByDepth: r.counts.sievedByDepth.flatMap((count, depth) => (count > 0n ? [{ depth, count }] : [])),
-      exceptions: r.counts.exceptions,
-      cycleMembers: r.counts.cycleMembers,
-      unresolved: r.counts.unresolved,
-    },
+    counts: verifyCountsJson(r),
     maxima: {
       glide: r.maxGlide && { n: r.maxGlide.n, standardSteps: r.maxGlide.standardSteps, steps: r.maxGlide.steps },
       path: r.maxPath && { n: r.maxPath.n, value: r.maxPath.value },
