@@ -2,6 +2,7 @@
 // remaining time, the cancelled and failed states, and the abort signal handed to the library.
 import { CancelledError } from "../src/engine/pool.js";
 import type { RunOptions } from "../src/engine/pool.js";
+import { group } from "../src/outputs/format.js";
 import { $ } from "./dom.js";
 
 export interface RunElements {
@@ -43,7 +44,7 @@ export class RunController {
    * Runs `work` with the signal and a progress callback; the buttons, the bar and the status line
    * follow it, and a failure or a cancel is shown in words rather than thrown.
    */
-  async run<T>(work: (options: RunOptions) => Promise<T>, waiting = "Starting workers..."): Promise<Outcome<T>> {
+  async run<T>(work: (options: RunOptions) => Promise<T>, waiting = "Starting workers...", unit = "shards"): Promise<Outcome<T>> {
     const abort = new AbortController();
     this.abort = abort;
     const started = performance.now();
@@ -58,8 +59,9 @@ export class RunController {
       const elapsed = (performance.now() - started) / 1000;
       progress.value = done / total;
       const remaining = done > 0 ? (elapsed * (total - done)) / done : Number.NaN;
+      const rate = unit === "shards" ? "" : `, ${group(Math.round(done / Math.max(elapsed, 1e-3)))} ${unit}/s`;
       status.textContent =
-        `${done} of ${total} shards, ${elapsed.toFixed(1)} s elapsed` +
+        `${group(done)} of ${group(total)} ${unit}${rate}, ${elapsed.toFixed(1)} s elapsed` +
         `${Number.isFinite(remaining) ? `, about ${remaining.toFixed(1)} s left` : ""}`;
     };
     try {

@@ -118,23 +118,28 @@ async function verify(o: VerifyOptions): Promise<void> {
   const stamp = await toolStamp();
   const started = new Date().toISOString();
   let hashes: TableHashes | null = null;
-  const result = await withPool(workers, `verify ${req.map.name}`, async (pool, onProgress) => {
-    const tables = plan.engine === "kernel" ? await verifyTables(pool, plan) : undefined;
-    if (tables) hashes = tableHashes(tables);
-    return runVerify(pool, req, {
-      tables,
-      done,
-      onProgress,
-      onBlock: async (res) => {
-        done.set(res.index, res);
-        if (checkpointPath)
-          await writeFileAtomic(
-            checkpointPath,
-            `${toExactJson(checkpoint({ ...req, from: req.from, to: req.to }, plan.key, plan.blocks.length, done))}\n`,
-          );
-      },
-    });
-  });
+  const result = await withPool(
+    workers,
+    `verify ${req.map.name}`,
+    async (pool, onProgress) => {
+      const tables = plan.engine === "kernel" ? await verifyTables(pool, plan) : undefined;
+      if (tables) hashes = tableHashes(tables);
+      return runVerify(pool, req, {
+        tables,
+        done,
+        onProgress,
+        onBlock: async (res) => {
+          done.set(res.index, res);
+          if (checkpointPath)
+            await writeFileAtomic(
+              checkpointPath,
+              `${toExactJson(checkpoint({ ...req, from: req.from, to: req.to }, plan.key, plan.blocks.length, done))}\n`,
+            );
+        },
+      });
+    },
+    "numbers",
+  );
   if (out) {
     const cert = certificate(result, hashes, stamp, { started, finished: new Date().toISOString(), workers });
     await writeFileAtomic(out.path, `${toExactJson(cert, 2)}\n`);

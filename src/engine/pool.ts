@@ -28,7 +28,7 @@ interface Slot {
 
 export interface RunOptions {
   readonly signal?: AbortSignal;
-  /** Called after each shard with (shards done, shards in all). */
+  /** Called after each shard with (done, in all): shards, or what the job says it counts (verify: numbers). */
   readonly onProgress?: (done: number, total: number) => void;
 }
 

@@ -67,9 +67,10 @@ export async function withPool<T>(
   workers: number,
   label: string,
   work: (pool: KernelPool, onProgress: (done: number, total: number) => void) => Promise<T>,
+  unit = "shards",
 ): Promise<T> {
   const pool = await nodePool(workers);
-  const bar = progressBar(label);
+  const bar = progressBar(label, unit);
   try {
     return await work(pool, bar.update);
   } finally {

@@ -123,6 +123,7 @@ export async function startVerify(workers: number): Promise<boolean> {
         return runVerify(pool, req, { ...options, tables });
       }),
     waiting,
+    "numbers",
   );
   if (!out.ok) return true;
   render(out.value);

@@ -473,6 +473,15 @@ export async function runVerify(pool: KernelPool, req: VerifyRequest, options: V
   const todo = plan.blocks.filter((b) => !results.has(b.index));
   let completed = results.size;
   const total = plan.blocks.length;
+  // progress in numbers (display only: a double is close enough to show a share and a rate)
+  const sizeOf = (b: { first: bigint; last: bigint }) => Number(b.last - b.first + 1n);
+  const numbersTotal = plan.blocks.reduce((s, b) => s + sizeOf(b), 0);
+  let numbersDone = plan.blocks.filter((b) => results.has(b.index)).reduce((s, b) => s + sizeOf(b), 0);
+  const byIndex = new Map(plan.blocks.map((b) => [b.index, b]));
+  const progress = (index: number) => {
+    numbersDone += sizeOf(byIndex.get(index)!);
+    options.onProgress?.(numbersDone, numbersTotal);
+  };
   if (plan.engine === "bigint" || !data) {
     for (const b of todo) {
       if (options.signal?.aborted) throw new CancelledError();
@@ -481,7 +490,7 @@ export async function runVerify(pool: KernelPool, req: VerifyRequest, options: V
       results.set(b.index, res);
       completed++;
       await options.onBlock?.(res, completed, total);
-      options.onProgress?.(completed, total);
+      progress(b.index);
     }
   } else {
     const prepared = new WeakSet<object>();
@@ -505,6 +514,7 @@ export async function runVerify(pool: KernelPool, req: VerifyRequest, options: V
       (_block, out) => {
         results.set(out.index, out);
         completed++;
+        progress(out.index);
         const n = completed;
         chain = chain
           .then(() => options.onBlock?.(out, n, total))
@@ -512,7 +522,7 @@ export async function runVerify(pool: KernelPool, req: VerifyRequest, options: V
             failed ??= e;
           });
       },
-      options,
+      { signal: options.signal },
     );
     await chain;
     if (failed !== null) throw failed;
