@@ -401,3 +401,39 @@ describe("cli: verify", () => {
     });
   }
 });
+
+describe("cli: verify with table files", () => {
+  it("checks the run's sieve and step tables against sieve --out and steps --out files and their manifests", async () => {
+    const sub = mkdtempSync(join(dir, "tables-"));
+    const sieve = join(sub, "s16.u32");
+    const steps = join(sub, "st12.bin");
+    expect((await cli("sieve", "--depth", "16", "--out", sieve)).code).toBe(0);
+    expect((await cli("steps", "--depth", "12", "--out", steps)).code).toBe(0);
+    const args = ["verify", "--from", "2^30", "--to", "2^30+2^22", "--sieve-depth", "16", "--step-depth", "12", "--json"];
+    const plain = await cli(...args);
+    const withFiles = await cli(...args, "--sieve-table", sieve, "--step-table", steps);
+    expect(withFiles.code).toBe(0);
+    const strip = (s: string) => s.replace(/,"seconds":[\d.]+/, "");
+    expect(strip(withFiles.stdout)).toBe(strip(plain.stdout));
+    // a file whose manifest is for another depth, a changed byte, and another map's table under a consistent manifest
+    expect((await cli(...args.map((a) => (a === "16" ? "18" : a)), "--sieve-table", sieve)).stderr).toMatch(
+      /manifest says depth 16, this run needs 18/,
+    );
+    const { writeFileSync } = await import("node:fs");
+    const bytes = readFileSync(sieve);
+    bytes[5] = bytes[5]! ^ 1;
+    const changed = join(sub, "changed.u32");
+    writeFileSync(changed, bytes);
+    writeFileSync(`${changed}.json`, readFileSync(`${sieve}.json`));
+    const r1 = await cli(...args, "--sieve-table", changed);
+    expect(r1.code).toBe(2);
+    expect(r1.stderr).toMatch(/its sha256 is .*, its manifest says/);
+    const other = join(sub, "other.u32");
+    expect((await cli("sieve", "--map", "3x-1", "--depth", "16", "--out", other)).code).toBe(0);
+    const man = readFileSync(`${other}.json`, "utf8").replace('"map": "3x-1"', '"map": "3x+1"');
+    writeFileSync(`${other}.json`, man);
+    const r2 = await cli(...args, "--sieve-table", other);
+    expect(r2.code).toBe(2);
+    expect(r2.stderr).toMatch(/is not the depth-16 sieve table of 3x\+1/);
+  });
+});

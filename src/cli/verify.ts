@@ -18,7 +18,7 @@ import {
 } from "../jobs/verify/verify.js";
 import type { StoredBlock, VerifyRequest, VerifyResult, VerifyTableData } from "../jobs/verify/verify.js";
 import { group, plural } from "../outputs/format.js";
-import { toExactJson } from "../outputs/json.js";
+import { parseExactJson, toExactJson } from "../outputs/json.js";
 import { verifyJson } from "../outputs/summary.js";
 import { writeFileAtomic } from "../node/files.js";
 import { toolStamp, withPool } from "../node/kernel.js";
@@ -37,6 +37,35 @@ interface VerifyOptions extends RawOptions {
   readonly check?: string;
   readonly sample?: string;
   readonly delay?: boolean;
+  readonly sieveTable?: string;
+  readonly stepTable?: string;
+}
+
+/** A table file named on the command line, read with its manifest (FILE.json) and checked against it. */
+interface TableFile {
+  readonly path: string;
+  readonly sha256: string;
+}
+
+function readTableFile(option: string, path: string, kind: string, map: CollatzMap, depth: number): TableFile {
+  let data: Buffer;
+  let manifest: Record<string, unknown>;
+  try {
+    data = readFileSync(path);
+    manifest = parseExactJson(readFileSync(`${path}.json`, "utf8")) as Record<string, unknown>;
+  } catch (e) {
+    throw new UsageError(
+      `${option} ${path}: cannot read it and its manifest ${path}.json (${(e as NodeJS.ErrnoException).code ?? String(e)})`,
+    );
+  }
+  const sha256 = createHash("sha256").update(data).digest("hex");
+  const want = { kind, map: map.name, depth: BigInt(depth), format: "raw" };
+  for (const [k, v] of Object.entries(want))
+    if (manifest[k] !== v)
+      throw new UsageError(`${option} ${path}: its manifest says ${k} ${String(manifest[k])}, this run needs ${String(v)}`);
+  if (manifest.sha256 !== sha256)
+    throw new UsageError(`${option} ${path}: its sha256 is ${sha256}, its manifest says ${String(manifest.sha256)}`);
+  return { path, sha256 };
 }
 
 /** Records shown in the text report (all of them are in --json and the certificate). */
@@ -57,6 +86,8 @@ export function verifyCommand(program: Command): Command {
     .option("--out <FILE>", "write the certificate (JSON)")
     .option("--checkpoint <FILE>", "keep the run's state in FILE after every block (resume with --resume FILE)")
     .option("--resume <FILE>", "continue the run a checkpoint describes (its options are the checkpoint's)")
+    .option("--sieve-table <FILE>", "check the run's sieve table against this raw file (sieve --out) and its manifest")
+    .option("--step-table <FILE>", "check the run's step table against this raw file (steps --out) and its manifest")
     .option("--check <FILE>", "re-derive what a certificate says (table hashes, counts, records, a sample) and say whether it holds")
     .option("--sample <N>", "with --check: random n of the range to iterate again (default 1000)")
     .action((o: VerifyOptions) => (o.check !== undefined ? check(o) : verify(o)));
@@ -113,6 +144,11 @@ async function verify(o: VerifyOptions): Promise<void> {
     checkpointPath ??= o.resume;
   } else req = request(o, mapOption(o.map));
   const plan = planVerify(req); // checks the request before anything is opened
+  const sieveFile =
+    o.sieveTable === undefined ? null : readTableFile("--sieve-table", o.sieveTable, "glidepath class table", req.map, plan.sieveDepth);
+  const stepFile =
+    o.stepTable === undefined ? null : readTableFile("--step-table", o.stepTable, "glidepath step table", req.map, plan.stepDepth);
+  if ((sieveFile || stepFile) && plan.engine !== "kernel") throw new UsageError("table files are for the kernel path (r > 0, n < 2^64)");
   const workers = workersOption(o.workers);
   const out = outputOption<"raw">({ ...o, format: undefined }, ["raw"], "raw");
   const stamp = await toolStamp();
@@ -123,7 +159,13 @@ async function verify(o: VerifyOptions): Promise<void> {
     `verify ${req.map.name}`,
     async (pool, onProgress) => {
       const tables = plan.engine === "kernel" ? await verifyTables(pool, plan) : undefined;
-      if (tables) hashes = tableHashes(tables);
+      const h = tables ? tableHashes(tables) : null;
+      hashes = h;
+      // the files must hold exactly the tables of this run (equal hashes of equal-length raw files)
+      if (sieveFile && h && sieveFile.sha256 !== h.sieve.sha256)
+        throw new UsageError(`--sieve-table ${sieveFile.path} is not the depth-${plan.sieveDepth} sieve table of ${req.map.name}`);
+      if (stepFile && h && stepFile.sha256 !== h.steps.sha256)
+        throw new UsageError(`--step-table ${stepFile.path} is not the depth-${plan.stepDepth} step table of ${req.map.name}`);
       return runVerify(pool, req, {
         tables,
         done,
