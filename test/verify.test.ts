@@ -24,6 +24,7 @@ function brute(map: CollatzMap, from: bigint, to: bigint, cap: number) {
   const pathRecords: bigint[] = [];
   const cycles: bigint[] = [];
   const unresolved: bigint[] = [];
+  const entrants: [bigint, bigint][] = [];
   let bestGlide = -1,
     bestPath = -1n,
     maxGlideN = -1n,
@@ -52,7 +53,19 @@ function brute(map: CollatzMap, from: bigint, to: bigint, cap: number) {
       }
     }
     if (outcome === "unresolved") {
-      unresolved.push(n);
+      // does it enter a cycle (of larger numbers)? every value seen, within twice the cap and 2^256
+      const seen = new Set<bigint>();
+      let u = n;
+      for (let i = 0; i <= 2 * cap && !seen.has(u) && u < 1n << 256n; i++) {
+        seen.add(u);
+        u = u % 2n === 0n ? u / 2n : (q * u + r) / 2n;
+      }
+      if (seen.has(u)) {
+        let min = u;
+        for (let w = u % 2n === 0n ? u / 2n : (q * u + r) / 2n; w !== u; w = w % 2n === 0n ? w / 2n : (q * w + r) / 2n)
+          if (w < min) min = w;
+        entrants.push([n, min]);
+      } else unresolved.push(n);
       continue;
     }
     if (outcome === "cycle") {
@@ -69,7 +82,7 @@ function brute(map: CollatzMap, from: bigint, to: bigint, cap: number) {
       maxPathN = n;
     }
   }
-  return { glideRecords, pathRecords, cycles, unresolved, bestGlide, bestPath, maxGlideN, maxPathN };
+  return { glideRecords, pathRecords, cycles, unresolved, entrants, bestGlide, bestPath, maxGlideN, maxPathN };
 }
 
 function expectAgrees(r: VerifyResult, b: ReturnType<typeof brute>) {
@@ -77,12 +90,14 @@ function expectAgrees(r: VerifyResult, b: ReturnType<typeof brute>) {
   expect(r.pathRecords.map((p) => p.n)).toEqual(b.pathRecords);
   expect(r.cycleMembers.map((c) => c.n)).toEqual(b.cycles);
   expect(r.unresolvedList).toEqual(b.unresolved);
+  expect(r.cycleEntrants.map((e) => [e.n, e.cycleMin])).toEqual(b.entrants);
   expect(r.maxGlide?.standardSteps ?? -1).toBe(b.bestGlide);
   expect(r.maxPath?.value ?? -1n).toBe(b.bestPath);
   expect(r.maxGlide?.n ?? -1n).toBe(b.maxGlideN);
   expect(r.maxPath?.n ?? -1n).toBe(b.maxPathN);
   const c = r.counts;
-  expect(c.checked + c.sieved + c.exceptions + c.cycleMembers + c.unresolved).toBe(r.to - r.from);
+  expect(c.checked + c.sieved + c.exceptions + c.cycleMembers + c.cycleEntrants + c.unresolved).toBe(r.to - r.from);
+  expect(c.cycleEntrants).toBe(BigInt(b.entrants.length));
   expect(c.cycleMembers).toBe(BigInt(b.cycles.length));
   expect(c.unresolved).toBe(BigInt(b.unresolved.length));
 }
@@ -185,6 +200,8 @@ describe("verify: far ranges and other maps, against the brute force", () => {
     const r = await runVerify(pool, { map, from: 1n, to: 40_000n, sieveDepth: 12, stepDepth: 8 });
     expectAgrees(r, brute(map, 1n, 40_000n, 100_000));
     expect(r.cycleMembers.map((c) => c.n)).toEqual([1n, 5n, 19n, 23n, 187n, 347n]);
+    // n such as 3 enter the cycle of 19 without going below themselves (3 -> 7 -> 13 -> 22 -> 11 -> 19)
+    expect(r.cycleEntrants.find((e) => e.n === 3n)).toEqual({ n: 3n, cycleMin: 19n, period: 5 });
   });
   it("5x+1: the trajectories that pass the step cap are listed exactly as unresolved", async () => {
     const map = parseMap("5x+1");

@@ -197,12 +197,13 @@ function verifyText(r: VerifyResult, workers: number): string {
   const rate = Number(c.numbers) / Math.max(r.seconds, 1e-9);
   const lines = [
     `verification of ${r.map.name} over [${r.from}, ${r.to}): ${group(c.numbers)} numbers, sieve depth ${r.sieveDepth}, table steps of ${r.stepDepth}`,
-    `every n reaches a value below n, except the cycle members and unresolved numbers listed below`,
+    `every n reaches a value below n, except the cycle members, cycle entrants and unresolved numbers listed below`,
     "",
     `  sieved (descend at their class's depth)  ${group(c.sieved).padStart(22)}`,
     `  checked (survivors iterated)             ${group(c.checked).padStart(22)}`,
     `  exceptions of the sieve (iterated)       ${group(c.exceptions).padStart(22)}`,
     `  cycle members                            ${group(c.cycleMembers).padStart(22)}`,
+    `  enter a cycle of larger numbers          ${group(c.cycleEntrants).padStart(22)}`,
     `  ${`unresolved after ${group(r.maxSteps)} steps`.padEnd(39)}  ${group(c.unresolved).padStart(22)}`,
     "",
     r.maxGlide
@@ -227,6 +228,14 @@ function verifyText(r: VerifyResult, workers: number): string {
         ]
       : []),
     ...(r.cycleMembers.length ? [`cycle members: ${r.cycleMembers.map((m) => `${m.n} (period ${m.period})`).join(", ")}`] : []),
+    ...(r.cycleEntrants.length
+      ? [
+          `entering a cycle: ${r.cycleEntrants
+            .slice(0, 20)
+            .map((e) => `${e.n} (the cycle of ${e.cycleMin})`)
+            .join(", ")}${r.cycleEntrants.length > 20 ? `, ... and ${r.cycleEntrants.length - 20} more` : ""}`,
+        ]
+      : []),
     ...(r.unresolvedList.length
       ? [
           `unresolved: ${r.unresolvedList.slice(0, 50).join(", ")}${r.unresolvedList.length > 50 ? `, ... and ${r.unresolvedList.length - 50} more` : ""}`,

@@ -130,6 +130,7 @@ export function verifyCountsJson(r: VerifyResult) {
     sievedByDepth: c.sievedByDepth.flatMap((count, depth) => (count > 0n ? [{ depth, count }] : [])),
     exceptions: c.exceptions,
     cycleMembers: c.cycleMembers,
+    cycleEntrants: c.cycleEntrants,
     unresolved: c.unresolved,
   };
 }
@@ -150,6 +151,7 @@ export function verifyJson(r: VerifyResult) {
     glideRecords: r.glideRecords,
     pathRecords: r.pathRecords,
     cycleMembers: r.cycleMembers,
+    cycleEntrants: r.cycleEntrants,
     unresolved: r.unresolvedList,
     delay: r.delay,
     handoffs: r.handoffs,

@@ -73,7 +73,7 @@ function render(r: VerifyResult): void {
   const rate = Number(c.numbers) / Math.max(r.seconds, 1e-9);
   controller.say(
     `Every n in [${r.from}, ${r.to}) of ${r.map.name} reaches a value below n` +
-      `${c.cycleMembers + c.unresolved > 0n ? ", except the cycle members and unresolved numbers counted below" : ""}. ` +
+      `${c.cycleMembers + c.cycleEntrants + c.unresolved > 0n ? ", except the cycle members, cycle entrants and unresolved numbers counted below" : ""}. ` +
       `${group(c.numbers)} numbers in ${r.seconds.toFixed(2)} s (${group(BigInt(Math.round(rate)))} a second).`,
   );
   const counts: [string, string][] = [
@@ -82,6 +82,7 @@ function render(r: VerifyResult): void {
     ["checked (survivors iterated)", group(c.checked)],
     ["exceptions of the sieve", group(c.exceptions)],
     ["cycle members", group(c.cycleMembers)],
+    ["enter a cycle of larger numbers", group(c.cycleEntrants)],
     [`unresolved after ${group(r.maxSteps)} steps`, group(c.unresolved)],
     ["largest glide (standard steps)", r.maxGlide ? `${r.maxGlide.standardSteps} at n = ${r.maxGlide.n}` : "–"],
     ["largest path", r.maxPath ? `${r.maxPath.value} at n = ${r.maxPath.n}` : "–"],

@@ -7,7 +7,7 @@ import type { VerifyBlockResult } from "../../engine/messages.js";
 import { parseExactJson } from "../../outputs/json.js";
 import { verifyCountsJson } from "../../outputs/summary.js";
 import type { ToolStamp } from "../../outputs/manifest.js";
-import { traceBig } from "./verify.js";
+import { cycleEntry, traceBig } from "./verify.js";
 import type { StoredBlock, VerifyRequest, VerifyResult } from "./verify.js";
 
 export const CERTIFICATE_KIND = "glidepath verification certificate";
@@ -51,6 +51,7 @@ export function certificate(
       path: r.pathRecords.map((p) => ({ n: p.n, value: p.value })),
     },
     cycleMembers: r.cycleMembers,
+    cycleEntrants: r.cycleEntrants,
     unresolved: r.unresolvedList,
     delay: r.delay && {
       records: r.delay.records.map((g) => ({ n: g.n, standardSteps: g.standardSteps, steps: g.steps })),
@@ -177,6 +178,7 @@ export interface ReadCertificate {
   readonly maxGlide: { n: bigint; standardSteps: number } | null;
   readonly maxPath: { n: bigint; value: bigint } | null;
   readonly cycleMembers: { n: bigint; period: number }[];
+  readonly cycleEntrants: { n: bigint; cycleMin: bigint; period: number }[];
   readonly unresolved: bigint[];
 }
 
@@ -210,6 +212,7 @@ export function readCertificate(text: string): ReadCertificate {
       sieved: c.sieved as bigint,
       exceptions: c.exceptions as bigint,
       cycleMembers: c.cycleMembers as bigint,
+      cycleEntrants: (c.cycleEntrants as bigint | undefined) ?? 0n,
       unresolved: c.unresolved as bigint,
     },
     sievedByDepth: (c.sievedByDepth as { depth: bigint; count: bigint }[]).map((x) => ({ depth: Number(x.depth), count: x.count })),
@@ -218,6 +221,11 @@ export function readCertificate(text: string): ReadCertificate {
     maxGlide: max.glide && { n: max.glide.n!, standardSteps: Number(max.glide.standardSteps) },
     maxPath: max.path && { n: max.path.n!, value: max.path.value! },
     cycleMembers: (j.cycleMembers as { n: bigint; period: bigint }[]).map((x) => ({ n: x.n, period: Number(x.period) })),
+    cycleEntrants: ((j.cycleEntrants as { n: bigint; cycleMin: bigint; period: bigint }[] | undefined) ?? []).map((x) => ({
+      n: x.n,
+      cycleMin: x.cycleMin,
+      period: Number(x.period),
+    })),
     unresolved: j.unresolved as bigint[],
   };
 }
@@ -231,9 +239,10 @@ export function readCertificate(text: string): ReadCertificate {
 export function checkCertificate(c: ReadCertificate, sample: bigint[]): CheckReport {
   const findings: string[] = [];
   const k = c.counts;
-  const sum = k.checked! + k.sieved! + k.exceptions! + k.cycleMembers! + k.unresolved!;
+  const sum = k.checked! + k.sieved! + k.exceptions! + k.cycleMembers! + k.cycleEntrants! + k.unresolved!;
   if (k.numbers !== c.to - c.from) findings.push(`numbers ${k.numbers} is not to - from = ${c.to - c.from}`);
-  if (sum !== k.numbers) findings.push(`checked + sieved + exceptions + cycle members + unresolved = ${sum}, not ${k.numbers}`);
+  if (sum !== k.numbers)
+    findings.push(`checked + sieved + exceptions + cycle members + cycle entrants + unresolved = ${sum}, not ${k.numbers}`);
   if (c.sievedByDepth.reduce((s, x) => s + x.count, 0n) !== k.sieved)
     findings.push("the sieved counts by depth do not add up to the sieved count");
   if (BigInt(c.cycleMembers.length) !== k.cycleMembers) findings.push("the cycle member list does not match its count");
@@ -282,6 +291,14 @@ export function checkCertificate(c: ReadCertificate, sample: bigint[]): CheckRep
     if (t.outcome !== "cycle" || t.steps !== m.period)
       findings.push(`cycle member ${m.n}: BigInt iteration gives ${t.outcome} after ${t.steps} steps`);
   }
+  for (const e of c.cycleEntrants) {
+    sampled++;
+    const t = traceBig(c.map, e.n, c.maxSteps, 0);
+    const entry = cycleEntry(c.map, e.n, 2 * c.maxSteps);
+    if (t.outcome !== "unresolved" || entry?.min !== e.cycleMin || entry.period !== e.period)
+      findings.push(`cycle entrant ${e.n}: BigInt iteration does not show it entering the cycle of ${e.cycleMin}`);
+  }
+  const entrantSet = new Set(c.cycleEntrants.map((e) => e.n));
   for (const n of c.unresolved) {
     sampled++;
     if (traceBig(c.map, n, c.maxSteps, 0).outcome !== "unresolved")
@@ -291,7 +308,7 @@ export function checkCertificate(c: ReadCertificate, sample: bigint[]): CheckRep
     sampled++;
     const t = traceBig(c.map, n, c.maxSteps, 0);
     if (t.outcome === "cycle" && !cycleSet.has(n)) findings.push(`${n} is on a cycle but not listed`);
-    else if (t.outcome === "unresolved" && !unresolvedSet.has(n)) findings.push(`${n} is unresolved but not listed`);
+    else if (t.outcome === "unresolved" && !unresolvedSet.has(n) && !entrantSet.has(n)) findings.push(`${n} is unresolved but not listed`);
     else if (t.outcome === "descent") {
       if (c.maxGlide && t.steps + t.odd > c.maxGlide.standardSteps)
         findings.push(`${n} has a glide of ${t.steps + t.odd} standard steps, above the largest`);

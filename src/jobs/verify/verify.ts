@@ -110,6 +110,36 @@ export function traceBig(map: CollatzMap, n: bigint, maxSteps: number, depth: nu
   return { outcome: "unresolved", steps: maxSteps, odd, path, cutDepth };
 }
 
+/**
+ * Whether n's trajectory enters a cycle (without going below n: the cycle's elements are all above
+ * n), by Brent's method within `budget` steps while its values stay below 2^maxBits: the cycle's
+ * least element and period, exactly, or null when that is not shown.
+ * @example cycleEntry(parseMap("3x+5"), 3n, 1000) // { min: 19n, period: 5 }
+ */
+export function cycleEntry(map: CollatzMap, n: bigint, budget: number, maxBits = 256): { min: bigint; period: number } | null {
+  const q = BigInt(map.q);
+  const r = BigInt(map.r);
+  const T = (v: bigint) => ((v & 1n) === 1n ? (q * v + r) >> 1n : v >> 1n);
+  const limit = 1n << BigInt(maxBits);
+  let power = 1;
+  let lam = 1;
+  let tortoise = n;
+  let hare = T(n);
+  for (let steps = 1; tortoise !== hare; steps++) {
+    if (steps > budget || hare >= limit || hare <= -limit) return null;
+    if (power === lam) {
+      tortoise = hare;
+      power *= 2;
+      lam = 0;
+    }
+    hare = T(hare);
+    lam++;
+  }
+  let min = hare;
+  for (let v = T(hare); v !== hare; v = T(v)) if (v < min) min = v;
+  return { min, period: lam };
+}
+
 export interface GlideRecord {
   readonly n: bigint;
   /** Glide in standard steps (an odd step counts twice) and in steps of T. */
@@ -132,6 +162,8 @@ export interface VerifyCounts {
   /** The sieve's exceptions, iterated to their descent. */
   readonly exceptions: bigint;
   readonly cycleMembers: bigint;
+  /** n whose trajectory enters a cycle of larger numbers (shown by Brent's method) instead of descending. */
+  readonly cycleEntrants: bigint;
   readonly unresolved: bigint;
 }
 
@@ -153,7 +185,9 @@ export interface VerifyResult {
   readonly maxPath: PathRecord | null;
   /** n on a cycle (each is its cycle's least element in the range checked), with the period. */
   readonly cycleMembers: { readonly n: bigint; readonly period: number }[];
-  /** n that neither descended nor returned within maxSteps (exact). */
+  /** n that enter a cycle of larger numbers: the cycle's least element and period (the smallest 100,000 n). */
+  readonly cycleEntrants: { readonly n: bigint; readonly cycleMin: bigint; readonly period: number }[];
+  /** n that neither descended, returned nor were shown to enter a cycle within maxSteps (exact). */
   readonly unresolvedList: bigint[];
   /** With `delay`: the delays' records. */
   readonly delay: DelayResult | null;
@@ -648,11 +682,21 @@ export function mergeVerify(
   }
   cycleMembers.sort((u, v) => (u.n < v.n ? -1 : 1));
   unresolvedList.sort((u, v) => (u < v ? -1 : 1));
+  // what passed the cap may still be shown to enter a cycle (of numbers above it: it never went below)
+  const cycleEntrants: { n: bigint; cycleMin: bigint; period: number }[] = [];
+  const stillUnresolved: bigint[] = [];
+  for (const n of unresolvedList) {
+    const c = cycleEntry(map, n, 2 * plan.maxSteps);
+    if (c) cycleEntrants.push({ n, cycleMin: c.min, period: c.period });
+    else stillUnresolved.push(n);
+  }
+  unresolved -= BigInt(cycleEntrants.length);
+  const entrants = BigInt(cycleEntrants.length);
   const sieved = sievedByDepth.reduce((s, x) => s + x, 0n);
   const numbers = plan.to - plan.from;
-  if (checked + sieved + exceptions + cycles + unresolved !== numbers)
+  if (checked + sieved + exceptions + cycles + entrants + unresolved !== numbers)
     throw new Error(
-      `internal error: ${checked} + ${sieved} + ${exceptions} + ${cycles} + ${unresolved} numbers accounted for, the range has ${numbers}`,
+      `internal error: ${checked} + ${sieved} + ${exceptions} + ${cycles} + ${entrants} + ${unresolved} numbers accounted for, the range has ${numbers}`,
     );
   return {
     map,
@@ -662,13 +706,14 @@ export function mergeVerify(
     stepDepth: plan.stepDepth,
     maxSteps: plan.maxSteps,
     engine: plan.engine,
-    counts: { numbers, checked, sievedByDepth, sieved, exceptions, cycleMembers: cycles, unresolved },
+    counts: { numbers, checked, sievedByDepth, sieved, exceptions, cycleMembers: cycles, cycleEntrants: entrants, unresolved },
     glideRecords,
     pathRecords,
     maxGlide: glideRecords.at(-1) ?? null,
     maxPath: pathRecords.at(-1) ?? null,
     cycleMembers,
-    unresolvedList: unresolvedList.slice(0, EXCEPTION_LIMIT),
+    cycleEntrants: cycleEntrants.slice(0, EXCEPTION_LIMIT),
+    unresolvedList: stillUnresolved.slice(0, EXCEPTION_LIMIT),
     delay: plan.delay
       ? {
           records: delayRecords,
