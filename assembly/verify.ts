@@ -43,7 +43,6 @@ const DONE_HANDOFF: i32 = 3;
 
 let Q: u64 = 0;
 let slackK: u64 = 0; // r (q/2)^K, rounded up (the first K steps of a survivor)
-let slackKS: u64 = 0; // r (q/2)^KS, rounded up (one table step of depth KS)
 let slackPtr: usize = 0; // u64 r (q/2)^d rounded up, d = 0..KS (host)
 let HQ: u64 = 0; // (q + r) / 2: the odd step is q (v >> 1) + HQ
 let K: i32 = 0; // sieve depth
@@ -245,7 +244,7 @@ function fast(n: u64, i: i32, h: u64): i32 {
       const c = <usize>(vl & (((<u64>1) << <u64>d) - 1)) + (((<usize>1) << <usize>d) - 2);
       const sp = stepPeak + (c << 1);
       const ip = <i32>load<u8>(sp), mp = <i32>load<u8>(sp, 1);
-      const sl = d == KS ? slackKS : slackD(d);
+      const sl = slackD(d);
       // the bound is below 2^(bits + bitlen(q^mp) - ip + 1) when the slack is below 2^bits: skip it
       // while that cannot reach the block's best path
       if (bits + dropDepth(mp) - ip + 2 >= bestPathBits || 64 - <i32>clz(sl) > bits) {
@@ -436,7 +435,6 @@ export function verifyAligned(
   begin(q, r, depth, stepDepth, steps, limit, tables, counts, scratch);
   slackK = survivorSlack;
   slackPtr = slacks;
-  slackKS = slackD(stepDepth);
   const sievedPeakBits = dropDepth(sievedPeak) - sievedPeak; // bitlen(q^mp) - ip, the bound's extra bits
   let e = 0; // next exception
   let visited: u64 = 0;

@@ -27,10 +27,15 @@ export async function kernelModule(): Promise<WebAssembly.Module> {
   return compileKernel("release", await kernelBytes());
 }
 
+/** sha256 of bytes, as hex digits (Web Crypto). */
+export async function sha256(bytes: Uint8Array | ArrayBuffer): Promise<string> {
+  const d = await crypto.subtle.digest("SHA-256", bytes as Uint8Array<ArrayBuffer>);
+  return Array.from(new Uint8Array(d), (x) => x.toString(16).padStart(2, "0")).join("");
+}
+
 /** Content hash of the kernel build (16 hex digits), as the CLI stamps into manifests. */
 export async function kernelBuildId(): Promise<string> {
-  const d = await crypto.subtle.digest("SHA-256", await kernelBytes());
-  return Array.from(new Uint8Array(d).slice(0, 8), (x) => x.toString(16).padStart(2, "0")).join("");
+  return (await sha256(await kernelBytes())).slice(0, 16);
 }
 
 /** The page's one pool: jobs take turns on it, and a new worker count applies between jobs. */

@@ -4,7 +4,7 @@ import { UsageError } from "../core/errors.js";
 import { MAX_STEP_DEPTH, stepTable } from "../jobs/steps.js";
 import { stepTableArrow } from "../outputs/arrow.js";
 import { group } from "../outputs/format.js";
-import { stepImageOffset, stepManifest } from "../outputs/manifest.js";
+import { stepManifest, stepTableRaw } from "../outputs/manifest.js";
 import { withManifestOutput } from "../node/files.js";
 import { toolStamp, withPool } from "../node/kernel.js";
 import { intOption, jobCommand, mapOption, outputOption, workersOption } from "./options.js";
@@ -33,12 +33,7 @@ async function steps(o: RawOptions): Promise<void> {
       out.path,
       async (file) => {
         const t = await stepTable(pool, map, depth, { onProgress });
-        if (out.format === "arrow") await file!.write(stepTableArrow(t));
-        else {
-          await file!.write(t.odd);
-          await file!.write(new Uint8Array(stepImageOffset(depth) - t.odd.length));
-          await file!.write(new Uint8Array(t.image.buffer, t.image.byteOffset, t.image.byteLength));
-        }
+        for (const part of out.format === "arrow" ? [stepTableArrow(t)] : stepTableRaw(t)) await file!.write(part);
       },
       (_r, data) => stepManifest(map, depth, out.format, data, stamp),
     ),

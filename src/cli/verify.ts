@@ -5,7 +5,7 @@ import { readFileSync } from "node:fs";
 import type { Command } from "commander";
 import { UsageError } from "../core/errors.js";
 import type { CollatzMap } from "../core/map.js";
-import { CHECKPOINT_KIND, certificate, checkCertificate, checkpoint, readCertificate, readCheckpoint } from "../jobs/verify/certificate.js";
+import { certificate, checkCertificate, checkpoint, readCertificate, readCheckpoint, tableHashes } from "../jobs/verify/certificate.js";
 import type { TableHashes } from "../jobs/verify/certificate.js";
 import {
   DEFAULT_MAX_STEPS,
@@ -16,7 +16,7 @@ import {
   runVerify,
   verifyTables,
 } from "../jobs/verify/verify.js";
-import type { StoredBlock, VerifyRequest, VerifyResult, VerifyTableData } from "../jobs/verify/verify.js";
+import type { StoredBlock, VerifyRequest, VerifyResult } from "../jobs/verify/verify.js";
 import { group, plural } from "../outputs/format.js";
 import { parseExactJson, toExactJson } from "../outputs/json.js";
 import { verifyJson } from "../outputs/summary.js";
@@ -58,14 +58,14 @@ function readTableFile(option: string, path: string, kind: string, map: CollatzM
       `${option} ${path}: cannot read it and its manifest ${path}.json (${(e as NodeJS.ErrnoException).code ?? String(e)})`,
     );
   }
-  const sha256 = createHash("sha256").update(data).digest("hex");
+  const fileSha = sha256(data);
   const want = { kind, map: map.name, depth: BigInt(depth), format: "raw" };
   for (const [k, v] of Object.entries(want))
     if (manifest[k] !== v)
       throw new UsageError(`${option} ${path}: its manifest says ${k} ${String(manifest[k])}, this run needs ${String(v)}`);
-  if (manifest.sha256 !== sha256)
-    throw new UsageError(`${option} ${path}: its sha256 is ${sha256}, its manifest says ${String(manifest.sha256)}`);
-  return { path, sha256 };
+  if (manifest.sha256 !== fileSha)
+    throw new UsageError(`${option} ${path}: its sha256 is ${fileSha}, its manifest says ${String(manifest.sha256)}`);
+  return { path, sha256: fileSha };
 }
 
 /** Records shown in the text report (all of them are in --json and the certificate). */
@@ -105,19 +105,14 @@ function request(o: VerifyOptions, map: CollatzMap): VerifyRequest {
   };
 }
 
-/** sha256 of the tables as their raw files hold them. */
-export function tableHashes(data: VerifyTableData): TableHashes {
-  const sha = (b: Uint8Array) => createHash("sha256").update(b).digest("hex");
-  return {
-    sieve: { rows: data.tables.residues.length, sha256: sha(data.sieveBytes) },
-    steps: { rows: 2 ** data.tables.stepDepth, sha256: sha(data.stepBytes) },
-  };
-}
+/** sha256 (hex) with Node's crypto. */
+const sha256 = (bytes: Uint8Array) => createHash("sha256").update(bytes).digest("hex");
 
 async function verify(o: VerifyOptions): Promise<void> {
   let req: VerifyRequest;
   let done = new Map<number, StoredBlock>();
   let checkpointPath = o.checkpoint;
+  let resumed: { key: string; blocks: number } | null = null;
   if (o.resume !== undefined) {
     if (
       o.from !== undefined ||
@@ -137,13 +132,13 @@ async function verify(o: VerifyOptions): Promise<void> {
     }
     const c = readCheckpoint(text);
     req = c.request;
-    const plan = planVerify(req);
-    if (plan.key !== c.key || plan.blocks.length !== c.blocks)
-      throw new UsageError(`${o.resume} was written by another plan or build of glidepath: it cannot be resumed here`);
+    resumed = c;
     done = c.done;
     checkpointPath ??= o.resume;
   } else req = request(o, mapOption(o.map));
   const plan = planVerify(req); // checks the request before anything is opened
+  if (resumed && (plan.key !== resumed.key || plan.blocks.length !== resumed.blocks))
+    throw new UsageError(`${o.resume} was written by another plan or build of glidepath: it cannot be resumed here`);
   const sieveFile =
     o.sieveTable === undefined ? null : readTableFile("--sieve-table", o.sieveTable, "glidepath class table", req.map, plan.sieveDepth);
   const stepFile =
@@ -159,7 +154,7 @@ async function verify(o: VerifyOptions): Promise<void> {
     `verify ${req.map.name}`,
     async (pool, onProgress) => {
       const tables = plan.engine === "kernel" ? await verifyTables(pool, plan) : undefined;
-      const h = tables ? tableHashes(tables) : null;
+      const h = tables ? await tableHashes(tables, sha256) : null;
       hashes = h;
       // the files must hold exactly the tables of this run (equal hashes of equal-length raw files)
       if (sieveFile && h && sieveFile.sha256 !== h.sieve.sha256)
@@ -173,10 +168,7 @@ async function verify(o: VerifyOptions): Promise<void> {
         onBlock: async (res) => {
           done.set(res.index, res);
           if (checkpointPath)
-            await writeFileAtomic(
-              checkpointPath,
-              `${toExactJson(checkpoint({ ...req, from: req.from, to: req.to }, plan.key, plan.blocks.length, done))}\n`,
-            );
+            await writeFileAtomic(checkpointPath, `${toExactJson(checkpoint(req, plan.key, plan.blocks.length, done))}\n`);
         },
       });
     },
@@ -258,8 +250,6 @@ async function check(o: VerifyOptions): Promise<void> {
   } catch (e) {
     throw new UsageError(`cannot read ${o.check}: ${(e as NodeJS.ErrnoException).code ?? String(e)}`);
   }
-  if (text.includes(`"kind":"${CHECKPOINT_KIND}"`))
-    throw new UsageError(`${o.check} is a checkpoint, not a certificate: finish it with --resume`);
   const c = readCertificate(text);
   const sampleSize = intOption("sample", o.sample, 0, 1_000_000, 1000);
   const span = c.to - c.from;
@@ -270,7 +260,7 @@ async function check(o: VerifyOptions): Promise<void> {
   if (c.tables) {
     const plan = planVerify({ map: c.map, from: c.from, to: c.to, sieveDepth: c.sieveDepth, stepDepth: c.stepDepth, maxSteps: c.maxSteps });
     const hashes = await withPool(workersOption(o.workers), "verify --check tables", async (pool) =>
-      tableHashes(await verifyTables(pool, plan)),
+      tableHashes(await verifyTables(pool, plan), sha256),
     );
     if (hashes.sieve.sha256 !== c.tables.sieve.sha256)
       findings.push(`the sieve table's sha256 is ${hashes.sieve.sha256}, the certificate says ${c.tables.sieve.sha256}`);

@@ -6,6 +6,7 @@
  */
 export class Smallest<T> {
   private items: T[] = [];
+  private cut: bigint | null = null;
 
   constructor(
     readonly limit: number,
@@ -15,6 +16,14 @@ export class Smallest<T> {
   add(item: T): void {
     this.items.push(item);
     if (this.items.length >= 2 * this.limit + 64) this.trim();
+  }
+
+  /**
+   * Entries with a key at or above this can no longer be kept (the limit-th smallest key known so
+   * far), or null while fewer than `limit` are known: a caller producing keys in order may stop there.
+   */
+  bound(): bigint | null {
+    return this.cut;
   }
 
   /** The kept entries, ascending by key. */
@@ -31,5 +40,6 @@ export class Smallest<T> {
       return a < b ? -1 : a > b ? 1 : 0;
     });
     if (this.items.length > this.limit) this.items.length = this.limit;
+    if (this.limit > 0 && this.items.length === this.limit) this.cut = k(this.items[this.limit - 1]!);
   }
 }

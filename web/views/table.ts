@@ -7,9 +7,9 @@ import { CSV_ROW_GUARD } from "../../src/outputs/tables.js";
 import { tableManifest } from "../../src/outputs/manifest.js";
 import { toExactJson } from "../../src/outputs/json.js";
 import { affineText } from "../../src/outputs/card.js";
-import { kernelBuildId, withExportWorker } from "../engine.js";
+import { kernelBuildId, sha256, withExportWorker } from "../engine.js";
 import pkg from "../../package.json";
-import { $, fieldError } from "../dom.js";
+import { $, download, fieldError } from "../dom.js";
 
 const ROW = 24;
 const MAX_SCROLL = 8_000_000; // px: far below browsers' element-height limits
@@ -107,22 +107,6 @@ function lowerBound(xs: Uint32Array, v: number): number {
     else hi = mid;
   }
   return lo;
-}
-
-function download(name: string, parts: BlobPart[], type: string): void {
-  const url = URL.createObjectURL(new Blob(parts, { type }));
-  const a = document.createElement("a");
-  a.href = url;
-  a.download = name;
-  document.body.append(a);
-  a.click();
-  a.remove();
-  setTimeout(() => URL.revokeObjectURL(url), 10_000);
-}
-
-async function sha256(data: Uint8Array<ArrayBuffer>): Promise<string> {
-  const d = await crypto.subtle.digest("SHA-256", data);
-  return Array.from(new Uint8Array(d), (x) => x.toString(16).padStart(2, "0")).join("");
 }
 
 async function exportTable(format: "raw" | "csv" | "arrow"): Promise<void> {

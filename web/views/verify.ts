@@ -2,7 +2,7 @@
 // lists and a certificate to download (the same library and certificate format as the CLI).
 import { parseMap } from "../../src/core/map.js";
 import type { CollatzMap } from "../../src/core/map.js";
-import { certificate } from "../../src/jobs/verify/certificate.js";
+import { certificate, tableHashes } from "../../src/jobs/verify/certificate.js";
 import type { TableHashes } from "../../src/jobs/verify/certificate.js";
 import { MAX_VERIFY_SIEVE_DEPTH, parseBound, planVerify, runVerify, verifyTables } from "../../src/jobs/verify/verify.js";
 import type { VerifyRequest, VerifyResult, VerifyTableData } from "../../src/jobs/verify/verify.js";
@@ -11,8 +11,8 @@ import { toExactJson } from "../../src/outputs/json.js";
 import { verifyJson } from "../../src/outputs/summary.js";
 import pkg from "../../package.json";
 import { RunController } from "../controller.js";
-import { $, fieldError } from "../dom.js";
-import { kernelBuildId, pagePoolPending, withPagePool } from "../engine.js";
+import { $, download, fieldError } from "../dom.js";
+import { kernelBuildId, pagePoolPending, sha256, withPagePool } from "../engine.js";
 
 const controller = new RunController({
   start: "verify-go",
@@ -57,11 +57,6 @@ export function readVerifyForm(): VerifyRequest | null {
     return null;
   }
   return req;
-}
-
-async function sha256(bytes: Uint8Array): Promise<string> {
-  const d = await crypto.subtle.digest("SHA-256", bytes as Uint8Array<ArrayBuffer>);
-  return Array.from(new Uint8Array(d), (x) => x.toString(16).padStart(2, "0")).join("");
 }
 
 function rows(head: string[], body: string[][]): string {
@@ -116,10 +111,7 @@ export async function startVerify(workers: number): Promise<boolean> {
         let tables: VerifyTableData | undefined;
         if (plan.engine === "kernel") {
           tables = await verifyTables(pool, plan, options);
-          hashes = {
-            sieve: { rows: tables.tables.residues.length, sha256: await sha256(tables.sieveBytes) },
-            steps: { rows: 2 ** tables.tables.stepDepth, sha256: await sha256(tables.stepBytes) },
-          };
+          hashes = await tableHashes(tables, sha256);
         }
         return runVerify(pool, req, { ...options, tables });
       }),
@@ -140,13 +132,7 @@ export function cancelVerify(): void {
 
 /** Hands the last run's certificate over as a download. */
 export function downloadCertificate(): void {
-  if (!lastCertificate) return;
-  const url = URL.createObjectURL(new Blob([lastCertificate], { type: "application/json" }));
-  const a = document.createElement("a");
-  a.href = url;
-  a.download = "verification-certificate.json";
-  a.click();
-  setTimeout(() => URL.revokeObjectURL(url), 10_000);
+  if (lastCertificate) download("verification-certificate.json", [lastCertificate], "application/json");
 }
 
 /** Fills From and To from the preset list. */

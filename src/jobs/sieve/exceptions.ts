@@ -2,6 +2,7 @@
 // For class a mod 2^j with T^j(a + 2^j x) = q^m x + b and q^m < 2^j, the member n = a + 2^j x
 // descends at step j (T^j(n) < n) exactly when (2^j - q^m) x > b - a; the rest are exceptions.
 import type { CollatzMap } from "../../core/map.js";
+import { Smallest } from "../../core/smallest.js";
 
 export interface ExceptionClass {
   readonly residue: bigint;
@@ -44,17 +45,7 @@ export function expandExceptions(
   limit = EXCEPTION_LIMIT,
 ): { list: SieveException[]; count: bigint } {
   let count = 0n;
-  let list: SieveException[] = [];
-  // members above `cutoff` cannot be among the smallest `limit` once `limit` are known below it
-  let cutoff: bigint | null = null;
-  const byN = (u: SieveException, v: SieveException) => (u.n < v.n ? -1 : u.n > v.n ? 1 : 0);
-  const trim = () => {
-    list.sort(byN);
-    if (list.length >= limit) {
-      list = list.slice(0, limit);
-      cutoff = list[limit - 1]?.n ?? null;
-    }
-  };
+  const list = new Smallest<SieveException>(limit, (e) => e.n);
   for (const c of classes) {
     const size = 1n << BigInt(c.classDepth);
     const gap = size - BigInt(map.q) ** BigInt(c.odd); // > 0 at the drop depth
@@ -64,13 +55,13 @@ export function expandExceptions(
     const xMin = c.residue === 0n ? 1n : 0n; // n = 0 is not positive
     if (xMax < xMin) continue;
     count += xMax - xMin + 1n;
+    // a class's members come in increasing n: past the list's bound none of them can be kept
     for (let x = xMin, taken = 0; x <= xMax && taken < limit; x++, taken++) {
       const n = c.residue + size * x;
-      if (cutoff !== null && n >= cutoff) break;
-      list.push({ n, residue: c.residue, classDepth: c.classDepth });
-      if (list.length >= 2 * limit) trim();
+      const bound = list.bound();
+      if (bound !== null && n >= bound) break;
+      list.add({ n, residue: c.residue, classDepth: c.classDepth });
     }
   }
-  trim();
-  return { list: limit === 0 ? [] : list, count };
+  return { list: list.sorted(), count };
 }

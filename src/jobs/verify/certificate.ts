@@ -8,7 +8,7 @@ import { parseExactJson } from "../../outputs/json.js";
 import { verifyCountsJson } from "../../outputs/summary.js";
 import type { ToolStamp } from "../../outputs/manifest.js";
 import { cycleEntry, traceBig } from "./verify.js";
-import type { StoredBlock, VerifyRequest, VerifyResult } from "./verify.js";
+import type { StoredBlock, VerifyRequest, VerifyResult, VerifyTableData } from "./verify.js";
 
 export const CERTIFICATE_KIND = "glidepath verification certificate";
 export const CHECKPOINT_KIND = "glidepath verification checkpoint";
@@ -17,6 +17,17 @@ export const CHECKPOINT_KIND = "glidepath verification checkpoint";
 export interface TableHashes {
   readonly sieve: { readonly rows: number; readonly sha256: string };
   readonly steps: { readonly rows: number; readonly sha256: string };
+}
+
+/**
+ * The hashes a certificate carries for a run's tables, with the platform's sha256 (hex).
+ * @example await tableHashes(data, (b) => createHash("sha256").update(b).digest("hex"))
+ */
+export async function tableHashes(data: VerifyTableData, sha256: (bytes: Uint8Array) => string | Promise<string>): Promise<TableHashes> {
+  return {
+    sieve: { rows: data.tables.residues.length, sha256: await sha256(data.sieveBytes) },
+    steps: { rows: 2 ** data.tables.stepDepth, sha256: await sha256(data.stepBytes) },
+  };
 }
 
 /**
@@ -71,12 +82,7 @@ export function certificate(
 export type Certificate = ReturnType<typeof certificate>;
 
 /** A checkpoint: the request, its plan key, and every completed block's raw result. */
-export function checkpoint(
-  req: Required<Pick<VerifyRequest, "from" | "to">> & VerifyRequest,
-  key: string,
-  blocks: number,
-  done: ReadonlyMap<number, StoredBlock>,
-) {
+export function checkpoint(req: VerifyRequest, key: string, blocks: number, done: ReadonlyMap<number, StoredBlock>) {
   const arr = (x: BigUint64Array) => Array.from(x);
   return {
     kind: CHECKPOINT_KIND,
@@ -190,6 +196,7 @@ export function readCertificate(text: string): ReadCertificate {
   } catch {
     throw new UsageError("the certificate is not JSON");
   }
+  if (j.kind === CHECKPOINT_KIND) throw new UsageError("this is a checkpoint, not a certificate: finish the run with --resume");
   if (j.kind !== CERTIFICATE_KIND) throw new UsageError(`not a glidepath verification certificate (kind: ${String(j.kind)})`);
   const c = j.counts as Record<string, unknown>;
   const rec = j.records as { glide: Record<string, bigint>[]; path: Record<string, bigint>[] };

@@ -22,11 +22,10 @@ export function verifyPrepare(kernel: Kernel, t: VerifyTables): void {
   kernel.region("verify.scratch", L("VERIFY_SCRATCH_BYTES"));
   const slacks = kernel.region("verify.slacks", 8 * t.slacks.length);
   new BigUint64Array(kernel.memory, slacks, t.slacks.length).set(t.slacks);
-  const mem = () => kernel.memory;
-  writeDropTables(kernel, tables, t.q, Math.max(t.depth, t.stepDepth));
-  new Uint32Array(mem(), a, S).set(t.residues);
+  const depth = Math.max(t.depth, t.stepDepth);
+  kernel.tablesFor("tables", `drop ${t.q} ${depth}`, () => writeDropTables(kernel, tables, t.q, depth));
+  new Uint32Array(kernel.memory, a, S).set(t.residues);
   kernel.call("verifyPrepare", [t.q, t.r, t.depth, t.stepDepth, tables, S, a, m, b, peak, sm, sb, speak]);
-  kernel.tablesFor("tables", `verify ${t.key}`, () => {});
 }
 
 /** Runs one block on tables already prepared. */

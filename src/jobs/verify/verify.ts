@@ -8,10 +8,11 @@
 import { LimitError, UsageError } from "../../core/errors.js";
 import { exactCounts } from "../../core/exact.js";
 import type { CollatzMap } from "../../core/map.js";
-import { dropDepth, kernelDepthLimit, stoppingOdds } from "../../core/map.js";
+import { dropDepth, kernelDepthLimit, step, stoppingOdds } from "../../core/map.js";
 import type { VerifyBlock, VerifyBlockResult, VerifyTables } from "../../engine/messages.js";
 import { CancelledError } from "../../engine/pool.js";
 import type { KernelPool, RunOptions } from "../../engine/pool.js";
+import { stepTableRaw } from "../../outputs/manifest.js";
 import { ResidueSorter } from "../../outputs/tables.js";
 import { EXCEPTION_LIMIT } from "../sieve/exceptions.js";
 import { expandExceptions } from "../sieve/exceptions.js";
@@ -117,9 +118,7 @@ export function traceBig(map: CollatzMap, n: bigint, maxSteps: number, depth: nu
  * @example cycleEntry(parseMap("3x+5"), 3n, 1000) // { min: 19n, period: 5 }
  */
 export function cycleEntry(map: CollatzMap, n: bigint, budget: number, maxBits = 256): { min: bigint; period: number } | null {
-  const q = BigInt(map.q);
-  const r = BigInt(map.r);
-  const T = (v: bigint) => ((v & 1n) === 1n ? (q * v + r) >> 1n : v >> 1n);
+  const T = (v: bigint) => step(map, v);
   const limit = 1n << BigInt(maxBits);
   let power = 1;
   let lam = 1;
@@ -344,12 +343,13 @@ export async function verifyTables(pool: KernelPool, plan: VerifyPlan, options: 
     at += part.length;
   }
   if (BigInt(at) !== rows) throw new Error(`internal error: ${at} survivors sorted, the exact counter says ${rows}`);
-  const steps = await stepTable(pool, map, KS, { signal: options.signal });
-  const stepImage = steps.image as BigUint64Array;
-  const offset = Math.ceil(2 ** KS / 8) * 8;
-  const stepBytes = new Uint8Array(offset + 8 * 2 ** KS);
-  stepBytes.set(steps.odd, 0);
-  stepBytes.set(new Uint8Array(stepImage.buffer, stepImage.byteOffset, stepImage.byteLength), offset);
+  const stepParts = stepTableRaw(await stepTable(pool, map, KS, { signal: options.signal }));
+  const stepBytes = new Uint8Array(stepParts.reduce((s, p) => s + p.length, 0));
+  let offset = 0;
+  for (const part of stepParts) {
+    stepBytes.set(part, offset);
+    offset += part.length;
+  }
   // the deepest cut within K, and the most odd steps a class cut by K can have before its cut
   const odds = stoppingOdds(map.q, K);
   let sievedGlide = 0;
@@ -604,7 +604,7 @@ export function mergeVerify(
       unreached += res.counts[3]!;
       for (let i = 0; i < res.handoffs.length; i += 4) {
         const n = res.handoffs[i]!;
-        if (plan.engine === "kernel") handoffCount++;
+        handoffCount++;
         const d = delayBig(map, n, plan.maxSteps);
         if (d === null) {
           unreached++;
@@ -645,7 +645,7 @@ export function mergeVerify(
     for (let i = 0; i < res.handoffs.length; i += 4) {
       const n = res.handoffs[i]!;
       const countedAsSieved = res.handoffs[i + 1]! === 1n;
-      if (plan.engine === "kernel") handoffCount++;
+      handoffCount++;
       const t = traceBig(map, n, plan.maxSteps, K);
       if (!countedAsSieved) {
         if (t.cutDepth !== null && t.outcome === "descent" && t.steps === t.cutDepth) sievedByDepth[t.cutDepth]!++;
