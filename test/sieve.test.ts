@@ -211,6 +211,7 @@ describe("sieve on the pool: special", () => {
       },
       pool1.module,
       1,
+      pool1.build,
     );
     const shard = { q: 3, r: 1, depth: 10, mode: "survivors" as const, prefixBits: 0, prefix: 0n, leaves: false, walkTallies: true };
     await expect(

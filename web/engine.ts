@@ -39,7 +39,7 @@ export async function kernelBuildId(): Promise<string> {
 }
 
 /** The page's one pool: jobs take turns on it, and a new worker count applies between jobs. */
-const owner = new PoolOwner(async (size) => new KernelPool(spawn, await kernelModule(), size));
+const owner = new PoolOwner(async (size) => new KernelPool(spawn, await kernelModule(), size, await kernelBuildId()));
 
 /**
  * Runs `work` on the page's pool of `workers` workers, after any job already running there.

@@ -1,7 +1,10 @@
 // glidepath census: every 2^K parity vector at once, its tallies as text, JSON or an Arrow file.
 import type { Command } from "commander";
-import { MAX_CENSUS_DEPTH, runCensus } from "../jobs/census/census.js";
-import type { CensusResult } from "../jobs/census/census.js";
+import { censusJob, MAX_CENSUS_DEPTH, runCensus } from "../jobs/census/census.js";
+import type { CensusParams, CensusResult } from "../jobs/census/census.js";
+import type { DataFile, ToolStamp } from "../outputs/manifest.js";
+import type { AtomicFile } from "../node/files.js";
+import type { BatchJob } from "./cluster.js";
 import { censusArrow } from "../outputs/arrow.js";
 import { group, plural } from "../outputs/format.js";
 import { toExactJson } from "../outputs/json.js";
@@ -16,33 +19,64 @@ import { levelTable } from "./report.js";
 
 const TEXT_DIFFER = 20;
 
+function censusOptions(cmd: Command): Command {
+  return cmd.option("--depth <K>", `depth: 1 to ${MAX_CENSUS_DEPTH}, within the signed 64-bit range`);
+}
+
+function censusParams(o: RawOptions): CensusParams {
+  return { map: mapOption(o.map), depth: intOption("depth", o.depth, 1, MAX_CENSUS_DEPTH) };
+}
+
+async function writeCensus(file: AtomicFile | null, c: CensusResult): Promise<CensusResult> {
+  await file?.write(censusArrow(c));
+  return c;
+}
+
+const censusManifest = (c: CensusResult, data: DataFile, stamp: ToolStamp) =>
+  manifest("glidepath census", c.map, "arrow", data, stamp, { depth: c.depth });
+
+/** The census on a cluster; merge --out writes its Arrow tallies. */
+export const censusBatch: BatchJob<CensusParams, CensusResult> = {
+  job: censusJob,
+  options: censusOptions,
+  params: censusParams,
+  json: censusJson,
+  out: {
+    formats: ["arrow"],
+    what: "the census tallies (arrow)",
+    async write(_pool, result, out, stamp) {
+      await withManifestOutput(
+        out.path,
+        (file) => writeCensus(file, result),
+        (c, data) => censusManifest(c, data, stamp),
+      );
+    },
+  },
+};
+
 export function censusCommand(program: Command): Command {
-  return jobCommand(
-    program,
-    "census",
-    "all 2^K parity vectors: alive and dropping classes by (j, m), peak coefficients, log2(T^K(a)/a), descents that differ",
+  return censusOptions(
+    jobCommand(
+      program,
+      "census",
+      "all 2^K parity vectors: alive and dropping classes by (j, m), peak coefficients, log2(T^K(a)/a), descents that differ",
+    ),
   )
-    .option("--depth <K>", `depth: 1 to ${MAX_CENSUS_DEPTH}, within the signed 64-bit range`)
     .option("--out <FILE>", "write the tallies as an Arrow file, with FILE.json beside it")
     .option("--format <arrow>", "output format (arrow)")
     .action((o: RawOptions) => census(o));
 }
 
 async function census(o: RawOptions): Promise<void> {
-  const map = mapOption(o.map);
-  const depth = intOption("depth", o.depth, 1, MAX_CENSUS_DEPTH);
+  const { map, depth } = censusParams(o);
   const workers = workersOption(o.workers);
   const out = outputOption(o, ["arrow"], "arrow");
   const stamp = await toolStamp();
   const c = await withPool(workers, `census ${map.name} 2^${depth}`, (pool, onProgress) =>
     withManifestOutput(
       out?.path,
-      async (file) => {
-        const result = await runCensus(pool, map, depth, { onProgress });
-        await file?.write(censusArrow(result));
-        return result;
-      },
-      (_r, data) => manifest("glidepath census", map, "arrow", data, stamp, { depth }),
+      async (file) => writeCensus(file, await runCensus(pool, map, depth, { onProgress })),
+      (c, data) => censusManifest(c, data, stamp),
     ),
   );
   print(o.json ? `${toExactJson(censusJson(c))}\n` : censusText(c, workers));

@@ -1,7 +1,10 @@
 // glidepath cycles: every integer cycle of period <= K, complete by construction.
 import type { Command } from "commander";
-import { MAX_CYCLE_PERIOD, searchCycles } from "../jobs/cycles/cycles.js";
-import type { CycleSearchResult } from "../jobs/cycles/cycles.js";
+import { cycleJob, MAX_CYCLE_PERIOD, searchCycles } from "../jobs/cycles/cycles.js";
+import type { CycleParams, CycleSearchResult } from "../jobs/cycles/cycles.js";
+import type { DataFile, ToolStamp } from "../outputs/manifest.js";
+import type { AtomicFile } from "../node/files.js";
+import type { BatchJob } from "./cluster.js";
 import { cyclesArrow } from "../outputs/arrow.js";
 import { group, plural } from "../outputs/format.js";
 import { toExactJson } from "../outputs/json.js";
@@ -17,29 +20,60 @@ interface CyclesOptions extends RawOptions {
   readonly maxPeriod?: string;
 }
 
+function cyclesOptions(cmd: Command): Command {
+  return cmd.option("--max-period <K>", `largest period in steps of T: 1 to ${MAX_CYCLE_PERIOD}, within the 128-bit range`);
+}
+
+function cyclesParams(o: CyclesOptions): CycleParams {
+  return { map: mapOption(o.map), maxPeriod: intOption("max-period", o.maxPeriod, 1, MAX_CYCLE_PERIOD) };
+}
+
+async function writeCycles(file: AtomicFile | null, r: CycleSearchResult): Promise<CycleSearchResult> {
+  await file?.write(cyclesArrow(r));
+  return r;
+}
+
+const cyclesManifest = (r: CycleSearchResult, data: DataFile, stamp: ToolStamp) =>
+  manifest("glidepath cycles", r.map, "arrow", data, stamp, { maxPeriod: r.maxPeriod, rows: r.cycles.length });
+
+/** The cycle search on a cluster; merge --out writes its Arrow list. */
+export const cyclesBatch: BatchJob<CycleParams, CycleSearchResult> = {
+  job: cycleJob,
+  options: cyclesOptions,
+  params: cyclesParams,
+  json: cyclesJson,
+  out: {
+    formats: ["arrow"],
+    what: "the cycles (arrow)",
+    async write(_pool, result, out, stamp) {
+      await withManifestOutput(
+        out.path,
+        (file) => writeCycles(file, result),
+        (r, data) => cyclesManifest(r, data, stamp),
+      );
+    },
+  },
+};
+
 export function cyclesCommand(program: Command): Command {
-  return jobCommand(program, "cycles", "every integer cycle (positive and negative) of period <= K, complete by construction")
-    .option("--max-period <K>", `largest period in steps of T: 1 to ${MAX_CYCLE_PERIOD}, within the 128-bit range`)
+  return cyclesOptions(
+    jobCommand(program, "cycles", "every integer cycle (positive and negative) of period <= K, complete by construction"),
+  )
     .option("--out <FILE>", "write the cycles as an Arrow file, with FILE.json beside it")
     .option("--format <arrow>", "output format (arrow)")
     .action((o: CyclesOptions) => cycles(o));
 }
 
 async function cycles(o: CyclesOptions): Promise<void> {
-  const map = mapOption(o.map);
-  const maxPeriod = intOption("max-period", o.maxPeriod, 1, MAX_CYCLE_PERIOD);
+  const { map, maxPeriod } = cyclesParams(o);
   const workers = workersOption(o.workers);
   const out = outputOption(o, ["arrow"], "arrow");
   const stamp = await toolStamp();
   const r = await withPool(workers, `cycles ${map.name} <= ${maxPeriod}`, (pool, onProgress) =>
     withManifestOutput(
       out?.path,
-      async (file) => {
-        const result = await searchCycles(pool, map, maxPeriod, { onProgress });
-        await file?.write(cyclesArrow(result));
-        return result;
-      },
-      (result, data) => manifest("glidepath cycles", map, "arrow", data, stamp, { maxPeriod, rows: result.cycles.length }),
+      async (file) => writeCycles(file, await searchCycles(pool, map, maxPeriod, { onProgress })),
+      (r, data) => cyclesManifest(r, data, stamp),
     ),
   );
   print(o.json ? `${toExactJson(cyclesJson(r))}\n` : cyclesText(r, workers));

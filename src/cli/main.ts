@@ -7,6 +7,7 @@ import { exitCodeOf } from "../core/errors.js";
 import { removePendingFiles } from "../node/files.js";
 import { toolVersion } from "../node/version.js";
 import { censusCommand } from "./census.js";
+import { clusterCommands } from "./cluster.js";
 import { classCommand } from "./class.js";
 import { conjugacyCommand } from "./conjugacy.js";
 import { countsCommand } from "./counts.js";
@@ -27,6 +28,7 @@ const COMMANDS: readonly ((program: Command) => Command)[] = [
   conjugacyCommand,
   stepsCommand,
   verifyCommand,
+  clusterCommands,
 ];
 
 const ABOUT = "parity vectors, residue-class sieves and 2-adic structure of T(n) = n/2 | (q n + r)/2";

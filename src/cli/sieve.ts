@@ -4,16 +4,18 @@ import type { Command } from "commander";
 import { UsageError } from "../core/errors.js";
 import { exactCounts } from "../core/exact.js";
 import { checkKernelDepth, MAX_KERNEL_DEPTH } from "../core/map.js";
-import type { CollatzMap } from "../core/map.js";
 import type { KernelPool } from "../engine/pool.js";
-import { runSieve } from "../jobs/sieve/sieve.js";
-import type { SieveResult } from "../jobs/sieve/sieve.js";
+import { runSieve, sieveJob, sieveParams } from "../jobs/sieve/sieve.js";
+import type { SieveParams, SieveResult } from "../jobs/sieve/sieve.js";
+import { runWhole } from "../engine/plan.js";
+import { mergeSortedTables } from "../node/cluster.js";
+import type { BatchJob } from "./cluster.js";
 import { classTableArrow } from "../outputs/arrow.js";
 import { group, plural } from "../outputs/format.js";
 import { toExactJson } from "../outputs/json.js";
 import { tableManifest } from "../outputs/manifest.js";
 import { sieveJson } from "../outputs/summary.js";
-import { collectRows, CSV_ROW_GUARD, csvLines, passPlan, ResidueSorter } from "../outputs/tables.js";
+import { collectRows, CSV_ROW_GUARD, csvLines } from "../outputs/tables.js";
 import type { CsvRow, TableFormat } from "../outputs/tables.js";
 import type { AtomicFile } from "../node/files.js";
 import { withManifestOutput } from "../node/files.js";
@@ -26,13 +28,50 @@ import { levelTable } from "./report.js";
 /** Exceptions listed in the text report (the smallest; --json lists up to the library's cap). */
 const TEXT_EXCEPTIONS = 50;
 
+/** The sieve's own options, for `sieve` and `batch sieve`. */
+function sieveOptions(cmd: Command): Command {
+  return cmd.option("--depth <K>", `depth: steps of T (0 to the map's exact 64-bit limit, 40 for 3x+1)`);
+}
+
+function sieveParamsOf(o: RawOptions, table: boolean): SieveParams {
+  const map = mapOption(o.map);
+  const depth = intOption("depth", o.depth, 0, MAX_KERNEL_DEPTH);
+  checkKernelDepth(map, depth);
+  return sieveParams({ map, depth, mode: "survivors" }, table);
+}
+
+/** The sieve on a cluster: its shards write sorted parts of the class table; merge --out joins them. */
+export const sieveBatch: BatchJob<SieveParams, SieveResult> = {
+  job: sieveJob,
+  options: sieveOptions,
+  params: (o) => sieveParamsOf(o, true),
+  json: sieveJson,
+  table: true,
+  out: {
+    formats: ["raw"],
+    what: "the class table (raw)",
+    async write(_pool, result, out, stamp, tables) {
+      const rows = result.levels[result.depth]!.survivors;
+      await withManifestOutput(
+        out.path,
+        async (file) => {
+          const n = await mergeSortedTables(tables, result.depth, file!);
+          if (n !== rows) throw new Error(`internal error: the parts hold ${n} residues, the tallies say ${rows}`);
+        },
+        (_r, data) => tableManifest(result.map, result.depth, rows, "raw", data, stamp),
+      );
+    },
+  },
+};
+
 export function sieveCommand(program: Command): Command {
-  return jobCommand(
-    program,
-    "sieve",
-    "the classes mod 2^K whose coefficient q^m/2^j has not dropped below 1, stopped classes and exceptions; export the table",
+  return sieveOptions(
+    jobCommand(
+      program,
+      "sieve",
+      "the classes mod 2^K whose coefficient q^m/2^j has not dropped below 1, stopped classes and exceptions; export the table",
+    ),
   )
-    .option("--depth <K>", `depth: steps of T (0 to the map's exact 64-bit limit, 40 for 3x+1)`)
     .option("--out <FILE>", "write the survivors' class table, with FILE.json beside it")
     .option("--format <raw|csv|arrow>", "table format (default: from the name's ending, else raw)")
     .option("--force", `allow CSV or Arrow above ${group(CSV_ROW_GUARD)} rows`)
@@ -40,9 +79,8 @@ export function sieveCommand(program: Command): Command {
 }
 
 async function sieve(o: RawOptions): Promise<void> {
-  const map = mapOption(o.map);
-  const depth = intOption("depth", o.depth, 0, MAX_KERNEL_DEPTH);
-  checkKernelDepth(map, depth);
+  const params = sieveParamsOf(o, o.out !== undefined);
+  const { map, depth } = params;
   const workers = workersOption(o.workers);
   const out = outputOption<TableFormat>(o, ["raw", "csv", "arrow"], "raw");
   const rows = exactCounts(map, depth).levels[depth]!.survivors;
@@ -56,10 +94,7 @@ async function sieve(o: RawOptions): Promise<void> {
   const result = await withPool(workers, `sieve ${map.name} mod 2^${depth}`, (pool, onProgress) =>
     withManifestOutput(
       out?.path,
-      (file) =>
-        file && out
-          ? writeTable(pool, map, depth, out.format, file, rows, onProgress)
-          : runSieve(pool, { map, depth, mode: "survivors" }, { onProgress }),
+      (file) => (file && out ? writeTable(pool, params, out.format, file, onProgress) : runWhole(pool, sieveJob, params, { onProgress })),
       (_r, data) => tableManifest(map, depth, rows, out!.format, data, stamp),
     ),
   );
@@ -67,42 +102,20 @@ async function sieve(o: RawOptions): Promise<void> {
   if (out) confirmOutput(o.json, `class table of ${plural(rows, "residue")} (${out.format})`, out.path);
 }
 
-/** Enumerates (once per memory pass) and streams the sorted table into `file`. */
+/** Runs the sieve and writes its table: raw through the job's own sorted output, CSV or Arrow from collected rows. */
 async function writeTable(
   pool: KernelPool,
-  map: CollatzMap,
-  depth: number,
+  params: SieveParams,
   format: TableFormat,
   file: AtomicFile,
-  rows: bigint,
   onProgress: (done: number, total: number) => void,
 ): Promise<SieveResult> {
-  if (format !== "raw") {
-    const collected: CsvRow[] = [];
-    const result = await runSieve(pool, { map, depth, mode: "survivors", onLeaves: (c) => collectRows(collected, c) }, { onProgress });
-    if (format === "arrow") await file.write(classTableArrow(collected, depth, map.r < 0));
-    else for (const line of csvLines(collected)) await file.write(line);
-    return result;
-  }
-  const plan = passPlan(depth, rows);
-  const buckets = 1 << plan.bucketBits;
-  let first: SieveResult | null = null;
-  let written = 0n;
-  for (let p = 0; p < plan.passes; p++) {
-    const from = Math.floor((p * buckets) / plan.passes);
-    const to = Math.floor(((p + 1) * buckets) / plan.passes);
-    const sorter = new ResidueSorter(depth, plan.bucketBits, from, to);
-    const result = await runSieve(
-      pool,
-      { map, depth, mode: "survivors", onLeaves: (c) => sorter.add(c), residuesOnly: true },
-      { onProgress: (done, total) => onProgress(p * total + done, plan.passes * total) },
-    );
-    first ??= result;
-    for (const part of sorter.sorted()) await file.write(new Uint8Array(part.buffer, part.byteOffset, part.byteLength));
-    written += BigInt(sorter.count);
-  }
-  if (written !== rows) throw new Error(`internal error: wrote ${written} residues, the exact counter says ${rows}`);
-  return first!;
+  if (format === "raw") return runWhole(pool, sieveJob, params, { onProgress, out: file });
+  const collected: CsvRow[] = [];
+  const result = await runSieve(pool, { ...params, onLeaves: (c) => collectRows(collected, c) }, { onProgress });
+  if (format === "arrow") await file.write(classTableArrow(collected, params.depth, params.map.r < 0));
+  else for (const line of csvLines(collected)) await file.write(line);
+  return result;
 }
 
 function sieveText(r: SieveResult, workers: number): string {

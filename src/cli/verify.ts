@@ -14,9 +14,11 @@ import {
   parseBound,
   planVerify,
   runVerify,
+  verifyJob,
   verifyTables,
 } from "../jobs/verify/verify.js";
-import type { StoredBlock, VerifyRequest, VerifyResult } from "../jobs/verify/verify.js";
+import type { StoredBlock, VerifyParams, VerifyRequest, VerifyResult } from "../jobs/verify/verify.js";
+import type { BatchJob } from "./cluster.js";
 import { group, plural } from "../outputs/format.js";
 import { parseExactJson, toExactJson } from "../outputs/json.js";
 import { verifyJson } from "../outputs/summary.js";
@@ -71,18 +73,49 @@ function readTableFile(option: string, path: string, kind: string, map: CollatzM
 /** Records shown in the text report (all of them are in --json and the certificate). */
 const TEXT_RECORDS = 40;
 
-export function verifyCommand(program: Command): Command {
-  return jobCommand(
-    program,
-    "verify",
-    "check that every n in [FROM, TO) reaches a value below n; glide and path records; certificates and checkpoints",
-  )
+/** The range and its parameters, for `verify` and `batch verify`. */
+function rangeOptions(cmd: Command): Command {
+  return cmd
     .option("--from <FROM>", "first number (decimal, or a sum of powers such as 2^50+2^32)")
     .option("--to <TO>", "the end of the range, not included")
     .option("--sieve-depth <K>", `sieve depth: 1 to ${MAX_VERIFY_SIEVE_DEPTH} (default 26)`)
     .option("--step-depth <k>", `table step depth: 1 to ${MAX_VERIFY_STEP_DEPTH} (default 16)`)
     .option("--delay", "also the delay of every n (steps to reach 1) and its records: each n iterated to the end, slower")
-    .option("--max-steps <S>", `steps after which a trajectory is reported unresolved (default ${DEFAULT_MAX_STEPS})`)
+    .option("--max-steps <S>", `steps after which a trajectory is reported unresolved (default ${DEFAULT_MAX_STEPS})`);
+}
+
+/** A verification range on a cluster: shards are runs of its blocks; merge --out writes the certificate. */
+export const verifyBatch: BatchJob<VerifyParams, VerifyResult> = {
+  job: verifyJob,
+  options: rangeOptions,
+  params: (o: VerifyOptions) => {
+    const req = request(o, mapOption(o.map));
+    planVerify(req); // checks it
+    return req;
+  },
+  json: verifyJson,
+  out: {
+    formats: ["raw"],
+    what: "the certificate",
+    async write(pool, result, out, stamp) {
+      const { map, from, to, sieveDepth, stepDepth, maxSteps } = result;
+      const plan = planVerify({ map, from, to, sieveDepth, stepDepth, maxSteps });
+      const hashes = plan.engine === "kernel" ? await tableHashes(await verifyTables(pool, plan), sha256) : null;
+      const now = new Date().toISOString();
+      const cert = certificate(result, hashes, stamp, { started: now, finished: now, workers: pool.size });
+      await writeFileAtomic(out.path, `${toExactJson(cert, 2)}\n`);
+    },
+  },
+};
+
+export function verifyCommand(program: Command): Command {
+  return rangeOptions(
+    jobCommand(
+      program,
+      "verify",
+      "check that every n in [FROM, TO) reaches a value below n; glide and path records; certificates and checkpoints",
+    ),
+  )
     .option("--out <FILE>", "write the certificate (JSON)")
     .option("--checkpoint <FILE>", "keep the run's state in FILE after every block (resume with --resume FILE)")
     .option("--resume <FILE>", "continue the run a checkpoint describes (its options are the checkpoint's)")

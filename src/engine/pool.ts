@@ -34,7 +34,7 @@ export interface RunOptions {
 
 /**
  * A fixed-size pool of kernel workers.
- * @example const pool = new KernelPool(spawn, module, 2);
+ * @example const pool = new KernelPool(spawn, module, 2, buildId);
  *   await pool.run(shards, (api, s) => api.runShard(s), (s, out) => merge(out));
  */
 export class KernelPool {
@@ -46,6 +46,8 @@ export class KernelPool {
     private readonly spawn: SpawnWorker,
     readonly module: WebAssembly.Module,
     readonly size: number,
+    /** The kernel build's content hash, which plans and their parts carry. */
+    readonly build: string,
   ) {
     if (!Number.isInteger(size) || size < 1) throw new RangeError("pool size must be a positive integer");
   }

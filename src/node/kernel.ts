@@ -55,7 +55,7 @@ const spawnNodeWorker: SpawnWorker = () => {
 
 /** A pool of `workers` threads (default: the available cores). */
 export async function nodePool(workers = availableParallelism(), flavour: Flavour = "release"): Promise<KernelPool> {
-  return new KernelPool(spawnNodeWorker, await loadKernelModule(flavour), workers);
+  return new KernelPool(spawnNodeWorker, await loadKernelModule(flavour), workers, await kernelBuildId(flavour));
 }
 
 /**

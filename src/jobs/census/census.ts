@@ -1,10 +1,12 @@
 // Census of all 2^K parity vectors: the kernel's full-tree tallies (assembly/census.ts) merged and
 // finished exactly here: ambiguous log2 bins and the largest ratio are decided in BigInt.
 import type { CollatzMap } from "../../core/map.js";
-import { kernelDepthLimit } from "../../core/map.js";
+import { kernelDepthLimit, parseMap } from "../../core/map.js";
 import { TALLY_STRIDE } from "../../engine/messages.js";
 import type { CensusShard, CensusShardResult } from "../../engine/messages.js";
-import { choosePrefixBits } from "../../engine/plan.js";
+import { threadKernel } from "../../engine/loader.js";
+import { choosePrefixBits, largestShare, runWhole, shardEstimate, shardPrefixes } from "../../engine/plan.js";
+import type { JobKind, PartBase, Plan } from "../../engine/plan.js";
 import { coefficientBins } from "./kernel.js";
 import type { KernelPool, RunOptions } from "../../engine/pool.js";
 import { exactCounts } from "../../core/exact.js";
@@ -69,119 +71,236 @@ function addInto(acc: BigUint64Array, x: BigUint64Array): void {
   for (let i = 0; i < acc.length; i++) if ((w[2 * i]! | w[2 * i + 1]!) !== 0) acc[i] = acc[i]! + x[i]!;
 }
 
-/** The census shards: 2^d prefixes (the kernel tallies each ancestor in the shard that owns it). */
-export function censusShards(map: CollatzMap, depth: number, workers: number, vectors: boolean): CensusShard[] {
-  // census nodes cost several times a sieve's: larger shards keep the host's merging small
-  const d = Math.min(choosePrefixBits(map, depth, "full", workers, vectors, 2n ** 24n), depth);
-  const shards: CensusShard[] = [];
-  for (let s = 0n; s < 1n << BigInt(d); s++) shards.push({ q: map.q, r: map.r, depth, prefixBits: d, prefix: s, vectors });
-  return shards;
+export interface CensusParams {
+  readonly map: CollatzMap;
+  readonly depth: number;
 }
 
-/**
- * Runs the census of all 2^depth parity vectors.
- * @example const c = await runCensus(pool, parseMap("3x+1"), 20); c.agreesWithExactCounter // true
- */
-export async function runCensus(pool: KernelPool, map: CollatzMap, depth: number, options: RunOptions = {}): Promise<CensusResult> {
-  if (!Number.isInteger(depth) || depth < 1 || depth > MAX_CENSUS_DEPTH)
-    throw new UsageError(`census depth must be between 1 and ${MAX_CENSUS_DEPTH}`);
-  const limit = kernelDepthLimit(map, "i64");
-  if (depth > limit)
-    throw new LimitError(`census depth ${depth} is beyond the exact signed 64-bit range for ${map.name} (at most ${limit})`);
-  const started = performance.now();
-  const n = (depth + 1) * TALLY_STRIDE;
-  const acc = { live: new BigUint64Array(n), stopped: new BigUint64Array(n), vectors: new BigUint64Array(n), peak: new BigUint64Array(n) };
-  // sized and offset as the kernel's (binOffset)
-  const acc2: { bins: BigUint64Array | null; binOffset: number } = { bins: null, binOffset: 0 };
-  let nonpositive = 0n,
-    differCount = 0n,
-    early = 0n,
-    nodes = 0n;
-  const ambiguous: [bigint, bigint][] = [];
-  const slow = new BigUint64Array(depth + 1);
-  const differ = new Smallest<bigint>(DIFFER_LISTED, (n) => n);
+/** The largest T^j(a)/a seen so far: T^step(n) = value. */
+interface Ratio {
+  readonly n: bigint;
+  readonly value: bigint;
+  readonly step: number;
+}
+
+/** A shard's census tallies, summed over its tasks, with its ambiguous bins already decided. */
+export interface CensusPart extends PartBase {
+  readonly nodes: bigint;
+  readonly live: BigUint64Array;
+  readonly stopped: BigUint64Array;
+  readonly vectors: BigUint64Array;
+  readonly peak: BigUint64Array;
+  /** bins[k + binOffset]: least members binned by the kernel or decided exactly here. */
+  readonly bins: BigUint64Array;
+  readonly binOffset: number;
+  readonly nonpositive: bigint;
+  readonly differCount: bigint;
+  readonly early: bigint;
+  /** Per m: least members binned on the slow path (the others follow from the vectors). */
+  readonly slow: BigUint64Array;
+  /** The smallest least members whose descent differs, ascending (at most DIFFER_LISTED). */
+  readonly differ: BigUint64Array;
+  readonly best: Ratio;
+}
+
+/** Exact comparison: does T^step(u) = v beat the best ratio (ties: the smaller member, then the earlier step)? */
+function beats(u: bigint, v: bigint, step: number, best: Ratio): boolean {
+  const lhs = v * best.n,
+    rhs = best.value * u;
+  return lhs > rhs || (lhs === rhs && (u < best.n || (u === best.n && step < best.step)));
+}
+
+/** Sums kernel results and parts alike (associative: sums, the smallest members, the best ratio). */
+class CensusTally {
+  nodes = 0n;
+  readonly live: BigUint64Array;
+  readonly stopped: BigUint64Array;
+  readonly vectors: BigUint64Array;
+  readonly peak: BigUint64Array;
+  readonly bins: BigUint64Array;
+  readonly slow: BigUint64Array;
+  nonpositive = 0n;
+  differCount = 0n;
+  early = 0n;
+  private readonly differ = new Smallest<bigint>(DIFFER_LISTED, (n) => n);
   // T^0(1)/1 = 1 is always a candidate (the kernel reports members from step 1 and a > 0 classes)
-  const top = { best: { n: 1n, value: 1n, step: 0 } };
-  const signed = map.r < 0;
-  const merge = (out: CensusShardResult) => {
-    addInto(acc.live, out.live);
-    addInto(acc.stopped, out.stopped);
-    addInto(acc.vectors, out.vectors);
-    addInto(acc.peak, out.peak);
-    acc2.bins ??= new BigUint64Array(out.bins.length);
-    acc2.binOffset = out.binOffset;
-    addInto(acc2.bins, out.bins);
-    nonpositive += out.counts[0]!;
-    differCount += out.counts[1]!;
-    early += out.counts[2]!;
-    for (let m = 0; m <= depth; m++) slow[m] = slow[m]! + out.counts[4 + m]!;
-    nodes += out.nodes;
-    for (let i = 0; i < out.ambiguous.length; i += 4)
-      ambiguous.push([out.ambiguous[i]!, signed ? BigInt.asIntN(64, out.ambiguous[i + 1]!) : out.ambiguous[i + 1]!]);
-    for (let i = 0; i < out.differ.length; i += 4) differ.add(out.differ[i]!);
+  best: Ratio = { n: 1n, value: 1n, step: 0 };
+
+  constructor(
+    private readonly depth: number,
+    binCount: number,
+    readonly binOffset: number,
+  ) {
+    const n = (depth + 1) * TALLY_STRIDE;
+    this.live = new BigUint64Array(n);
+    this.stopped = new BigUint64Array(n);
+    this.vectors = new BigUint64Array(n);
+    this.peak = new BigUint64Array(n);
+    this.bins = new BigUint64Array(binCount);
+    this.slow = new BigUint64Array(depth + 1);
+  }
+
+  private addTables(x: Pick<CensusPart, "live" | "stopped" | "vectors" | "peak" | "bins" | "nodes">): void {
+    addInto(this.live, x.live);
+    addInto(this.stopped, x.stopped);
+    addInto(this.vectors, x.vectors);
+    addInto(this.peak, x.peak);
+    addInto(this.bins, x.bins);
+    this.nodes += x.nodes;
+  }
+
+  /** One kernel task's result; its ambiguous bins are decided here, in BigInt. */
+  addShard(out: CensusShardResult, signed: boolean): void {
+    if (out.binOffset !== this.binOffset || out.bins.length !== this.bins.length) throw new Error("internal error: census bins differ");
+    this.addTables(out);
+    this.nonpositive += out.counts[0]!;
+    this.differCount += out.counts[1]!;
+    this.early += out.counts[2]!;
+    for (let m = 0; m <= this.depth; m++) this.slow[m] = this.slow[m]! + out.counts[4 + m]!;
+    for (let i = 0; i < out.ambiguous.length; i += 4) {
+      const b = signed ? BigInt.asIntN(64, out.ambiguous[i + 1]!) : out.ambiguous[i + 1]!;
+      this.bins[quarterLog2(out.ambiguous[i]!, b) + this.binOffset]!++;
+    }
+    for (let i = 0; i < out.differ.length; i += 4) this.differ.add(out.differ[i]!);
     for (let i = 0; i < out.ratio.length; i += 4) {
       const u = out.ratio[i]!,
         v = out.ratio[i + 1]!,
         step = Number(out.ratio[i + 2]!);
-      // exact comparison v / u > best.value / best.n by cross multiplication (positive values);
-      // ties go to the smaller member, then the earlier step
-      const best = top.best;
-      const lhs = v * best.n,
-        rhs = best.value * u;
-      if (lhs > rhs || (lhs === rhs && (u < best.n || (u === best.n && step < best.step)))) top.best = { n: u, value: v, step };
+      if (beats(u, v, step, this.best)) this.best = { n: u, value: v, step };
     }
-  };
-  await pool.run(
-    censusShards(map, depth, pool.size, false),
-    (api, s) => api.runCensus(s),
-    (_s, out) => merge(out),
-    options,
-  );
+  }
 
-  const binsOf = acc2.bins;
-  const binOffset = acc2.binOffset;
-  if (!binsOf) throw new Error("internal error: the census ran no shard");
-  for (const [a, b] of ambiguous) binsOf[quarterLog2(a, b) + binOffset]!++;
-  // The fast-path leaves: with m odd steps, all leaves (nodes at depth K) but the slow ones and a = 0.
-  const vectors = nodesFromParents(rows(acc.vectors, depth));
-  coefficientBins(map.q, map.r, depth).forEach(({ k }, m) => {
-    const fast = vectors[depth]![m]! - slow[m]! - (m === 0 ? 1n : 0n);
-    binsOf[k + binOffset] = binsOf[k + binOffset]! + fast;
-  });
-  const ratioBins: CensusResult["ratioBins"] = [];
-  binsOf.forEach((count, i) => {
-    if (count > 0n) ratioBins.push({ bin: i - binOffset, count });
-  });
-  const live = rows(acc.live, depth),
-    stopped = rows(acc.stopped, depth);
-  const exact = exactCounts(map, depth, { byOdd: true }).byOdd!;
-  const agrees =
-    live.every((row, j) => row.every((c, m) => c === at(exact[j]!, "live", m))) &&
-    stopped.every((row, j) => row.every((c, m) => c === at(exact[j]!, "stopped", m)));
-  const levels = live.map((row, j) => ({
-    depth: j,
-    survivors: row.reduce((s, x) => s + x, 0n),
-    stopped: stopped[j]!.reduce((s, x) => s + x, 0n),
-  }));
-  const listed = differ
-    .sorted()
-    .map((n) => ({ n, descent: firstDescent(map, n, depth), stoppingTime: classFromResidue(map, n, depth).stoppingTime }));
-  return {
-    map,
-    depth,
-    levels,
-    live,
-    stopped,
-    vectors,
-    peak: rows(acc.peak, depth),
-    ratioBins,
-    nonpositive,
-    differ: { count: differCount, early, listed, limit: DIFFER_LISTED },
-    maxRatio: top.best,
-    agreesWithExactCounter: agrees,
-    nodes,
-    seconds: (performance.now() - started) / 1000,
-  };
+  addPart(p: CensusPart): void {
+    if (p.binOffset !== this.binOffset || p.bins.length !== this.bins.length) throw new Error("census parts of another layout");
+    this.addTables(p);
+    this.nonpositive += p.nonpositive;
+    this.differCount += p.differCount;
+    this.early += p.early;
+    for (let m = 0; m <= this.depth; m++) this.slow[m] = this.slow[m]! + p.slow[m]!;
+    for (const n of p.differ) this.differ.add(n);
+    if (beats(p.best.n, p.best.value, p.best.step, this.best)) this.best = p.best;
+  }
+
+  part(seconds: number): CensusPart {
+    const { nodes, live, stopped, vectors, peak, bins, binOffset, nonpositive, differCount, early, slow, best } = this;
+    const differ = BigUint64Array.from(this.differ.sorted());
+    return { nodes, live, stopped, vectors, peak, bins, binOffset, nonpositive, differCount, early, slow, differ, best, seconds };
+  }
+
+  /** The census itself: the fast-path bins from the vectors, the exact counter's cross-check, the lists. */
+  finish(map: CollatzMap, seconds: number): CensusResult {
+    const depth = this.depth;
+    const binsOf = this.bins.slice();
+    // The fast-path leaves: with m odd steps, all leaves (nodes at depth K) but the slow ones and a = 0.
+    const vectors = nodesFromParents(rows(this.vectors, depth));
+    coefficientBins(map.q, map.r, depth).forEach(({ k }, m) => {
+      const fast = vectors[depth]![m]! - this.slow[m]! - (m === 0 ? 1n : 0n);
+      binsOf[k + this.binOffset] = binsOf[k + this.binOffset]! + fast;
+    });
+    const ratioBins: CensusResult["ratioBins"] = [];
+    binsOf.forEach((count, i) => {
+      if (count > 0n) ratioBins.push({ bin: i - this.binOffset, count });
+    });
+    const live = rows(this.live, depth),
+      stopped = rows(this.stopped, depth);
+    const exact = exactCounts(map, depth, { byOdd: true }).byOdd!;
+    const agrees =
+      live.every((row, j) => row.every((c, m) => c === at(exact[j]!, "live", m))) &&
+      stopped.every((row, j) => row.every((c, m) => c === at(exact[j]!, "stopped", m)));
+    const levels = live.map((row, j) => ({
+      depth: j,
+      survivors: row.reduce((s, x) => s + x, 0n),
+      stopped: stopped[j]!.reduce((s, x) => s + x, 0n),
+    }));
+    const listed = this.differ
+      .sorted()
+      .map((n) => ({ n, descent: firstDescent(map, n, depth), stoppingTime: classFromResidue(map, n, depth).stoppingTime }));
+    return {
+      map,
+      depth,
+      levels,
+      live,
+      stopped,
+      vectors,
+      peak: rows(this.peak, depth),
+      ratioBins,
+      nonpositive: this.nonpositive,
+      differ: { count: this.differCount, early: this.early, listed, limit: DIFFER_LISTED },
+      maxRatio: this.best,
+      agreesWithExactCounter: agrees,
+      nodes: this.nodes,
+      seconds,
+    };
+  }
+}
+
+/** Checks a census depth for the map: one clear error. */
+function checkCensusDepth(map: CollatzMap, depth: number, max: number, what: string): void {
+  if (!Number.isInteger(depth) || depth < 1 || depth > max) throw new UsageError(`${what} depth must be between 1 and ${max}`);
+  const limit = kernelDepthLimit(map, "i64");
+  if (depth > limit)
+    throw new LimitError(`${what} depth ${depth} is beyond the exact signed 64-bit range for ${map.name} (at most ${limit})`);
+}
+
+/**
+ * The layout of a full-tree job (census, conjugacy): all 2^d prefixes, d chosen for `parallelism`
+ * (census nodes cost several times a sieve's: larger tasks keep the host's merging small).
+ */
+export function fullTreeLayout(map: CollatzMap, depth: number, parallelism: number, vectors: boolean) {
+  const d = Math.min(choosePrefixBits(map, depth, "full", parallelism, vectors, 2n ** 24n), depth);
+  return { prefixBits: d, prefixes: null, tasks: 2 ** d };
+}
+
+/** The kernel tasks of one shard of a full-tree plan. */
+export function censusTasks(plan: Plan<CensusParams>, shard: number, vectors: boolean): CensusShard[] {
+  const { map, depth } = plan.params;
+  return shardPrefixes(plan, shard).map((prefix) => ({ q: map.q, r: map.r, depth, prefixBits: plan.prefixBits, prefix, vectors }));
+}
+
+export const censusJob: JobKind<CensusParams, CensusPart, CensusResult> = {
+  name: "census",
+  describe: (p) => `census ${p.map.name} 2^${p.depth}`,
+  encodeParams: (p) => ({ map: p.map.name, depth: p.depth }),
+  decodeParams: (s) => ({ map: parseMap(String(s.map)), depth: Number(s.depth) }),
+  estimate(plan, cpus) {
+    const share = BigInt(largestShare(plan).tasks) << BigInt(plan.params.depth + 1 - plan.prefixBits);
+    return shardEstimate(share, 1.5e7, cpus, 2 ** 26);
+  },
+  async layout(_pool, p, parallelism) {
+    checkCensusDepth(p.map, p.depth, MAX_CENSUS_DEPTH, "census");
+    return fullTreeLayout(p.map, p.depth, parallelism, false);
+  },
+  async runShard(pool, plan, shard, options = {}) {
+    const started = performance.now();
+    const tasks = censusTasks(plan, shard, false);
+    const kernel = await threadKernel(pool.module);
+    const tally = new CensusTally(plan.params.depth, kernel.layout("CENSUS_BINS"), kernel.layout("CENSUS_BIN_OFFSET"));
+    const signed = plan.params.map.r < 0;
+    await pool.run(
+      tasks,
+      (api, s) => api.runCensus(s),
+      (_s, out) => tally.addShard(out, signed),
+      options,
+    );
+    return tally.part((performance.now() - started) / 1000);
+  },
+  async merge(pool, plan, parts) {
+    const kernel = await threadKernel(pool.module);
+    const tally = new CensusTally(plan.params.depth, kernel.layout("CENSUS_BINS"), kernel.layout("CENSUS_BIN_OFFSET"));
+    for (const p of parts) tally.addPart(p);
+    return tally.finish(
+      plan.params.map,
+      parts.reduce((s, p) => s + p.seconds, 0),
+    );
+  },
+};
+
+/**
+ * Runs the census of all 2^depth parity vectors: one shard of the plan layer, merged.
+ * @example const c = await runCensus(pool, parseMap("3x+1"), 20); c.agreesWithExactCounter // true
+ */
+export function runCensus(pool: KernelPool, map: CollatzMap, depth: number, options: RunOptions = {}): Promise<CensusResult> {
+  return runWhole(pool, censusJob, { map, depth }, options);
 }
 
 /** Nodes at (j, m): the root, then the children of parents (j - 1, m) (even) and (j - 1, m - 1) (odd). */

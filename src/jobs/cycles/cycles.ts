@@ -4,10 +4,11 @@
 // b - a (assembly/cycles.ts tests every node). The host solves for the periodic point, walks the
 // cycle in BigInt, and keeps each cycle once, with its minimal period.
 import type { CollatzMap } from "../../core/map.js";
-import { kernelDepthLimit } from "../../core/map.js";
-import { threadKernel } from "../../engine/loader.js";
+import { kernelDepthLimit, parseMap } from "../../core/map.js";
+import { concatU64, threadKernel } from "../../engine/loader.js";
 import type { CycleShard } from "../../engine/messages.js";
-import { choosePrefixBits } from "../../engine/plan.js";
+import { choosePrefixBits, largestShare, runWhole, shardEstimate, shardPrefixes } from "../../engine/plan.js";
+import type { JobKind, PartBase } from "../../engine/plan.js";
 import { cycleShard } from "./kernel.js";
 import type { KernelPool, RunOptions } from "../../engine/pool.js";
 import { cycleRepresentative, iterate } from "../../core/padic.js";
@@ -99,48 +100,82 @@ export class CycleCollector {
   }
 }
 
-/**
- * Every integer cycle of period <= maxPeriod.
- * @example (await searchCycles(pool, parseMap("3x+1"), 12)).cycles.map((c) => c.representative) // [1n, -1n, -5n, -17n]
- */
-export async function searchCycles(
-  pool: KernelPool,
-  map: CollatzMap,
-  maxPeriod: number,
-  options: RunOptions = {},
-): Promise<CycleSearchResult> {
-  if (!Number.isInteger(maxPeriod) || maxPeriod < 1 || maxPeriod > MAX_CYCLE_PERIOD)
-    throw new UsageError(`maximum period must be between 1 and ${MAX_CYCLE_PERIOD}`);
-  const width = cycleWidth(map, maxPeriod);
-  const started = performance.now();
-  const kernel = await threadKernel(pool.module);
-  const d = Math.min(choosePrefixBits(map, maxPeriod, "full", pool.size, false), maxPeriod);
-  const base = { q: map.q, r: map.r, wide: width === 128 } as const;
-  const collector = new CycleCollector(map);
-  // the top of the tree (depths 1..d) here, then one shard per prefix for depths d+1..maxPeriod
-  const top = cycleShard(kernel, { ...base, depth: d, prefixBits: 0, prefix: 0n, walkTallies: true });
-  collector.add(top.candidates);
-  let nodes = top.nodes + 1n;
-  if (d < maxPeriod) {
-    const shards: CycleShard[] = [];
-    for (let s = 0n; s < 1n << BigInt(d); s++) shards.push({ ...base, depth: maxPeriod, prefixBits: d, prefix: s, walkTallies: false });
+export interface CycleParams {
+  readonly map: CollatzMap;
+  readonly maxPeriod: number;
+}
+
+/** A shard's raw candidates (4 u64 each, as the kernel gives them) and its node count. */
+export interface CyclePart extends PartBase {
+  readonly nodes: bigint;
+  readonly candidates: BigUint64Array;
+}
+
+export const cycleJob: JobKind<CycleParams, CyclePart, CycleSearchResult> = {
+  name: "cycles",
+  describe: (p) => `cycles of ${p.map.name} to period ${p.maxPeriod}`,
+  encodeParams: (p) => ({ map: p.map.name, maxPeriod: p.maxPeriod }),
+  decodeParams: (s) => ({ map: parseMap(String(s.map)), maxPeriod: Number(s.maxPeriod) }),
+  estimate(plan, cpus) {
+    const { maxPeriod } = plan.params;
+    const share =
+      plan.tasks === 0 ? 1n << BigInt(maxPeriod + 1) : BigInt(largestShare(plan).tasks) << BigInt(maxPeriod + 1 - plan.prefixBits);
+    return shardEstimate(share, 2e7, cpus, 2 ** 26);
+  },
+  async layout(_pool, p, parallelism) {
+    if (!Number.isInteger(p.maxPeriod) || p.maxPeriod < 1 || p.maxPeriod > MAX_CYCLE_PERIOD)
+      throw new UsageError(`maximum period must be between 1 and ${MAX_CYCLE_PERIOD}`);
+    cycleWidth(p.map, p.maxPeriod);
+    const d = Math.min(choosePrefixBits(p.map, p.maxPeriod, "full", parallelism, false), p.maxPeriod);
+    // depths 1..d are the top walk's (shard 0); each prefix at d is a task for depths d+1..maxPeriod
+    return { prefixBits: d, prefixes: null, tasks: d < p.maxPeriod ? 2 ** d : 0 };
+  },
+  async runShard(pool, plan, shard, options = {}) {
+    const started = performance.now();
+    const { map, maxPeriod } = plan.params;
+    const prefixes = shardPrefixes(plan, shard);
+    const base = { q: map.q, r: map.r, wide: cycleWidth(map, maxPeriod) === 128 } as const;
+    const d = plan.prefixBits;
+    const found: BigUint64Array[] = [];
+    let nodes = 0n;
+    if (shard === 0) {
+      const kernel = await threadKernel(pool.module);
+      const top = cycleShard(kernel, { ...base, depth: d, prefixBits: 0, prefix: 0n, walkTallies: true });
+      found.push(top.candidates);
+      nodes += top.nodes + 1n;
+    }
+    const tasks: CycleShard[] = prefixes.map((prefix) => ({ ...base, depth: maxPeriod, prefixBits: d, prefix, walkTallies: false }));
     await pool.run(
-      shards,
-      (api, shard) => api.runCycles(shard),
+      tasks,
+      (api, task) => api.runCycles(task),
       (_s, out) => {
-        collector.add(out.candidates);
+        found.push(out.candidates);
         nodes += out.nodes;
       },
       options,
     );
-  }
-  return {
-    map,
-    maxPeriod,
-    width,
-    cycles: collector.sorted(),
-    candidates: collector.candidates,
-    nodes,
-    seconds: (performance.now() - started) / 1000,
-  };
+    return { nodes, candidates: concatU64(found), seconds: (performance.now() - started) / 1000 };
+  },
+  async merge(_pool, plan, parts) {
+    const { map, maxPeriod } = plan.params;
+    const collector = new CycleCollector(map);
+    for (const p of parts) collector.add(p.candidates);
+    return {
+      map,
+      maxPeriod,
+      width: cycleWidth(map, maxPeriod),
+      cycles: collector.sorted(),
+      candidates: collector.candidates,
+      nodes: parts.reduce((s, p) => s + p.nodes, 0n),
+      seconds: parts.reduce((s, p) => s + p.seconds, 0),
+    };
+  },
+};
+
+/**
+ * Every integer cycle of period <= maxPeriod: one shard of the plan layer, merged.
+ * @example (await searchCycles(pool, parseMap("3x+1"), 12)).cycles.map((c) => c.representative) // [1n, -1n, -5n, -17n]
+ */
+export function searchCycles(pool: KernelPool, map: CollatzMap, maxPeriod: number, options: RunOptions = {}): Promise<CycleSearchResult> {
+  return runWhole(pool, cycleJob, { map, maxPeriod }, options);
 }

@@ -8,7 +8,9 @@
 import { LimitError, UsageError } from "../../core/errors.js";
 import { exactCounts } from "../../core/exact.js";
 import type { CollatzMap } from "../../core/map.js";
-import { dropDepth, kernelDepthLimit, step, stoppingOdds } from "../../core/map.js";
+import { dropDepth, kernelDepthLimit, parseMap, step, stoppingOdds } from "../../core/map.js";
+import { shardEstimate } from "../../engine/plan.js";
+import type { JobKind, PartBase } from "../../engine/plan.js";
 import type { VerifyBlock, VerifyBlockResult, VerifyTables } from "../../engine/messages.js";
 import { CancelledError } from "../../engine/pool.js";
 import type { KernelPool, RunOptions } from "../../engine/pool.js";
@@ -496,6 +498,144 @@ export interface VerifyOptions extends RunOptions {
 }
 
 /**
+ * Runs blocks of a plan (on the pool, or in BigInt for the BigInt engine); `onResult` sees each
+ * result once, one call after another (a checkpoint is written whole each time); a failure among
+ * them fails the run once the pool has stopped.
+ */
+async function executeBlocks(
+  pool: KernelPool,
+  plan: VerifyPlan,
+  data: VerifyTableData | null,
+  todo: readonly Omit<VerifyBlock, "exceptions">[],
+  onResult: (res: StoredBlock) => void | Promise<void>,
+  signal?: AbortSignal,
+): Promise<void> {
+  if (plan.engine === "bigint" || !data) {
+    for (const b of todo) {
+      if (signal?.aborted) throw new CancelledError();
+      const res = bigintBlock(plan, b);
+      await new Promise((resolve) => setTimeout(resolve, 0)); // let a signal or a cancel in
+      await onResult(res);
+    }
+    return;
+  }
+  const prepared = new WeakSet<object>();
+  const blocks: VerifyBlock[] = todo.map((b) => ({
+    ...b,
+    exceptions: b.kind === "aligned" ? BigUint64Array.from(exceptionsIn(data, b.first, b.last), (e) => e.n) : new BigUint64Array(0),
+  }));
+  let chain: Promise<void> = Promise.resolve();
+  let failed: unknown = null;
+  await pool.run(
+    blocks,
+    async (api, block) => {
+      if (!prepared.has(api)) {
+        await api.verifyPrepare(data.tables);
+        prepared.add(api);
+      }
+      return api.verifyBlock(block);
+    },
+    (_block, out) => {
+      chain = chain
+        .then(() => onResult(out))
+        .catch((e: unknown) => {
+          failed ??= e;
+        });
+    },
+    { signal },
+  );
+  await chain;
+  if (failed !== null) throw failed;
+}
+
+/** What plan.json keeps of a verification run: its request. */
+export type VerifyParams = VerifyRequest;
+
+/** A shard's block results, ascending by block. */
+export interface VerifyPart extends PartBase {
+  readonly blocks: StoredBlock[];
+}
+
+export const verifyJob: JobKind<VerifyParams, VerifyPart, VerifyResult> = {
+  name: "verify",
+  describe: (p) => `verify ${p.map.name} over [${p.from}, ${p.to})`,
+  encodeParams: (p) => ({
+    map: p.map.name,
+    from: p.from,
+    to: p.to,
+    sieveDepth: p.sieveDepth ?? null,
+    stepDepth: p.stepDepth ?? null,
+    maxSteps: p.maxSteps ?? null,
+    delay: p.delay === true,
+  }),
+  decodeParams: (s) => {
+    const num = (v: unknown) => (v === null || v === undefined ? undefined : Number(v));
+    return {
+      map: parseMap(String(s.map)),
+      from: BigInt(s.from as bigint),
+      to: BigInt(s.to as bigint),
+      sieveDepth: num(s.sieveDepth),
+      stepDepth: num(s.stepDepth),
+      maxSteps: num(s.maxSteps),
+      delay: s.delay === true,
+    };
+  },
+  estimate(plan, cpus) {
+    const vplan = planVerify(plan.params);
+    let numbers = 0n;
+    for (const r of plan.shards) {
+      const n = vplan.blocks.slice(r.first, r.end).reduce((s, b) => s + (b.last - b.first + 1n), 0n);
+      if (n > numbers) numbers = n;
+    }
+    // each worker and the host keep the sieve table (4 bytes a survivor) and the step table (9 bytes a residue)
+    const K = vplan.sieveDepth;
+    const tables = Number(exactCounts(plan.params.map, K).levels[K]!.survivors) * 4 + 9 * 2 ** vplan.stepDepth;
+    return shardEstimate(numbers, vplan.engine === "kernel" ? 1e8 : 2e5, cpus, tables * (cpus + 2));
+  },
+  async layout(_pool, p) {
+    return { prefixBits: 0, prefixes: null, tasks: planVerify(p).blocks.length };
+  },
+  async runShard(pool, plan, shard, options = {}) {
+    const started = performance.now();
+    const vplan = planVerify(plan.params);
+    const range = plan.shards[shard];
+    if (!range) throw new RangeError(`shard ${shard} is not in the plan (0 to ${plan.shards.length - 1})`);
+    const todo = vplan.blocks.slice(range.first, range.end);
+    const data = vplan.engine === "kernel" && todo.length > 0 ? await verifyTables(pool, vplan, options) : null;
+    const blocks: StoredBlock[] = [];
+    const size = (b: { first: bigint; last: bigint }) => Number(b.last - b.first + 1n); // progress only
+    const total = todo.reduce((s, b) => s + size(b), 0);
+    let done = 0;
+    await executeBlocks(
+      pool,
+      vplan,
+      data,
+      todo,
+      (res) => {
+        blocks.push(res);
+        done += size(vplan.blocks[res.index]!);
+        options.onProgress?.(done, total);
+      },
+      options.signal,
+    );
+    blocks.sort((u, v) => u.index - v.index);
+    return { blocks, seconds: (performance.now() - started) / 1000 };
+  },
+  async merge(pool, plan, parts) {
+    const vplan = planVerify(plan.params);
+    const data = vplan.engine === "kernel" ? await verifyTables(pool, vplan) : null;
+    const results = new Map<number, StoredBlock>();
+    for (const p of parts) for (const b of p.blocks) results.set(b.index, b);
+    return mergeVerify(
+      vplan,
+      data,
+      results,
+      parts.reduce((s, p) => s + p.seconds, 0),
+    );
+  },
+};
+
+/**
  * Verifies the range on the pool.
  * @example const r = await runVerify(pool, { map: parseMap("3x+1"), from: 1n, to: 1n << 20n }); r.maxGlide?.n // 77671n
  */
@@ -516,51 +656,19 @@ export async function runVerify(pool: KernelPool, req: VerifyRequest, options: V
     numbersDone += sizeOf(byIndex.get(index)!);
     options.onProgress?.(numbersDone, numbersTotal);
   };
-  if (plan.engine === "bigint" || !data) {
-    for (const b of todo) {
-      if (options.signal?.aborted) throw new CancelledError();
-      const res = bigintBlock(plan, b);
-      await new Promise((resolve) => setTimeout(resolve, 0)); // let a signal or a cancel in
-      results.set(b.index, res);
+  await executeBlocks(
+    pool,
+    plan,
+    data,
+    todo,
+    async (res) => {
+      results.set(res.index, res);
       completed++;
+      progress(res.index);
       await options.onBlock?.(res, completed, total);
-      progress(b.index);
-    }
-  } else {
-    const prepared = new WeakSet<object>();
-    const blocks: VerifyBlock[] = todo.map((b) => ({
-      ...b,
-      exceptions: b.kind === "aligned" ? BigUint64Array.from(exceptionsIn(data, b.first, b.last), (e) => e.n) : new BigUint64Array(0),
-    }));
-    // onBlock calls run one after another (a checkpoint is written whole each time); a failure
-    // among them fails the run once the pool has stopped
-    let chain: Promise<void> = Promise.resolve();
-    let failed: unknown = null;
-    await pool.run(
-      blocks,
-      async (api, block) => {
-        if (!prepared.has(api)) {
-          await api.verifyPrepare(data.tables);
-          prepared.add(api);
-        }
-        return api.verifyBlock(block);
-      },
-      (_block, out) => {
-        results.set(out.index, out);
-        completed++;
-        progress(out.index);
-        const n = completed;
-        chain = chain
-          .then(() => options.onBlock?.(out, n, total))
-          .catch((e: unknown) => {
-            failed ??= e;
-          });
-      },
-      { signal: options.signal },
-    );
-    await chain;
-    if (failed !== null) throw failed;
-  }
+    },
+    options.signal,
+  );
   return mergeVerify(plan, data, results, (performance.now() - started) / 1000);
 }
 

@@ -1,0 +1,213 @@
+// glidepath batch | shard | batch-status | merge: any long job as shards of the plan layer, run as a
+// Slurm job array (or here, one after another, with --local), checked and merged into exactly the
+// result of the one-machine command.
+import type { Command } from "commander";
+import { UsageError } from "../core/errors.js";
+import { makePlan } from "../engine/plan.js";
+import type { JobKind, PartBase, Plan } from "../engine/plan.js";
+import type { KernelPool } from "../engine/pool.js";
+import { group, plural } from "../outputs/format.js";
+import { toExactJson } from "../outputs/json.js";
+import type { ToolStamp } from "../outputs/manifest.js";
+import { arrayList, checkParts, checkShard, createRun, readRun, runShardToDisk, runStatus, SCRIPT_FILE } from "../node/cluster.js";
+import type { RunDir } from "../node/cluster.js";
+import { toolStamp, withPool } from "../node/kernel.js";
+import { censusBatch } from "./census.js";
+import { conjugacyBatch } from "./conjugacy.js";
+import { cyclesBatch } from "./cycles.js";
+import { intOption, outputOption, workersOption } from "./options.js";
+import type { FileFormat, OutputChoice, RawOptions } from "./options.js";
+import { print } from "./print.js";
+import { sieveBatch } from "./sieve.js";
+import { verifyBatch } from "./verify.js";
+
+/** What `merge --out FILE` writes: the file the one-machine command's --out writes. */
+export interface MergeOutput<R> {
+  readonly formats: readonly FileFormat[];
+  readonly what: string;
+  write(pool: KernelPool, result: R, out: OutputChoice<FileFormat>, stamp: ToolStamp, tables: readonly string[]): Promise<void>;
+}
+
+/** A job as the cluster commands see it: the plan layer's job, its options, its JSON and its --out. */
+export interface BatchJob<P, R> {
+  readonly job: JobKind<P, PartBase, R>;
+  /** The job's own options (the same as its one-machine command's). */
+  options(cmd: Command): Command;
+  params(o: RawOptions): P;
+  json(result: R): unknown;
+  /** Its shards write their sorted part of the class table (RUN/parts/I.table). */
+  readonly table?: boolean;
+  readonly out?: MergeOutput<R>;
+}
+
+// biome-ignore lint/suspicious/noExplicitAny: the table holds jobs of every parameter and result type
+type AnyBatchJob = BatchJob<any, any>;
+
+const JOBS: Record<string, AnyBatchJob> = {
+  sieve: sieveBatch,
+  census: censusBatch,
+  cycles: cyclesBatch,
+  conjugacy: conjugacyBatch,
+  verify: verifyBatch,
+};
+
+function batchJob(name: string): AnyBatchJob {
+  const j = JOBS[name];
+  if (!j) throw new UsageError(`the plan names an unknown job "${name}"`);
+  return j;
+}
+
+const jobOf = (name: string) => batchJob(name).job as JobKind<unknown, PartBase, unknown>;
+
+interface BatchOptions extends RawOptions {
+  readonly shards?: string;
+  readonly dir?: string;
+  readonly cpusPerTask?: string;
+  readonly partition?: string;
+  readonly local?: boolean;
+}
+
+export const MAX_SHARDS = 100_000;
+
+export function clusterCommands(program: Command): Command {
+  const batch = program
+    .command("batch")
+    .description("plan a long job as N shards in RUN (plan.json, job.sbatch: a Slurm job array); --local runs them here")
+    .helpCommand(false);
+  for (const [name, spec] of Object.entries(JOBS)) {
+    const cmd = batch
+      .command(name)
+      .description(`plan ${name} as shards (its options as for glidepath ${name})`)
+      .option("--map <qx+r>", "the map", "3x+1");
+    spec
+      .options(cmd)
+      .option("--shards <N>", `number of shards (Slurm array tasks): 1 to ${group(MAX_SHARDS)}`)
+      .option("--dir <RUN>", "the run's folder (created; it must not hold another plan)")
+      .option("--cpus-per-task <C>", "cores each task asks for (and the workers it runs)", "2")
+      .option("--partition <P>", "the Slurm partition to ask for")
+      .option("--local", "run every shard here, one after another, through the same files")
+      .option("--workers <N>", "with --local: worker threads per shard (default: --cpus-per-task)")
+      .action((o: BatchOptions) => planBatch(name, spec, o));
+  }
+  program
+    .command("shard")
+    .description("run shard I of RUN (what each Slurm array task runs) and write RUN/parts/I.*")
+    .argument("<RUN>", "the run's folder")
+    .argument("<I>", "the shard (0 to N-1)")
+    .option("--workers <N>", "worker threads (default: $SLURM_CPUS_PER_TASK, else the available cores)")
+    .action((dir: string, index: string, o: RawOptions) => shard(dir, index, o));
+  program
+    .command("batch-status")
+    .description("which shards of RUN are done, failed (with their error) or missing, and the sbatch line that reruns the rest")
+    .argument("<RUN>", "the run's folder")
+    .option("--json", "print JSON")
+    .action((dir: string, o: RawOptions) => status(dir, o));
+  return program
+    .command("merge")
+    .description("check every part of RUN against the plan and merge them: the one-machine command's JSON, and its --out file")
+    .argument("<RUN>", "the run's folder")
+    .option("--out <FILE>", "write what the one-machine command's --out writes (sieve: the class table, raw)")
+    .option("--format <raw|arrow>", "output format (as the one-machine command)")
+    .option("--workers <N>", "worker threads for the checks that rebuild tables (default: the available cores)")
+    .action((dir: string, o: RawOptions) => merge(dir, o));
+}
+
+async function planBatch(name: string, spec: AnyBatchJob, o: BatchOptions): Promise<void> {
+  const params = spec.params(o);
+  const shards = intOption("shards", o.shards, 1, MAX_SHARDS);
+  if (o.dir === undefined) throw new UsageError("--dir RUN is required");
+  const cpus = intOption("cpus-per-task", o.cpusPerTask, 1, 1024);
+  if (o.workers !== undefined && !o.local) throw new UsageError("--workers is for --local (array tasks run --cpus-per-task workers)");
+  if (o.partition !== undefined && !/^[\w.,-]+$/.test(o.partition))
+    throw new UsageError(`--partition "${o.partition}" is not a partition name`);
+  const workers = o.workers === undefined ? cpus : workersOption(o.workers);
+  const dir = o.dir;
+  const plan = await withPool(workers, `plan ${name}`, (pool) => makePlan(pool, spec.job, params, shards, shards * cpus));
+  const estimate = spec.job.estimate(plan, cpus);
+  await createRun(dir, spec.job, plan, { cpusPerTask: cpus, partition: o.partition, estimate });
+  const head =
+    `planned ${spec.job.describe(plan.params)} as ${plural(shards, "shard")} of ${plural(plan.tasks, "kernel task")} ` +
+    `in ${dir} (plan ${plan.hash.slice(0, 16)})\n` +
+    `each task: ${cpus} cores, at most ${estimate.memoryMiB} MiB, about ${Math.ceil(estimate.seconds)} s of work (the script asks for more)\n`;
+  if (!o.local) {
+    print(`${head}submit: sbatch ${dir}/${SCRIPT_FILE}\nthen: glidepath batch-status ${dir}; glidepath merge ${dir}\n`);
+    return;
+  }
+  print(head);
+  const run = await readRun(dir, jobOf);
+  await withPool(workers, `${name} shards`, async (pool, onProgress) => {
+    for (let i = 0; i < shards; i++) {
+      const r = await runShardToDisk(run, spec.job, i, pool, { table: spec.table });
+      onProgress(i + 1, shards);
+      process.stderr.write(`shard ${i}: ${r.seconds.toFixed(2)} s\n`);
+    }
+  });
+  print(`ran ${plural(shards, "shard")} here; next: glidepath merge ${dir}\n`);
+}
+
+async function shard(dir: string, index: string, o: RawOptions): Promise<void> {
+  const run = await readRun(dir, jobOf);
+  const i = checkShard(run, index);
+  const slurm = process.env.SLURM_CPUS_PER_TASK;
+  const workers = o.workers === undefined && slurm && /^\d+$/.test(slurm) ? Number(slurm) : workersOption(o.workers);
+  const spec = batchJob(run.plan.job);
+  const r = await withPool(workers, `shard ${i}`, (pool, onProgress) =>
+    runShardToDisk(run, spec.job, i, pool, { onProgress, table: spec.table }),
+  );
+  print(
+    `shard ${i} of ${dir}: done in ${r.seconds.toFixed(2)} s on ${plural(workers, "worker")} (${plural(r.files.length, "file")} beside its part)\n`,
+  );
+}
+
+async function status(dir: string, o: RawOptions): Promise<void> {
+  const run = await readRun(dir, jobOf);
+  const s = runStatus(run);
+  const rerun = [...s.failed.map((f) => f.shard), ...s.missing].sort((a, b) => a - b);
+  const line = rerun.length > 0 ? `sbatch --array=${arrayList(rerun)} ${dir}/${SCRIPT_FILE}` : null;
+  if (o.json) {
+    print(
+      `${toExactJson({ shards: s.shards, done: s.done.length, failed: s.failed, missing: s.missing, complete: rerun.length === 0, rerun: line })}\n`,
+    );
+    return;
+  }
+  const spec = batchJob(run.plan.job);
+  print(
+    [
+      `${spec.job.describe(run.plan.params)}: ${plural(s.shards, "shard")} (plan ${run.plan.hash.slice(0, 16)})`,
+      `done ${s.done.length}, failed ${s.failed.length}, missing ${s.missing.length}`,
+      ...s.failed.map((f) => `  failed: shard ${f.shard}: ${f.error}`),
+      ...(s.missing.length > 0 ? [`  missing: ${arrayList(s.missing)} (not run yet, running, or killed before it could say)`] : []),
+      line ? `rerun what is not done: ${line}` : `complete: glidepath merge ${dir}`,
+      "",
+    ].join("\n"),
+  );
+}
+
+async function merge(dir: string, o: RawOptions): Promise<void> {
+  const run: RunDir = await readRun(dir, jobOf);
+  const spec = batchJob(run.plan.job);
+  let out: OutputChoice<FileFormat> | null = null;
+  if (o.out !== undefined || o.format !== undefined) {
+    if (!spec.out) throw new UsageError(`merge of ${run.plan.job} writes no file: its JSON goes to stdout`);
+    out = outputOption(o, spec.out.formats, spec.out.formats[0]!);
+  }
+  const stamp = await toolStamp();
+  await withPool(workersOption(o.workers), `merge ${run.plan.job}`, async (pool) => {
+    const parts = await checkParts<unknown, PartBase>(run, pool.build);
+    const result = await spec.job.merge(
+      pool,
+      run.plan as Plan<unknown>,
+      parts.map((p) => p.part),
+    );
+    if (out && spec.out)
+      await spec.out.write(
+        pool,
+        result,
+        out,
+        stamp,
+        parts.flatMap((p) => (p.table ? [p.table] : [])),
+      );
+    print(`${toExactJson(spec.json(result))}\n`);
+    if (out) process.stderr.write(`wrote ${spec.out!.what} to ${out.path}\n`);
+  });
+}

@@ -1,0 +1,469 @@
+// A run directory on disk, for `batch`, `shard`, `batch-status` and `merge`: RUN/plan.json (the plan
+// layer's plan, hashed), RUN/job.sbatch (a Slurm job array, one task per shard), RUN/parts/I.json
+// (a shard's part with the sha256 of every file it wrote, placed last: its presence means done),
+// RUN/parts/I.failed (the error line of a failed shard) and RUN/logs (Slurm's output).
+import { createHash } from "node:crypto";
+import { createReadStream, existsSync, readdirSync, readFileSync } from "node:fs";
+import { mkdir, open, readFile, unlink } from "node:fs/promises";
+import { hostname } from "node:os";
+import { join, resolve } from "node:path";
+import { LimitError, UsageError } from "../core/errors.js";
+import { PLAN_KIND, planHash } from "../engine/plan.js";
+import type { ByteSink, JobKind, PartBase, Plan, ShardEstimate } from "../engine/plan.js";
+import type { KernelPool } from "../engine/pool.js";
+import { packData, toExactJson, unpackData } from "../outputs/json.js";
+import type { DataFile } from "../outputs/manifest.js";
+import { AtomicFile, writeFileAtomic } from "./files.js";
+import { toolVersion } from "./version.js";
+
+export const PART_KIND = "glidepath part";
+const PLAN_FILE = "plan.json";
+export const SCRIPT_FILE = "job.sbatch";
+export const PARTS = "parts";
+export const LOGS = "logs";
+
+/** The Slurm directives a run's script carries. */
+export interface ScriptOptions {
+  readonly cpusPerTask: number;
+  readonly partition?: string;
+  readonly estimate: ShardEstimate;
+}
+
+/** A plan as stored: the plan layer's fields, with the tool that wrote it. */
+interface StoredPlan {
+  readonly plan: Plan<unknown>;
+  readonly tool: string;
+  readonly created: string;
+  readonly cpusPerTask: number;
+  readonly estimate: ShardEstimate;
+}
+
+export interface RunDir<P = unknown> {
+  readonly dir: string;
+  readonly plan: Plan<P>;
+  readonly cpusPerTask: number;
+  readonly estimate: ShardEstimate;
+}
+
+function planJson(plan: Plan<unknown>, job: JobKind<unknown, PartBase, unknown>): unknown {
+  // prefixes and weights as packed u64 arrays (compact); the parameters as the job encodes them
+  const u64 = (xs: readonly bigint[] | null | undefined) => (xs ? BigUint64Array.from(xs) : null);
+  return packData({ ...plan, params: job.encodeParams(plan.params), prefixes: u64(plan.prefixes), weights: u64(plan.weights) });
+}
+
+/** Slurm's time format D-HH:MM:SS. */
+export function slurmTime(seconds: number): string {
+  const s = Math.max(60, Math.ceil(seconds));
+  const d = Math.floor(s / 86400);
+  const hms = [Math.floor((s % 86400) / 3600), Math.floor((s % 3600) / 60), s % 60].map((x) => String(x).padStart(2, "0")).join(":");
+  return d > 0 ? `${d}-${hms}` : hms;
+}
+
+/** The batch script: one array task per shard, each running `glidepath shard RUN $SLURM_ARRAY_TASK_ID`. */
+export function sbatchScript(dir: string, plan: Plan<unknown>, describe: string, o: ScriptOptions): string {
+  const run = resolve(dir);
+  const cli = resolve(new URL("../../bin/glidepath.js", import.meta.url).pathname);
+  return [
+    "#!/bin/bash",
+    `# glidepath ${describe}: ${plan.shards.length} shards of plan ${plan.hash.slice(0, 16)}.`,
+    "# Submit with: sbatch job.sbatch (from any folder). Rerun only some shards: sbatch --array=3,7 job.sbatch",
+    "# Moved RUN or glidepath? sbatch --export=ALL,GLIDEPATH_RUN=/new/RUN,GLIDEPATH=/new/bin/glidepath.js --output=/new/RUN/logs/shard-%a.out ...",
+    `#SBATCH --job-name=glidepath-${plan.job}`,
+    `#SBATCH --array=0-${plan.shards.length - 1}`,
+    "#SBATCH --ntasks=1",
+    `#SBATCH --cpus-per-task=${o.cpusPerTask}`,
+    `#SBATCH --mem=${o.estimate.memoryMiB}M`,
+    `#SBATCH --time=${slurmTime(o.estimate.seconds)}`,
+    `#SBATCH --output=${run}/${LOGS}/shard-%a.out`,
+    ...(o.partition ? [`#SBATCH --partition=${o.partition}`] : []),
+    "set -euo pipefail",
+    `RUN="\${GLIDEPATH_RUN:-${run}}"`,
+    `GLIDEPATH="\${GLIDEPATH:-${cli}}"`,
+    `exec "${process.execPath}" "$GLIDEPATH" shard "$RUN" "$SLURM_ARRAY_TASK_ID" --workers "\${SLURM_CPUS_PER_TASK:-1}"`,
+    "",
+  ].join("\n");
+}
+
+/**
+ * Writes RUN/plan.json and RUN/job.sbatch (and the parts and logs folders). A folder that holds
+ * another plan is refused; the same plan again is harmless.
+ */
+export async function createRun(
+  dir: string,
+  job: JobKind<unknown, PartBase, unknown>,
+  plan: Plan<unknown>,
+  o: ScriptOptions,
+): Promise<void> {
+  const planPath = join(dir, PLAN_FILE);
+  if (existsSync(planPath)) {
+    const old = await readRun(dir, () => job).catch(() => null);
+    if (!old || old.plan.hash !== plan.hash)
+      throw new UsageError(`${dir} already holds another plan: choose a new --dir, or remove ${planPath}`);
+  }
+  try {
+    await mkdir(join(dir, PARTS), { recursive: true });
+    await mkdir(join(dir, LOGS), { recursive: true });
+  } catch (e) {
+    throw new UsageError(`cannot create ${dir}: ${(e as NodeJS.ErrnoException).code ?? String(e)}`);
+  }
+  const stored = {
+    kind: PLAN_KIND,
+    plan: planJson(plan, job),
+    tool: toolVersion(),
+    created: new Date().toISOString(),
+    cpusPerTask: o.cpusPerTask,
+    estimate: o.estimate,
+  };
+  await writeFileAtomic(join(dir, SCRIPT_FILE), sbatchScript(dir, plan, job.describe(plan.params), o));
+  await writeFileAtomic(planPath, `${JSON.stringify(stored, null, 1)}\n`);
+}
+
+/** Reads RUN/plan.json back, checking its hash: an edited plan is refused. */
+export async function readRun(dir: string, jobOf: (name: string) => JobKind<unknown, PartBase, unknown>): Promise<RunDir> {
+  const path = join(dir, PLAN_FILE);
+  let raw: Record<string, unknown>;
+  try {
+    raw = JSON.parse(await readFile(path, "utf8")) as Record<string, unknown>;
+  } catch (e) {
+    const code = (e as NodeJS.ErrnoException).code;
+    throw new UsageError(code ? `${dir} is not a glidepath run: cannot read ${path} (${code})` : `${path} is not JSON`);
+  }
+  if (raw.kind !== PLAN_KIND) throw new UsageError(`${path} is not a glidepath plan`);
+  const p = unpackData(raw.plan) as Record<string, unknown>;
+  const job = jobOf(String(p.job));
+  const list = (xs: unknown) => (xs instanceof BigUint64Array ? Array.from(xs) : null);
+  const plan: Plan<unknown> = {
+    kind: PLAN_KIND,
+    job: job.name,
+    params: job.decodeParams(p.params as Record<string, unknown>),
+    prefixBits: Number(p.prefixBits),
+    prefixes: list(p.prefixes),
+    tasks: Number(p.tasks),
+    weights: list(p.weights),
+    shards: p.shards as Plan<unknown>["shards"],
+    kernelBuild: String(p.kernelBuild),
+    hash: String(p.hash),
+  };
+  const { hash: _stored, ...body } = plan;
+  if ((await planHash(job, body)) !== plan.hash) throw new UsageError(`${path} was changed after it was written: its hash does not match`);
+  const stored = raw as unknown as StoredPlan;
+  return { dir, plan, cpusPerTask: Number(stored.cpusPerTask), estimate: stored.estimate };
+}
+
+const partPath = (dir: string, shard: number, suffix: string) => join(dir, PARTS, `${shard}.${suffix}`);
+
+/** The shard numbers a command line names, checked against the plan. */
+export function checkShard(run: RunDir, text: string): number {
+  if (!/^\d+$/.test(text)) throw new UsageError(`the shard must be a whole number from 0 to ${run.plan.shards.length - 1}, got "${text}"`);
+  const i = Number(text);
+  if (i >= run.plan.shards.length) throw new UsageError(`shard ${i} is not in the plan of ${run.dir} (0 to ${run.plan.shards.length - 1})`);
+  return i;
+}
+
+/** The environment variable that makes named shards fail (for tests of the rerun path). */
+export const FAIL_VARIABLE = "GLIDEPATH_FAIL_SHARDS";
+
+/**
+ * Runs shard I of a run and writes its part: its bulk output (RUN/parts/I.table) and spilled
+ * arrays first, then RUN/parts/I.json with their sha256, each atomically. A failure leaves
+ * RUN/parts/I.failed with its error line and no part.
+ */
+export async function runShardToDisk<P, Part extends PartBase>(
+  run: RunDir<P>,
+  job: JobKind<P, Part, unknown>,
+  shard: number,
+  pool: KernelPool,
+  options: { onProgress?: (done: number, total: number) => void; table?: boolean } = {},
+): Promise<{ seconds: number; files: DataFile[] }> {
+  const failed = partPath(run.dir, shard, "failed");
+  const started = new Date().toISOString();
+  try {
+    if ((process.env[FAIL_VARIABLE] ?? "").split(",").includes(String(shard)))
+      throw new Error(`shard ${shard} failed on purpose (${FAIL_VARIABLE})`);
+    if (pool.build !== run.plan.kernelBuild)
+      throw new UsageError(
+        `this glidepath's kernel build ${pool.build} is not the plan's (${run.plan.kernelBuild}): run the tool that made the plan`,
+      );
+    const files: DataFile[] = [];
+    let table: AtomicFile | null = null;
+    if (options.table) table = await AtomicFile.create(partPath(run.dir, shard, "table"));
+    let part: Part;
+    try {
+      part = await job.runShard(pool, run.plan, shard, { onProgress: options.onProgress, ...(table ? { out: table as ByteSink } : {}) });
+      if (table) {
+        files.push(await table.finish());
+        await table.place();
+      }
+    } catch (e) {
+      await table?.abort();
+      throw e;
+    }
+    let spilled = 0;
+    const spills: { name: string; bytes: Uint8Array }[] = [];
+    const data = packData(part, (bytes) => {
+      const name = `${shard}.${spilled++}.bin`;
+      spills.push({ name, bytes });
+      return name;
+    });
+    for (const s of spills) {
+      const f = await AtomicFile.create(join(run.dir, PARTS, s.name));
+      await f.write(s.bytes);
+      files.push(await f.finish());
+      await f.place();
+    }
+    const manifest = {
+      kind: PART_KIND,
+      shard,
+      plan: run.plan.hash,
+      kernelBuild: pool.build,
+      tool: toolVersion(),
+      host: hostname(),
+      started,
+      finished: new Date().toISOString(),
+      seconds: part.seconds,
+      files: files.map((f) => ({ file: f.file, bytes: f.bytes, sha256: f.sha256 })),
+      data,
+    };
+    await writeFileAtomic(partPath(run.dir, shard, "json"), `${toExactJson(manifest)}\n`);
+    await unlink(failed).catch(() => {});
+    return { seconds: part.seconds, files };
+  } catch (e) {
+    const line = (e instanceof Error ? e.message : String(e)).split("\n")[0]!;
+    await writeFileAtomic(failed, `${JSON.stringify({ shard, error: line, host: hostname(), time: new Date().toISOString() })}\n`).catch(
+      () => {},
+    );
+    throw e;
+  }
+}
+
+export interface RunStatus {
+  readonly shards: number;
+  readonly done: number[];
+  readonly failed: { readonly shard: number; readonly error: string }[];
+  readonly missing: number[];
+}
+
+/** What is done (a part for this plan), failed (a marker and no part) and missing. */
+export function runStatus(run: RunDir): RunStatus {
+  const done: number[] = [];
+  const failed: RunStatus["failed"] = [];
+  const missing: number[] = [];
+  for (let i = 0; i < run.plan.shards.length; i++) {
+    const manifest = partPath(run.dir, i, "json");
+    let ok = false;
+    if (existsSync(manifest)) {
+      try {
+        const m = JSON.parse(readFileSync(manifest, "utf8")) as Record<string, unknown>;
+        ok = m.kind === PART_KIND && m.plan === run.plan.hash && m.shard === i;
+      } catch {
+        ok = false;
+      }
+    }
+    if (ok) done.push(i);
+    else if (existsSync(partPath(run.dir, i, "failed"))) {
+      let error = "no error line";
+      try {
+        error = String((JSON.parse(readFileSync(partPath(run.dir, i, "failed"), "utf8")) as { error: unknown }).error);
+      } catch {
+        // an unreadable marker still marks the shard failed
+      }
+      failed.push({ shard: i, error });
+    } else missing.push(i);
+  }
+  return { shards: run.plan.shards.length, done, failed, missing };
+}
+
+/** Shard numbers as Slurm's --array list: 0-3,7,9-10. */
+export function arrayList(shards: readonly number[]): string {
+  const out: string[] = [];
+  for (let i = 0; i < shards.length; ) {
+    let j = i;
+    while (j + 1 < shards.length && shards[j + 1] === shards[j]! + 1) j++;
+    out.push(j > i ? `${shards[i]}-${shards[j]}` : String(shards[i]));
+    i = j + 1;
+  }
+  return out.join(",");
+}
+
+async function fileSha256(path: string): Promise<{ bytes: bigint; sha256: string }> {
+  const h = createHash("sha256");
+  let bytes = 0n;
+  for await (const chunk of createReadStream(path, { highWaterMark: 1 << 22 })) {
+    h.update(chunk as Buffer);
+    bytes += BigInt((chunk as Buffer).byteLength);
+  }
+  return { bytes, sha256: h.digest("hex") };
+}
+
+/** A part read back and checked: its data and its bulk file, if any. */
+export interface CheckedPart<Part> {
+  readonly shard: number;
+  readonly part: Part;
+  readonly table: string | null;
+}
+
+/**
+ * Checks every part against the plan (kind, shard number, plan hash, kernel build, the size and
+ * sha256 of every file it lists; every shard once, nothing else) and reads them back, or refuses
+ * with one line naming each missing or bad part.
+ */
+export async function checkParts<P, Part extends PartBase>(run: RunDir<P>, build: string): Promise<CheckedPart<Part>[]> {
+  const n = run.plan.shards.length;
+  if (build !== run.plan.kernelBuild)
+    throw new UsageError(`${run.dir} was planned by kernel build ${run.plan.kernelBuild}; this glidepath is build ${build}`);
+  const problems: string[] = [];
+  const parts: CheckedPart<Part>[] = [];
+  const status = runStatus(run);
+  const failed = new Map(status.failed.map((f) => [f.shard, f.error]));
+  for (const name of readdirSync(join(run.dir, PARTS))) {
+    const m = /^(\d+)\.json$/.exec(name);
+    if (m && Number(m[1]) >= n) problems.push(`part ${m[1]}: not in the plan (shards 0 to ${n - 1})`);
+  }
+  for (let i = 0; i < n; i++) {
+    const path = partPath(run.dir, i, "json");
+    if (!existsSync(path)) {
+      problems.push(`part ${i}: missing${failed.has(i) ? ` (the shard failed: ${failed.get(i)})` : ""}`);
+      continue;
+    }
+    let m: Record<string, unknown>;
+    try {
+      m = JSON.parse(await readFile(path, "utf8")) as Record<string, unknown>;
+    } catch {
+      problems.push(`part ${i}: ${PARTS}/${i}.json is not JSON`);
+      continue;
+    }
+    if (m.kind !== PART_KIND) problems.push(`part ${i}: ${PARTS}/${i}.json is not a glidepath part`);
+    else if (m.shard !== i) problems.push(`part ${i}: its manifest says shard ${String(m.shard)}`);
+    else if (m.plan !== run.plan.hash)
+      problems.push(`part ${i}: written for plan ${String(m.plan).slice(0, 16)}, this run's plan is ${run.plan.hash.slice(0, 16)}`);
+    else if (m.kernelBuild !== run.plan.kernelBuild) problems.push(`part ${i}: written by kernel build ${String(m.kernelBuild)}`);
+    else {
+      const files = m.files as { file: string; bytes: number; sha256: string }[];
+      let bad = false;
+      for (const f of files) {
+        const fp = join(run.dir, PARTS, f.file);
+        if (!existsSync(fp)) {
+          problems.push(`part ${i}: ${PARTS}/${f.file} is missing`);
+          bad = true;
+          continue;
+        }
+        const got = await fileSha256(fp);
+        if (got.bytes !== BigInt(f.bytes) || got.sha256 !== f.sha256) {
+          problems.push(
+            `part ${i}: ${PARTS}/${f.file} differs from its manifest (sha256 ${got.sha256.slice(0, 16)}, expected ${f.sha256.slice(0, 16)})`,
+          );
+          bad = true;
+        }
+      }
+      if (bad) continue;
+      let part: Part;
+      try {
+        part = unpackData(m.data, (file) => readFileSync(join(run.dir, PARTS, file))) as Part;
+      } catch (e) {
+        problems.push(`part ${i}: its data cannot be read (${e instanceof Error ? e.message : String(e)})`);
+        continue;
+      }
+      const table = files.find((f) => f.file === `${i}.table`);
+      parts.push({ shard: i, part, table: table ? join(run.dir, PARTS, table.file) : null });
+    }
+  }
+  if (problems.length > 0)
+    throw new UsageError(
+      `merge refused: ${problems.length} of ${n} parts are missing or bad (nothing was written): ${problems.join("; ")}`,
+    );
+  return parts;
+}
+
+/** Bytes each reader buffers and the output buffer (bounded, whatever the table's size). */
+const READ_BYTES = 1 << 18;
+const WRITE_ELEMENTS = 1 << 19;
+
+/**
+ * Merges sorted raw class tables (little-endian u32, or u64 for depth > 32, residues < 2^53) into
+ * one sorted stream: a k-way merge through a binary heap, in memory independent of their size.
+ */
+export async function mergeSortedTables(paths: readonly string[], depth: number, sink: ByteSink): Promise<bigint> {
+  if (depth > 53) throw new LimitError("tables deeper than 2^53 are not merged here");
+  const width = depth > 32 ? 8 : 4;
+  const k = paths.length;
+  const handles = await Promise.all(paths.map((p) => open(p, "r")));
+  try {
+    const bufs = handles.map(() => new Uint8Array(READ_BYTES));
+    const views = bufs.map((b) => new DataView(b.buffer));
+    const fill = new Int32Array(k);
+    const pos = new Int32Array(k);
+    const offset = new Float64Array(k);
+    const head = new Float64Array(k);
+    const refill = async (i: number): Promise<boolean> => {
+      const { bytesRead } = await handles[i]!.read(bufs[i]!, 0, READ_BYTES, offset[i]!);
+      if (bytesRead % width !== 0) throw new Error(`${paths[i]}: its length is not a whole number of ${width}-byte residues`);
+      offset[i] = offset[i]! + bytesRead;
+      fill[i] = bytesRead;
+      pos[i] = 0;
+      return bytesRead > 0;
+    };
+    const value = (i: number) => {
+      const v = views[i]!;
+      const p = pos[i]!;
+      return width === 4 ? v.getUint32(p, true) : v.getUint32(p + 4, true) * 2 ** 32 + v.getUint32(p, true);
+    };
+    // heap of reader indices ordered by head value (values are distinct across parts; ties by index)
+    const heap = new Int32Array(k);
+    let size = 0;
+    const less = (a: number, b: number) => head[a]! < head[b]! || (head[a] === head[b] && a < b);
+    const down = (at: number) => {
+      let i = at;
+      for (;;) {
+        const l = 2 * i + 1;
+        if (l >= size) return;
+        const r = l + 1;
+        const c = r < size && less(heap[r]!, heap[l]!) ? r : l;
+        if (!less(heap[c]!, heap[i]!)) return;
+        const t = heap[i]!;
+        heap[i] = heap[c]!;
+        heap[c] = t;
+        i = c;
+      }
+    };
+    for (let i = 0; i < k; i++) {
+      if (await refill(i)) {
+        head[i] = value(i);
+        heap[size++] = i;
+      }
+    }
+    for (let i = (size >> 1) - 1; i >= 0; i--) down(i);
+    const out = new Uint8Array(WRITE_ELEMENTS * width);
+    const ov = new DataView(out.buffer);
+    let o = 0;
+    let count = 0n;
+    let last = -1;
+    while (size > 0) {
+      const i = heap[0]!;
+      const v = head[i]!;
+      if (v <= last) throw new Error(`${paths[i]}: residue ${v} out of order or repeated`);
+      last = v;
+      if (width === 4) ov.setUint32(o, v, true);
+      else {
+        ov.setUint32(o, v % 2 ** 32, true);
+        ov.setUint32(o + 4, Math.floor(v / 2 ** 32), true);
+      }
+      o += width;
+      if (o === out.length) {
+        await sink.write(out);
+        count += BigInt(WRITE_ELEMENTS);
+        o = 0;
+      }
+      pos[i] = pos[i]! + width;
+      if (pos[i]! < fill[i]! || (await refill(i))) head[i] = value(i);
+      else heap[0] = heap[--size]!;
+      down(0);
+    }
+    if (o > 0) {
+      await sink.write(out.subarray(0, o));
+      count += BigInt(o / width);
+    }
+    return count;
+  } finally {
+    await Promise.all(handles.map((h) => h.close()));
+  }
+}

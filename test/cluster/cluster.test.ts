@@ -1,0 +1,257 @@
+// The cluster path as a user runs it: batch plans a job in RUN, its shards run (here one after
+// another with --local or `glidepath shard`, and as a real Slurm job array), batch-status finds what
+// failed, merge checks the parts and gives exactly the one-machine command's JSON and file.
+import { execFile } from "node:child_process";
+import { copyFileSync, existsSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from "node:fs";
+import { tmpdir } from "node:os";
+import { join } from "node:path";
+import { promisify } from "node:util";
+import { afterAll, describe, expect, it } from "vitest";
+import { A076227 } from "../../src/core/published.js";
+import { parseExactJson } from "../../src/outputs/json.js";
+import { requireProgram } from "../system.js";
+
+const BIN = new URL("../../bin/glidepath.js", import.meta.url).pathname;
+const exec = promisify(execFile);
+const dir = mkdtempSync(join(tmpdir(), "glidepath-cluster-"));
+afterAll(() => rmSync(dir, { recursive: true, force: true }));
+
+interface Ran {
+  code: number;
+  stdout: string;
+  stderr: string;
+}
+
+async function sh(cmd: string, args: string[], env: Record<string, string> = {}): Promise<Ran> {
+  try {
+    const { stdout, stderr } = await exec(cmd, args, { maxBuffer: 64 << 20, env: { ...process.env, ...env } });
+    return { code: 0, stdout, stderr };
+  } catch (e) {
+    const x = e as { code: number; stdout: string; stderr: string };
+    return { code: x.code, stdout: x.stdout, stderr: x.stderr };
+  }
+}
+
+const cli = (args: string[], env: Record<string, string> = {}) => sh("node", [BIN, ...args], env);
+
+/** A command's JSON without its timing (the one field that differs between runs). */
+function untimed(text: string): unknown {
+  const j = parseExactJson(text) as Record<string, unknown>;
+  delete j.seconds;
+  return j;
+}
+
+async function ok(args: string[], env: Record<string, string> = {}): Promise<string> {
+  const r = await cli(args, env);
+  if (r.code !== 0) throw new Error(`glidepath ${args.join(" ")} exited ${r.code}: ${r.stderr}`);
+  return r.stdout;
+}
+
+const runDir = (name: string) => join(dir, name);
+
+// Each job with its options, the one-machine command, and a fact from outside the project.
+const JOBS = [
+  {
+    name: "sieve",
+    opts: ["--depth", "30"],
+    shards: 16,
+    outside: (j: Record<string, unknown>) =>
+      // survivors by depth: OEIS A076227 (published entry)
+      expect((j.levels as { survivors: bigint }[]).map((l) => l.survivors)).toEqual(A076227.slice(0, 31)),
+  },
+  {
+    name: "census",
+    opts: ["--depth", "26"],
+    shards: 8,
+    // the census checks itself against the exact counter (an independent lattice-path count)
+    outside: (j: Record<string, unknown>) => expect([j.agreesWithExactCounter, j.vectorsAreBinomial]).toEqual([true, true]),
+  },
+  {
+    name: "cycles",
+    opts: ["--map", "3x+5", "--max-period", "26"],
+    shards: 8,
+    // the positive cycles of 3x+5 with these periods: minima 1, 5, 19, 23 (from memory: the 3x+k tables)
+    outside: (j: Record<string, unknown>) =>
+      expect((j.cycles as { min: bigint }[]).map((c) => c.min).filter((m) => m > 0n)).toEqual([1n, 5n, 19n, 23n]),
+  },
+  {
+    name: "verify",
+    opts: ["--from", "1", "--to", "2^24", "--sieve-depth", "16"],
+    shards: 4,
+    // glide records below 2^24: OEIS A060412 (the published entry's terms below 2^24)
+    outside: (j: Record<string, unknown>) =>
+      expect((j.glideRecords as { n: bigint }[]).map((g) => g.n)).toEqual(
+        [2, 3, 7, 27, 703, 10087, 35655, 270271, 362343, 381727, 626331, 1027431, 1126015, 8088063, 13421671].map(BigInt),
+      ),
+  },
+  {
+    name: "conjugacy",
+    opts: ["--depth", "16"],
+    shards: 4,
+    // a permutation of 2^16 residues: its cycle lengths sum to 2^16 (common practice)
+    outside: (j: Record<string, unknown>) =>
+      expect((j.lengths as { length: bigint; count: bigint }[]).reduce((s, l) => s + l.length * l.count, 0n)).toBe(1n << 16n),
+  },
+] as const;
+
+/** Runs every shard of RUN with `glidepath shard`, one after another. */
+async function runShards(run: string, shards: number, env: Record<string, string> = {}): Promise<Ran[]> {
+  const out: Ran[] = [];
+  for (let i = 0; i < shards; i++) out.push(await cli(["shard", run, String(i), "--workers", "2"], env));
+  return out;
+}
+
+describe("cluster: batch --local and merge equal the one-machine command", () => {
+  for (const job of JOBS) {
+    it(`${job.name} ${job.opts.join(" ")} in ${job.shards} shards`, async () => {
+      const run = runDir(`local-${job.name}`);
+      await ok(["batch", job.name, ...job.opts, "--shards", String(job.shards), "--dir", run, "--local", "--cpus-per-task", "2"]);
+      const merged = await ok(["merge", run]);
+      const single = await ok([job.name, ...job.opts, "--json", "--workers", "2"]);
+      expect(untimed(merged)).toEqual(untimed(single));
+      job.outside(parseExactJson(merged) as Record<string, unknown>);
+    });
+  }
+
+  it("sieve: the merged class table is byte-identical to sieve --out, and so is its manifest's sha256", async () => {
+    const run = runDir("local-sieve");
+    await ok(["merge", run, "--out", join(dir, "merged.u32")]);
+    await ok(["sieve", "--depth", "30", "--out", join(dir, "single.u32"), "--workers", "2"]);
+    expect(readFileSync(join(dir, "merged.u32")).equals(readFileSync(join(dir, "single.u32")))).toBe(true);
+    const m = (f: string) => parseExactJson(readFileSync(join(dir, `${f}.json`), "utf8")) as Record<string, unknown>;
+    expect(m("merged.u32").sha256).toBe(m("single.u32").sha256);
+    expect(m("merged.u32").rows).toBe(A076227[30]); // OEIS A076227 (published entry)
+  });
+
+  it("the plan and the script: one array task per shard, estimates, logs under RUN/logs", async () => {
+    const run = runDir("local-sieve");
+    const script = readFileSync(join(run, "job.sbatch"), "utf8");
+    expect(script).toMatch(/^#SBATCH --array=0-15$/m);
+    expect(script).toMatch(/^#SBATCH --cpus-per-task=2$/m);
+    expect(script).toMatch(/^#SBATCH --mem=\d+M$/m);
+    expect(script).toMatch(/^#SBATCH --time=\d\d:\d\d:\d\d$/m);
+    expect(script).toContain(`--output=${run}/logs/shard-%a.out`);
+    expect(script).toMatch(/shard "\$RUN" "\$SLURM_ARRAY_TASK_ID"/);
+    const plan = JSON.parse(readFileSync(join(run, "plan.json"), "utf8")) as { plan: { shards: unknown[]; hash: string } };
+    expect(plan.plan.shards).toHaveLength(16);
+    expect(plan.plan.hash).toMatch(/^[0-9a-f]{64}$/);
+  });
+});
+
+describe("cluster: failures are found, rerun and merged; bad parts are refused", () => {
+  const run = runDir("fail-census");
+
+  it("a failed shard leaves its error line; batch-status names it and prints the rerun line", async () => {
+    await ok(["batch", "census", "--depth", "20", "--shards", "6", "--dir", run]);
+    const ran = await runShards(run, 6, { GLIDEPATH_FAIL_SHARDS: "3" });
+    expect(ran.map((r) => r.code)).toEqual([0, 0, 0, 1, 0, 0]);
+    expect(ran[3]!.stderr.trim().split("\n")).toEqual(["glidepath: shard 3 failed on purpose (GLIDEPATH_FAIL_SHARDS)"]);
+    rmSync(join(run, "parts", "5.json")); // as if task 5 had been killed
+    const text = await ok(["batch-status", run]);
+    expect(text).toContain("done 4, failed 1, missing 1");
+    expect(text).toContain("failed: shard 3: shard 3 failed on purpose");
+    expect(text).toContain(`rerun what is not done: sbatch --array=3,5 ${run}/job.sbatch`);
+    const j = parseExactJson(await ok(["batch-status", run, "--json"])) as { complete: boolean; missing: bigint[] };
+    expect(j.complete).toBe(false);
+    expect(j.missing).toEqual([5n]);
+  });
+
+  it("merge refuses while parts are missing, with one line naming them", async () => {
+    const r = await cli(["merge", run]);
+    expect(r.code).toBe(2);
+    expect(r.stdout).toBe("");
+    const lines = r.stderr.trim().split("\n");
+    expect(lines).toHaveLength(1);
+    expect(lines[0]).toMatch(
+      /merge refused: 2 of 6 parts are missing or bad .*part 3: missing \(the shard failed: shard 3 failed on purpose/,
+    );
+    expect(lines[0]).toContain("part 5: missing");
+  });
+
+  it("rerunning only the missing shards completes the run, and the merge equals the one-machine census", async () => {
+    for (const i of ["3", "5"]) await ok(["shard", run, i, "--workers", "2"]);
+    expect(await ok(["batch-status", run])).toContain(`complete: glidepath merge ${run}`);
+    expect(existsSync(join(run, "parts", "3.failed"))).toBe(false);
+    // running a shard twice is harmless
+    await ok(["shard", run, "0", "--workers", "2"]);
+    expect(untimed(await ok(["merge", run]))).toEqual(untimed(await ok(["census", "--depth", "20", "--json", "--workers", "2"])));
+  });
+
+  it("a changed byte in a part's file, or a part from another plan, is refused with one line naming the part", async () => {
+    const sieveRun = runDir("local-sieve");
+    const table = join(sieveRun, "parts", "1.table");
+    const bytes = readFileSync(table);
+    const changed = Buffer.from(bytes);
+    changed[100] = changed[100]! ^ 1;
+    writeFileSync(table, changed);
+    const r = await cli(["merge", sieveRun, "--out", join(dir, "never.u32")]);
+    writeFileSync(table, bytes);
+    expect(r.code).toBe(2);
+    expect(r.stderr.trim().split("\n")).toHaveLength(1);
+    expect(r.stderr).toMatch(/part 1: parts\/1\.table differs from its manifest/);
+    expect(existsSync(join(dir, "never.u32"))).toBe(false);
+
+    const other = runDir("other-census");
+    await ok(["batch", "census", "--depth", "20", "--shards", "6", "--dir", other, "--cpus-per-task", "1"]);
+    await runShards(other, 6);
+    copyFileSync(join(other, "parts", "2.json"), join(run, "parts", "2.json"));
+    const r2 = await cli(["merge", run]);
+    expect(r2.code).toBe(2);
+    expect(r2.stderr.trim().split("\n")).toHaveLength(1);
+    expect(r2.stderr).toMatch(/part 2: written for plan [0-9a-f]{16}, this run's plan is [0-9a-f]{16}/);
+  });
+
+  it("bad requests get one line and exit 2", async () => {
+    const cases: [string[], RegExp][] = [
+      [["batch", "sieve", "--depth", "20", "--dir", runDir("x")], /--shards is required/],
+      [["batch", "sieve", "--depth", "20", "--shards", "0", "--dir", runDir("x")], /--shards must be from 1/],
+      [["batch", "sieve", "--depth", "99", "--shards", "2", "--dir", runDir("x")], /--depth must be from 0 to 63|depth/],
+      [["batch", "census", "--depth", "20", "--shards", "3", "--dir", run], /already holds another plan/],
+      [["shard", run, "6"], /shard 6 is not in the plan/],
+      [["shard", join(dir, "nowhere"), "0"], /is not a glidepath run/],
+      [["merge", run, "--out", join(dir, "c.csv")], /--format|csv/],
+    ];
+    for (const [args, msg] of cases) {
+      const r = await cli(args);
+      expect(r.code, args.join(" ")).toBe(2);
+      expect(r.stderr.trim().split("\n"), args.join(" ")).toHaveLength(1);
+      expect(r.stderr).toMatch(msg);
+    }
+  });
+});
+
+const hasSlurm = requireProgram("Slurm", "/usr/bin/sbatch", "apt-get install -y slurm-wlm munge; test/cluster/slurm.sh start");
+
+describe.runIf(hasSlurm)("cluster: a real Slurm job array (sbatch --wait)", () => {
+  for (const job of JOBS.filter((j) => j.name !== "conjugacy")) {
+    it(`${job.name}: submitted, merged, equal to the one-machine command`, { timeout: 300_000 }, async () => {
+      const run = runDir(`slurm-${job.name}`);
+      await ok(["batch", job.name, ...job.opts, "--shards", String(job.shards), "--dir", run, "--cpus-per-task", "1"]);
+      const sub = await sh("sbatch", ["--wait", join(run, "job.sbatch")]);
+      expect(sub.code, sub.stderr).toBe(0);
+      expect(await ok(["batch-status", run])).toContain("complete");
+      const out = job.name === "sieve" ? ["--out", join(dir, "slurm.u32")] : [];
+      const merged = await ok(["merge", run, ...out]);
+      expect(untimed(merged)).toEqual(untimed(await ok([job.name, ...job.opts, "--json", "--workers", "2"])));
+      job.outside(parseExactJson(merged) as Record<string, unknown>);
+      if (job.name === "sieve") expect(readFileSync(join(dir, "slurm.u32")).equals(readFileSync(join(dir, "single.u32")))).toBe(true);
+    });
+  }
+
+  it("a task that fails is named by batch-status; its rerun line, submitted, completes the run", { timeout: 300_000 }, async () => {
+    const run = runDir("slurm-fail");
+    await ok(["batch", "census", "--depth", "22", "--shards", "4", "--dir", run, "--cpus-per-task", "1"]);
+    const sub = await sh("sbatch", ["--wait", "--export=ALL,GLIDEPATH_FAIL_SHARDS=2", join(run, "job.sbatch")]);
+    expect(sub.code).not.toBe(0); // sbatch --wait reports the failed task
+    const text = await ok(["batch-status", run]);
+    expect(text).toContain("failed: shard 2: shard 2 failed on purpose");
+    const line = /rerun what is not done: (sbatch .*)$/m.exec(text)?.[1];
+    expect(line).toBe(`sbatch --array=2 ${run}/job.sbatch`);
+    expect(readFileSync(join(run, "logs", "shard-2.out"), "utf8")).toContain("shard 2 failed on purpose");
+    const [cmd, ...args] = line!.split(" ");
+    const again = await sh(cmd!, ["--wait", ...args]);
+    expect(again.code, again.stderr).toBe(0);
+    expect(await ok(["batch-status", run])).toContain("complete");
+    expect(untimed(await ok(["merge", run]))).toEqual(untimed(await ok(["census", "--depth", "22", "--json", "--workers", "2"])));
+  });
+});
