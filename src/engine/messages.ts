@@ -22,6 +22,11 @@ export interface ShardRequest {
   /** Only the residues a of the leaves (b and m come back empty): for class tables. */
   readonly residuesOnly?: boolean;
   /**
+   * With residuesOnly: the worker groups the residues by their top `bits` bits and keeps buckets
+   * from..to-1 only (one pass of a table's sort), so the host only appends whole groups.
+   */
+  readonly buckets?: BucketRange;
+  /**
    * false: tally only levels deeper than prefixBits (the plan counted levels 0..prefixBits in a top
    * run); true: also the ancestors this shard owns, so the 2^prefixBits shards sum to the whole run.
    */
@@ -49,6 +54,22 @@ export interface ShardResult {
 export interface ShardOutput extends ShardResult {
   /** The shard's leaves at the target depth, when asked for (concatenated chunks). */
   readonly leaves?: LeafChunk;
+  /** With `buckets`: the leaves' residues grouped by bucket instead. */
+  readonly grouped?: GroupedResidues;
+}
+
+/** Buckets from..to-1 of residues mod 2^depth by their top `bits` bits. */
+export interface BucketRange {
+  readonly bits: number;
+  readonly from: number;
+  readonly to: number;
+}
+
+/** Residues grouped by bucket: the low depth - bits bits of each, bucket after bucket. */
+export interface GroupedResidues {
+  readonly low: Uint32Array;
+  /** counts[k]: residues of bucket from + k, in that order in `low`. */
+  readonly counts: Uint32Array;
 }
 
 /** One shard of the cycle search: every node of depth 1..depth below the prefix is a candidate. */
@@ -123,6 +144,8 @@ export interface KernelWorkerApi {
   runCycles(req: CycleShard): Promise<CycleShardResult>;
   runCensus(req: CensusShard): Promise<CensusShardResult>;
   exportTable(req: TableExport): Promise<Uint8Array>;
+  /** Sorts one bucket of a class table and writes it out (outputs/tables.ts finishBucket). */
+  sortBucket(keys: Uint32Array, bits: number, high: number, wide: boolean): Promise<Uint32Array>;
   /** Keeps a verification run's tables in the worker's kernel (once per run). */
   verifyPrepare(tables: VerifyTables): Promise<void>;
   /** Runs one block on the tables prepared for its run. */

@@ -10,7 +10,7 @@ import { verifyBlock, verifyPrepare } from "../jobs/verify/kernel.js";
 import type { VerifyTables } from "./messages.js";
 import { makeMap } from "../core/map.js";
 import { classFromResidue } from "../core/padic.js";
-import { csvLines } from "../outputs/tables.js";
+import { csvLines, finishBucket, groupResidues } from "../outputs/tables.js";
 import type { CsvRow } from "../outputs/tables.js";
 import { classTableArrow } from "../outputs/arrow.js";
 
@@ -26,9 +26,14 @@ export function createWorkerApi(): KernelWorkerApi {
       if (!kernel) throw new Error("worker used before init");
       const chunks: LeafChunk[] = [];
       const res = enumerateShard(kernel, req, req.leaves ? (c) => chunks.push(c) : undefined);
-      const out: ShardOutput = req.leaves ? { ...res, leaves: concatLeaves(chunks, req.r < 0) } : res;
+      const out: ShardOutput = !req.leaves
+        ? res
+        : req.buckets
+          ? { ...res, grouped: groupResidues(chunks, req.depth, req.buckets) }
+          : { ...res, leaves: concatLeaves(chunks, req.r < 0) };
       const buffers: ArrayBuffer[] = [res.live.buffer, res.stopped.buffer, res.exceptionClasses.buffer].map(asArrayBuffer);
       if (out.leaves) buffers.push(...[out.leaves.a.buffer, out.leaves.b.buffer, out.leaves.m.buffer].map(asArrayBuffer));
+      if (out.grouped) buffers.push(asArrayBuffer(out.grouped.low.buffer), asArrayBuffer(out.grouped.counts.buffer));
       return transfer(out, buffers);
     },
     async runCensus(req) {
@@ -60,6 +65,10 @@ export function createWorkerApi(): KernelWorkerApi {
       const bytes =
         req.format === "arrow" ? classTableArrow(rows, req.depth, req.r < 0) : new TextEncoder().encode([...csvLines(rows)].join(""));
       return transfer(bytes, [asArrayBuffer(bytes.buffer)]);
+    },
+    async sortBucket(keys, bits, high, wide) {
+      const out = finishBucket(keys, bits, high, wide);
+      return transfer(out, [asArrayBuffer(out.buffer)]);
     },
     async verifyPrepare(tables) {
       if (!kernel) throw new Error("worker used before init");

@@ -13,6 +13,7 @@ import type { ByteSink, JobKind, PartBase, Plan, ShardEstimate } from "../engine
 import type { KernelPool } from "../engine/pool.js";
 import { packData, toExactJson, unpackData } from "../outputs/json.js";
 import type { DataFile } from "../outputs/manifest.js";
+import { finishBucket } from "../outputs/tables.js";
 import { AtomicFile, writeFileAtomic } from "./files.js";
 import { toolVersion } from "./version.js";
 
@@ -51,6 +52,11 @@ function planJson(plan: Plan<unknown>, job: JobKind<unknown, PartBase, unknown>)
   return packData({ ...plan, params: job.encodeParams(plan.params), prefixes: u64(plan.prefixes), weights: u64(plan.weights) });
 }
 
+/** The time a task asks for: four times the estimate and a minute to start, at least ten minutes. */
+export function timeLimit(estimate: ShardEstimate): number {
+  return Math.max(600, 4 * Math.ceil(estimate.seconds) + 60);
+}
+
 /** Slurm's time format D-HH:MM:SS. */
 export function slurmTime(seconds: number): string {
   const s = Math.max(60, Math.ceil(seconds));
@@ -73,7 +79,7 @@ export function sbatchScript(dir: string, plan: Plan<unknown>, describe: string,
     "#SBATCH --ntasks=1",
     `#SBATCH --cpus-per-task=${o.cpusPerTask}`,
     `#SBATCH --mem=${o.estimate.memoryMiB}M`,
-    `#SBATCH --time=${slurmTime(o.estimate.seconds)}`,
+    `#SBATCH --time=${slurmTime(timeLimit(o.estimate))}`,
     `#SBATCH --output=${run}/${LOGS}/shard-%a.out`,
     ...(o.partition ? [`#SBATCH --partition=${o.partition}`] : []),
     "set -euo pipefail",
@@ -374,94 +380,68 @@ export async function checkParts<P, Part extends PartBase>(run: RunDir<P>, build
   return parts;
 }
 
-/** Bytes each reader buffers and the output buffer (bounded, whatever the table's size). */
+/** Bytes each reader buffers; the window of residues merged at once is 2^WINDOW_BITS wide. */
 const READ_BYTES = 1 << 18;
-const WRITE_ELEMENTS = 1 << 19;
+const WINDOW_BITS = 22;
 
 /**
  * Merges sorted raw class tables (little-endian u32, or u64 for depth > 32, residues < 2^53) into
- * one sorted stream: a k-way merge through a binary heap, in memory independent of their size.
+ * one sorted stream, window by window: each part's run of residues in [w, w + 2^22) is appended,
+ * the window's keys are radix-sorted and written. A window holds at most 2^22 residues, so memory
+ * is bounded whatever the table's size; a part out of order, or a residue in two parts, is an error.
  */
 export async function mergeSortedTables(paths: readonly string[], depth: number, sink: ByteSink): Promise<bigint> {
   if (depth > 53) throw new LimitError("tables deeper than 2^53 are not merged here");
   const width = depth > 32 ? 8 : 4;
-  const k = paths.length;
+  const bits = Math.min(depth, WINDOW_BITS);
+  const windows = 2 ** (depth - bits);
   const handles = await Promise.all(paths.map((p) => open(p, "r")));
   try {
-    const bufs = handles.map(() => new Uint8Array(READ_BYTES));
-    const views = bufs.map((b) => new DataView(b.buffer));
-    const fill = new Int32Array(k);
-    const pos = new Int32Array(k);
-    const offset = new Float64Array(k);
-    const head = new Float64Array(k);
-    const refill = async (i: number): Promise<boolean> => {
-      const { bytesRead } = await handles[i]!.read(bufs[i]!, 0, READ_BYTES, offset[i]!);
-      if (bytesRead % width !== 0) throw new Error(`${paths[i]}: its length is not a whole number of ${width}-byte residues`);
-      offset[i] = offset[i]! + bytesRead;
-      fill[i] = bytesRead;
-      pos[i] = 0;
+    const readers = handles.map((h, i) => ({
+      h,
+      path: paths[i]!,
+      buf: new Uint32Array(READ_BYTES / 4),
+      fill: 0, // u32 words in buf
+      pos: 0,
+      offset: 0,
+      last: -1,
+    }));
+    const refill = async (r: (typeof readers)[number]): Promise<boolean> => {
+      const bytes = new Uint8Array(r.buf.buffer);
+      const { bytesRead } = await r.h.read(bytes, 0, READ_BYTES, r.offset);
+      if (bytesRead % width !== 0) throw new Error(`${r.path}: its length is not a whole number of ${width}-byte residues`);
+      r.offset += bytesRead;
+      r.fill = bytesRead / 4;
+      r.pos = 0;
       return bytesRead > 0;
     };
-    const value = (i: number) => {
-      const v = views[i]!;
-      const p = pos[i]!;
-      return width === 4 ? v.getUint32(p, true) : v.getUint32(p + 4, true) * 2 ** 32 + v.getUint32(p, true);
-    };
-    // heap of reader indices ordered by head value (values are distinct across parts; ties by index)
-    const heap = new Int32Array(k);
-    let size = 0;
-    const less = (a: number, b: number) => head[a]! < head[b]! || (head[a] === head[b] && a < b);
-    const down = (at: number) => {
-      let i = at;
-      for (;;) {
-        const l = 2 * i + 1;
-        if (l >= size) return;
-        const r = l + 1;
-        const c = r < size && less(heap[r]!, heap[l]!) ? r : l;
-        if (!less(heap[c]!, heap[i]!)) return;
-        const t = heap[i]!;
-        heap[i] = heap[c]!;
-        heap[c] = t;
-        i = c;
-      }
-    };
-    for (let i = 0; i < k; i++) {
-      if (await refill(i)) {
-        head[i] = value(i);
-        heap[size++] = i;
-      }
-    }
-    for (let i = (size >> 1) - 1; i >= 0; i--) down(i);
-    const out = new Uint8Array(WRITE_ELEMENTS * width);
-    const ov = new DataView(out.buffer);
-    let o = 0;
+    const keys = new Uint32Array(2 ** bits);
     let count = 0n;
-    let last = -1;
-    while (size > 0) {
-      const i = heap[0]!;
-      const v = head[i]!;
-      if (v <= last) throw new Error(`${paths[i]}: residue ${v} out of order or repeated`);
-      last = v;
-      if (width === 4) ov.setUint32(o, v, true);
-      else {
-        ov.setUint32(o, v % 2 ** 32, true);
-        ov.setUint32(o + 4, Math.floor(v / 2 ** 32), true);
+    for (let w = 0; w < windows; w++) {
+      const start = w * 2 ** bits;
+      const end = start + 2 ** bits;
+      let n = 0;
+      for (const r of readers) {
+        for (;;) {
+          if (r.pos >= r.fill && !(await refill(r))) break;
+          const v = width === 4 ? r.buf[r.pos]! : r.buf[r.pos + 1]! * 2 ** 32 + r.buf[r.pos]!;
+          if (v >= end) break;
+          if (v <= r.last) throw new Error(`${r.path}: residue ${v} is out of order or repeated`);
+          r.last = v;
+          keys[n++] = v - start;
+          r.pos += width / 4;
+        }
       }
-      o += width;
-      if (o === out.length) {
-        await sink.write(out);
-        count += BigInt(WRITE_ELEMENTS);
-        o = 0;
-      }
-      pos[i] = pos[i]! + width;
-      if (pos[i]! < fill[i]! || (await refill(i))) head[i] = value(i);
-      else heap[0] = heap[--size]!;
-      down(0);
+      if (n === 0) continue;
+      const sorted = finishBucket(keys.subarray(0, n), bits, start, width === 8);
+      const step = width / 4;
+      for (let i = step; i < sorted.length; i += step)
+        if (sorted[i] === sorted[i - step] && (step === 1 || sorted[i + 1] === sorted[i - step + 1]))
+          throw new Error(`residue ${step === 1 ? sorted[i] : sorted[i + 1]! * 2 ** 32 + sorted[i]!} is in two parts`);
+      await sink.write(new Uint8Array(sorted.buffer, sorted.byteOffset, sorted.byteLength));
+      count += BigInt(n);
     }
-    if (o > 0) {
-      await sink.write(out.subarray(0, o));
-      count += BigInt(o / width);
-    }
+    for (const r of readers) if (r.pos < r.fill || (await refill(r))) throw new Error(`${r.path}: residues at or above 2^${depth}`);
     return count;
   } finally {
     await Promise.all(handles.map((h) => h.close()));

@@ -2,6 +2,7 @@
 // each live prefix at depth d is one kernel task; shards are contiguous runs of prefixes, weighted
 // by their exact survivor counts; a part is the shard's tallies and exception classes (and, when
 // asked for, its sorted class table); merging sums them and expands the exceptions.
+import { transfer } from "comlink";
 import type { CollatzMap } from "../../core/map.js";
 import { checkKernelDepth, dropDepths, makeMap, parseMap } from "../../core/map.js";
 import type { Level } from "../../core/exact.js";
@@ -127,8 +128,10 @@ export const sieveJob: JobKind<SieveParams, SievePart, SieveResult> = {
     const nodes = mode === "full" ? (1n << BigInt(depth + 1)) - 1n : levels.reduce((s, l) => s + l.survivors, 0n);
     const rows = mode === "full" ? 1n << BigInt(depth) : levels[depth]!.survivors;
     const w = plan.tasks === 0 ? rows : largestShare(plan).weight;
-    // nodes in proportion to the leaves; the sorter holds 4 bytes a row, at most a pass's budget
-    return shardEstimate((nodes * w) / (rows || 1n) + 1n, 4e7, cpus, Math.min(Number(w) * 4, DEFAULT_PASS_BUDGET) + 2 ** 26);
+    // nodes in proportion to the leaves, and about 25 node-times per row written (grouping, sorting,
+    // hashing); the sorter holds 4 bytes a row, at most a pass's budget
+    const work = (nodes * w) / (rows || 1n) + 25n * w + 1n;
+    return shardEstimate(work, 4e7, cpus, Math.min(Number(w) * 4, DEFAULT_PASS_BUDGET) + 2 ** 26);
   },
 
   async layout(pool, p, parallelism) {
@@ -194,15 +197,20 @@ export const sieveJob: JobKind<SieveParams, SievePart, SieveResult> = {
           )
         : null;
       const sink = sorter ? (c: LeafChunk) => sorter.add(c) : options.onLeaves;
+      // a table's residues come grouped by bucket from the workers (the host only appends groups)
+      const passTasks = sorter
+        ? tasks.map((t) => ({ ...t, buckets: { bits: sorter.bucketBits, from: sorter.from, to: sorter.to } }))
+        : tasks;
       const m = new Merger(depth, p.map.r < 0);
       if (top) m.add(topRun(kernel, p, d, d === depth && sink ? sink : () => {}, sorter !== null || options.residuesOnly === true), d);
       if (tasks.length > 0)
         await pool.run(
-          tasks,
+          passTasks,
           (api, task) => api.runShard(task),
           (_task, out) => {
             m.add(out, depth);
-            if (out.leaves) sink?.(out.leaves);
+            if (out.grouped) sorter!.addGrouped(out.grouped);
+            else if (out.leaves) sink?.(out.leaves);
           },
           {
             signal: options.signal,
@@ -211,7 +219,24 @@ export const sieveJob: JobKind<SieveParams, SievePart, SieveResult> = {
         );
       merged ??= m;
       if (sorter && table) {
-        for (const part of sorter.sorted()) await table.write(new Uint8Array(part.buffer, part.byteOffset, part.byteLength));
+        // the buckets sorted in workers a few at a time (so that little sorted output waits), written in order
+        const buckets = sorter.takeBuckets();
+        const group = 4 * pool.size;
+        for (let g = 0; g < buckets.length; g += group) {
+          const some = buckets.slice(g, g + group);
+          const done = new Map<number, Uint32Array>();
+          await pool.run(
+            some,
+            (api, b) => api.sortBucket(transfer(b.keys, [b.keys.buffer]), sorter.keyBits, sorter.highOf(b.k), depth > 32),
+            (b, out) => done.set(b.k, out),
+            { signal: options.signal },
+          );
+          for (const b of some) {
+            const part = done.get(b.k)!;
+            await table.write(new Uint8Array(part.buffer, part.byteOffset, part.byteLength));
+          }
+          for (let i = g; i < g + some.length; i++) buckets[i] = { k: -1, keys: new Uint32Array(0) }; // release
+        }
         written += BigInt(sorter.count);
       }
     }
