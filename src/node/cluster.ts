@@ -3,10 +3,10 @@
 // (a shard's part with the sha256 of every file it wrote, placed last: its presence means done),
 // RUN/parts/I.failed (the error line of a failed shard) and RUN/logs (Slurm's output).
 import { createHash } from "node:crypto";
-import { createReadStream, existsSync, readdirSync, readFileSync } from "node:fs";
+import { createReadStream, existsSync, readdirSync, readFileSync, statSync } from "node:fs";
 import { mkdir, open, readFile, unlink } from "node:fs/promises";
 import { hostname } from "node:os";
-import { join, resolve } from "node:path";
+import { dirname, join, resolve } from "node:path";
 import { LimitError, UsageError } from "../core/errors.js";
 import { PLAN_KIND, planHash } from "../engine/plan.js";
 import type { ByteSink, JobKind, PartBase, Plan, ShardEstimate } from "../engine/plan.js";
@@ -106,11 +106,22 @@ export async function createRun(
     if (!old || old.plan.hash !== plan.hash)
       throw new UsageError(`${dir} already holds another plan: choose a new --dir, or remove ${planPath}`);
   }
-  try {
-    await mkdir(join(dir, PARTS), { recursive: true });
-    await mkdir(join(dir, LOGS), { recursive: true });
-  } catch (e) {
-    throw new UsageError(`cannot create ${dir}: ${(e as NodeJS.ErrnoException).code ?? String(e)}`);
+  // one level at a time, in a folder that exists (a recursive mkdir can spin forever on /proc)
+  for (const d of [dir, join(dir, PARTS), join(dir, LOGS)]) {
+    try {
+      await mkdir(d);
+    } catch (e) {
+      const code = (e as NodeJS.ErrnoException).code;
+      if (code === "EEXIST" && statSync(d).isDirectory()) continue;
+      const parent = statSync(dirname(d), { throwIfNoEntry: false });
+      const why =
+        code === "EEXIST"
+          ? "a file of that name is in the way"
+          : !parent?.isDirectory()
+            ? `${dirname(d)} is not a folder`
+            : (code ?? String(e));
+      throw new UsageError(`cannot create ${d}: ${why}`);
+    }
   }
   const stored = {
     kind: PLAN_KIND,

@@ -150,9 +150,8 @@ export class ResidueSorter {
     return (this.from + k) * 2 ** this.lowBits;
   }
 
-  /** Takes every non-empty bucket's keys out of the sorter (unsorted), in bucket order. */
-  takeBuckets(): { readonly k: number; readonly keys: Uint32Array }[] {
-    const out: { k: number; keys: Uint32Array }[] = [];
+  /** Takes the non-empty buckets' keys out of the sorter (unsorted), one after another, in bucket order. */
+  *takeBuckets(): Generator<{ readonly k: number; readonly keys: Uint32Array }> {
     for (let k = 0; k < this.buckets.length; k++) {
       const list = this.buckets[k]!;
       const n = list.length === 0 ? 0 : (list.length - 1) * CHUNK + this.fill[k]!;
@@ -160,9 +159,8 @@ export class ResidueSorter {
       const keys = new Uint32Array(n);
       for (let c = 0; c < list.length; c++) keys.set(c === list.length - 1 ? list[c]!.subarray(0, this.fill[k]!) : list[c]!, c * CHUNK);
       this.buckets[k] = []; // release as we go
-      out.push({ k, keys });
+      yield { k, keys };
     }
-    return out;
   }
 
   /** Yields, bucket by bucket, the sorted residues as u32 (depth <= 32) or u64 pairs (lo, hi). */

@@ -219,11 +219,9 @@ export const sieveJob: JobKind<SieveParams, SievePart, SieveResult> = {
         );
       merged ??= m;
       if (sorter && table) {
-        // the buckets sorted in workers a few at a time (so that little sorted output waits), written in order
-        const buckets = sorter.takeBuckets();
-        const group = 4 * pool.size;
-        for (let g = 0; g < buckets.length; g += group) {
-          const some = buckets.slice(g, g + group);
+        // the buckets taken out and sorted in workers a few at a time (so that memory stays within the
+        // sorter's), and written in order
+        const sortAndWrite = async (some: { k: number; keys: Uint32Array }[]) => {
           const done = new Map<number, Uint32Array>();
           await pool.run(
             some,
@@ -235,8 +233,16 @@ export const sieveJob: JobKind<SieveParams, SievePart, SieveResult> = {
             const part = done.get(b.k)!;
             await table.write(new Uint8Array(part.buffer, part.byteOffset, part.byteLength));
           }
-          for (let i = g; i < g + some.length; i++) buckets[i] = { k: -1, keys: new Uint32Array(0) }; // release
+        };
+        let some: { k: number; keys: Uint32Array }[] = [];
+        for (const b of sorter.takeBuckets()) {
+          some.push(b);
+          if (some.length === 8 * pool.size) {
+            await sortAndWrite(some);
+            some = [];
+          }
         }
+        if (some.length > 0) await sortAndWrite(some);
         written += BigInt(sorter.count);
       }
     }
