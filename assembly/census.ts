@@ -1,23 +1,27 @@
-// Census of all 2^K parity vectors (full tree), with the tallies the host turns into tables:
-//   live / stopped [j][m]  as in enumerate.ts (first drop of q^m / 2^j below 1);
-//   vectors [j][m]         parents: nodes at depth j < K with m odd steps, each with two children; the
-//                          host turns them into nodes per (j, m) (binomial: a sanity check);
-//   peak [j][m]            per vector, the (j, m) where q^m / 2^j is largest (exact comparison:
-//                          q^d > 2^e iff e < bitlen(q^d), from the host's table);
+// Census of all 2^K parity vectors (full tree): what depends on the residue, not on the parity
+// vector alone (the host counts those by lattice paths, core/exact.ts):
+//   live / stopped [j][m]  as in enumerate.ts (first drop of q^m / 2^j below 1), tallied in the live
+//                          part of the tree only: the host's cross-check against the exact counter;
 //   bins [k]               per least member a in [1, 2^K): floor(4 log2(T^K(a) / a)), at k + 512;
 //                          decided in integers unless close to a bin edge; those go to the host
 //                          (CHANNEL_AMBIGUOUS) for an exact BigInt decision;
 //   differ                 least members whose first descent differs from the coefficient stopping
 //                          time: early descent (before the drop) or no descent at the drop (CHANNEL_DIFFER);
+//   exception classes      (a, b, j, m) of dropping classes with b >= a, whose small members do not
+//                          descend at the drop (CHANNEL_EXCEPTIONS, as enumerate.ts; the host expands);
 //   ratio candidates       (member, T^j(member), j) that may be the largest T^j(a)/a (CHANNEL_RATIO):
 //                          by monotonicity in x, the extremes of each class within [1, 2^K) suffice;
 //                          a conservative f64 filter keeps the channel short, the host decides exactly.
+// A dropped subtree in which none of these can happen (every least member below it is at least the
+// early-descent and exception bounds and above the slow-bin bounds of every m it can reach, and it
+// cannot reach an m whose ratio bound beats the best ratio) is not walked: `barren`. The host's seed
+// (a real member's ratio) starts the best ratio high, so that most dropped subtrees are barren.
 // Width: every value is i64; the host proves T^j(a) and the class images fit below 2^63 in magnitude.
 
 import { flush } from "./buffers";
 import {
-  CENSUS_BATCH, CENSUS_BATCH_AT, CENSUS_BIN_OFFSET, CENSUS_BINS_AT, CENSUS_COUNTS_AT, CENSUS_RATIO_AT, CENSUS_REGION_BYTES,
-  CENSUS_TALLY_BYTES, CHANNEL_AMBIGUOUS, CHANNEL_CHUNK, CHANNEL_DIFFER, CHANNEL_RATIO, CHANNEL_VECTORS, TABLE_BINMIN, TALLY_TABLE_BYTES,
+  CENSUS_BATCH, CENSUS_BATCH_AT, CENSUS_BIN_OFFSET, CENSUS_BINS_AT, CENSUS_COUNTS_AT, CENSUS_EXCEPTIONS_AT, CENSUS_RATIO_AT, CENSUS_REACH_AT, CENSUS_REGION_BYTES, CENSUS_SEED_AT,
+  CENSUS_TALLY_BYTES, CHANNEL_AMBIGUOUS, CHANNEL_CHUNK, CHANNEL_DIFFER, CHANNEL_EXCEPTIONS, CHANNEL_RATIO, CHANNEL_VECTORS, TABLE_BINMIN, TALLY_TABLE_BYTES,
 } from "./layout";
 import { dropDepth, evenBit, evenImage, evenResidue, oddImage, qpow, stepImage, stepValue, tally, useTables } from "./tree";
 
@@ -26,16 +30,15 @@ let Q: u64 = 0;
 let H: i64 = 0;
 let livePtr: usize = 0;
 let stoppedPtr: usize = 0;
-let vectorsPtr: usize = 0;
-let peakPtr: usize = 0;
 let binsPtr: usize = 0;
 let countsPtr: usize = 0; // u64: [0] nonpositive images, [1] differ, [2] early descents, [4 + m] slow-path leaves
 let chanPtr: usize = 0; // channel c's region at chanPtr + (c - 3) * CENSUS_REGION_BYTES
-// entries waiting in the regions of channels 3, 4, 5 and 6
+// entries waiting in the regions of channels 3, 4, 5, 6 and CHANNEL_EXCEPTIONS
 let n3: i32 = 0;
 let n4: i32 = 0;
 let n5: i32 = 0;
 let n6: i32 = 0;
+let nx: i32 = 0;
 let emitVectors: bool = false;
 let V: u64 = 0; // the parity vector of the current path, bit j = parity of step j + 1
 let best: f64 = 0;
@@ -43,6 +46,7 @@ let nodes: u64 = 0;
 let binMin: usize = 0; // per m: u64, least members above it are in the coefficient's bin (host-proven)
 let ratioMinM: i32 = 0; // the least m whose bound is still >= best
 let ratioBoundPtr: usize = 0; // f64[m]: an upper bound on T^j(u)/u over members u >= 1, any j >= m
+let reachPtr: usize = 0; // u64 per (m, top): the largest binMin over m..top (host table)
 let batchPtr: usize = 0; // CENSUS_BATCH pairs (a, b) of positive least members and images
 let batchN: i32 = 0;
 
@@ -52,9 +56,9 @@ let batchN: i32 = 0;
 }
 
 function push(ch: i32, x0: u64, x1: u64, x2: u64, x3: u64): void {
-  const slot = ch - CHANNEL_AMBIGUOUS;
-  const n = ch == CHANNEL_AMBIGUOUS ? n3 : ch == CHANNEL_DIFFER ? n4 : ch == CHANNEL_RATIO ? n5 : n6;
-  const p = chanPtr + <usize>slot * <usize>CENSUS_REGION_BYTES + (<usize>n << 5);
+  const region = ch == CHANNEL_EXCEPTIONS ? <usize>CENSUS_EXCEPTIONS_AT : <usize>(ch - CHANNEL_AMBIGUOUS) * <usize>CENSUS_REGION_BYTES;
+  const n = ch == CHANNEL_AMBIGUOUS ? n3 : ch == CHANNEL_DIFFER ? n4 : ch == CHANNEL_RATIO ? n5 : ch == CHANNEL_VECTORS ? n6 : nx;
+  const p = chanPtr + region + (<usize>n << 5);
   store<u64>(p, x0);
   store<u64>(p, x1, 8);
   store<u64>(p, x2, 16);
@@ -67,7 +71,8 @@ function push(ch: i32, x0: u64, x1: u64, x2: u64, x3: u64): void {
   if (ch == CHANNEL_AMBIGUOUS) n3 = next;
   else if (ch == CHANNEL_DIFFER) n4 = next;
   else if (ch == CHANNEL_RATIO) n5 = next;
-  else n6 = next;
+  else if (ch == CHANNEL_VECTORS) n6 = next;
+  else nx = next;
 }
 
 /** Hands every region's waiting entries to the host. */
@@ -76,7 +81,8 @@ function flushAll(): void {
   if (n4 > 0) flush(CHANNEL_DIFFER, n4);
   if (n5 > 0) flush(CHANNEL_RATIO, n5);
   if (n6 > 0) flush(CHANNEL_VECTORS, n6);
-  n3 = n4 = n5 = n6 = 0;
+  if (nx > 0) flush(CHANNEL_EXCEPTIONS, nx);
+  n3 = n4 = n5 = n6 = nx = 0;
 }
 
 /** A member u in [1, 2^K) with T^j(u) = v: report it if it may beat the largest ratio so far. */
@@ -85,12 +91,24 @@ function flushAll(): void {
   if (v > 0 && <f64>v >= best * <f64><i64>u) {
     push(CHANNEL_RATIO, u, <u64>v, <u64>j, 0);
     const r = (<f64>v / <f64><i64>u) * (1.0 - 1e-12);
-    if (r > best) {
-      best = r;
-      // the bounds grow with m: classes with fewer odd steps than ratioMinM cannot win any more
-      while (ratioMinM <= K && load<f64>(ratioBoundPtr + (<usize>ratioMinM << 3)) < best) ratioMinM++;
-    }
+    if (r > best) raiseBest(r);
   }
+}
+
+function raiseBest(r: f64): void {
+  best = r;
+  // the bounds grow with m: classes with fewer odd steps than ratioMinM cannot win any more
+  while (ratioMinM <= K && load<f64>(ratioBoundPtr + (<usize>ratioMinM << 3)) < best) ratioMinM++;
+}
+
+/**
+ * Below the dropped node (a mod 2^j, m), with its early-descent bound and exception bound fixed,
+ * nothing is left to find: every least member u >= a of the subtree has u >= early and u > excMax,
+ * u > binMin[m'] for every m' in m..m + K - j, and no m' there can beat the best ratio.
+ */
+@inline function barren(a: u64, m: i32, j: i32, early: u64, excMax: i64): bool {
+  const top = m + K - j;
+  return top < ratioMinM && a >= early && <i64>a > excMax && a > load<u64>(reachPtr + (<usize>((m << 6) + top) << 3)) && !emitVectors;
 }
 
 /** The extremes of the class a mod 2^j within [1, 2^K): a itself, and a + 2^j (2^(K-j) - 1). */
@@ -200,10 +218,10 @@ type Inner = u16;
 
 /**
  * The node (a, b, m) at depth j < K, not yet dropped: its own ratio candidates and early-descent
- * bound, then its children (tallied here, where the drop is known). pk = (j << 6) | m is where the
- * peak of q^m/2^j on the path so far is; the path's parity vector is kept in V.
+ * bound, then its children (tallied here, where the drop is known). The path's parity vector is
+ * kept in V.
  */
-@inline function live<C>(a: u64, b: i64, m: i32, j: i32, pk: i32, early0: u64): void {
+@inline function live<C>(a: u64, b: i64, m: i32, j: i32, early0: u64): void {
   extremes(a, b, m, j);
   const early = earlyBound(a, b, m, j, early0);
   const pm0 = <i64>qpow(m);
@@ -214,31 +232,34 @@ type Inner = u16;
   const bOdd = oddImage<i64>(b, pm0, e0, <i64>Q, H);
   const jj = j + 1;
   nodes += 2;
-  tally(vectorsPtr, j, m); // parents: the host adds parents (j, m) and (j, m - 1) into vectors (j + 1, m)
   tally(livePtr, jj, m + 1); // an odd step never drops a live class
-  const opk = jj - (pk >> 6) < dropDepth(m + 1 - (pk & 63)) ? (jj << 6) | (m + 1) : pk;
   const bit = (<u64>1) << j;
   V |= bit;
-  if (sizeof<C>() == 1) atLeaf(aOdd, bOdd, m + 1, opk, earlyBound(aOdd, bOdd, m + 1, jj, early), -1);
-  else if (jj == K - 1) live<Leaves>(aOdd, bOdd, m + 1, jj, opk, early);
-  else dfsLive(aOdd, bOdd, m + 1, jj, opk, early);
+  if (sizeof<C>() == 1) atLeaf(aOdd, bOdd, m + 1, earlyBound(aOdd, bOdd, m + 1, jj, early), -1);
+  else if (jj == K - 1) live<Leaves>(aOdd, bOdd, m + 1, jj, early);
+  else dfsLive(aOdd, bOdd, m + 1, jj, early);
   V &= ~bit;
   if (jj >= dropDepth(m)) {
     tally(stoppedPtr, jj, m);
-    const excMax = bEven >= <i64>aEven ? exceptionBound(aEven, bEven, m, jj) : -1;
-    if (sizeof<C>() == 1) atLeaf(aEven, bEven, m, pk, early, excMax);
-    else if (jj == K - 1) dropped<Leaves>(aEven, bEven, m, jj, pk, early, excMax);
-    else dfsDropped(aEven, bEven, m, jj, pk, early, excMax);
+    let excMax: i64 = -1;
+    if (bEven >= <i64>aEven) {
+      excMax = exceptionBound(aEven, bEven, m, jj);
+      push(CHANNEL_EXCEPTIONS, aEven, <u64>bEven, <u64>jj, <u64>m);
+    }
+    if (sizeof<C>() == 1) atLeaf(aEven, bEven, m, early, excMax);
+    else if (barren(aEven, m, jj, early, excMax)) return;
+    else if (jj == K - 1) dropped<Leaves>(aEven, bEven, m, jj, early, excMax);
+    else dfsDropped(aEven, bEven, m, jj, early, excMax);
   } else {
     tally(livePtr, jj, m);
-    if (sizeof<C>() == 1) atLeaf(aEven, bEven, m, pk, earlyBound(aEven, bEven, m, jj, early), -1);
-    else if (jj == K - 1) live<Leaves>(aEven, bEven, m, jj, pk, early);
-    else dfsLive(aEven, bEven, m, jj, pk, early);
+    if (sizeof<C>() == 1) atLeaf(aEven, bEven, m, earlyBound(aEven, bEven, m, jj, early), -1);
+    else if (jj == K - 1) live<Leaves>(aEven, bEven, m, jj, early);
+    else dfsLive(aEven, bEven, m, jj, early);
   }
 }
 
-/** A node at or below its drop, depth j < K: ratio candidates, vectors, peaks; excMax from the drop. */
-@inline function dropped<C>(a: u64, b: i64, m: i32, j: i32, pk: i32, early: u64, excMax: i64): void {
+/** A node at or below its drop, depth j < K, not barren: ratio candidates; excMax from the drop. */
+@inline function dropped<C>(a: u64, b: i64, m: i32, j: i32, early: u64, excMax: i64): void {
   extremes(a, b, m, j);
   const pm0 = <i64>qpow(m);
   const e0 = evenBit<i64>(b);
@@ -248,32 +269,31 @@ type Inner = u16;
   const bOdd = oddImage<i64>(b, pm0, e0, <i64>Q, H);
   const jj = j + 1;
   nodes += 2;
-  tally(vectorsPtr, j, m); // parents: the host adds parents (j, m) and (j, m - 1) into vectors (j + 1, m)
-  const opk = jj - (pk >> 6) < dropDepth(m + 1 - (pk & 63)) ? (jj << 6) | (m + 1) : pk;
   const bit = (<u64>1) << j;
   V |= bit;
-  if (sizeof<C>() == 1) atLeaf(aOdd, bOdd, m + 1, opk, early, excMax);
-  else if (jj == K - 1) dropped<Leaves>(aOdd, bOdd, m + 1, jj, opk, early, excMax);
-  else dfsDropped(aOdd, bOdd, m + 1, jj, opk, early, excMax);
+  if (sizeof<C>() == 1) atLeaf(aOdd, bOdd, m + 1, early, excMax);
+  else if (!barren(aOdd, m + 1, jj, early, excMax)) {
+    if (jj == K - 1) dropped<Leaves>(aOdd, bOdd, m + 1, jj, early, excMax);
+    else dfsDropped(aOdd, bOdd, m + 1, jj, early, excMax);
+  }
   V &= ~bit;
-  if (sizeof<C>() == 1) atLeaf(aEven, bEven, m, pk, early, excMax);
-  else if (jj == K - 1) dropped<Leaves>(aEven, bEven, m, jj, pk, early, excMax);
-  else dfsDropped(aEven, bEven, m, jj, pk, early, excMax);
+  if (sizeof<C>() == 1) atLeaf(aEven, bEven, m, early, excMax);
+  else if (barren(aEven, m, jj, early, excMax)) return;
+  else if (jj == K - 1) dropped<Leaves>(aEven, bEven, m, jj, early, excMax);
+  else dfsDropped(aEven, bEven, m, jj, early, excMax);
 }
 
-function dfsLive(a: u64, b: i64, m: i32, j: i32, pk: i32, early: u64): void {
-  live<Inner>(a, b, m, j, pk, early);
+function dfsLive(a: u64, b: i64, m: i32, j: i32, early: u64): void {
+  live<Inner>(a, b, m, j, early);
 }
 
-function dfsDropped(a: u64, b: i64, m: i32, j: i32, pk: i32, early: u64, excMax: i64): void {
-  dropped<Inner>(a, b, m, j, pk, early, excMax);
+function dfsDropped(a: u64, b: i64, m: i32, j: i32, early: u64, excMax: i64): void {
+  dropped<Inner>(a, b, m, j, early, excMax);
 }
 
-/** A leaf (depth K): its ratio candidate, its peak, and the leaf tallies. */
-@inline function atLeaf(a: u64, b: i64, m: i32, pk: i32, early: u64, excMax: i64): void {
+/** A leaf (depth K): its ratio candidate and the leaf tallies. */
+@inline function atLeaf(a: u64, b: i64, m: i32, early: u64, excMax: i64): void {
   if (a > 0 && m >= ratioMinM) ratioCandidate(a, b, K);
-  const p = peakPtr + (<usize>pk << 3); // pk = (j << 6) | m, the peak's tally index
-  store<u64>(p, load<u64>(p) + 1);
   leaf(a, b, m, early, excMax);
 }
 
@@ -281,7 +301,7 @@ function dfsDropped(a: u64, b: i64, m: i32, j: i32, pk: i32, early: u64, excMax:
  * The census of every vector extending `prefix` mod 2^prefixBits, to `depth` (full tree).
  * tables: the per-m tables (layout.ts: TABLE_*, with TABLE_BINMIN). tallies: CENSUS_TALLY_BYTES,
  * zeroed here. scratch: CENSUS_SCRATCH_BYTES, the channel regions, a batch and the host's ratio
- * bounds (CENSUS_RATIO_AT). With `vectors`, every leaf's (a, parity vector) goes to CHANNEL_VECTORS.
+ * bounds (CENSUS_RATIO_AT), ratio seed (CENSUS_SEED_AT) and reach table (CENSUS_REACH_AT). With `vectors`, every leaf's (a, parity vector) goes to CHANNEL_VECTORS.
  */
 export function census(
   q: u32, r: i32, depth: i32, prefixBits: i32, prefix: u64,
@@ -296,18 +316,17 @@ export function census(
   binMin = tables + TABLE_BINMIN;
   livePtr = tallies;
   stoppedPtr = tallies + TALLY_TABLE_BYTES;
-  vectorsPtr = tallies + 2 * TALLY_TABLE_BYTES;
-  peakPtr = tallies + 3 * TALLY_TABLE_BYTES;
   binsPtr = tallies + CENSUS_BINS_AT;
   countsPtr = tallies + CENSUS_COUNTS_AT;
   memory.fill(tallies, 0, CENSUS_TALLY_BYTES);
   chanPtr = scratch;
   batchPtr = scratch + CENSUS_BATCH_AT;
   ratioBoundPtr = scratch + CENSUS_RATIO_AT;
-  n3 = n4 = n5 = n6 = 0;
+  reachPtr = scratch + CENSUS_REACH_AT;
+  n3 = n4 = n5 = n6 = nx = 0;
   emitVectors = vectors != 0;
-  best = 0;
   ratioMinM = 0;
+  raiseBest(load<f64>(scratch + CENSUS_SEED_AT));
   nodes = 0;
   batchN = 0;
   walk(prefixBits, prefix);
@@ -320,7 +339,7 @@ function walk(prefixBits: i32, prefix: u64): void {
   // The state at the prefix node, tracked exactly as the full walk would. Each ancestor is tallied
   // by the one shard that is its extension by zero bits (prefix >> j == 0), so the 2^prefixBits
   // shards of a split sum to the whole census. The prefix node itself is handled by the dfs.
-  let a: u64 = 0, b: i64 = 0, m: i32 = 0, pj: i32 = 0, pm: i32 = 0, early: u64 = 0;
+  let a: u64 = 0, b: i64 = 0, m: i32 = 0, early: u64 = 0;
   V = 0;
   let alive = true, excMax: i64 = -1;
   if (prefix == 0) {
@@ -329,10 +348,7 @@ function walk(prefixBits: i32, prefix: u64): void {
   }
   for (let j = 0; j < prefixBits; j++) {
     // ancestors at depth j < prefixBits: the owner runs their node-level work
-    if ((prefix >> <u64>j) == 0) {
-      extremes(a, b, m, j);
-      tally(vectorsPtr, j, m); // a parent owned by this shard
-    }
+    if ((prefix >> <u64>j) == 0) extremes(a, b, m, j); // a node owned by this shard
     if (alive) early = earlyBound(a, b, m, j, early);
     const e = (prefix >> <u64>j) & 1;
     const x = stepValue<i64>(b, <i64>qpow(m), e);
@@ -345,24 +361,23 @@ function walk(prefixBits: i32, prefix: u64): void {
     a |= e << <u64>j;
     const jj = j + 1;
     const owned = (prefix >> <u64>jj) == 0;
-    if (odd && jj - pj < dropDepth(m - pm)) {
-      pj = jj;
-      pm = m;
-    }
     if (owned) nodes++;
     if (alive && !odd && jj >= dropDepth(m)) {
       alive = false;
       if (owned) tally(stoppedPtr, jj, m);
-      if (b >= <i64>a) excMax = exceptionBound(a, b, m, jj);
+      if (b >= <i64>a) {
+        excMax = exceptionBound(a, b, m, jj);
+        if (owned) push(CHANNEL_EXCEPTIONS, a, <u64>b, <u64>jj, <u64>m);
+      }
     } else if (alive && owned) {
       tally(livePtr, jj, m);
     }
   }
-  const pk = (pj << 6) | pm;
-  if (prefixBits == K) atLeaf(a, b, m, pk, alive ? earlyBound(a, b, m, K, early) : early, excMax);
+  if (prefixBits == K) atLeaf(a, b, m, alive ? earlyBound(a, b, m, K, early) : early, excMax);
+  else if (!alive && barren(a, m, prefixBits, early, excMax)) return;
   else if (prefixBits == K - 1) {
-    if (alive) live<Leaves>(a, b, m, prefixBits, pk, early);
-    else dropped<Leaves>(a, b, m, prefixBits, pk, early, excMax);
-  } else if (alive) dfsLive(a, b, m, prefixBits, pk, early);
-  else dfsDropped(a, b, m, prefixBits, pk, early, excMax);
+    if (alive) live<Leaves>(a, b, m, prefixBits, early);
+    else dropped<Leaves>(a, b, m, prefixBits, early, excMax);
+  } else if (alive) dfsLive(a, b, m, prefixBits, early);
+  else dfsDropped(a, b, m, prefixBits, early, excMax);
 }

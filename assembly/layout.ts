@@ -42,17 +42,23 @@ export const CENSUS_BINS: i32 = 1024;
 export const CENSUS_BIN_OFFSET: i32 = 512;
 /** counts: [0] nonpositive images, [1] differ, [2] early descents, [3] unused, [4 + m] slow-path leaves. */
 export const CENSUS_COUNTS: i32 = 68;
-/** live, stopped, vectors (parents), peak tables, then bins, then counts. */
-export const CENSUS_BINS_AT: i32 = 4 * TALLY_TABLE_BYTES;
+/** live and stopped tables (the live part of the tree only), then bins, then counts. */
+export const CENSUS_BINS_AT: i32 = 2 * TALLY_TABLE_BYTES;
 export const CENSUS_COUNTS_AT: i32 = CENSUS_BINS_AT + CENSUS_BINS * 8;
 export const CENSUS_TALLY_BYTES: i32 = CENSUS_COUNTS_AT + CENSUS_COUNTS * 8;
-/** Scratch: one region per channel 3..6 (channel c at (c - 3) * CENSUS_REGION_BYTES), a batch, the ratio bounds. */
+/** Scratch: one region per channel 3..6 (channel c at (c - 3) * CENSUS_REGION_BYTES), then one for
+ * CHANNEL_EXCEPTIONS (at CENSUS_EXCEPTIONS_AT), a batch, the ratio bounds, seed and reach table. */
 export const CENSUS_REGION_BYTES: i32 = CHANNEL_CHUNK * ENTRY_BYTES;
+export const CENSUS_EXCEPTIONS_AT: i32 = 4 * CENSUS_REGION_BYTES;
 export const CENSUS_BATCH: i32 = 1024;
-export const CENSUS_BATCH_AT: i32 = 4 * CENSUS_REGION_BYTES;
+export const CENSUS_BATCH_AT: i32 = 5 * CENSUS_REGION_BYTES;
 /** f64 per m, written by the host: an upper bound on T^j(u)/u over members u >= 1 with m odd steps. */
 export const CENSUS_RATIO_AT: i32 = CENSUS_BATCH_AT + CENSUS_BATCH * 16;
-export const CENSUS_SCRATCH_BYTES: i32 = CENSUS_RATIO_AT + 64 * 8;
+/** f64, written by the host: a ratio T^K(u)/u of a real member u, rounded down (the search starts above it). */
+export const CENSUS_SEED_AT: i32 = CENSUS_RATIO_AT + 64 * 8;
+/** u64 per (m, top) at (m << 6) + top, written by the host: the largest TABLE_BINMIN entry over m..top. */
+export const CENSUS_REACH_AT: i32 = CENSUS_SEED_AT + 8;
+export const CENSUS_SCRATCH_BYTES: i32 = CENSUS_REACH_AT + 64 * 64 * 8;
 
 // ---- cycles ----
 /** q^m low words at 0, high words at 512 (u64, m = 0..63). */

@@ -276,7 +276,7 @@ describe("cli: errors give one line and the documented exit code", () => {
     [["sieve", "--map", "1x+1", "--depth", "10"], 2, /q must be between 3 and 99/],
     [["sieve", "--map", "101x+1", "--depth", "10"], 2, /q must be between 3 and 99/],
     [["sieve", "--map", "3x+1048577", "--depth", "10"], 2, /\|r\| must be below 2\^20/],
-    [["sieve", "--map", "3x + 1", "--depth", "10"], 2, /not of the form/],
+    [["sieve", "--map", "3x * 1", "--depth", "10"], 2, /not of the form/],
     [["sieve", "--map", "3x", "--depth", "10"], 2, /not of the form/],
     [["sieve", "--map", "x+1", "--depth", "10"], 2, /not of the form/],
     [["sieve", "--map", "3y+1", "--depth", "10"], 2, /not of the form/],

@@ -9,12 +9,15 @@ describe("map: sanity", () => {
     expect(parseMap("5x+1")).toEqual({ q: 5, r: 1, name: "5x+1" });
     expect(parseMap("99x-1048575")).toEqual({ q: 99, r: -1048575, name: "99x-1048575" });
   });
+  it("takes the usual spellings of one map: 3n+1, 3X+1 and 3x + 1 are 3x+1", () => {
+    for (const text of ["3n+1", "3X+1", "3x + 1", " 3N+1 ", "3x+1 "]) expect(parseMap(text)).toEqual({ q: 3, r: 1, name: "3x+1" });
+  });
   it("T(7) = 11 and T(10) = 5 for 3x+1 (common practice)", () => {
     expect(step(makeMap(3, 1), 7n)).toBe(11n);
     expect(step(makeMap(3, 1), 10n)).toBe(5n);
   });
   it("refuses malformed maps with a usage error", () => {
-    for (const bad of ["", "3x+", "3x+2", "4x+1", "1x+1", "3x+1 ", " 3x+1", "3*x+1", "3x+-1", "3x+0", "0x+1", "3X+1"]) {
+    for (const bad of ["", "3x+", "3x+2", "4x+1", "1x+1", "3*x+1", "3x+-1", "3x+0", "0x+1", "3y+1", "3xx+1", "3x+1x"]) {
       expect(() => parseMap(bad)).toThrow(UsageError);
     }
   });

@@ -4,10 +4,11 @@ import { tableFromIPC } from "apache-arrow";
 import { parseMap } from "../src/core/map.js";
 import type { CollatzMap } from "../src/core/map.js";
 import { runCensus, quarterLog2 } from "../src/jobs/census/census.js";
+import { runSieve } from "../src/jobs/sieve/sieve.js";
 import { searchCycles, CycleCollector } from "../src/jobs/cycles/cycles.js";
 import { conjugacy, conjugacyPermutation, cycleStructure } from "../src/jobs/conjugacy.js";
 import { applySteps, stepTable } from "../src/jobs/steps.js";
-import { exactCounts } from "../src/core/exact.js";
+import { exactCounts, peakCounts } from "../src/core/exact.js";
 import { censusArrow, cyclesArrow, stepTableArrow } from "../src/outputs/arrow.js";
 import { LimitError, UsageError } from "../src/core/errors.js";
 import { nodePool } from "../src/node/kernel.js";
@@ -207,6 +208,67 @@ describe("census: brute force", () => {
     expect(quarterLog2(2n, 1n)).toBe(-4);
     expect(quarterLog2(1000n, 1189n)).toBe(0); // 1.189 < 2^(1/4) = 1.18920...
     expect(quarterLog2(1000n, 1190n)).toBe(1);
+  });
+  it("peak coefficients by (j, m), a lattice-path count, equal a walk over every vector of length 18 (exact comparisons)", () => {
+    for (const map of maps) {
+      const K = 18,
+        q = BigInt(map.q);
+      const qpow = Array.from({ length: K + 1 }, (_, m) => q ** BigInt(m));
+      const brute = Array.from({ length: K + 1 }, (_, j) => new Array<bigint>(j + 1).fill(0n));
+      for (let v = 0; v < 1 << K; v++) {
+        let m = 0,
+          pj = 0,
+          pm = 0;
+        for (let j = 1; j <= K; j++) {
+          if (((v >> (j - 1)) & 1) === 0) continue;
+          m++;
+          // the point (j, m) is above the peak so far when q^(m - pm) / 2^(j - pj) > 1
+          if (qpow[m - pm]! > 1n << BigInt(j - pj)) [pj, pm] = [j, m];
+        }
+        brute[pj]![pm]!++;
+      }
+      expect(peakCounts(map.q, K), map.name).toEqual(brute);
+    }
+  });
+  it("the census walk skips only subtrees with nothing to find: the same bins, descents and largest ratio as the walk of every node", async () => {
+    const kernel = await kernelOf("debug");
+    for (const [map, K] of [
+      [parseMap("3x+1"), 22],
+      [parseMap("3x-1"), 20],
+      [parseMap("3x+5"), 20],
+      [parseMap("5x+1"), 16],
+    ] as const) {
+      const req = { q: map.q, r: map.r, depth: K, prefixBits: 0, prefix: 0n };
+      const pruned = kernel.census({ ...req, vectors: false });
+      const full = kernel.census({ ...req, vectors: true }); // vectors mode visits all 2^(K+1) - 1 nodes
+      expect(full.nodes).toBe((2n << BigInt(K)) - 1n);
+      expect(pruned.nodes, map.name).toBeLessThan(full.nodes);
+      for (const key of ["live", "stopped", "bins", "counts"] as const) expect(pruned[key], `${map.name} ${key}`).toEqual(full[key]);
+      const entries = (x: BigUint64Array) => Array.from({ length: x.length / 4 }, (_, i) => `${x[4 * i]},${x[4 * i + 1]}`).sort();
+      expect(entries(pruned.differ)).toEqual(entries(full.differ));
+      expect(entries(pruned.ambiguous)).toEqual(entries(full.ambiguous));
+      // the largest ratio among the candidates, compared exactly (u, v as unsigned: both are positive)
+      const bestOf = (x: BigUint64Array) => {
+        let best = { u: 1n, v: 1n };
+        for (let i = 0; i < x.length; i += 4) if (x[i + 1]! * best.u > best.v * x[i]!) best = { u: x[i]!, v: x[i + 1]! };
+        return best;
+      };
+      expect(bestOf(pruned.ratio)).toEqual(bestOf(full.ratio));
+    }
+  });
+  it("the census carries the sieve's exceptions (members of any size that do not descend at their class's stopping depth)", async () => {
+    for (const [map, K] of [
+      [parseMap("3x+1"), 24],
+      [parseMap("3x+5"), 22],
+      [parseMap("3x-1"), 20],
+      [parseMap("5x+1"), 16],
+    ] as const) {
+      const [c, s] = [await runCensus(pool, map, K), await runSieve(pool, { map, depth: K, mode: "survivors" })];
+      expect([c.exceptionCount, c.exceptions], map.name).toEqual([s.exceptionCount, s.exceptions]);
+    }
+    // 3x+5 has exceptions besides n = 1, among them its cycle members 5, 19 and 23 (the cycles test above)
+    const c = await runCensus(pool, parseMap("3x+5"), 22);
+    expect(c.exceptions.map((e) => e.n)).toEqual(expect.arrayContaining([1n, 5n, 19n, 23n]));
   });
   it("census depth 32 is the limit; beyond it a usage error", async () => {
     await expect(runCensus(pool, parseMap("3x+1"), 33)).rejects.toBeInstanceOf(UsageError);

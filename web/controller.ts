@@ -4,6 +4,7 @@ import { CancelledError } from "../src/engine/pool.js";
 import type { RunOptions } from "../src/engine/pool.js";
 import { group } from "../src/outputs/format.js";
 import { $ } from "./dom.js";
+import type { ResultsPanel } from "./dom.js";
 
 export interface RunElements {
   readonly start: string;
@@ -11,6 +12,8 @@ export interface RunElements {
   readonly progress: string;
   readonly status: string;
   readonly message: string;
+  /** The results this view shows: dimmed while a new run goes on, and after it is cancelled or fails. */
+  readonly results?: ResultsPanel;
 }
 
 /** What a finished run gives back: its value, or null when it was cancelled or failed (shown already). */
@@ -55,6 +58,7 @@ export class RunController {
     progress.value = 0;
     status.textContent = waiting;
     this.say("");
+    this.el.results?.markStale("a new run is in progress");
     const onProgress = (done: number, total: number) => {
       const elapsed = (performance.now() - started) / 1000;
       progress.value = done / total;
@@ -72,10 +76,13 @@ export class RunController {
       return { ok: true, value, seconds };
     } catch (e) {
       progress.value = 0;
-      if (e instanceof CancelledError) status.textContent = "Cancelled.";
-      else {
+      if (e instanceof CancelledError) {
+        status.textContent = "Cancelled.";
+        this.el.results?.markStale("the new run was cancelled");
+      } else {
         status.textContent = "Failed.";
         this.say(`The run stopped: ${(e as Error).message}`, true);
+        this.el.results?.markStale("the new run failed");
       }
       return { ok: false };
     } finally {

@@ -21,3 +21,35 @@ export function fieldError(id: string, text: string): boolean {
   $(id).setAttribute("aria-invalid", text ? "true" : "false");
   return text === "";
 }
+
+/**
+ * A view's results and the note above them: current after `shown`, dimmed with the note's reason
+ * after `markStale` (a new run in progress, a cancel, inputs that are not valid).
+ * @example const panel = new ResultsPanel("cycles-results", "cycles-stale"); panel.shown("3x+5, period 24");
+ */
+export class ResultsPanel {
+  constructor(
+    private readonly results: string,
+    private readonly note: string,
+  ) {}
+
+  /** The results on screen are now those of `params` (a few words: map, depth, ...). */
+  shown(params: string): void {
+    const results = $(this.results);
+    results.hidden = false;
+    results.dataset.params = params;
+    results.classList.remove("stale");
+    $(this.note).hidden = true;
+  }
+
+  /** Dims the results on screen, if any, with a note saying why they are no longer current. */
+  markStale(why: string): void {
+    const results = $(this.results);
+    const params = results.dataset.params;
+    if (!params) return;
+    results.classList.add("stale");
+    const note = $(this.note);
+    note.textContent = `Shown: the previous result (${params}); ${why}.`;
+    note.hidden = false;
+  }
+}

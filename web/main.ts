@@ -1,21 +1,17 @@
 // The page: tabs, URL state, and the wiring from controls to views.
-import { readState, writeState } from "./state.js";
-import type { PageState, View } from "./state.js";
+import { loadState, saveState } from "./state.js";
+import type { View } from "./state.js";
 import { cancelRun, readRunForm, startRun } from "./views/run.js";
 import { refreshTable, setupTable } from "./views/table.js";
 import { runInspect } from "./views/inspect.js";
-import { cancelCycles, runCycles } from "./views/cycles.js";
+import { cancelCycles, exportCycles, runCycles } from "./views/cycles.js";
 import { applyPreset, cancelVerify, downloadCertificate, startVerify } from "./views/verify.js";
 import { resizeCharts } from "./views/charts.js";
 import { defaultWorkers } from "./engine.js";
-import { $ } from "./dom.js";
+import { readWorkers } from "./workers.js";
+import { $, fieldError } from "./dom.js";
 
-const state: PageState = readState();
-
-function update(s: Partial<PageState>): void {
-  Object.assign(state, s, { run: false });
-  writeState(state);
-}
+let current: View = "run";
 
 function show(view: View): void {
   for (const tab of document.querySelectorAll<HTMLButtonElement>(".tabs button")) {
@@ -24,7 +20,8 @@ function show(view: View): void {
     tab.tabIndex = on ? 0 : -1;
     $(`view-${tab.dataset.view}`).hidden = !on;
   }
-  update({ view });
+  current = view;
+  saveState(view);
   requestAnimationFrame(() => {
     resizeCharts();
     if (view === "table") refreshTable();
@@ -45,51 +42,72 @@ function setupTabs(): void {
   });
 }
 
-function fillForms(): void {
-  ($("run-map") as HTMLInputElement).value = state.map;
-  ($("run-depth") as HTMLInputElement).value = String(state.depth);
-  ($("run-mode") as HTMLSelectElement).value = state.mode;
-  ($("run-workers") as HTMLInputElement).value = String(state.workers ?? defaultWorkers());
-  ($("inspect-input") as HTMLInputElement).value = state.inspect;
-  ($("inspect-map") as HTMLInputElement).value = state.map;
-  ($("cycles-map") as HTMLInputElement).value = state.cyclesMap;
-  ($("cycles-period") as HTMLInputElement).value = String(state.period);
+/** The run view's job (the class table shows its run). */
+function run(): void {
+  const req = readRunForm();
+  if (!req) return;
+  saveState(current, ["run"]);
+  void startRun(req);
 }
 
-function workers(): number {
-  return Math.max(1, Math.min(16, Number(($("run-workers") as HTMLInputElement).value) || defaultWorkers()));
+function inspectNow(): void {
+  if (runInspect(($("inspect-input") as HTMLInputElement).value, ($("inspect-map") as HTMLInputElement).value))
+    saveState(current, ["inspect"]);
 }
+
+function cycles(): void {
+  const workers = readWorkers("cycles-message");
+  if (workers === null) return;
+  void runCycles(($("cycles-map") as HTMLInputElement).value, ($("cycles-period") as HTMLInputElement).value, workers).then(
+    (ok) => ok && saveState(current, ["cycles", "run"]),
+  );
+}
+
+function verify(): void {
+  const workers = readWorkers("verify-message");
+  if (workers === null) return;
+  void startVerify(workers).then((ok) => ok && saveState(current, ["verify", "run"]));
+}
+
+/** Each view's job, as its button and run=1 start it. */
+const JOBS: Record<View, () => void> = { run, table: run, inspect: inspectNow, cycles, verify };
 
 function setup(): void {
-  const autorun = state.run;
+  ($("run-workers") as HTMLInputElement).value = String(defaultWorkers());
+  const state = loadState();
   setupTabs();
-  fillForms();
-  setupTable();
-  $("run-form").addEventListener("submit", (e) => {
-    e.preventDefault();
-    const req = readRunForm();
-    if (req) void startRun(req, update);
+  setupTable((t, row) => {
+    ($("inspect-input") as HTMLInputElement).value = `${t.residues[row]} mod 2^${t.depth}`;
+    ($("inspect-map") as HTMLInputElement).value = t.map.name;
+    show("inspect");
+    inspectNow();
   });
-  $("run-mode").addEventListener("change", () =>
-    update({ mode: ($("run-mode") as HTMLSelectElement).value === "full" ? "full" : "survivors" }),
-  );
+  const submit = (form: string, job: () => void) =>
+    $(form).addEventListener("submit", (e) => {
+      e.preventDefault();
+      job();
+    });
+  // the address bar follows every field as it is changed, and every job as it starts
+  for (const [form, view] of [
+    ["run-form", "run"],
+    ["inspect-form", "inspect"],
+    ["cycles-form", "cycles"],
+    ["verify-form", "verify"],
+  ] as const) {
+    $(form).addEventListener("change", () => saveState(current, [view]));
+    // a field being corrected loses its old error (the next run checks it again)
+    $(form).addEventListener("input", (e) => {
+      const id = (e.target as HTMLElement).id;
+      if (document.getElementById(`${id}-error`)) fieldError(id, "");
+    });
+  }
+  submit("run-form", run);
+  submit("inspect-form", inspectNow);
+  submit("cycles-form", cycles);
+  submit("verify-form", verify);
   $("run-cancel").addEventListener("click", cancelRun);
-  $("inspect-form").addEventListener("submit", (e) => {
-    e.preventDefault();
-    const text = ($("inspect-input") as HTMLInputElement).value;
-    if (runInspect(text, ($("inspect-map") as HTMLInputElement).value)) update({ inspect: text.trim() });
-  });
-  $("cycles-form").addEventListener("submit", (e) => {
-    e.preventDefault();
-    const mapText = ($("cycles-map") as HTMLInputElement).value;
-    const period = ($("cycles-period") as HTMLInputElement).value;
-    void runCycles(mapText, period, workers()).then((ok) => ok && update({ cyclesMap: mapText.trim(), period: Number(period) }));
-  });
   $("cycles-cancel").addEventListener("click", cancelCycles);
-  $("verify-form").addEventListener("submit", (e) => {
-    e.preventDefault();
-    void startVerify(workers());
-  });
+  $("cycles-export").addEventListener("click", exportCycles);
   $("verify-cancel").addEventListener("click", cancelVerify);
   $("verify-certificate").addEventListener("click", downloadCertificate);
   $("verify-preset").addEventListener("change", () => applyPreset(($("verify-preset") as HTMLSelectElement).value));
@@ -98,11 +116,7 @@ function setup(): void {
     refreshTable();
   });
   show(state.view);
-  if (state.view === "inspect") runInspect(state.inspect, state.map);
-  if (autorun) {
-    const req = readRunForm();
-    if (req) void startRun(req, update);
-  }
+  if (state.run || state.view === "inspect") JOBS[state.view]();
 }
 
 setup();

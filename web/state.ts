@@ -1,51 +1,72 @@
-// The page state in the URL, so that a link reproduces a run: map, depth, mode, view, inspected value.
+// The page state in the address bar, so that a link reproduces what its sender saw: the view, every
+// view's own inputs (each under its own key), and run=1 to run the view's job on load. The defaults
+// are the form's own values in index.html: a key missing from the URL leaves its field as it is.
 export type View = "run" | "table" | "inspect" | "cycles" | "verify";
-
-export interface PageState {
-  view: View;
-  map: string;
-  depth: number;
-  mode: "survivors" | "full";
-  workers: number | null;
-  inspect: string;
-  cyclesMap: string;
-  period: number;
-  run: boolean;
-}
 
 const VIEWS: readonly View[] = ["run", "table", "inspect", "cycles", "verify"];
 
-function int(v: string | null, fallback: number): number {
-  return v !== null && /^\d+$/.test(v) ? Number(v) : fallback;
+/** URL key -> form element id, per view (the class table shows the run view's run). */
+const FIELDS: Record<View, readonly (readonly [key: string, id: string])[]> = {
+  run: [
+    ["map", "run-map"],
+    ["depth", "run-depth"],
+    ["mode", "run-mode"],
+    ["table", "run-keep-table"],
+    ["workers", "run-workers"],
+  ],
+  table: [],
+  inspect: [
+    ["inspect", "inspect-input"],
+    ["imap", "inspect-map"],
+  ],
+  cycles: [
+    ["cmap", "cycles-map"],
+    ["period", "cycles-period"],
+  ],
+  verify: [
+    ["vmap", "verify-map"],
+    ["from", "verify-from"],
+    ["to", "verify-to"],
+    ["vdepth", "verify-depth"],
+  ],
+};
+
+export interface PageState {
+  readonly view: View;
+  /** Run the view's job on load. */
+  readonly run: boolean;
 }
 
-export function readState(search = location.search): PageState {
+type Field = HTMLInputElement | HTMLSelectElement;
+const field = (id: string) => document.getElementById(id) as Field;
+
+function readField(id: string): string {
+  const el = field(id);
+  return el instanceof HTMLInputElement && el.type === "checkbox" ? (el.checked ? "1" : "0") : el.value.trim();
+}
+
+function writeField(id: string, value: string): void {
+  const el = field(id);
+  if (el instanceof HTMLInputElement && el.type === "checkbox") el.checked = value === "1";
+  else el.value = value;
+}
+
+/** Reads the address bar: fills every view's fields from it and returns the view and run flag. */
+export function loadState(search = location.search): PageState {
   const p = new URLSearchParams(search);
+  for (const fields of Object.values(FIELDS)) for (const [key, id] of fields) if (p.has(key)) writeField(id, p.get(key)!);
   const view = p.get("view");
-  return {
-    view: VIEWS.includes(view as View) ? (view as View) : "run",
-    map: p.get("map") ?? "3x+1",
-    depth: int(p.get("depth"), 24),
-    mode: p.get("mode") === "full" ? "full" : "survivors",
-    workers: p.has("workers") ? int(p.get("workers"), 2) : null,
-    inspect: p.get("inspect") ?? "3 mod 16",
-    cyclesMap: p.get("cmap") ?? "3x+5",
-    period: int(p.get("period"), 24),
-    run: p.get("run") === "1",
-  };
+  return { view: VIEWS.includes(view as View) ? (view as View) : "run", run: p.get("run") === "1" };
 }
 
-/** Writes the state into the address bar without a reload (run=1 is kept only when asked). */
-export function writeState(s: PageState): void {
-  const p = new URLSearchParams();
-  p.set("view", s.view);
-  p.set("map", s.map);
-  p.set("depth", String(s.depth));
-  p.set("mode", s.mode);
-  if (s.workers !== null) p.set("workers", String(s.workers));
-  p.set("inspect", s.inspect);
-  p.set("cmap", s.cyclesMap);
-  p.set("period", String(s.period));
-  if (s.run) p.set("run", "1");
+/**
+ * Writes the view and the fields of `fieldsOf` (as the form now holds them) into the address bar,
+ * without a reload; run=1 is dropped (it applies to the load only).
+ */
+export function saveState(view: View, fieldsOf: readonly View[] = []): void {
+  const p = new URLSearchParams(location.search);
+  p.set("view", view);
+  p.delete("run");
+  for (const v of fieldsOf) for (const [key, id] of FIELDS[v]) p.set(key, readField(id));
   history.replaceState(null, "", `${location.pathname}?${p.toString()}`);
 }

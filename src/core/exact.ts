@@ -116,3 +116,27 @@ export function stoppedRow(row: ExactRow): bigint[] {
   if (row.stoppedOdd !== null) out[row.stoppedOdd - row.mLow] = row.stopped;
   return out;
 }
+
+/**
+ * Parity vectors of length K (all 2^K) by the (j, m) where their coefficient q^m/2^j is largest
+ * (q odd: distinct (j, m) give distinct values, so the peak is one point). A lattice-path count:
+ * the prefix to (j, m) must lie strictly below it (read backwards from (j, m), every x last steps
+ * with y odd ones have q^y > 2^x, i.e. x < bitlen(q^y)), and the K - j steps after it strictly
+ * below too (x >= bitlen(q^y)); the count is the product of the two. Returned as [j][m], m = 0..j.
+ * @example peakCounts(3, 2) // [[2n], [0n, 1n], [0n, 0n, 1n]]: even-first vectors peak at the root
+ */
+export function peakCounts(q: number, depth: number): bigint[][] {
+  const drop = dropDepths(q, depth);
+  /** paths[x][y]: paths of x steps with y odd ones, every prefix (x', y') passing `ok(x', y')`. */
+  const paths = (ok: (x: number, y: number) => boolean): bigint[][] => {
+    const out: bigint[][] = [[1n]];
+    for (let x = 1; x <= depth; x++) {
+      const prev = out[x - 1]!;
+      out.push(Array.from({ length: x + 1 }, (_, y) => (ok(x, y) ? (prev[y] ?? 0n) + (y > 0 ? prev[y - 1]! : 0n) : 0n)));
+    }
+    return out;
+  };
+  const before = paths((x, y) => x < drop[y]!);
+  const after = paths((x, y) => x >= drop[y]!).map((row) => row.reduce((s, n) => s + n, 0n));
+  return before.map((row, j) => row.map((n) => n * after[depth - j]!));
+}

@@ -15,13 +15,14 @@ export const MAX_ABS_R = 2 ** 20; // exclusive
 export const MAX_KERNEL_DEPTH = 63;
 
 /**
- * Parses "qx+r" or "qx-r" (no spaces) with q odd in [3, 99] and r odd, |r| < 2^20.
+ * Parses "qx+r" or "qx-r" with q odd in [3, 99] and r odd, |r| < 2^20; spaces, a capital X and n
+ * for x are accepted ("3n + 1" is 3x+1).
  * @example parseMap("3x+1") // { q: 3, r: 1, name: "3x+1" }
  */
 export function parseMap(text: string): CollatzMap {
-  const match = /^(\d+)x([+-])(\d+)$/.exec(text);
+  const match = /^(\d+)[xn]([+-])(\d+)$/.exec(text.replace(/\s+/g, "").toLowerCase());
   if (!match) {
-    throw new UsageError(`map "${text}" is not of the form qx+r or qx-r (for example 3x+1, 5x-3), without spaces`);
+    throw new UsageError(`map "${text}" is not of the form qx+r or qx-r (for example 3x+1, 3n+1 or 5x-3)`);
   }
   const q = Number(match[1]);
   const absR = Number(match[3]);

@@ -103,12 +103,9 @@ export interface CensusShard {
 
 export interface CensusShardResult {
   readonly nodes: bigint;
-  /** [j * 64 + m], j = 0..depth. */
+  /** [j * 64 + m], j = 0..depth: the live part of the tree (the exact counter's cross-check). */
   readonly live: BigUint64Array;
   readonly stopped: BigUint64Array;
-  /** Parents: nodes at depth j < depth with m odd steps (each has two children). */
-  readonly vectors: BigUint64Array;
-  readonly peak: BigUint64Array;
   /** bins[k + binOffset]: least members with floor(4 log2(T^K(a)/a)) = k, decided in the kernel. */
   readonly bins: BigUint64Array;
   readonly binOffset: number;
@@ -122,6 +119,8 @@ export interface CensusShardResult {
   readonly differ: BigUint64Array;
   /** 4 u64 per entry, (member, T^j(member) raw bits, j, -): may hold the largest ratio. */
   readonly ratio: BigUint64Array;
+  /** 4 u64 per entry, (a, b raw bits, j, m): dropping classes with b >= a (as the sieve's). */
+  readonly exceptionClasses: BigUint64Array;
   /** (a, parity vector as bits) as u32 pairs, when asked for (depth <= 32). */
   readonly leafVectors?: Uint32Array;
 }

@@ -42,13 +42,12 @@ export function createWorkerApi(): KernelWorkerApi {
       const arrays: ArrayBufferView[] = [
         res.live,
         res.stopped,
-        res.vectors,
-        res.peak,
         res.bins,
         res.counts,
         res.ambiguous,
         res.differ,
         res.ratio,
+        res.exceptionClasses,
       ];
       if (res.leafVectors) arrays.push(res.leafVectors);
       return transfer(

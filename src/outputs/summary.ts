@@ -10,8 +10,8 @@ import type { CollatzMap } from "../core/map.js";
 import type { PeriodicPoint } from "../core/padic.js";
 import type { VerifyResult } from "../jobs/verify/verify.js";
 
-/** The fields of `glidepath sieve --json`. */
-export function sieveJson(r: SieveResult) {
+/** The fields of `glidepath sieve --json` (a census carries the same fields). */
+export function sieveJson(r: Pick<SieveResult, "map" | "depth" | "levels" | "exceptions" | "exceptionCount" | "nodes" | "seconds">) {
   return {
     map: r.map.name,
     depth: r.depth,
@@ -28,17 +28,6 @@ export function log2Coefficient(q: number, m: number, j: number): number {
   return Number((m * Math.log2(q) - j).toFixed(6));
 }
 
-function binomial(n: number, k: number): bigint {
-  let c = 1n;
-  for (let i = 0; i < k; i++) c = (c * BigInt(n - i)) / BigInt(i + 1);
-  return c;
-}
-
-/** Nodes at (j, m) are the C(j, m) prefixes with m odd steps (a sanity check of the enumeration). */
-export function vectorsAreBinomial(c: CensusResult): boolean {
-  return c.vectors.every((row, j) => row.every((n, m) => n === binomial(j, m)));
-}
-
 /** The fields of `glidepath census --json`. */
 export function censusJson(c: CensusResult) {
   const q = c.map.q;
@@ -51,11 +40,12 @@ export function censusJson(c: CensusResult) {
     depth: c.depth,
     levels: c.levels,
     agreesWithExactCounter: c.agreesWithExactCounter,
-    vectorsAreBinomial: vectorsAreBinomial(c),
     vectors: cells(c.vectors),
     peaks: cells(c.peak),
     ratioBins: c.ratioBins.map((b) => ({ bin: b.bin, from: b.bin / 4, to: (b.bin + 1) / 4, count: b.count })),
     nonpositiveImages: c.nonpositive,
+    exceptions: c.exceptions.map((e) => ({ n: e.n, residue: e.residue, classDepth: e.classDepth })),
+    exceptionCount: c.exceptionCount,
     differ: c.differ,
     maxRatio: { n: c.maxRatio.n, step: c.maxRatio.step, value: c.maxRatio.value, classDepth: c.depth },
     nodes: c.nodes,
@@ -108,6 +98,14 @@ export function conjugacyJson(r: ConjugacyResult) {
     lengths: r.lengths,
     seconds: Number(r.seconds.toFixed(3)),
   };
+}
+
+/** The cycles as CSV: one row a cycle (sign, minimum, representative, period, odd steps, elements space-separated). */
+export function cyclesCsv(r: CycleSearchResult): string {
+  const rows = r.cycles.map((c) =>
+    [c.representative > 0n ? "positive" : "negative", c.min, c.representative, c.period, c.odd, c.elements.join(" ")].join(","),
+  );
+  return `sign,minimum,representative,period,odd_steps,elements\n${rows.map((x) => `${x}\n`).join("")}`;
 }
 
 /** The fields of `glidepath class --json`. */

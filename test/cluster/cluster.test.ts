@@ -63,8 +63,8 @@ const JOBS = [
     name: "census",
     opts: ["--depth", "26"],
     shards: 8,
-    // the census checks itself against the exact counter (an independent lattice-path count)
-    outside: (j: Record<string, unknown>) => expect([j.agreesWithExactCounter, j.vectorsAreBinomial]).toEqual([true, true]),
+    // the census checks its kernel walk against the exact counter (an independent lattice-path count)
+    outside: (j: Record<string, unknown>) => expect(j.agreesWithExactCounter).toBe(true),
   },
   {
     name: "cycles",

@@ -4,10 +4,14 @@ import type { CollatzMap } from "../../src/core/map.js";
 import { cycleWidth, MAX_CYCLE_PERIOD, searchCycles } from "../../src/jobs/cycles/cycles.js";
 import type { CycleSearchResult } from "../../src/jobs/cycles/cycles.js";
 import { RunController } from "../controller.js";
-import { $, fieldError } from "../dom.js";
+import { $, download, fieldError, ResultsPanel } from "../dom.js";
+import { cyclesCsv } from "../../src/outputs/summary.js";
 import { pagePoolPending, withPagePool } from "../engine.js";
 
+const panel = new ResultsPanel("cycles-results", "cycles-stale");
+let last: CycleSearchResult | null = null;
 const controller = new RunController({
+  results: panel,
   start: "cycles-go",
   cancel: "cycles-cancel",
   progress: "cycles-progress",
@@ -39,6 +43,8 @@ function readCyclesForm(mapText: string, periodText: string): { map: CollatzMap;
 }
 
 function renderCycles(r: CycleSearchResult): void {
+  last = r;
+  panel.shown(`${r.map.name}, period up to ${r.maxPeriod}`);
   controller.say(
     `${r.cycles.length} integer cycles of ${r.map.name} with period <= ${r.maxPeriod} (complete search, ${r.width}-bit, ` +
       `${r.seconds.toFixed(2)} s).`,
@@ -59,7 +65,10 @@ function renderCycles(r: CycleSearchResult): void {
 /** Runs the search when the form is valid; returns false (errors beside the fields) when it is not. */
 export async function runCycles(mapText: string, periodText: string, workers: number): Promise<boolean> {
   const req = readCyclesForm(mapText, periodText);
-  if (!req) return false;
+  if (!req) {
+    panel.markStale("the inputs above are not valid");
+    return false;
+  }
   const waiting = pagePoolPending() > 0 ? "Waiting for the job already running..." : "Starting workers...";
   const out = await controller.run((options) => withPagePool(workers, (pool) => searchCycles(pool, req.map, req.period, options)), waiting);
   if (out.ok) renderCycles(out.value);
@@ -68,4 +77,9 @@ export async function runCycles(mapText: string, periodText: string, workers: nu
 
 export function cancelCycles(): void {
   controller.cancel();
+}
+
+/** Hands the last search's cycles over as CSV (one row a cycle, its elements space-separated). */
+export function exportCycles(): void {
+  if (last) download(`cycles-${last.map.name}-period-${last.maxPeriod}.csv`, [cyclesCsv(last)], "text/csv");
 }

@@ -6,10 +6,18 @@ import type { CollatzMap } from "../../src/core/map.js";
 import { iterate } from "../../src/core/padic.js";
 import { cardText } from "../../src/outputs/card.js";
 import { drawTrajectory } from "./charts.js";
-import { $, fieldError } from "../dom.js";
+import { $, fieldError, ResultsPanel } from "../dom.js";
 
-/** Shows the card for `text`; returns false (with a message beside the field) on bad input. */
+const panel = new ResultsPanel("inspect-results", "inspect-stale");
+
+/** Shows the card for `text`; returns false (with a message beside the field, the old card marked stale) on bad input. */
 export function runInspect(text: string, mapText: string): boolean {
+  const ok = showCard(text, mapText);
+  if (!ok) panel.markStale("the inputs above are not valid");
+  return ok;
+}
+
+function showCard(text: string, mapText: string): boolean {
   let ok = true;
   let map: CollatzMap | undefined;
   try {
@@ -36,6 +44,7 @@ export function runInspect(text: string, mapText: string): boolean {
     return false;
   }
   const plot = $("inspect-plot");
+  panel.shown(`${text.trim()} under ${map.name}`);
   $("inspect-card").textContent = cardText(map, card);
   plot.hidden = card.kind !== "number";
   if (card.kind === "number") {

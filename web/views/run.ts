@@ -18,8 +18,8 @@ import { pagePoolPending, withPagePool } from "../engine.js";
 import { RunController } from "../controller.js";
 import { drawCensus, drawDensity, drawHeat, drawStopped } from "./charts.js";
 import { showTable } from "./table.js";
-import type { PageState } from "../state.js";
-import { $, fieldError } from "../dom.js";
+import { readWorkers } from "../workers.js";
+import { $, fieldError, ResultsPanel } from "../dom.js";
 
 /** Memory a run may take for its class table (the sorter's bytes per residue; kept in one pass). */
 const TABLE_BUDGET = 1.5 * 2 ** 30;
@@ -67,8 +67,10 @@ export function readRunForm(): RunRequest | null {
   }
   const keep = ($("run-keep-table") as HTMLInputElement).checked;
   const withTable = mode === "survivors" && (depth <= TABLE_DEFAULT_DEPTH || (keep && depth <= TABLE_MAX_DEPTH));
-  const workers = Math.max(1, Math.min(16, Number(($("run-workers") as HTMLInputElement).value) || 1));
-  return map && ok ? { map, depth, mode, workers, withTable } : null;
+  const workers = readWorkers();
+  if (map && ok && workers !== null) return { map, depth, mode, workers, withTable };
+  panel.markStale("the inputs above are not valid");
+  return null;
 }
 
 function renderLevels(map: CollatzMap, levels: readonly Level[]): void {
@@ -94,7 +96,7 @@ function renderLevels(map: CollatzMap, levels: readonly Level[]): void {
   $("run-levels").innerHTML = head + `<tbody>${body}</tbody>`;
 }
 
-function renderExceptions(r: SieveResult): void {
+function renderExceptions(r: Pick<SieveResult, "exceptions" | "exceptionCount">): void {
   const list = r.exceptions.slice(0, 200).map((e) => `n = ${e.n} (class ${e.residue} mod 2^${e.classDepth})`);
   $("run-exceptions").textContent =
     `${group(r.exceptionCount)} positive member` +
@@ -118,29 +120,27 @@ function renderCensus(c: CensusResult): void {
     `. Largest T^j(a)/a: T^${c.maxRatio.step}(${c.maxRatio.n}) = ${c.maxRatio.value}.</p>`;
 }
 
+const panel = new ResultsPanel("run-results", "run-stale");
 const controller = new RunController({
   start: "run-start",
   cancel: "run-cancel",
   progress: "run-progress",
   status: "run-status",
   message: "run-message",
+  results: panel,
 });
 
-/** What a run gives the page: the sieve (always), the census (full mode), the class table (when kept). */
-interface RunResult {
-  readonly sieve: SieveResult;
-  readonly census: CensusResult | null;
-  readonly residues: Uint32Array | null;
-}
+/** What a run gives the page: the sieve or the census (full mode, with the sieve's fields), the class table (when kept). */
+type RunResult =
+  | { readonly sieve: SieveResult; readonly census: null; readonly residues: Uint32Array | null }
+  | { readonly sieve: null; readonly census: CensusResult; readonly residues: null };
 
 /** Runs the request's jobs on the page's pool (after any job already running there). */
 async function executeRun(req: RunRequest, rows: bigint, options: RunOptions): Promise<RunResult> {
   const { map, depth, mode } = req;
   return withPagePool(req.workers, async (pool) => {
     if (mode === "full") {
-      const census = await runCensus(pool, map, depth, options);
-      const sieve = await runSieve(pool, { map, depth, mode: "survivors" }, { signal: options.signal });
-      return { sieve, census, residues: null };
+      return { sieve: null, census: await runCensus(pool, map, depth, options), residues: null };
     }
     if (!req.withTable) return { sieve: await runSieve(pool, { map, depth, mode }, options), census: null, residues: null };
     const plan = passPlan(depth, rows, TABLE_BUDGET);
@@ -151,8 +151,8 @@ async function executeRun(req: RunRequest, rows: bigint, options: RunOptions): P
 }
 
 /** Starts a run; resolves when it has finished, failed or been cancelled. */
-export async function startRun(req: RunRequest, onState: (s: Partial<PageState>) => void): Promise<void> {
-  const { map, depth, mode } = req;
+export async function startRun(req: RunRequest): Promise<void> {
+  const { map, depth } = req;
   const exact = exactCounts(map, depth).levels;
   const rows = exact[depth]!.survivors;
   if (req.withTable && passPlan(depth, rows, TABLE_BUDGET).passes > 1) {
@@ -163,7 +163,6 @@ export async function startRun(req: RunRequest, onState: (s: Partial<PageState>)
     );
     return;
   }
-  onState({ map: map.name, depth, mode, workers: req.workers });
   $("run-summary").textContent = "";
   const waiting = pagePoolPending() > 0 ? "Waiting for the job already running..." : "Starting workers...";
   const out = await controller.run((options) => executeRun(req, rows, options), waiting);
@@ -173,20 +172,23 @@ export async function startRun(req: RunRequest, onState: (s: Partial<PageState>)
 /** Puts a finished run on the page: headline, table, exceptions, charts (one per task), summary. */
 async function renderRun(req: RunRequest, r: RunResult, exact: readonly Level[], seconds: number): Promise<void> {
   const { map, depth, mode } = req;
-  const { sieve, census, residues } = r;
-  const levels = census ? census.levels : sieve.levels;
+  const { census, residues } = r;
+  const result = r.census ?? r.sieve;
+  const levels = result.levels;
   const last = levels[depth]!;
   const published = map.q === 3 && map.r === 1 ? A076227[depth] : undefined;
+  $("run-intro").hidden = true;
+  panel.shown(`${map.name}, depth ${depth}, ${mode === "full" ? "census" : "survivors"}`);
   $("run-headline").innerHTML =
     `Survivors mod 2^${depth}: <strong>${group(last.survivors)}</strong> of ${group(1n << BigInt(depth))} classes ` +
     `<span class="sub">${map.name}: density ${density(last.survivors, depth)}, ` +
-    `${group(census ? census.nodes : sieve.nodes)} nodes in ${seconds.toFixed(2)} s (${req.workers} worker` +
+    `${group(result.nodes)} nodes in ${seconds.toFixed(2)} s (${req.workers} worker` +
     `${req.workers === 1 ? "" : "s"})` +
     `${published !== undefined ? `; A076227 ${published === last.survivors ? "agrees" : "DIFFERS"}` : ""}</span>`;
   renderLevels(map, levels);
-  renderExceptions(sieve);
+  renderExceptions(result);
   for (const el of document.querySelectorAll<HTMLElement>(".census-only")) el.hidden = !census;
-  for (const draw of [() => drawDensity(levels, exact), () => drawStopped(levels), () => drawHeat(census ? census.live : sieve.live)]) {
+  for (const draw of [() => drawDensity(levels, exact), () => drawStopped(levels), () => drawHeat(result.live)]) {
     await yieldToPage();
     draw();
   }
@@ -205,10 +207,10 @@ async function renderRun(req: RunRequest, r: RunResult, exact: readonly Level[],
           `${TABLE_DEFAULT_DEPTH}" to keep it.`;
   }
   const summary = {
-    ...sieveJson(sieve),
+    ...sieveJson(result),
     mode,
     seconds: Number(seconds.toFixed(3)),
-    ...(census ? { nodes: census.nodes, census: censusJson(census) } : {}),
+    ...(census ? { census: censusJson(census) } : {}),
   };
   $("run-summary").textContent = toExactJson(summary);
 }

@@ -2,7 +2,7 @@
 // range is scaled so that it stays within what browsers can lay out), search by residue, jump to a
 // row, and exports made off the page's thread.
 import type { CollatzMap } from "../../src/core/map.js";
-import { classFromResidue } from "../../src/core/padic.js";
+import { classFromResidue, firstDescent, MAX_INSPECT_STEPS } from "../../src/core/padic.js";
 import { CSV_ROW_GUARD } from "../../src/outputs/tables.js";
 import { tableManifest } from "../../src/outputs/manifest.js";
 import { toExactJson } from "../../src/outputs/json.js";
@@ -23,50 +23,90 @@ export interface ClassTable {
 
 let current: ClassTable | null = null;
 let hit = -1;
+/** The first row shown and the keyboard's row: the table's own state (the scroll position follows them). */
+let top = 0;
+let cursor = 0;
+/** The scrollTop this code set last: a scroll event there is ours, any other is the user's. */
+let ownScroll = -1;
+let openRow: (t: ClassTable, row: number) => void = () => {};
 
 function visibleRows(): number {
-  return Math.ceil($("table-list").clientHeight / ROW) + 1;
+  return Math.max(1, Math.floor($("table-list").clientHeight / ROW));
 }
 
-/** First row shown for the current scroll position (scaled when the full height would be too tall). */
-function firstRow(): number {
-  const list = $("table-list");
-  if (!current) return 0;
-  const n = current.residues.length;
-  const full = n * ROW;
-  if (full <= MAX_SCROLL) return Math.floor(list.scrollTop / ROW);
-  const range = MAX_SCROLL - list.clientHeight;
-  return Math.min(n - 1, Math.floor((list.scrollTop / Math.max(1, range)) * Math.max(0, n - visibleRows() + 1)));
+function lastTop(): number {
+  return Math.max(0, (current?.residues.length ?? 0) - visibleRows());
 }
 
-function scrollToRow(i: number): void {
+/** The scroll range's pixels per row position (scaled when the full height would be too tall). */
+function scrollRange(): { height: number; range: number } {
+  const n = current?.residues.length ?? 0;
+  const height = Math.min(n * ROW, MAX_SCROLL);
+  return { height, range: Math.max(0, height - $("table-list").clientHeight) };
+}
+
+/** Shows rows from `row` on; the scroll bar follows (exactly one row per step, whatever the scale). */
+function setTop(row: number): void {
+  top = Math.max(0, Math.min(lastTop(), row));
   const list = $("table-list");
+  const { range } = scrollRange();
+  const last = lastTop();
+  list.scrollTop = last === 0 ? 0 : Math.round((top / last) * range);
+  ownScroll = list.scrollTop;
+  render();
+}
+
+/** Moves the keyboard's row to `row`, scrolling only as far as needed to show it. */
+function moveCursor(row: number): void {
   if (!current) return;
-  const n = current.residues.length;
-  const full = n * ROW;
-  list.scrollTop = full <= MAX_SCROLL ? i * ROW : (i / Math.max(1, n - visibleRows() + 1)) * (MAX_SCROLL - list.clientHeight);
+  cursor = Math.max(0, Math.min(current.residues.length - 1, row));
+  if (cursor < top) setTop(cursor);
+  else if (cursor >= top + visibleRows()) setTop(cursor - visibleRows() + 1);
+  else render();
+}
+
+/** The user moved the scroll bar (or the page scrolled the list): the rows follow it. */
+function onScroll(): void {
+  const list = $("table-list");
+  if (Math.abs(list.scrollTop - ownScroll) < 1) return;
+  const { range } = scrollRange();
+  top = range === 0 ? 0 : Math.round((list.scrollTop / range) * lastTop());
+  ownScroll = list.scrollTop;
   render();
 }
 
 function render(): void {
-  const rows = $("table-list").querySelector<HTMLElement>(".vlist-rows")!;
+  const list = $("table-list");
+  const rows = list.querySelector<HTMLElement>(".vlist-rows")!;
   if (!current) {
     rows.replaceChildren();
+    list.removeAttribute("aria-activedescendant");
     return;
   }
   const { map, depth, residues } = current;
-  const start = firstRow();
-  const end = Math.min(residues.length, start + visibleRows());
-  const list = $("table-list");
+  const end = Math.min(residues.length, top + visibleRows() + 1);
   rows.style.transform = `translateY(${list.scrollTop}px)`;
   const out: HTMLElement[] = [];
-  for (let i = start; i < end; i++) {
+  for (let i = top; i < end; i++) {
     const c = classFromResidue(map, BigInt(residues[i]!), depth);
+    const descent = c.residue > 0n ? firstDescent(map, c.residue, MAX_INSPECT_STEPS) : null;
     const div = document.createElement("div");
-    div.className = i === hit ? "vlist-row hit" : "vlist-row";
+    div.className = `vlist-row${i === hit ? " hit" : ""}${i === cursor ? " cursor" : ""}`;
+    div.id = `table-row-${i}`;
+    div.dataset.row = String(i);
     div.setAttribute("role", "row");
-    div.setAttribute("aria-rowindex", String(i + 1));
-    for (const text of [String(i + 1), String(c.residue), String(c.odd), String(c.image), affineText(map.q, c.odd, c.image)]) {
+    div.setAttribute("aria-rowindex", String(i + 2)); // the header is row 1
+    if (i === cursor) div.setAttribute("aria-selected", "true");
+    const cells = [
+      String(i + 1),
+      String(c.residue),
+      c.word,
+      String(c.odd),
+      String(c.image),
+      descent === null ? "–" : String(descent),
+      affineText(map.q, c.odd, c.image),
+    ];
+    for (const text of cells) {
       const s = document.createElement("span");
       s.setAttribute("role", "gridcell");
       s.textContent = text;
@@ -75,22 +115,27 @@ function render(): void {
     out.push(div);
   }
   rows.replaceChildren(...out);
+  if (cursor >= top && cursor < end) list.setAttribute("aria-activedescendant", `table-row-${cursor}`);
+  else list.removeAttribute("aria-activedescendant");
 }
 
 /** Draws the visible rows again (when the view becomes visible or its size changes). */
 export function refreshTable(): void {
-  render();
+  if (current) setTop(top);
 }
 
 export function showTable(t: ClassTable | null): void {
   current = t;
   hit = -1;
+  top = 0;
+  cursor = 0;
   const list = $("table-list");
   const spacer = list.querySelector<HTMLElement>(".vlist-spacer")!;
   const n = t?.residues.length ?? 0;
   spacer.style.height = `${Math.min(n * ROW, MAX_SCROLL)}px`;
-  list.setAttribute("aria-rowcount", String(n));
+  $("table-grid").setAttribute("aria-rowcount", String(n + 1));
   list.scrollTop = 0;
+  ownScroll = 0;
   $("table-caption").textContent = t
     ? `${n.toLocaleString("en-US")} surviving classes of ${t.map.name} mod 2^${t.depth}, ascending by residue.`
     : "Run a sieve (survivors mode) to fill the class table.";
@@ -152,15 +197,48 @@ async function exportTable(format: "raw" | "csv" | "arrow"): Promise<void> {
   }
 }
 
-export function setupTable(): void {
+/** Wires the list; `open` shows the class of a row in the Inspector. */
+export function setupTable(open: (t: ClassTable, row: number) => void): void {
+  openRow = open;
   const list = $("table-list");
-  list.addEventListener("scroll", () => requestAnimationFrame(render), { passive: true });
-  list.addEventListener("keydown", (e) => {
-    const step = { ArrowDown: 1, ArrowUp: -1, PageDown: visibleRows(), PageUp: -visibleRows() }[e.key];
-    if (step && current) {
+  list.addEventListener("scroll", onScroll, { passive: true });
+  list.addEventListener(
+    "wheel",
+    (e) => {
+      if (!current || e.deltaY === 0) return;
       e.preventDefault();
-      scrollToRow(Math.max(0, Math.min(current.residues.length - 1, firstRow() + step)));
+      // a few rows a notch: lines as they come, pixels at about 33 per row (a notch is about 100)
+      const rows = e.deltaMode === 1 ? e.deltaY : e.deltaMode === 2 ? e.deltaY * visibleRows() : e.deltaY / 33;
+      setTop(top + (rows > 0 ? Math.max(1, Math.round(rows)) : Math.min(-1, Math.round(rows))));
+    },
+    { passive: false },
+  );
+  list.addEventListener("keydown", (e) => {
+    if (!current) return;
+    const page = visibleRows();
+    const n = current.residues.length;
+    const to: Record<string, number> = {
+      ArrowDown: cursor + 1,
+      ArrowUp: cursor - 1,
+      PageDown: cursor + page,
+      PageUp: cursor - page,
+      Home: 0,
+      End: n - 1,
+    };
+    if (e.key in to) {
+      e.preventDefault();
+      moveCursor(to[e.key]!);
+    } else if (e.key === "Enter") {
+      e.preventDefault();
+      openRow(current, cursor);
     }
+  });
+  list.addEventListener("click", (e) => {
+    const row = (e.target as HTMLElement).closest<HTMLElement>(".vlist-row");
+    if (!row || !current) return;
+    cursor = Number(row.dataset.row);
+    render();
+    openRow(current, cursor);
   });
   $("table-search").addEventListener("change", () => {
     const v = ($("table-search") as HTMLInputElement).value.trim();
@@ -172,7 +250,7 @@ export function setupTable(): void {
     const i = lowerBound(current.residues, a);
     hit = i < current.residues.length ? i : current.residues.length - 1;
     $("table-search-error").textContent = current.residues[hit] === a ? "" : `${a} is not a survivor; showing the next one`;
-    scrollToRow(hit);
+    moveCursor(hit);
   });
   $("table-jump").addEventListener("change", () => {
     const v = ($("table-jump") as HTMLInputElement).value.trim();
@@ -182,7 +260,7 @@ export function setupTable(): void {
       return fieldError("table-jump", `a row from 1 to ${current.residues.length}`);
     fieldError("table-jump", "");
     hit = i - 1;
-    scrollToRow(hit);
+    moveCursor(hit);
   });
   $("export-raw").addEventListener("click", () => void exportTable("raw"));
   $("export-csv").addEventListener("click", () => void exportTable("csv"));

@@ -11,10 +11,12 @@ import { toExactJson } from "../../src/outputs/json.js";
 import { verifyJson } from "../../src/outputs/summary.js";
 import pkg from "../../package.json";
 import { RunController } from "../controller.js";
-import { $, download, fieldError } from "../dom.js";
+import { $, download, fieldError, ResultsPanel } from "../dom.js";
 import { kernelBuildId, pagePoolPending, sha256, withPagePool } from "../engine.js";
 
+const panel = new ResultsPanel("verify-result", "verify-stale");
 const controller = new RunController({
+  results: panel,
   start: "verify-go",
   cancel: "verify-cancel",
   progress: "verify-progress",
@@ -65,6 +67,7 @@ function rows(head: string[], body: string[][]): string {
 
 function render(r: VerifyResult): void {
   const c = r.counts;
+  panel.shown(`${r.map.name}, [${r.from}, ${r.to})`);
   const rate = Number(c.numbers) / Math.max(r.seconds, 1e-9);
   controller.say(
     `Every n in [${r.from}, ${r.to}) of ${r.map.name} reaches a value below n` +
@@ -98,7 +101,10 @@ function render(r: VerifyResult): void {
 /** Runs the form's verification; returns false (errors beside the fields) when the form is invalid. */
 export async function startVerify(workers: number): Promise<boolean> {
   const req = readVerifyForm();
-  if (!req) return false;
+  if (!req) {
+    panel.markStale("the inputs above are not valid");
+    return false;
+  }
   ($("verify-certificate") as HTMLButtonElement).disabled = true;
   $("run-summary").textContent = "";
   const started = new Date().toISOString();

@@ -1,15 +1,19 @@
-// Census of all 2^K parity vectors: the kernel's full-tree tallies (assembly/census.ts) merged and
-// finished exactly here: ambiguous log2 bins and the largest ratio are decided in BigInt.
+// Census of all 2^K parity vectors. What depends on the parity vector alone (alive and stopped
+// classes, vectors and peak coefficients by (j, m)) is a lattice-path count (core/exact.ts); what
+// depends on the residue (log2 bins, descents that differ, the largest ratio) comes from the kernel
+// (assembly/census.ts), merged and finished exactly here: ambiguous bins and the ratio in BigInt.
 import type { CollatzMap } from "../../core/map.js";
 import { kernelDepthLimit, parseMap } from "../../core/map.js";
 import { TALLY_STRIDE } from "../../engine/messages.js";
 import type { CensusShard, CensusShardResult } from "../../engine/messages.js";
-import { threadKernel } from "../../engine/loader.js";
+import { concat, threadKernel } from "../../engine/loader.js";
+import { decodeExceptionClasses, EXCEPTION_LIMIT, expandExceptions } from "../sieve/exceptions.js";
+import type { SieveException } from "../sieve/exceptions.js";
 import { choosePrefixBits, largestShare, runWhole, shardEstimate, shardPrefixes } from "../../engine/plan.js";
 import type { JobKind, PartBase, Plan } from "../../engine/plan.js";
 import { coefficientBins } from "./kernel.js";
 import type { KernelPool, RunOptions } from "../../engine/pool.js";
-import { exactCounts } from "../../core/exact.js";
+import { exactCounts, peakCounts } from "../../core/exact.js";
 import type { Level } from "../../core/exact.js";
 import { classFromResidue, firstDescent } from "../../core/padic.js";
 import { LimitError, UsageError } from "../../core/errors.js";
@@ -41,11 +45,20 @@ export interface CensusResult {
     readonly listed: { readonly n: bigint; readonly descent: number | null; readonly stoppingTime: number | null }[];
     readonly limit: number;
   };
+  /** The sieve's exceptions (positive members that do not descend at their class's stopping depth,
+   * any size): the smallest, ascending, at most exceptionLimit; the count is exact. */
+  readonly exceptions: SieveException[];
+  readonly exceptionCount: bigint;
+  readonly exceptionLimit: number;
   /** The largest T^j(a)/a over a in [1, 2^K), j <= K, with its class a mod 2^K. */
   readonly maxRatio: { readonly n: bigint; readonly step: number; readonly value: bigint };
-  /** The live and stopped tables equal the exact counter's. */
+  /** The kernel's live and stopped tables (the live part of its walk) equal the exact counter's. */
   readonly agreesWithExactCounter: boolean;
+  /** Nodes of the full tree: 2^(K+1) - 1 (every vector of length <= K). */
   readonly nodes: bigint;
+  /** Nodes the kernel walked (the rest lie in subtrees shown to hold nothing residue-dependent;
+   * depends on how the run was split). */
+  readonly walked: bigint;
   readonly seconds: number;
 }
 
@@ -88,8 +101,6 @@ export interface CensusPart extends PartBase {
   readonly nodes: bigint;
   readonly live: BigUint64Array;
   readonly stopped: BigUint64Array;
-  readonly vectors: BigUint64Array;
-  readonly peak: BigUint64Array;
   /** bins[k + binOffset]: least members binned by the kernel or decided exactly here. */
   readonly bins: BigUint64Array;
   readonly binOffset: number;
@@ -100,6 +111,8 @@ export interface CensusPart extends PartBase {
   readonly slow: BigUint64Array;
   /** The smallest least members whose descent differs, ascending (at most DIFFER_LISTED). */
   readonly differ: BigUint64Array;
+  /** Dropping classes with b >= a, 4 u64 each (a, b raw bits, j, m). */
+  readonly exceptionClasses: BigUint64Array;
   readonly best: Ratio;
 }
 
@@ -115,14 +128,13 @@ class CensusTally {
   nodes = 0n;
   readonly live: BigUint64Array;
   readonly stopped: BigUint64Array;
-  readonly vectors: BigUint64Array;
-  readonly peak: BigUint64Array;
   readonly bins: BigUint64Array;
   readonly slow: BigUint64Array;
   nonpositive = 0n;
   differCount = 0n;
   early = 0n;
   private readonly differ = new Smallest<bigint>(DIFFER_LISTED, (n) => n);
+  private readonly exceptionClasses: BigUint64Array[] = [];
   // T^0(1)/1 = 1 is always a candidate (the kernel reports members from step 1 and a > 0 classes)
   best: Ratio = { n: 1n, value: 1n, step: 0 };
 
@@ -134,17 +146,13 @@ class CensusTally {
     const n = (depth + 1) * TALLY_STRIDE;
     this.live = new BigUint64Array(n);
     this.stopped = new BigUint64Array(n);
-    this.vectors = new BigUint64Array(n);
-    this.peak = new BigUint64Array(n);
     this.bins = new BigUint64Array(binCount);
     this.slow = new BigUint64Array(depth + 1);
   }
 
-  private addTables(x: Pick<CensusPart, "live" | "stopped" | "vectors" | "peak" | "bins" | "nodes">): void {
+  private addTables(x: Pick<CensusPart, "live" | "stopped" | "bins" | "nodes">): void {
     addInto(this.live, x.live);
     addInto(this.stopped, x.stopped);
-    addInto(this.vectors, x.vectors);
-    addInto(this.peak, x.peak);
     addInto(this.bins, x.bins);
     this.nodes += x.nodes;
   }
@@ -162,6 +170,7 @@ class CensusTally {
       this.bins[quarterLog2(out.ambiguous[i]!, b) + this.binOffset]!++;
     }
     for (let i = 0; i < out.differ.length; i += 4) this.differ.add(out.differ[i]!);
+    this.exceptionClasses.push(out.exceptionClasses);
     for (let i = 0; i < out.ratio.length; i += 4) {
       const u = out.ratio[i]!,
         v = out.ratio[i + 1]!,
@@ -178,21 +187,23 @@ class CensusTally {
     this.early += p.early;
     for (let m = 0; m <= this.depth; m++) this.slow[m] = this.slow[m]! + p.slow[m]!;
     for (const n of p.differ) this.differ.add(n);
+    this.exceptionClasses.push(p.exceptionClasses);
     if (beats(p.best.n, p.best.value, p.best.step, this.best)) this.best = p.best;
   }
 
   part(seconds: number): CensusPart {
-    const { nodes, live, stopped, vectors, peak, bins, binOffset, nonpositive, differCount, early, slow, best } = this;
+    const { nodes, live, stopped, bins, binOffset, nonpositive, differCount, early, slow, best } = this;
     const differ = BigUint64Array.from(this.differ.sorted());
-    return { nodes, live, stopped, vectors, peak, bins, binOffset, nonpositive, differCount, early, slow, differ, best, seconds };
+    const exceptionClasses = concat(this.exceptionClasses, (n) => new BigUint64Array(n));
+    return { nodes, live, stopped, bins, binOffset, nonpositive, differCount, early, slow, differ, exceptionClasses, best, seconds };
   }
 
-  /** The census itself: the fast-path bins from the vectors, the exact counter's cross-check, the lists. */
+  /** The census itself: the lattice-path tables, the fast-path bins, the exact counter's cross-check, the lists. */
   finish(map: CollatzMap, seconds: number): CensusResult {
     const depth = this.depth;
     const binsOf = this.bins.slice();
     // The fast-path leaves: with m odd steps, all leaves (nodes at depth K) but the slow ones and a = 0.
-    const vectors = nodesFromParents(rows(this.vectors, depth));
+    const vectors = binomialRows(depth);
     coefficientBins(map.q, map.r, depth).forEach(({ k }, m) => {
       const fast = vectors[depth]![m]! - this.slow[m]! - (m === 0 ? 1n : 0n);
       binsOf[k + this.binOffset] = binsOf[k + this.binOffset]! + fast;
@@ -212,6 +223,8 @@ class CensusTally {
       survivors: row.reduce((s, x) => s + x, 0n),
       stopped: stopped[j]!.reduce((s, x) => s + x, 0n),
     }));
+    const classes = this.exceptionClasses.flatMap((raw) => decodeExceptionClasses(raw, map.r < 0));
+    const exceptions = expandExceptions(map, classes, EXCEPTION_LIMIT);
     const listed = this.differ
       .sorted()
       .map((n) => ({ n, descent: firstDescent(map, n, depth), stoppingTime: classFromResidue(map, n, depth).stoppingTime }));
@@ -222,13 +235,17 @@ class CensusTally {
       live,
       stopped,
       vectors,
-      peak: rows(this.peak, depth),
+      peak: peakCounts(map.q, depth),
       ratioBins,
       nonpositive: this.nonpositive,
       differ: { count: this.differCount, early: this.early, listed, limit: DIFFER_LISTED },
+      exceptions: exceptions.list,
+      exceptionCount: exceptions.count,
+      exceptionLimit: EXCEPTION_LIMIT,
       maxRatio: this.best,
       agreesWithExactCounter: agrees,
-      nodes: this.nodes,
+      nodes: (2n << BigInt(depth)) - 1n,
+      walked: this.nodes,
       seconds,
     };
   }
@@ -303,9 +320,12 @@ export function runCensus(pool: KernelPool, map: CollatzMap, depth: number, opti
   return runWhole(pool, censusJob, { map, depth }, options);
 }
 
-/** Nodes at (j, m): the root, then the children of parents (j - 1, m) (even) and (j - 1, m - 1) (odd). */
-function nodesFromParents(parents: bigint[][]): bigint[][] {
-  return parents.map((row, j) => row.map((_, m) => (j === 0 ? 1n : (parents[j - 1]![m] ?? 0n) + (m > 0 ? parents[j - 1]![m - 1]! : 0n))));
+/** Vectors of length j with m odd steps: C(j, m), by Pascal's rule. */
+function binomialRows(depth: number): bigint[][] {
+  const out: bigint[][] = [[1n]];
+  for (let j = 1; j <= depth; j++)
+    out.push(Array.from({ length: j + 1 }, (_, m) => (out[j - 1]![m] ?? 0n) + (m > 0 ? out[j - 1]![m - 1]! : 0n)));
+  return out;
 }
 
 function at(row: { mLow: number; live: bigint[]; stopped: bigint[] }, key: "live" | "stopped", m: number): bigint {

@@ -5,6 +5,8 @@ import type { Kernel } from "../../engine/loader.js";
 import { collector, concat } from "../../engine/loader.js";
 import type { CensusShard, CensusShardResult } from "../../engine/messages.js";
 import { checkTallyStride, writeDropTables } from "../../engine/tables.js";
+import { makeMap } from "../../core/map.js";
+import { classFromWord } from "../../core/padic.js";
 
 /**
  * Runs one shard of the census.
@@ -23,17 +25,21 @@ export function censusShard(kernel: Kernel, req: CensusShard): CensusShardResult
     const binMin = new BigUint64Array(kernel.memory, tables + L("TABLE_BINMIN"), 64).fill((1n << 64n) - 1n);
     binMin.set(coefficientBins(q, r, depth).map((x) => x.min));
     writeRatioBounds(new Float64Array(kernel.memory, scratch + L("CENSUS_RATIO_AT"), 64), q, r, depth);
+    new Float64Array(kernel.memory, scratch + L("CENSUS_SEED_AT"), 1)[0] = ratioSeed(q, r, depth);
+    writeReach(new BigUint64Array(kernel.memory, scratch + L("CENSUS_REACH_AT"), 64 * 64), binMin);
   });
   const region = (channel: string) => scratch + (L(channel) - L("CHANNEL_AMBIGUOUS")) * L("CENSUS_REGION_BYTES");
   const ambiguous = collector(kernel, region("CHANNEL_AMBIGUOUS"));
   const differ = collector(kernel, region("CHANNEL_DIFFER"));
   const ratio = collector(kernel, region("CHANNEL_RATIO"));
   const vectors = pairCollector(kernel, region("CHANNEL_VECTORS"));
+  const exceptions = collector(kernel, scratch + L("CENSUS_EXCEPTIONS_AT"));
   const sinks = new Map<number, { take(count: number): void }>([
     [L("CHANNEL_AMBIGUOUS"), ambiguous],
     [L("CHANNEL_DIFFER"), differ],
     [L("CHANNEL_RATIO"), ratio],
     [L("CHANNEL_VECTORS"), vectors],
+    [L("CHANNEL_EXCEPTIONS"), exceptions],
   ]);
   const nodes = kernel.call(
     "census",
@@ -47,14 +53,13 @@ export function censusShard(kernel: Kernel, req: CensusShard): CensusShardResult
     nodes: BigInt.asUintN(64, BigInt(nodes)),
     live: table(0),
     stopped: table(1),
-    vectors: table(2),
-    peak: table(3),
     bins: new BigUint64Array(buf, tallies + L("CENSUS_BINS_AT"), L("CENSUS_BINS")).slice(),
     binOffset: L("CENSUS_BIN_OFFSET"),
     counts: new BigUint64Array(buf, tallies + L("CENSUS_COUNTS_AT"), L("CENSUS_COUNTS")).slice(),
     ambiguous: ambiguous.all(),
     differ: differ.all(),
     ratio: ratio.all(),
+    exceptionClasses: exceptions.all(),
     ...(req.vectors ? { leafVectors: vectors.all() } : {}),
   };
 }
@@ -115,6 +120,27 @@ function writeRatioBounds(out: Float64Array, q: number, r: number, depth: number
   for (let m = 0; m <= depth; m++) {
     const e = ((q / 2) ** m - 1) / (q - 2);
     out[m] = ((q / 2) ** m + Math.max(r, 0) * e) * (1 + 2 ** -30) + 1e-300;
+  }
+}
+
+/**
+ * A lower bound on the largest T^K(u)/u, from a real member: the class of the all-odd parity
+ * vector (for 3x+1, u = 2^K - 1), whose ratio is near the bound (q/2)^K. Rounded down generously:
+ * the kernel reports every candidate at or above it, and the host decides exactly.
+ */
+function ratioSeed(q: number, r: number, depth: number): number {
+  const c = classFromWord(makeMap(q, r), "1".repeat(depth));
+  return c.residue > 0n && c.image > 0n ? (Number(c.image) / Number(c.residue)) * (1 - 2 ** -20) : 0;
+}
+
+/** reach[(m << 6) + top] = max(binMin[m..top]): the slow-bin bound of every m a subtree can reach. */
+function writeReach(reach: BigUint64Array, binMin: BigUint64Array): void {
+  for (let m = 0; m < 64; m++) {
+    let most = 0n;
+    for (let top = m; top < 64; top++) {
+      if (binMin[top]! > most) most = binMin[top]!;
+      reach[(m << 6) + top] = most;
+    }
   }
 }
 
