@@ -54,6 +54,15 @@ export async function webBench(): Promise<string[][]> {
         `longest task ${r.longest.toFixed(0)} ms (${r.longTasks} over 50 ms)`,
       ]);
     }
+    // a link with run=1 opened in a fresh page: from the navigation's start to the summary
+    for (let i = 0; i < 2; i++) {
+      const fresh = await browser.newPage();
+      const t0 = Date.now();
+      await fresh.goto(`${u}?mode=full&depth=30&workers=2&run=1`);
+      await summaryOf(fresh, 300_000);
+      rows.push(["browser: census depth 30, a link with run=1 opened to its summary", "2", ((Date.now() - t0) / 1000).toFixed(2), ""]);
+      await fresh.close();
+    }
     rows.push([
       "browser: class table at depth 30 (12,771,274 rows), scrolling",
       "-",

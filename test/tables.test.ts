@@ -10,6 +10,8 @@ import { toExactJson, parseExactJson } from "../src/outputs/json.js";
 import { sortBig } from "./helpers.js";
 import { classTableArrow } from "../src/outputs/arrow.js";
 
+const TOOL = { version: "0.0.0-test", kernelBuild: "test" };
+
 function chunkOf(residues: bigint[]): LeafChunk {
   return { a: BigUint64Array.from(residues), b: new BigUint64Array(residues.length), m: new Uint8Array(residues.length) };
 }
@@ -83,13 +85,20 @@ describe("Arrow class tables: the image column takes the kernel's width", () => 
     for (let i = 0; i < 40; i++) v = v % 2n === 0n ? v / 2n : (3n * v + 1n) / 2n;
     expect(v).toBe(image);
     expect(image >= 1n << 63n).toBe(true);
-    const t = tableFromIPC(classTableArrow([{ residue: (1n << 40n) - 1n, odd: 40, image }], 40, false));
+    const t = tableFromIPC(classTableArrow([{ residue: (1n << 40n) - 1n, odd: 40, image }], parseMap("3x+1"), 40, TOOL));
     expect(t.schema.fields.find((f) => f.name === "image")!.type.typeId).toBe(Type.Int);
     expect((t.schema.fields.find((f) => f.name === "image")!.type as { isSigned: boolean }).isSigned).toBe(false);
     expect(t.getChild("image")!.get(0)).toBe(image);
+    // the map, depth and tool travel in the schema's metadata
+    expect(Object.fromEntries(t.schema.metadata)).toEqual({
+      "glidepath.map": "3x+1",
+      "glidepath.depth": "40",
+      "glidepath.version": "0.0.0-test",
+      "glidepath.kernel_build": "test",
+    });
     // r < 0: signed, and a value that does not fit is refused rather than wrapped
-    const s = tableFromIPC(classTableArrow([{ residue: 3n, odd: 1, image: -7n }], 4, true));
+    const s = tableFromIPC(classTableArrow([{ residue: 3n, odd: 1, image: -7n }], parseMap("3x-1"), 4, TOOL));
     expect(s.getChild("image")!.get(0)).toBe(-7n);
-    expect(() => classTableArrow([{ residue: 3n, odd: 1, image: 1n << 63n }], 4, true)).toThrow(/does not fit int64/);
+    expect(() => classTableArrow([{ residue: 3n, odd: 1, image: 1n << 63n }], parseMap("3x-1"), 4, TOOL)).toThrow(/does not fit int64/);
   });
 });

@@ -59,14 +59,14 @@ function cycles(): void {
   const workers = readWorkers("cycles-message");
   if (workers === null) return;
   void runCycles(($("cycles-map") as HTMLInputElement).value, ($("cycles-period") as HTMLInputElement).value, workers).then(
-    (ok) => ok && saveState(current, ["cycles", "run"]),
+    (ok) => ok && saveState(current, ["cycles"]),
   );
 }
 
 function verify(): void {
   const workers = readWorkers("verify-message");
   if (workers === null) return;
-  void startVerify(workers).then((ok) => ok && saveState(current, ["verify", "run"]));
+  void startVerify(workers).then((ok) => ok && saveState(current, ["verify"]));
 }
 
 /** Each view's job, as its button and run=1 start it. */
@@ -111,6 +111,9 @@ function setup(): void {
   $("verify-cancel").addEventListener("click", cancelVerify);
   $("verify-certificate").addEventListener("click", downloadCertificate);
   $("verify-preset").addEventListener("change", () => applyPreset(($("verify-preset") as HTMLSelectElement).value));
+  document.querySelector('a[href="#glossary"]')?.addEventListener("click", () => {
+    ($("glossary") as HTMLDetailsElement).open = true;
+  });
   addEventListener("resize", () => {
     resizeCharts();
     refreshTable();

@@ -5,6 +5,9 @@ export type View = "run" | "table" | "inspect" | "cycles" | "verify";
 
 const VIEWS: readonly View[] = ["run", "table", "inspect", "cycles", "verify"];
 
+/** The worker count, shared by every view's job (its field is in the run view). */
+const WORKERS = ["workers", "run-workers"] as const;
+
 /** URL key -> form element id, per view (the class table shows the run view's run). */
 const FIELDS: Record<View, readonly (readonly [key: string, id: string])[]> = {
   run: [
@@ -12,7 +15,6 @@ const FIELDS: Record<View, readonly (readonly [key: string, id: string])[]> = {
     ["depth", "run-depth"],
     ["mode", "run-mode"],
     ["table", "run-keep-table"],
-    ["workers", "run-workers"],
   ],
   table: [],
   inspect: [
@@ -54,7 +56,7 @@ function writeField(id: string, value: string): void {
 /** Reads the address bar: fills every view's fields from it and returns the view and run flag. */
 export function loadState(search = location.search): PageState {
   const p = new URLSearchParams(search);
-  for (const fields of Object.values(FIELDS)) for (const [key, id] of fields) if (p.has(key)) writeField(id, p.get(key)!);
+  for (const [key, id] of [WORKERS, ...Object.values(FIELDS).flat()]) if (p.has(key)) writeField(id, p.get(key)!);
   const view = p.get("view");
   return { view: VIEWS.includes(view as View) ? (view as View) : "run", run: p.get("run") === "1" };
 }
@@ -67,6 +69,6 @@ export function saveState(view: View, fieldsOf: readonly View[] = []): void {
   const p = new URLSearchParams(location.search);
   p.set("view", view);
   p.delete("run");
-  for (const v of fieldsOf) for (const [key, id] of FIELDS[v]) p.set(key, readField(id));
+  for (const [key, id] of fieldsOf.length ? [WORKERS, ...fieldsOf.flatMap((v) => FIELDS[v])] : []) p.set(key, readField(id));
   history.replaceState(null, "", `${location.pathname}?${p.toString()}`);
 }

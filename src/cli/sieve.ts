@@ -11,6 +11,7 @@ import { runWhole } from "../engine/plan.js";
 import { mergeSortedTables } from "../node/cluster.js";
 import type { BatchJob } from "./cluster.js";
 import { classTableArrow } from "../outputs/arrow.js";
+import type { ToolStamp } from "../outputs/manifest.js";
 import { group, plural } from "../outputs/format.js";
 import { toExactJson } from "../outputs/json.js";
 import { tableManifest } from "../outputs/manifest.js";
@@ -94,7 +95,8 @@ async function sieve(o: RawOptions): Promise<void> {
   const result = await withPool(workers, `sieve ${map.name} mod 2^${depth}`, (pool, onProgress) =>
     withManifestOutput(
       out?.path,
-      (file) => (file && out ? writeTable(pool, params, out.format, file, onProgress) : runWhole(pool, sieveJob, params, { onProgress })),
+      (file) =>
+        file && out ? writeTable(pool, params, out.format, stamp, file, onProgress) : runWhole(pool, sieveJob, params, { onProgress }),
       (_r, data) => tableManifest(map, depth, rows, out!.format, data, stamp),
     ),
   );
@@ -107,13 +109,14 @@ async function writeTable(
   pool: KernelPool,
   params: SieveParams,
   format: TableFormat,
+  stamp: ToolStamp,
   file: AtomicFile,
   onProgress: (done: number, total: number) => void,
 ): Promise<SieveResult> {
   if (format === "raw") return runWhole(pool, sieveJob, params, { onProgress, out: file });
   const collected: CsvRow[] = [];
   const result = await runSieve(pool, { ...params, onLeaves: (c) => collectRows(collected, c) }, { onProgress });
-  if (format === "arrow") await file.write(classTableArrow(collected, params.depth, params.map.r < 0));
+  if (format === "arrow") await file.write(classTableArrow(collected, params.map, params.depth, stamp));
   else for (const line of csvLines(collected)) await file.write(line);
   return result;
 }

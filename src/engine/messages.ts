@@ -1,5 +1,6 @@
 // What crosses the worker boundary (comlink): shard requests and results of every kernel job, as
 // plain data and typed arrays, and the one object each worker exposes.
+import type { ToolStamp } from "../outputs/manifest.js";
 
 export type Mode = "survivors" | "full";
 
@@ -133,6 +134,8 @@ export interface TableExport {
   readonly format: "csv" | "arrow";
   /** Sorted survivors (depth <= 32). */
   readonly residues: Uint32Array;
+  /** Stamped into the Arrow schema's metadata. */
+  readonly tool: ToolStamp;
 }
 
 /** The object each worker exposes. */

@@ -62,7 +62,7 @@ export function createWorkerApi(): KernelWorkerApi {
         return { residue: c.residue, odd: c.odd, image: c.image };
       });
       const bytes =
-        req.format === "arrow" ? classTableArrow(rows, req.depth, req.r < 0) : new TextEncoder().encode([...csvLines(rows)].join(""));
+        req.format === "arrow" ? classTableArrow(rows, map, req.depth, req.tool) : new TextEncoder().encode([...csvLines(rows)].join(""));
       return transfer(bytes, [asArrayBuffer(bytes.buffer)]);
     },
     async sortBucket(keys, bits, high, wide) {

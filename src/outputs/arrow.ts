@@ -2,21 +2,33 @@
 // Column names and types are documented in README ("Arrow exports").
 import { Field, Int32, List, Table, Uint64, Utf8, tableFromArrays, tableToIPC, vectorFromArray } from "apache-arrow";
 import type { CsvRow } from "./tables.js";
+import type { ToolStamp } from "./manifest.js";
+import type { CollatzMap } from "../core/map.js";
 import type { StepTable } from "../jobs/steps.js";
 import type { CensusResult } from "../jobs/census/census.js";
 import type { CycleSearchResult } from "../jobs/cycles/cycles.js";
 
 /**
  * Class table: residue (uint32 for depth <= 32, else uint64), odd_steps (uint8), image (int64 when
- * r < 0, uint64 when r > 0: the kernels' own widths, so every image the sieve can make fits).
+ * r < 0, uint64 when r > 0: the kernels' own widths, so every image the sieve can make fits). The
+ * schema's metadata names the map, the depth and the tool (glidepath.map, .depth, .version, .kernel_build).
  */
-export function classTableArrow(rows: readonly CsvRow[], depth: number, signed: boolean): Uint8Array {
+export function classTableArrow(rows: readonly CsvRow[], map: CollatzMap, depth: number, tool: ToolStamp): Uint8Array {
+  const signed = map.r < 0;
   const sorted = [...rows].sort((u, v) => (u.residue < v.residue ? -1 : u.residue > v.residue ? 1 : 0));
   const residue = depth <= 32 ? Uint32Array.from(sorted, (r) => Number(r.residue)) : BigUint64Array.from(sorted, (r) => r.residue);
   const image = signed
     ? BigInt64Array.from(sorted, (r) => fits(r.image, BigInt.asIntN(64, r.image), "int64"))
     : BigUint64Array.from(sorted, (r) => fits(r.image, BigInt.asUintN(64, r.image), "uint64"));
-  return tableToIPC(tableFromArrays({ residue, odd_steps: Uint8Array.from(sorted, (r) => r.odd), image }), "file");
+  const table = tableFromArrays({ residue, odd_steps: Uint8Array.from(sorted, (r) => r.odd), image });
+  const meta: [string, string][] = [
+    ["map", map.name],
+    ["depth", String(depth)],
+    ["version", tool.version],
+    ["kernel_build", tool.kernelBuild],
+  ];
+  for (const [k, v] of meta) table.schema.metadata.set(`glidepath.${k}`, v);
+  return tableToIPC(table, "file");
 }
 
 function fits(x: bigint, wrapped: bigint, type: string): bigint {

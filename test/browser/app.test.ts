@@ -7,7 +7,7 @@ import { parseCsv } from "../../src/outputs/tables.js";
 import { parseMap } from "../../src/core/map.js";
 import { A076227 } from "../../src/core/published.js";
 import { coefficientStop, T } from "../helpers.js";
-import { CHROMIUM, launch, serveDist, summaryOf } from "./harness.js";
+import { CHROMIUM, launch, openPage, serveDist, summaryOf } from "./harness.js";
 import { requireProgram } from "../system.js";
 
 const hasChromium = requireProgram("Chromium", CHROMIUM, "apt-get install -y chromium, or set CHROMIUM to its path");
@@ -26,17 +26,7 @@ afterAll(async () => {
   await server?.close();
 });
 
-async function open(query = ""): Promise<Page> {
-  const page = await browser.newPage();
-  page.on("dialog", () => {
-    throw new Error("the page opened a dialog");
-  });
-  page.on("pageerror", (e) => {
-    throw e;
-  });
-  await page.goto(server.url + query);
-  return page;
-}
+const open = (query = ""): Promise<Page> => openPage(browser, server.url + query);
 
 type Summary = {
   map: string;

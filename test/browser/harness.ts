@@ -69,6 +69,19 @@ export async function launch(): Promise<{ browser: BrowserContext; done: () => P
   };
 }
 
+/** A new page at `url`; a dialog or an uncaught page error fails the test. */
+export async function openPage(browser: BrowserContext, url: string): Promise<Page> {
+  const page = await browser.newPage();
+  page.on("dialog", () => {
+    throw new Error("the page opened a dialog");
+  });
+  page.on("pageerror", (e) => {
+    throw e;
+  });
+  await page.goto(url);
+  return page;
+}
+
 /** Waits for the run summary and returns it as text. */
 export async function summaryOf(page: Page, timeout = 120_000): Promise<string> {
   await page.waitForFunction(() => (document.querySelector("[data-run-summary]")?.textContent ?? "") !== "", undefined, { timeout });

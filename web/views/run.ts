@@ -1,7 +1,8 @@
 // The run view: map, depth and mode in; per-depth table, exceptions, charts and the run summary out.
-import { parseMap, kernelDepthLimit } from "../../src/core/map.js";
+import { parseMap, kernelDepthLimit, stoppingOdds } from "../../src/core/map.js";
 import type { CollatzMap } from "../../src/core/map.js";
 import { exactCounts } from "../../src/core/exact.js";
+import { classFromResidue } from "../../src/core/padic.js";
 import type { Level } from "../../src/core/exact.js";
 import { runSieve } from "../../src/jobs/sieve/sieve.js";
 import type { Mode } from "../../src/engine/messages.js";
@@ -75,8 +76,10 @@ export function readRunForm(): RunRequest | null {
 
 function renderLevels(map: CollatzMap, levels: readonly Level[]): void {
   const published = map.q === 3 && map.r === 1;
+  const odds = stoppingOdds(map.q, levels.length - 1);
   const head =
     `<thead><tr><th>depth</th><th>survivors</th><th>stopped</th><th>density</th>` +
+    `<th title="the same stopping time with odd steps counted twice (j + m)">std steps</th>` +
     `${published ? "<th>A076227</th><th>agrees</th>" : ""}</tr></thead>`;
   const body = levels
     .map((l) => {
@@ -89,6 +92,7 @@ function renderLevels(map: CollatzMap, levels: readonly Level[]): void {
         : "";
       return (
         `<tr><td>${l.depth}</td><td>${group(l.survivors)}</td><td>${group(l.stopped)}</td><td>${density(l.survivors, l.depth)}</td>` +
+        `<td>${l.stopped > 0n && odds[l.depth] != null ? l.depth + odds[l.depth]! : ""}</td>` +
         `${cells}</tr>`
       );
     })
@@ -107,20 +111,30 @@ function renderExceptions(r: Pick<SieveResult, "exceptions" | "exceptionCount">)
 function renderCensus(c: CensusResult): void {
   const peaks = c.peak.flatMap((row, j) => row.flatMap((n, m) => (n > 0n ? [{ log2: log2Coefficient(c.map.q, m, j), count: n }] : [])));
   drawCensus(peaks, c.ratioBins);
+  const K = c.depth;
+  const shown = c.differ.listed.slice(0, 20).map((d) => d.n);
+  const more = c.differ.count - BigInt(shown.length);
+  const m = c.maxRatio;
   $("run-census").innerHTML =
-    `<p>Census of all 2^${c.depth} vectors: alive and dropping classes agree with the exact counter at every (j, m): <strong>` +
-    `${c.agreesWithExactCounter ? "yes" : "no"}</strong>. ` +
-    `Least members whose first descent differs from the coefficient stopping time: <strong>${group(c.differ.count)}</strong>` +
-    (c.differ.listed.length
-      ? ` (${c.differ.listed
-          .slice(0, 20)
-          .map((d) => d.n)
-          .join(", ")}${c.differ.listed.length > 20 ? ", ..." : ""})`
-      : "") +
-    `. Largest T^j(a)/a: T^${c.maxRatio.step}(${c.maxRatio.n}) = ${c.maxRatio.value}.</p>`;
+    `<p>Census of all 2^${K} parity vectors: the kernel's alive and dropping classes agree with the exact counter at every ` +
+    `(j, m): <strong>${c.agreesWithExactCounter ? "yes" : "no"}</strong>.</p>` +
+    `<p>Least members a in [1, 2^${K}) whose first descent (the first step with T^j(a) &lt; a) is not at their class's ` +
+    `coefficient stopping time: <strong>${group(c.differ.count)}</strong> (${group(c.differ.early)} descend earlier, ` +
+    `${group(c.differ.count - c.differ.early)} not at it)` +
+    (shown.length ? `; the smallest: ${shown.join(", ")}${more > 0n ? `, and ${group(more)} more` : ""}` : "") +
+    `.</p><p>Largest ratio T^j(a)/a over a in [1, 2^${K}) and j &le; ${K}: <strong>${ratioText(m.value, m.n)}</strong>, ` +
+    `reached by a = ${m.n} at step j = ${m.step} (T^${m.step}(${m.n}) = ${m.value}).</p>`;
 }
 
 const panel = new ResultsPanel("run-results", "run-stale");
+/** value / n to 6 significant digits, for reading only (the exact pair is shown beside it). */
+function ratioText(value: bigint, n: bigint): string {
+  const digits = (value / n).toString().length;
+  const scale = 10n ** BigInt(Math.max(0, 6 - digits));
+  const r = Number((value * scale) / n) / Number(scale);
+  return r.toLocaleString("en-US", { maximumSignificantDigits: 6 });
+}
+
 const controller = new RunController({
   start: "run-start",
   cancel: "run-cancel",
@@ -187,6 +201,7 @@ async function renderRun(req: RunRequest, r: RunResult, exact: readonly Level[],
     `${published !== undefined ? `; A076227 ${published === last.survivors ? "agrees" : "DIFFERS"}` : ""}</span>`;
   renderLevels(map, levels);
   renderExceptions(result);
+  renderGrid(map, depth);
   for (const el of document.querySelectorAll<HTMLElement>(".census-only")) el.hidden = !census;
   for (const draw of [() => drawDensity(levels, exact), () => drawStopped(levels), () => drawHeat(result.live)]) {
     await yieldToPage();
@@ -238,4 +253,30 @@ async function collectSorted(sorter: ResidueSorter, rows: number): Promise<Uint3
 
 export function cancelRun(): void {
   controller.cancel();
+}
+
+/** Deepest k for the residue grid (2^k cells). */
+const GRID_MAX_DEPTH = 10;
+/** Viridis stops for stopping depths 1..k (dark to light), and survivors in the palette's orange. */
+const VIRIDIS = ["#440154", "#482878", "#3e4989", "#31688e", "#26828e", "#1f9e89", "#35b779", "#6ece58", "#b5de2b", "#fde725"];
+const SURVIVOR = "#E69F00";
+
+/** Every residue a mod 2^k (k = min(depth, 10)), coloured by its class's coefficient stopping time. */
+function renderGrid(map: CollatzMap, depth: number): void {
+  const k = Math.min(depth, GRID_MAX_DEPTH);
+  const grid = $("run-grid");
+  grid.style.gridTemplateColumns = `repeat(${2 ** Math.ceil(k / 2)}, 1fr)`;
+  const cells: HTMLElement[] = [];
+  for (let a = 0; a < 2 ** k; a++) {
+    const stop = classFromResidue(map, BigInt(a), k).stoppingTime;
+    const cell = document.createElement("span");
+    cell.style.background = stop === null ? SURVIVOR : VIRIDIS[Math.round(((stop - 1) / Math.max(1, k - 1)) * (VIRIDIS.length - 1))]!;
+    cell.title = stop === null ? `${a} mod 2^${k}: survives to depth ${k}` : `${a} mod 2^${k}: stops at depth ${stop}`;
+    cells.push(cell);
+  }
+  grid.replaceChildren(...cells);
+  $("grid-title").textContent = `Residues mod 2^${k} by stopping depth`;
+  $("grid-legend").textContent =
+    `${2 ** k} cells, a = 0 at the top left, row by row; orange: survivors at depth ${k}; ` +
+    `dark to light: classes stopping at depth 1 to ${k}. Hover a cell for its residue.`;
 }

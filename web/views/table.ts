@@ -139,7 +139,19 @@ export function showTable(t: ClassTable | null): void {
   $("table-caption").textContent = t
     ? `${n.toLocaleString("en-US")} surviving classes of ${t.map.name} mod 2^${t.depth}, ascending by residue.`
     : "Run a sieve (survivors mode) to fill the class table.";
-  for (const id of ["export-raw", "export-csv", "export-arrow"]) ($(id) as HTMLButtonElement).disabled = !t;
+  ($("export-raw") as HTMLButtonElement).disabled = !t;
+  const guarded = n > CSV_ROW_GUARD;
+  for (const id of ["export-csv", "export-arrow"]) {
+    const b = $(id) as HTMLButtonElement;
+    b.disabled = !t || guarded;
+    b.title = guarded ? `over the ${CSV_ROW_GUARD.toLocaleString("en-US")}-row guard: export raw` : "";
+  }
+  const msg = $("export-message");
+  msg.className = "message";
+  msg.textContent = guarded
+    ? `CSV and Arrow are off for ${n.toLocaleString("en-US")} rows (over the ${CSV_ROW_GUARD.toLocaleString("en-US")}-row guard): ` +
+      "export raw + manifest, or run a smaller depth."
+    : "";
   render();
 }
 
@@ -169,27 +181,26 @@ async function exportTable(format: "raw" | "csv" | "arrow"): Promise<void> {
   msg.className = "message";
   msg.textContent = `Preparing the ${format} export...`;
   try {
-    if (format === "raw") {
-      const bytes = new Uint8Array(t.residues.buffer as ArrayBuffer, t.residues.byteOffset, t.residues.byteLength);
-      const manifest = tableManifest(
-        t.map,
-        t.depth,
-        BigInt(t.residues.length),
-        "raw",
-        { file: `${name}.u32`, bytes: BigInt(bytes.byteLength), sha256: await sha256(bytes) },
-        { version: pkg.version, kernelBuild: await kernelBuildId() },
-      );
-      download(`${name}.u32`, [bytes], "application/octet-stream");
-      download(`${name}.u32.json`, [toExactJson(manifest, 2) + "\n"], "application/json");
-    } else {
-      const residues = t.residues.slice();
-      const bytes = await withExportWorker((api) => api.exportTable({ q: t.map.q, r: t.map.r, depth: t.depth, format, residues }));
-      download(
-        `${name}.${format === "csv" ? "csv" : "arrow"}`,
-        [bytes as Uint8Array<ArrayBuffer>],
-        format === "csv" ? "text/csv" : "application/vnd.apache.arrow.file",
-      );
-    }
+    const tool = { version: pkg.version, kernelBuild: await kernelBuildId() };
+    const residues = t.residues.slice();
+    const bytes =
+      format === "raw"
+        ? new Uint8Array(t.residues.buffer as ArrayBuffer, t.residues.byteOffset, t.residues.byteLength)
+        : ((await withExportWorker((api) =>
+            api.exportTable({ q: t.map.q, r: t.map.r, depth: t.depth, format, residues, tool }),
+          )) as Uint8Array<ArrayBuffer>);
+    // every format with its manifest (map, depth, rows, sha256, tool): a CSV has no place of its own for them
+    const file = `${name}.${format === "raw" ? "u32" : format}`;
+    const manifest = tableManifest(
+      t.map,
+      t.depth,
+      BigInt(t.residues.length),
+      format,
+      { file, bytes: BigInt(bytes.byteLength), sha256: await sha256(bytes) },
+      tool,
+    );
+    download(file, [bytes], { raw: "application/octet-stream", csv: "text/csv", arrow: "application/vnd.apache.arrow.file" }[format]);
+    download(`${file}.json`, [toExactJson(manifest, 2) + "\n"], "application/json");
     msg.textContent = `Exported ${name} (${format}).`;
   } catch (e) {
     msg.className = "message bad";
