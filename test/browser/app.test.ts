@@ -1,32 +1,16 @@
 // End to end in Debian's Chromium: the built app (dist/) served on loopback, driven by playwright-core.
 import { readFileSync } from "node:fs";
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import type { BrowserContext, Page } from "playwright-core";
+import { describe, expect, it } from "vitest";
+import type { Page } from "playwright-core";
 import { parseExactJson } from "../../src/outputs/json.js";
 import { parseCsv } from "../../src/outputs/tables.js";
 import { parseMap } from "../../src/core/map.js";
 import { A076227 } from "../../src/core/published.js";
 import { coefficientStop, T } from "../helpers.js";
-import { CHROMIUM, launch, openPage, serveDist, summaryOf } from "./harness.js";
-import { requireProgram } from "../system.js";
+import { summaryOf } from "./harness.js";
+import { browserSuite, hasChromium } from "./suite.js";
 
-const hasChromium = requireProgram("Chromium", CHROMIUM, "apt-get install -y chromium, or set CHROMIUM to its path");
-
-let server: Awaited<ReturnType<typeof serveDist>>;
-let browser: BrowserContext;
-let done: () => Promise<void>;
-
-beforeAll(async () => {
-  if (!hasChromium) return;
-  server = await serveDist();
-  ({ browser, done } = await launch());
-}, 60_000);
-afterAll(async () => {
-  await done?.();
-  await server?.close();
-});
-
-const open = (query = ""): Promise<Page> => openPage(browser, server.url + query);
+const { open } = browserSuite();
 
 type Summary = {
   map: string;

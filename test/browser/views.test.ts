@@ -1,33 +1,17 @@
 // The page as a user meets it, in Debian's Chromium: links that reproduce every view, the class table
 // from the keyboard and the wheel, results marked stale, the colour scheme, a phone's width, and the
 // census against the exact counter and a BigInt brute force.
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import type { BrowserContext, Page } from "playwright-core";
+import { describe, expect, it } from "vitest";
+import type { Page } from "playwright-core";
 import { parseExactJson } from "../../src/outputs/json.js";
 import { parseMap } from "../../src/core/map.js";
 import { exactCounts } from "../../src/core/exact.js";
 import { A076227 } from "../../src/core/published.js";
 import { coefficientStop, T } from "../helpers.js";
-import { CHROMIUM, launch, openPage, serveDist, summaryOf } from "./harness.js";
-import { requireProgram } from "../system.js";
+import { summaryOf } from "./harness.js";
+import { browserSuite, hasChromium } from "./suite.js";
 
-const hasChromium = requireProgram("Chromium", CHROMIUM, "apt-get install -y chromium, or set CHROMIUM to its path");
-
-let server: Awaited<ReturnType<typeof serveDist>>;
-let browser: BrowserContext;
-let done: () => Promise<void>;
-
-beforeAll(async () => {
-  if (!hasChromium) return;
-  server = await serveDist();
-  ({ browser, done } = await launch());
-}, 60_000);
-afterAll(async () => {
-  await done?.();
-  await server?.close();
-});
-
-const open = (query = ""): Promise<Page> => openPage(browser, server.url + query);
+const { open } = browserSuite();
 /** The summary without its timings. */
 const stable = (text: string): string => text.replace(/"seconds":[0-9.]+/g, '"seconds":0');
 /** The address bar's query, with run=1 added: the link a user would send. */
