@@ -15,7 +15,7 @@ import { toolStamp, withPool } from "../node/kernel.js";
 import { intOption, jobCommand, mapOption, outputOption, workersOption } from "./options.js";
 import type { RawOptions } from "./options.js";
 import { confirmOutput, print } from "./print.js";
-import { levelTable } from "./report.js";
+import { levelTable, exceptionLines } from "./report.js";
 
 const TEXT_DIFFER = 20;
 
@@ -124,6 +124,7 @@ function censusText(c: CensusResult, workers: number): string {
         `coefficient stopping time ${d.stoppingTime ?? `> ${c.depth}`}`,
     ),
     ...(more > 0n ? [`  ... and ${group(more)} more (the smallest are listed; --json lists up to ${group(c.differ.limit)})`] : []),
+    ...exceptionLines(c, TEXT_DIFFER),
     `largest T^j(a)/a: T^${c.maxRatio.step}(${c.maxRatio.n}) = ${c.maxRatio.value}, a ratio of ` +
       `${ratioText(c.maxRatio.value, c.maxRatio.n)} (class ${c.maxRatio.n} mod 2^${c.depth})`,
     "",

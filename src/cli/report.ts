@@ -3,6 +3,7 @@
 import type { Level } from "../core/exact.js";
 import type { CollatzMap } from "../core/map.js";
 import { stoppingOdds } from "../core/map.js";
+import type { SieveResult } from "../jobs/sieve/sieve.js";
 import { density, group } from "../outputs/format.js";
 
 const HEAD = ["depth", "survivors", "stopped", "density", "std steps"] as const;
@@ -41,4 +42,15 @@ export function levelTable(map: CollatzMap, levels: readonly Level[]): string {
   const widest = levels.reduce((s, l) => (l.survivors > s ? l.survivors : l.stopped > s ? l.stopped : s), 0n);
   const w = levelWidths(depth, widest);
   return [levelHeader(w), ...levels.map((l) => levelLine(w, l, odds[l.depth] ?? null))].join("\n");
+}
+
+/** The sieve's exceptions as text: the count, the smallest `listed` of them, and how many more. */
+export function exceptionLines(r: Pick<SieveResult, "exceptions" | "exceptionCount" | "exceptionLimit">, listed: number): string[] {
+  const shown = r.exceptions.slice(0, listed);
+  const more = r.exceptionCount - BigInt(shown.length);
+  return [
+    `exceptions (positive members that do not descend at their class's stopping depth): ${group(r.exceptionCount)}`,
+    ...shown.map((e) => `  n = ${e.n}   class ${e.residue} mod 2^${e.classDepth}`),
+    ...(more > 0n ? [`  ... and ${group(more)} more (the smallest are listed; --json lists up to ${group(r.exceptionLimit)})`] : []),
+  ];
 }

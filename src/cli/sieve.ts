@@ -24,7 +24,7 @@ import { toolStamp, withPool } from "../node/kernel.js";
 import { intOption, jobCommand, mapOption, outputOption, workersOption } from "./options.js";
 import type { RawOptions } from "./options.js";
 import { confirmOutput, print } from "./print.js";
-import { levelTable } from "./report.js";
+import { levelTable, exceptionLines } from "./report.js";
 
 /** Exceptions listed in the text report (the smallest; --json lists up to the library's cap). */
 const TEXT_EXCEPTIONS = 50;
@@ -122,7 +122,6 @@ async function writeTable(
 }
 
 function sieveText(r: SieveResult, workers: number): string {
-  const shown = r.exceptions.slice(0, TEXT_EXCEPTIONS);
   const lines = [
     `sieve of ${r.map.name} mod 2^${r.depth}: a class is cut when its coefficient q^m/2^j drops below 1`,
     "(depth = steps of T; std steps = the same stopping time with odd steps counted twice)",
@@ -130,14 +129,7 @@ function sieveText(r: SieveResult, workers: number): string {
     levelTable(r.map, r.levels),
     "",
     `survivors mod 2^${r.depth}: ${group(r.levels[r.depth]!.survivors)}`,
-    `exceptions (positive members that do not descend at their class's stopping depth): ${group(r.exceptionCount)}`,
-    ...shown.map((e) => `  n = ${e.n}   class ${e.residue} mod 2^${e.classDepth}`),
-    ...(r.exceptionCount > BigInt(shown.length)
-      ? [
-          `  ... and ${group(r.exceptionCount - BigInt(shown.length))} more (the smallest are listed; --json lists up to ` +
-            `${group(r.exceptionLimit)})`,
-        ]
-      : []),
+    ...exceptionLines(r, TEXT_EXCEPTIONS),
     `nodes visited: ${group(r.nodes)} in ${r.seconds.toFixed(2)} s (${plural(workers, "worker")})`,
     "",
   ];
