@@ -247,9 +247,7 @@ type Inner = u16;
       push(CHANNEL_EXCEPTIONS, aEven, <u64>bEven, <u64>jj, <u64>m);
     }
     if (sizeof<C>() == 1) atLeaf(aEven, bEven, m, early, excMax);
-    else if (barren(aEven, m, jj, early, excMax)) return;
-    else if (jj == K - 1) dropped<Leaves>(aEven, bEven, m, jj, early, excMax);
-    else dfsDropped(aEven, bEven, m, jj, early, excMax);
+    else intoDropped(aEven, bEven, m, jj, early, excMax);
   } else {
     tally(livePtr, jj, m);
     if (sizeof<C>() == 1) atLeaf(aEven, bEven, m, earlyBound(aEven, bEven, m, jj, early), -1);
@@ -272,15 +270,17 @@ type Inner = u16;
   const bit = (<u64>1) << j;
   V |= bit;
   if (sizeof<C>() == 1) atLeaf(aOdd, bOdd, m + 1, early, excMax);
-  else if (!barren(aOdd, m + 1, jj, early, excMax)) {
-    if (jj == K - 1) dropped<Leaves>(aOdd, bOdd, m + 1, jj, early, excMax);
-    else dfsDropped(aOdd, bOdd, m + 1, jj, early, excMax);
-  }
+  else intoDropped(aOdd, bOdd, m + 1, jj, early, excMax);
   V &= ~bit;
   if (sizeof<C>() == 1) atLeaf(aEven, bEven, m, early, excMax);
-  else if (barren(aEven, m, jj, early, excMax)) return;
-  else if (jj == K - 1) dropped<Leaves>(aEven, bEven, m, jj, early, excMax);
-  else dfsDropped(aEven, bEven, m, jj, early, excMax);
+  else intoDropped(aEven, bEven, m, jj, early, excMax);
+}
+
+/** An inner node at or below its drop, depth j < K: walked unless barren. */
+@inline function intoDropped(a: u64, b: i64, m: i32, j: i32, early: u64, excMax: i64): void {
+  if (barren(a, m, j, early, excMax)) return;
+  if (j == K - 1) dropped<Leaves>(a, b, m, j, early, excMax);
+  else dfsDropped(a, b, m, j, early, excMax);
 }
 
 function dfsLive(a: u64, b: i64, m: i32, j: i32, early: u64): void {
@@ -374,10 +374,7 @@ function walk(prefixBits: i32, prefix: u64): void {
     }
   }
   if (prefixBits == K) atLeaf(a, b, m, alive ? earlyBound(a, b, m, K, early) : early, excMax);
-  else if (!alive && barren(a, m, prefixBits, early, excMax)) return;
-  else if (prefixBits == K - 1) {
-    if (alive) live<Leaves>(a, b, m, prefixBits, early);
-    else dropped<Leaves>(a, b, m, prefixBits, early, excMax);
-  } else if (alive) dfsLive(a, b, m, prefixBits, early);
-  else dfsDropped(a, b, m, prefixBits, early, excMax);
+  else if (!alive) intoDropped(a, b, m, prefixBits, early, excMax);
+  else if (prefixBits == K - 1) live<Leaves>(a, b, m, prefixBits, early);
+  else dfsLive(a, b, m, prefixBits, early);
 }

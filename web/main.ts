@@ -82,18 +82,17 @@ function setup(): void {
     show("inspect");
     inspectNow();
   });
-  const submit = (form: string, job: () => void) =>
+  // each form: its job on submit; the address bar follows its fields as they change
+  for (const [form, view, job] of [
+    ["run-form", "run", run],
+    ["inspect-form", "inspect", inspectNow],
+    ["cycles-form", "cycles", cycles],
+    ["verify-form", "verify", verify],
+  ] as const) {
     $(form).addEventListener("submit", (e) => {
       e.preventDefault();
       job();
     });
-  // the address bar follows every field as it is changed, and every job as it starts
-  for (const [form, view] of [
-    ["run-form", "run"],
-    ["inspect-form", "inspect"],
-    ["cycles-form", "cycles"],
-    ["verify-form", "verify"],
-  ] as const) {
     $(form).addEventListener("change", () => saveState(current, [view]));
     // a field being corrected loses its old error (the next run checks it again)
     $(form).addEventListener("input", (e) => {
@@ -101,10 +100,6 @@ function setup(): void {
       if (document.getElementById(`${id}-error`)) fieldError(id, "");
     });
   }
-  submit("run-form", run);
-  submit("inspect-form", inspectNow);
-  submit("cycles-form", cycles);
-  submit("verify-form", verify);
   $("run-cancel").addEventListener("click", cancelRun);
   $("cycles-cancel").addEventListener("click", cancelCycles);
   $("cycles-export").addEventListener("click", exportCycles);

@@ -127,16 +127,21 @@ export function stoppedRow(row: ExactRow): bigint[] {
  */
 export function peakCounts(q: number, depth: number): bigint[][] {
   const drop = dropDepths(q, depth);
-  /** paths[x][y]: paths of x steps with y odd ones, every prefix (x', y') passing `ok(x', y')`. */
-  const paths = (ok: (x: number, y: number) => boolean): bigint[][] => {
-    const out: bigint[][] = [[1n]];
-    for (let x = 1; x <= depth; x++) {
-      const prev = out[x - 1]!;
-      out.push(Array.from({ length: x + 1 }, (_, y) => (ok(x, y) ? (prev[y] ?? 0n) + (y > 0 ? prev[y - 1]! : 0n) : 0n)));
-    }
-    return out;
-  };
-  const before = paths((x, y) => x < drop[y]!);
-  const after = paths((x, y) => x >= drop[y]!).map((row) => row.reduce((s, n) => s + n, 0n));
+  const before = pathCounts(depth, (x, y) => x < drop[y]!);
+  const after = pathCounts(depth, (x, y) => x >= drop[y]!).map((row) => row.reduce((s, n) => s + n, 0n));
   return before.map((row, j) => row.map((n) => n * after[depth - j]!));
+}
+
+/**
+ * [x][y], x = 0..depth: the paths of x steps with y odd ones whose every prefix (x', y') passes
+ * `ok(x', y')` (with `ok` always true, the binomials C(x, y)).
+ * @example pathCounts(2, () => true) // [[1n], [1n, 1n], [1n, 2n, 1n]]
+ */
+export function pathCounts(depth: number, ok: (x: number, y: number) => boolean): bigint[][] {
+  const out: bigint[][] = [[1n]];
+  for (let x = 1; x <= depth; x++) {
+    const prev = out[x - 1]!;
+    out.push(Array.from({ length: x + 1 }, (_, y) => (ok(x, y) ? (prev[y] ?? 0n) + (y > 0 ? prev[y - 1]! : 0n) : 0n)));
+  }
+  return out;
 }

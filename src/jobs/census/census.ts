@@ -13,7 +13,7 @@ import { choosePrefixBits, largestShare, runWhole, shardEstimate, shardPrefixes 
 import type { JobKind, PartBase, Plan } from "../../engine/plan.js";
 import { coefficientBins } from "./kernel.js";
 import type { KernelPool, RunOptions } from "../../engine/pool.js";
-import { exactCounts, peakCounts } from "../../core/exact.js";
+import { exactCounts, pathCounts, peakCounts } from "../../core/exact.js";
 import type { Level } from "../../core/exact.js";
 import { classFromResidue, firstDescent } from "../../core/padic.js";
 import { LimitError, UsageError } from "../../core/errors.js";
@@ -203,7 +203,7 @@ class CensusTally {
     const depth = this.depth;
     const binsOf = this.bins.slice();
     // The fast-path leaves: with m odd steps, all leaves (nodes at depth K) but the slow ones and a = 0.
-    const vectors = binomialRows(depth);
+    const vectors = pathCounts(depth, () => true); // C(j, m)
     coefficientBins(map.q, map.r, depth).forEach(({ k }, m) => {
       const fast = vectors[depth]![m]! - this.slow[m]! - (m === 0 ? 1n : 0n);
       binsOf[k + this.binOffset] = binsOf[k + this.binOffset]! + fast;
@@ -318,14 +318,6 @@ export const censusJob: JobKind<CensusParams, CensusPart, CensusResult> = {
  */
 export function runCensus(pool: KernelPool, map: CollatzMap, depth: number, options: RunOptions = {}): Promise<CensusResult> {
   return runWhole(pool, censusJob, { map, depth }, options);
-}
-
-/** Vectors of length j with m odd steps: C(j, m), by Pascal's rule. */
-function binomialRows(depth: number): bigint[][] {
-  const out: bigint[][] = [[1n]];
-  for (let j = 1; j <= depth; j++)
-    out.push(Array.from({ length: j + 1 }, (_, m) => (out[j - 1]![m] ?? 0n) + (m > 0 ? out[j - 1]![m - 1]! : 0n)));
-  return out;
 }
 
 function at(row: { mLow: number; live: bigint[]; stopped: bigint[] }, key: "live" | "stopped", m: number): bigint {
