@@ -277,7 +277,7 @@ type Inner = u16;
 }
 
 /** An inner node at or below its drop, depth j < K: walked unless barren. */
-@inline function intoDropped(a: u64, b: i64, m: i32, j: i32, early: u64, excMax: i64): void {
+function intoDropped(a: u64, b: i64, m: i32, j: i32, early: u64, excMax: i64): void {
   if (barren(a, m, j, early, excMax)) return;
   if (j == K - 1) dropped<Leaves>(a, b, m, j, early, excMax);
   else dfsDropped(a, b, m, j, early, excMax);
