@@ -5,4 +5,5 @@ export { reserve } from "./buffers";
 export { enumerate, MODE_SURVIVORS, MODE_FULL } from "./enumerate";
 export { cycleSearch } from "./cycles";
 export { census } from "./census";
+export { inverseTree } from "./inverse";
 export { verifyPrepare, verifyAligned, verifyRange, verifyDelays } from "./verify";

@@ -85,3 +85,18 @@ export const VERIFY_COUNT_UNRESOLVED: i32 = 3;
 export const VERIFY_COUNT_HANDOFFS: i32 = 4;
 export const VERIFY_COUNT_SIEVED: i32 = 8;
 export const VERIFY_COUNTS: i32 = VERIFY_COUNT_SIEVED + 64;
+
+// ---- inverse tree ----
+/** Inverse depths the tallies hold (0..INVERSE_LEVELS - 1). */
+export const INVERSE_LEVELS: i32 = 128;
+/** u64 tallies per inverse depth j, table t at t * INVERSE_LEVELS * 8: nodes, nodes with an odd
+ * predecessor, nodes = 0 mod q, least node, largest node, nodes below N, nodes below X. */
+export const INVERSE_NODES: i32 = 0;
+export const INVERSE_ODD: i32 = 1;
+export const INVERSE_ZERO: i32 = 2;
+export const INVERSE_MIN: i32 = 3;
+export const INVERSE_MAX: i32 = 4;
+export const INVERSE_BELOW_N: i32 = 5;
+export const INVERSE_BELOW_X: i32 = 6;
+export const INVERSE_TABLES: i32 = 7;
+export const INVERSE_TALLY_BYTES: i32 = INVERSE_TABLES * INVERSE_LEVELS * 8;

@@ -12,6 +12,7 @@ import { classCommand } from "./class.js";
 import { conjugacyCommand } from "./conjugacy.js";
 import { countsCommand } from "./counts.js";
 import { cyclesCommand } from "./cycles.js";
+import { treeCommand } from "./tree.js";
 import { periodicCommand } from "./periodic.js";
 import { sieveCommand } from "./sieve.js";
 import { stepsCommand } from "./steps.js";
@@ -28,6 +29,7 @@ const COMMANDS: readonly ((program: Command) => Command)[] = [
   conjugacyCommand,
   stepsCommand,
   verifyCommand,
+  treeCommand,
   clusterCommands,
 ];
 

@@ -129,8 +129,8 @@ export function verifyCommand(program: Command): Command {
 function request(o: VerifyOptions, map: CollatzMap): VerifyRequest {
   return {
     map,
-    from: parseBound("from", o.from),
-    to: parseBound("to", o.to),
+    from: parseBound("--from", o.from),
+    to: parseBound("--to", o.to),
     sieveDepth: intOption("sieve-depth", o.sieveDepth, 1, MAX_VERIFY_SIEVE_DEPTH, 26),
     stepDepth: intOption("step-depth", o.stepDepth, 1, MAX_VERIFY_STEP_DEPTH, 16),
     maxSteps: intOption("max-steps", o.maxSteps, 1, 100_000_000, DEFAULT_MAX_STEPS),

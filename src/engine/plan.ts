@@ -7,7 +7,7 @@ import type { CollatzMap } from "../core/map.js";
 import type { Mode } from "./messages.js";
 import type { KernelPool, RunOptions } from "./pool.js";
 
-export type JobName = "sieve" | "census" | "cycles" | "conjugacy" | "verify";
+export type JobName = "sieve" | "census" | "cycles" | "conjugacy" | "verify" | "tree";
 
 /** Tasks first..end-1 of a plan (end excluded): one shard. */
 export interface TaskRange {

@@ -6,6 +6,7 @@ import type { KernelWorkerApi, LeafChunk, ShardOutput } from "./messages.js";
 import { enumerateShard } from "../jobs/sieve/kernel.js";
 import { censusShard } from "../jobs/census/kernel.js";
 import { cycleShard } from "../jobs/cycles/kernel.js";
+import { inverseShard } from "../jobs/tree/kernel.js";
 import { verifyBlock, verifyPrepare } from "../jobs/verify/kernel.js";
 import type { VerifyTables } from "./messages.js";
 import { makeMap } from "../core/map.js";
@@ -53,6 +54,14 @@ export function createWorkerApi(): KernelWorkerApi {
       return transfer(
         res,
         arrays.map((x) => asArrayBuffer(x.buffer)),
+      );
+    },
+    async runInverse(req) {
+      if (!kernel) throw new Error("worker used before init");
+      const res = inverseShard(kernel, req);
+      return transfer(
+        res,
+        Object.values(res).map((x: BigUint64Array) => asArrayBuffer(x.buffer)),
       );
     },
     async exportTable(req) {

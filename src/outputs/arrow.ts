@@ -7,6 +7,7 @@ import type { CollatzMap } from "../core/map.js";
 import type { StepTable } from "../jobs/steps.js";
 import type { CensusResult } from "../jobs/census/census.js";
 import type { CycleSearchResult } from "../jobs/cycles/cycles.js";
+import type { TreeEdge } from "../jobs/tree/tree.js";
 
 /**
  * Class table: residue (uint32 for depth <= 32, else uint64), odd_steps (uint8), image (int64 when
@@ -118,6 +119,34 @@ export function cyclesArrow(r: CycleSearchResult): Uint8Array {
       elements: vectorFromArray(
         cycles.map((c) => c.elements.map(String)),
         new List(new Field("item", new Utf8(), false)),
+      ),
+    }),
+    "file",
+  );
+}
+
+/**
+ * The inverse tree's edges: node and parent (utf8 exact decimals: nodes may exceed 64 bits; the
+ * root's parent is null), depth (int32: steps from the node to N), kind (utf8: root, even, odd).
+ */
+export function treeEdgesArrow(edges: readonly TreeEdge[]): Uint8Array {
+  return tableToIPC(
+    new Table({
+      node: vectorFromArray(
+        edges.map((e) => String(e.node)),
+        new Utf8(),
+      ),
+      parent: vectorFromArray(
+        edges.map((e) => (e.parent === null ? null : String(e.parent))),
+        new Utf8(),
+      ),
+      depth: vectorFromArray(
+        edges.map((e) => e.depth),
+        new Int32(),
+      ),
+      kind: vectorFromArray(
+        edges.map((e) => e.kind),
+        new Utf8(),
       ),
     }),
     "file",

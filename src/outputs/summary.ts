@@ -9,6 +9,8 @@ import type { Level } from "../core/exact.js";
 import type { CollatzMap } from "../core/map.js";
 import type { PeriodicPoint } from "../core/padic.js";
 import type { VerifyResult } from "../jobs/verify/verify.js";
+import type { TreeResult } from "../jobs/tree/tree.js";
+import { heuristicGrowth } from "../jobs/tree/tree.js";
 
 /** The fields of `glidepath sieve --json` (a census carries the same fields). */
 export function sieveJson(r: Pick<SieveResult, "map" | "depth" | "levels" | "exceptions" | "exceptionCount" | "nodes" | "seconds">) {
@@ -106,6 +108,28 @@ export function cyclesCsv(r: CycleSearchResult): string {
     [c.representative > 0n ? "positive" : "negative", c.min, c.representative, c.period, c.odd, c.elements.join(" ")].join(","),
   );
   return `sign,minimum,representative,period,odd_steps,elements\n${rows.map((x) => `${x}\n`).join("")}`;
+}
+
+/** The fields of `glidepath tree --json`: per inverse depth, with the growth over the level above and its heuristic. */
+export function treeJson(r: TreeResult) {
+  return {
+    map: r.map.name,
+    n: r.n,
+    depth: r.depth,
+    steps: r.steps,
+    below: r.below,
+    engine: r.engine,
+    heuristicGrowth: Number(heuristicGrowth(r.map.q, r.steps).toFixed(6)),
+    levels: r.levels.map((l, j) => ({ ...l, growth: j === 0 ? null : growth(l.nodes, r.levels[j - 1]!.nodes) })),
+    total: r.total,
+    totalBelowX: r.totalBelowX,
+    seconds: Number(r.seconds.toFixed(3)),
+  };
+}
+
+/** nodes / previous to 6 decimals, for reading only (null when the level above is empty). */
+export function growth(nodes: bigint, previous: bigint): number | null {
+  return previous === 0n ? null : Number((nodes * 1_000_000n) / previous) / 1e6;
 }
 
 /** The fields of `glidepath class --json`. */

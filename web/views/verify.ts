@@ -40,7 +40,7 @@ export function readVerifyForm(): VerifyRequest | null {
       fieldError(id, "");
       return v;
     } catch (e) {
-      fieldError(id, (e as Error).message.replace(/^--\w+ /, `${name} `));
+      fieldError(id, (e as Error).message);
       return null;
     }
   };

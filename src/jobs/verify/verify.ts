@@ -61,16 +61,16 @@ export interface DelayResult {
 
 /**
  * A number of any size: decimal digits, or a sum of terms each decimal or b^e (2^50+2^32).
- * @example parseBound("from", "2^40+5") // 1099511627781n
+ * @example parseBound("--from", "2^40+5") // 1099511627781n
  */
 export function parseBound(name: string, text: string | undefined): bigint {
-  if (text === undefined) throw new UsageError(`--${name} is required`);
+  if (text === undefined) throw new UsageError(`${name} is required`);
   const t = text.replace(/\s+/g, "");
   if (!/^(\d+(\^\d+)?)(\+\d+(\^\d+)?)*$/.test(t))
-    throw new UsageError(`--${name} must be a whole number (digits, or powers such as 2^50+2^32), got "${text}"`);
+    throw new UsageError(`${name} must be a whole number (digits, or powers such as 2^50+2^32), got "${text}"`);
   return t.split("+").reduce((s, term) => {
     const [b, e] = term.split("^");
-    if (e !== undefined && Number(e) > 100_000) throw new UsageError(`--${name}: exponent ${e} is too large`);
+    if (e !== undefined && Number(e) > 100_000) throw new UsageError(`${name}: exponent ${e} is too large`);
     return s + (e === undefined ? BigInt(b!) : BigInt(b!) ** BigInt(e));
   }, 0n);
 }

@@ -1,0 +1,120 @@
+// glidepath tree N: the inverse tree of N, level by level, exact at every size; --out writes its edges.
+import type { Command } from "commander";
+import { CSV_ROW_GUARD } from "../outputs/tables.js";
+import { MAX_TREE_DEPTH, runTree, treeEdges } from "../jobs/tree/tree.js";
+import type { StepConvention, TreeEdge, TreeResult } from "../jobs/tree/tree.js";
+import { parseBound } from "../jobs/verify/verify.js";
+import { treeEdgesArrow } from "../outputs/arrow.js";
+import { group, plural } from "../outputs/format.js";
+import { toExactJson } from "../outputs/json.js";
+import { manifest } from "../outputs/manifest.js";
+import { growth, treeJson } from "../outputs/summary.js";
+import { withManifestOutput } from "../node/files.js";
+import { toolStamp, withPool } from "../node/kernel.js";
+import { LimitError, UsageError } from "../core/errors.js";
+import { intOption, jobCommand, mapOption, outputOption, workersOption } from "./options.js";
+import type { RawOptions } from "./options.js";
+import { confirmOutput, print } from "./print.js";
+
+interface TreeOptions extends RawOptions {
+  readonly depth?: string;
+  readonly below?: string;
+  readonly steps?: string;
+}
+
+export function treeCommand(program: Command): Command {
+  return jobCommand(program, "tree", "the inverse tree of N: every n whose trajectory reaches N, counted by inverse depth")
+    .argument("<N>", "a positive integer not divisible by q (digits, or powers such as 2^40+1)")
+    .option("--depth <K>", `inverse depth: 0 to ${MAX_TREE_DEPTH}`, "20")
+    .option("--below <X>", "also count the nodes below X")
+    .option("--steps <T|standard>", "steps of T (n/2, (qn+r)/2) or standard steps (n/2, qn+r)", "T")
+    .option("--out <FILE>", "write the edges (node, parent, depth, kind) as CSV or Arrow, with FILE.json beside it")
+    .option("--format <csv|arrow>", "output format (default: from the file name, else csv)")
+    .option("--force", `allow more than ${group(CSV_ROW_GUARD)} edges`)
+    .action((n: string, o: TreeOptions) => tree(n, o));
+}
+
+function stepsOption(v: string | undefined): StepConvention {
+  if (v === "T" || v === "t") return "T";
+  if (v === "standard") return "standard";
+  throw new UsageError(`--steps must be T or standard, got "${v}"`);
+}
+
+async function tree(nText: string, o: TreeOptions): Promise<void> {
+  const map = mapOption(o.map);
+  const n = parseBound("N", nText);
+  const params = {
+    map,
+    n,
+    depth: intOption("depth", o.depth, 0, MAX_TREE_DEPTH),
+    steps: stepsOption(o.steps),
+    below: o.below === undefined ? null : parseBound("--below", o.below),
+  };
+  const workers = workersOption(o.workers);
+  const out = outputOption(o, ["csv", "arrow"], "csv");
+  const stamp = await toolStamp();
+  const r = await withPool(workers, `tree of ${n} under ${map.name}`, (pool, onProgress) =>
+    withManifestOutput(
+      out?.path,
+      async (file) => {
+        const result = await runTree(pool, params, { onProgress });
+        if (file && out) {
+          const edges = result.total + 1n;
+          if (edges > BigInt(CSV_ROW_GUARD) && !o.force)
+            throw new LimitError(
+              `the tree has ${group(edges)} nodes, over the ${group(CSV_ROW_GUARD)}-row guard: choose a smaller --depth, or --force`,
+            );
+          const all = treeEdges(map, params.steps, n, params.depth);
+          if (out.format === "arrow") await file.write(treeEdgesArrow([...all]));
+          else {
+            await file.write("node,parent,depth,kind\n");
+            for (const e of all) await file.write(edgeLine(e));
+          }
+        }
+        return result;
+      },
+      (res, data) =>
+        manifest("glidepath tree edges", map, out!.format, data, stamp, {
+          n: res.n,
+          depth: res.depth,
+          steps: res.steps,
+          rows: res.total + 1n,
+        }),
+    ),
+  );
+  print(o.json ? `${toExactJson(treeJson(r))}\n` : treeText(r, workers));
+  if (out) confirmOutput(o.json, `${plural(r.total + 1n, "edge")} of the tree (${out.format})`, out.path);
+}
+
+const edgeLine = (e: TreeEdge) => `${e.node},${e.parent ?? ""},${e.depth},${e.kind}\n`;
+
+function treeText(r: TreeResult, workers: number): string {
+  const x = r.below !== null;
+  const head = ["depth", "nodes", "growth", "odd pred", "= 0 mod q", "least", "largest", "below N", ...(x ? ["below X"] : [])];
+  const rows = r.levels.map((l, j) => [
+    String(l.depth),
+    group(l.nodes),
+    j === 0 ? "" : (growth(l.nodes, r.levels[j - 1]!.nodes)?.toFixed(4) ?? ""),
+    group(l.withOdd),
+    group(l.zeroModQ),
+    String(l.min ?? ""),
+    String(l.max ?? ""),
+    group(l.belowN),
+    ...(x ? [group(l.belowX!)] : []),
+  ]);
+  const widths = head.map((h, i) => Math.max(h.length, ...rows.map((row) => row[i]!.length)));
+  const line = (cells: string[]) => cells.map((c, i) => c.padStart(widths[i]!)).join("  ");
+  const heuristic = r.steps === "T" ? `1 + 1/${r.map.q}` : `(1 + sqrt(1 + 4/${r.map.q}))/2`;
+  return [
+    `inverse tree of ${r.n} under ${r.map.name}, ${r.steps === "T" ? "steps of T" : "standard steps"}, to depth ${r.depth}`,
+    `(a node at depth j reaches ${r.n} first after j steps; growth = nodes / nodes of the level above, heuristic ${heuristic} = ` +
+      `${treeJson(r).heuristicGrowth})`,
+    "",
+    line(head),
+    ...rows.map(line),
+    "",
+    `predecessors within depth ${r.depth}: ${group(r.total)}${x ? `; below ${r.below}: ${group(r.totalBelowX!)}` : ""}`,
+    `${r.engine === "kernel" ? "kernel (u64)" : "BigInt"}, ${r.seconds.toFixed(2)} s, ${plural(workers, "worker")}`,
+    "",
+  ].join("\n");
+}

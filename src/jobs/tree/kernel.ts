@@ -1,0 +1,27 @@
+// The inverse tree's kernel adapter: the roots written into the kernel's memory, one walk
+// (assembly/inverse.ts), and the per-depth tallies copied out.
+import type { Kernel } from "../../engine/loader.js";
+import type { InverseShard, InverseShardResult } from "../../engine/messages.js";
+
+/**
+ * Walks the subtrees below `req.roots` (all at inverse depth rootDepth) to req.depth.
+ * @example inverseShard(kernel, { q: 3, r: 1, steps: 0, depth: 4, n: 1n, below: 0n, rootDepth: 0, roots: BigUint64Array.of(1n) }).nodes[4] // 2n
+ */
+export function inverseShard(kernel: Kernel, req: InverseShard): InverseShardResult {
+  const L = (name: string) => kernel.layout(name);
+  const tallies = kernel.region("inverse.tallies", L("INVERSE_TALLY_BYTES"));
+  const roots = kernel.region("inverse.roots", req.roots.byteLength);
+  new BigUint64Array(kernel.memory, roots, req.roots.length).set(req.roots);
+  kernel.call("inverseTree", [req.q, req.r, req.steps, req.depth, req.n, req.below, req.rootDepth, roots, req.roots.length, tallies]);
+  const levels = L("INVERSE_LEVELS");
+  const table = (name: string) => new BigUint64Array(kernel.memory, tallies + L(name) * levels * 8, levels).slice();
+  return {
+    nodes: table("INVERSE_NODES"),
+    withOdd: table("INVERSE_ODD"),
+    zeroModQ: table("INVERSE_ZERO"),
+    min: table("INVERSE_MIN"),
+    max: table("INVERSE_MAX"),
+    belowN: table("INVERSE_BELOW_N"),
+    belowX: table("INVERSE_BELOW_X"),
+  };
+}
