@@ -12,6 +12,7 @@ import { nodePool } from "../src/node/kernel.js";
 import { enumeratePlain } from "./ts-enumerate.js";
 import { webBench } from "./web.js";
 import { runCensus } from "../src/jobs/census/census.js";
+import { runTree } from "../src/jobs/tree/tree.js";
 import { searchCycles } from "../src/jobs/cycles/cycles.js";
 import { inspect } from "../src/jobs/inspect.js";
 import { runVerify } from "../src/jobs/verify/verify.js";
@@ -66,6 +67,11 @@ async function structureRun(
 }
 for (const w of cores > 1 ? [1, cores] : [1]) await structureRun("census depth 30", w, (pool) => runCensus(pool, map, 30));
 await structureRun("cycles to period 30", cores, (pool) => searchCycles(pool, map, 30));
+for (const w of cores > 1 ? [1, cores] : [1])
+  await structureRun("inverse tree of 1 to depth 60 (steps of T)", w, async (pool) => {
+    const r = await runTree(pool, { map, n: 1n, depth: 60, steps: "T", below: null });
+    return { nodes: r.total + 1n };
+  });
 await structureRun("cycles 5x+1 to period 30 (128-bit)", cores, (pool) => searchCycles(pool, parseMap("5x+1"), 30));
 
 {

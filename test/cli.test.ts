@@ -437,3 +437,57 @@ describe("cli: verify with table files", () => {
     expect(r2.stderr).toMatch(/is not the depth-16 sieve table of 3x\+1/);
   });
 });
+
+describe("cli: tree", () => {
+  it("tree 1 --json: the levels are OEIS A060322 (terms 0..16); --out writes edges that are each one step of T", async () => {
+    const csv = join(dir, "tree.csv");
+    const { code, stdout } = await cli("tree", "1", "--depth", "16", "--json", "--out", csv);
+    expect(code).toBe(0);
+    const j = parseExactJson(stdout.split("\n")[0]!) as { levels: { nodes: bigint }[]; total: bigint };
+    // OEIS A060322 (published entry)
+    expect(j.levels.map((l) => l.nodes)).toEqual([1, 1, 1, 1, 2, 3, 4, 5, 6, 8, 12, 18, 24, 31, 39, 50, 68].map(BigInt));
+    const text = readFileSync(csv, "utf8");
+    const rows = text.trim().split("\n");
+    expect(rows[0]).toBe("node,parent,depth,kind");
+    expect(BigInt(rows.length - 1)).toBe(j.total + 1n);
+    for (const row of rows.slice(2)) {
+      const [node, parent, , kind] = row.split(",");
+      expect(T(3n, 1n, BigInt(node!))).toBe(BigInt(parent!)); // a plain BigInt step
+      expect(kind).toBe(BigInt(node!) % 2n === 0n ? "even" : "odd");
+    }
+    const manifest = JSON.parse(readFileSync(`${csv}.json`, "utf8")) as { sha256: string; rows: number };
+    expect(manifest.sha256).toBe(createHash("sha256").update(readFileSync(csv)).digest("hex"));
+    expect(manifest.rows).toBe(rows.length - 1);
+  });
+
+  it("tree --out F.arrow: the same edges as CSV, read back with apache-arrow", async () => {
+    const arrow = join(dir, "tree.arrow");
+    expect((await cli("tree", "7", "--depth", "20", "--steps", "standard", "--out", arrow)).code).toBe(0);
+    const { tableFromIPC } = await import("apache-arrow");
+    const t = tableFromIPC(readFileSync(arrow));
+    const csv = join(dir, "tree7.csv");
+    await cli("tree", "7", "--depth", "20", "--steps", "standard", "--out", csv);
+    const rows = readFileSync(csv, "utf8").trim().split("\n").slice(1);
+    expect(t.numRows).toBe(rows.length);
+    expect(
+      `${t.getChild("node")!.get(5)},${t.getChild("parent")!.get(5)},${t.getChild("depth")!.get(5)},${t.getChild("kind")!.get(5)}`,
+    ).toBe(rows[5]);
+  });
+
+  for (const [args, msg] of [
+    [["tree", "0"], /N must be a positive integer/],
+    [["tree", "9"], /multiple of q = 3/],
+    [["tree", "abc"], /N must be a whole number/],
+    [["tree", "1", "--depth", "101"], /--depth must be from 0 to 100/],
+    [["tree", "1", "--steps", "odd"], /--steps must be T or standard/],
+    [["tree", "1", "--depth", "50", "--out", join(dir, "big.csv")], /over the 1,000,000-row guard/],
+  ] as const) {
+    it(`${args.join(" ")} -> exit 2, one line, no file`, async () => {
+      const r = await cli(...args);
+      expect(r.code).toBe(2);
+      expect(r.stderr.trim().split("\n")).toHaveLength(1);
+      expect(r.stderr).toMatch(msg);
+      expect(existsSync(join(dir, "big.csv"))).toBe(false);
+    });
+  }
+});

@@ -75,7 +75,7 @@ describe("inverse tree: sanity", () => {
           expect(l.nodes + back).toBeGreaterThanOrEqual(above.nodes + above.withOdd);
         });
         // the largest node at depth j is N 2^j: doubling is the largest predecessor (common practice)
-        r.levels.forEach((l) => expect(l.max).toBe(n << BigInt(l.depth)));
+        for (const l of r.levels) expect(l.max).toBe(n << BigInt(l.depth));
       }
     }
   });

@@ -9,6 +9,7 @@ import { applyPreset, cancelVerify, downloadCertificate, startVerify } from "./v
 import { resizeCharts } from "./views/charts.js";
 import { defaultWorkers } from "./engine.js";
 import { readWorkers } from "./workers.js";
+import { cancelTree, setupTree, startTree } from "./views/tree.js";
 import { $, fieldError } from "./dom.js";
 
 let current: View = "run";
@@ -69,8 +70,14 @@ function verify(): void {
   void startVerify(workers).then((ok) => ok && saveState(current, ["verify"]));
 }
 
+function tree(): void {
+  const workers = readWorkers("tree-message");
+  if (workers === null) return;
+  void startTree(workers).then((ok) => ok && saveState(current, ["tree"]));
+}
+
 /** Each view's job, as its button and run=1 start it. */
-const JOBS: Record<View, () => void> = { run, table: run, inspect: inspectNow, cycles, verify };
+const JOBS: Record<View, () => void> = { run, table: run, inspect: inspectNow, cycles, verify, tree };
 
 function setup(): void {
   ($("run-workers") as HTMLInputElement).value = String(defaultWorkers());
@@ -88,6 +95,7 @@ function setup(): void {
     ["inspect-form", "inspect", inspectNow],
     ["cycles-form", "cycles", cycles],
     ["verify-form", "verify", verify],
+    ["tree-form", "tree", tree],
   ] as const) {
     $(form).addEventListener("submit", (e) => {
       e.preventDefault();
@@ -103,6 +111,13 @@ function setup(): void {
   $("run-cancel").addEventListener("click", cancelRun);
   $("cycles-cancel").addEventListener("click", cancelCycles);
   $("cycles-export").addEventListener("click", exportCycles);
+  $("tree-cancel").addEventListener("click", cancelTree);
+  setupTree((n, map) => {
+    ($("inspect-input") as HTMLInputElement).value = String(n);
+    ($("inspect-map") as HTMLInputElement).value = map.name;
+    show("inspect");
+    inspectNow();
+  });
   $("verify-cancel").addEventListener("click", cancelVerify);
   $("verify-certificate").addEventListener("click", downloadCertificate);
   $("verify-preset").addEventListener("change", () => applyPreset(($("verify-preset") as HTMLSelectElement).value));

@@ -1,9 +1,9 @@
 // The page state in the address bar, so that a link reproduces what its sender saw: the view, every
 // view's own inputs (each under its own key), and run=1 to run the view's job on load. The defaults
 // are the form's own values in index.html: a key missing from the URL leaves its field as it is.
-export type View = "run" | "table" | "inspect" | "cycles" | "verify";
+export type View = "run" | "table" | "inspect" | "cycles" | "verify" | "tree";
 
-const VIEWS: readonly View[] = ["run", "table", "inspect", "cycles", "verify"];
+const VIEWS: readonly View[] = ["run", "table", "inspect", "cycles", "verify", "tree"];
 
 /** The worker count, shared by every view's job (its field is in the run view). */
 const WORKERS = ["workers", "run-workers"] as const;
@@ -30,6 +30,12 @@ const FIELDS: Record<View, readonly (readonly [key: string, id: string])[]> = {
     ["from", "verify-from"],
     ["to", "verify-to"],
     ["vdepth", "verify-depth"],
+  ],
+  tree: [
+    ["tn", "tree-n"],
+    ["tmap", "tree-map"],
+    ["tdepth", "tree-depth"],
+    ["tsteps", "tree-steps"],
   ],
 };
 

@@ -183,7 +183,7 @@ describe.skipIf(!hasChromium)("web app: links, table, stale results, schemes, wi
     const page = await open("?map=3x%2B1&depth=20&mode=full&run=1");
     await page.setViewportSize({ width: 420, height: 900 });
     await summaryOf(page);
-    for (const view of ["run", "table", "inspect", "cycles", "verify"]) {
+    for (const view of ["run", "table", "inspect", "cycles", "verify", "tree"]) {
       await page.click(`#tab-${view}`);
       expect(await page.evaluate(() => document.documentElement.scrollWidth), view).toBeLessThanOrEqual(420);
     }
@@ -228,5 +228,25 @@ describe.skipIf(!hasChromium)("web app: links, table, stale results, schemes, wi
     }
     expect(s.census.differ.listed.map((d) => d.n).filter((n) => n < 1n << 14n)).toEqual(brute);
     await page.close();
+  });
+  it("the inverse tree view: a link builds the tree of 1 (OEIS A060322), the drawing opens a node in the Inspector, bad N is refused beside the field", async () => {
+    const page = await open("?view=tree&tn=1&tmap=3x%2B1&tdepth=20&tsteps=T&run=1");
+    const s = parseExactJson(await summaryOf(page)) as { tree: { levels: { nodes: bigint }[] } };
+    // OEIS A060322 (published entry, terms 0..20)
+    expect(s.tree.levels.map((l) => l.nodes)).toEqual(
+      [1, 1, 1, 1, 2, 3, 4, 5, 6, 8, 12, 18, 24, 31, 39, 50, 68, 91, 120, 159, 211].map(BigInt),
+    );
+    const again = await open(link(page));
+    expect(stable(await summaryOf(again))).toBe(stable(await summaryOf(page)));
+    await page.click('#tree-drawing circle[data-n="5"]');
+    expect(await page.getAttribute("#tab-inspect", "aria-selected")).toBe("true");
+    expect(await page.inputValue("#inspect-input")).toBe("5");
+    await page.click("#tab-tree");
+    await page.fill("#tree-n", "9");
+    await page.click("#tree-go");
+    expect(await text(page, "#tree-n-error")).toMatch(/multiple of q = 3/);
+    expect(await page.getAttribute("#tree-results", "class")).toContain("stale");
+    await page.close();
+    await again.close();
   });
 });

@@ -199,3 +199,26 @@ export function drawTrajectory(values: readonly bigint[]): void {
 export function resizeCharts(): void {
   for (const c of charts.values()) c.resize();
 }
+
+/** Nodes per inverse depth on a log axis, with the heuristic growth g^j drawn through the deepest level. */
+export function drawTreeLevels(nodes: readonly bigint[], growth: number): void {
+  const last = nodes.length - 1;
+  const scale = Number(nodes[last]!) / growth ** last;
+  draw("chart-tree", () => ({
+    ...base(),
+    legend: { top: 0, textStyle: { color: base().textStyle.color } },
+    tooltip: { trigger: "axis", confine: true },
+    xAxis: axis("value", "depth j", { min: 0, max: last, minInterval: 1 }),
+    yAxis: axis("log", "nodes", { min: 1 }),
+    series: [
+      { name: "nodes", type: "scatter", symbolSize: 6, data: nodes.map((n, j) => [j, Number(n)]) },
+      {
+        name: `heuristic ${growth.toFixed(4)}^j`,
+        type: "line",
+        showSymbol: false,
+        lineStyle: { type: "dashed" },
+        data: nodes.map((_, j) => [j, Math.max(1, scale * growth ** j)]),
+      },
+    ],
+  }));
+}

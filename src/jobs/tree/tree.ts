@@ -276,7 +276,12 @@ export const treeJob: JobKind<TreeParams, TreePart, TreeResult> = {
   async merge(_pool, plan, parts) {
     const tally = new TreeTally(plan.params);
     for (const part of parts) tally.addPart(part);
-    return treeResult(plan.params, tally, engineFor(plan.params), parts.reduce((s, x) => s + x.seconds, 0));
+    return treeResult(
+      plan.params,
+      tally,
+      engineFor(plan.params),
+      parts.reduce((s, x) => s + x.seconds, 0),
+    );
   },
 };
 
