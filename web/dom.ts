@@ -23,6 +23,22 @@ export function fieldError(id: string, text: string): boolean {
 }
 
 /**
+ * `parse` applied to field `id`'s text: the value, or null with the error beside the field (a value
+ * clears the field's error).
+ * @example const map = parseField("run-map", parseMap);
+ */
+export function parseField<T>(id: string, parse: (text: string) => T, text = ($(id) as HTMLInputElement).value): T | null {
+  try {
+    const value = parse(text);
+    fieldError(id, "");
+    return value;
+  } catch (e) {
+    fieldError(id, (e as Error).message);
+    return null;
+  }
+}
+
+/**
  * A view's results and the note above them: current after `shown`, dimmed with the note's reason
  * after `markStale` (a new run in progress, a cancel, inputs that are not valid).
  * @example const panel = new ResultsPanel("cycles-results", "cycles-stale"); panel.shown("3x+5, period 24");

@@ -4,7 +4,7 @@ import type { CollatzMap } from "../../src/core/map.js";
 import { cycleWidth, MAX_CYCLE_PERIOD, searchCycles } from "../../src/jobs/cycles/cycles.js";
 import type { CycleSearchResult } from "../../src/jobs/cycles/cycles.js";
 import { RunController } from "../controller.js";
-import { $, download, fieldError, ResultsPanel } from "../dom.js";
+import { $, download, fieldError, parseField, ResultsPanel } from "../dom.js";
 import { cyclesCsv } from "../../src/outputs/summary.js";
 import { pagePoolPending, withPagePool } from "../engine.js";
 
@@ -21,13 +21,7 @@ const controller = new RunController({
 
 /** Reads and checks the form; errors appear beside the fields. */
 function readCyclesForm(mapText: string, periodText: string): { map: CollatzMap; period: number } | null {
-  let map: CollatzMap | null = null;
-  try {
-    map = parseMap(mapText.trim());
-    fieldError("cycles-map", "");
-  } catch (e) {
-    fieldError("cycles-map", (e as Error).message);
-  }
+  const map = parseField("cycles-map", parseMap, mapText);
   const period = Number(periodText);
   let ok = /^\d+$/.test(periodText.trim()) && period >= 1 && period <= MAX_CYCLE_PERIOD;
   if (!ok) fieldError("cycles-period", `a whole number from 1 to ${MAX_CYCLE_PERIOD}`);

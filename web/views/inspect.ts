@@ -1,12 +1,11 @@
 // The inspector: a parity word, a number or a residue to a class card, and a number's trajectory.
 import { parseMap } from "../../src/core/map.js";
 import { inspect, parseInspectInput } from "../../src/jobs/inspect.js";
-import type { Card, InspectInput } from "../../src/jobs/inspect.js";
-import type { CollatzMap } from "../../src/core/map.js";
+import type { Card } from "../../src/jobs/inspect.js";
 import { iterate } from "../../src/core/padic.js";
 import { cardText } from "../../src/outputs/card.js";
 import { drawTrajectory } from "./charts.js";
-import { $, fieldError, ResultsPanel } from "../dom.js";
+import { $, fieldError, parseField, ResultsPanel } from "../dom.js";
 
 const panel = new ResultsPanel("inspect-results", "inspect-stale");
 
@@ -18,24 +17,9 @@ export function runInspect(text: string, mapText: string): boolean {
 }
 
 function showCard(text: string, mapText: string): boolean {
-  let ok = true;
-  let map: CollatzMap | undefined;
-  try {
-    map = parseMap(mapText.trim());
-    fieldError("inspect-map", "");
-  } catch (e) {
-    fieldError("inspect-map", (e as Error).message);
-    ok = false;
-  }
-  let input: InspectInput | undefined;
-  try {
-    input = parseInspectInput(text);
-    fieldError("inspect-input", "");
-  } catch (e) {
-    fieldError("inspect-input", (e as Error).message);
-    ok = false;
-  }
-  if (!ok || !map || !input) return false;
+  const map = parseField("inspect-map", parseMap, mapText);
+  const input = parseField("inspect-input", parseInspectInput, text);
+  if (!map || !input) return false;
   let card: Card;
   try {
     card = inspect(map, input);

@@ -20,7 +20,7 @@ import { RunController } from "../controller.js";
 import { drawCensus, drawDensity, drawHeat, drawStopped } from "./charts.js";
 import { showTable } from "./table.js";
 import { readWorkers } from "../workers.js";
-import { $, fieldError, ResultsPanel } from "../dom.js";
+import { $, fieldError, parseField, ResultsPanel } from "../dom.js";
 
 /** Memory a run may take for its class table (the sorter's bytes per residue; kept in one pass). */
 const TABLE_BUDGET = 1.5 * 2 ** 30;
@@ -44,13 +44,7 @@ export function depthLimit(map: CollatzMap, mode: Mode): number {
 
 /** Reads and checks the form; errors appear beside the fields and nothing runs. */
 export function readRunForm(): RunRequest | null {
-  let map: CollatzMap | null = null;
-  try {
-    map = parseMap(($("run-map") as HTMLInputElement).value.trim());
-    fieldError("run-map", "");
-  } catch (e) {
-    fieldError("run-map", (e as Error).message);
-  }
+  const map = parseField("run-map", parseMap);
   const mode: Mode = ($("run-mode") as HTMLSelectElement).value === "full" ? "full" : "survivors";
   const text = ($("run-depth") as HTMLInputElement).value.trim();
   const depth = Number(text);

@@ -10,7 +10,7 @@ import { group } from "../../src/outputs/format.js";
 import { toExactJson } from "../../src/outputs/json.js";
 import { growth, treeJson } from "../../src/outputs/summary.js";
 import { RunController } from "../controller.js";
-import { $, fieldError, ResultsPanel } from "../dom.js";
+import { $, fieldError, parseField, ResultsPanel } from "../dom.js";
 import { pagePoolPending, withPagePool } from "../engine.js";
 import { drawTreeLevels } from "./charts.js";
 
@@ -36,20 +36,8 @@ let whole = { ...view };
 
 /** Reads and checks the form; errors appear beside the fields and nothing runs. */
 function readTreeForm(): TreeParams | null {
-  let map: CollatzMap | null = null;
-  try {
-    map = parseMap(($("tree-map") as HTMLInputElement).value);
-    fieldError("tree-map", "");
-  } catch (e) {
-    fieldError("tree-map", (e as Error).message);
-  }
-  let n: bigint | null = null;
-  try {
-    n = parseBound("N", ($("tree-n") as HTMLInputElement).value);
-    fieldError("tree-n", "");
-  } catch (e) {
-    fieldError("tree-n", (e as Error).message);
-  }
+  const map = parseField("tree-map", parseMap);
+  const n = parseField("tree-n", (t) => parseBound("N", t));
   const text = ($("tree-depth") as HTMLInputElement).value.trim();
   const depth = Number(text);
   const depthOk = /^\d+$/.test(text) && depth <= MAX_TREE_DEPTH;

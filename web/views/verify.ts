@@ -1,7 +1,6 @@
 // The Verify view: a range of n checked in the page's workers, with its counts, maxima, record
 // lists and a certificate to download (the same library and certificate format as the CLI).
 import { parseMap } from "../../src/core/map.js";
-import type { CollatzMap } from "../../src/core/map.js";
 import { certificate, tableHashes } from "../../src/jobs/verify/certificate.js";
 import type { TableHashes } from "../../src/jobs/verify/certificate.js";
 import { MAX_VERIFY_SIEVE_DEPTH, parseBound, planVerify, runVerify, verifyTables } from "../../src/jobs/verify/verify.js";
@@ -11,7 +10,7 @@ import { toExactJson } from "../../src/outputs/json.js";
 import { verifyJson } from "../../src/outputs/summary.js";
 import pkg from "../../package.json";
 import { RunController } from "../controller.js";
-import { $, download, fieldError, ResultsPanel } from "../dom.js";
+import { $, download, fieldError, parseField, ResultsPanel } from "../dom.js";
 import { kernelBuildId, pagePoolPending, sha256, withPagePool } from "../engine.js";
 
 const panel = new ResultsPanel("verify-result", "verify-stale");
@@ -27,25 +26,9 @@ let lastCertificate: string | null = null;
 
 /** Reads and checks the form; errors appear beside the fields and nothing runs. */
 export function readVerifyForm(): VerifyRequest | null {
-  let map: CollatzMap | null = null;
-  try {
-    map = parseMap(($("verify-map") as HTMLInputElement).value.trim());
-    fieldError("verify-map", "");
-  } catch (e) {
-    fieldError("verify-map", (e as Error).message);
-  }
-  const bound = (id: string, name: string): bigint | null => {
-    try {
-      const v = parseBound(name, ($(id) as HTMLInputElement).value);
-      fieldError(id, "");
-      return v;
-    } catch (e) {
-      fieldError(id, (e as Error).message);
-      return null;
-    }
-  };
-  const from = bound("verify-from", "from");
-  const to = bound("verify-to", "to");
+  const map = parseField("verify-map", parseMap);
+  const from = parseField("verify-from", (t) => parseBound("from", t));
+  const to = parseField("verify-to", (t) => parseBound("to", t));
   const text = ($("verify-depth") as HTMLInputElement).value.trim();
   const depth = Number(text);
   const depthOk = /^\d+$/.test(text) && depth >= 1 && depth <= MAX_VERIFY_SIEVE_DEPTH;
