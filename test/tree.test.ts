@@ -74,7 +74,8 @@ describe("inverse tree: sanity", () => {
           expect(l.nodes, `${map} ${n} ${steps} depth ${l.depth}`).toBeLessThanOrEqual(above.nodes + above.withOdd);
           expect(l.nodes + back).toBeGreaterThanOrEqual(above.nodes + above.withOdd);
         });
-        // the largest node at depth j is N 2^j: doubling is the largest predecessor (common practice)
+        // the largest node at depth j is N 2^j when |r| <= N (as here): an odd predecessor (2y - r)/q is then at most
+        // (2y + N)/3 <= N 2^j, so doubling gives the largest (an induction on j)
         for (const l of r.levels) expect(l.max).toBe(n << BigInt(l.depth));
       }
     }
