@@ -16,7 +16,7 @@ import { runTree } from "../src/jobs/tree/tree.js";
 import { searchCycles } from "../src/jobs/cycles/cycles.js";
 import { inspect } from "../src/jobs/inspect.js";
 import { runVerify } from "../src/jobs/verify/verify.js";
-import type { VerifyRequest } from "../src/jobs/verify/verify.js";
+import type { VerifyRequest } from "../src/jobs/verify/plan.js";
 
 const map = parseMap("3x+1");
 const cores = availableParallelism();

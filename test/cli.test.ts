@@ -1,7 +1,7 @@
 // The command line as a user runs it: reports, class tables, manifests, errors and exit codes.
 import { execFile, spawn } from "node:child_process";
 import { createHash } from "node:crypto";
-import { copyFileSync, existsSync, mkdirSync, mkdtempSync, readdirSync, readFileSync, rmSync } from "node:fs";
+import { copyFileSync, existsSync, mkdirSync, mkdtempSync, readdirSync, readFileSync, rmSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
 import { promisify } from "node:util";
@@ -357,26 +357,62 @@ describe("cli: verify", () => {
     expect(readdirSync(sub).filter((f) => f.includes("partial"))).toEqual([]);
   });
 
-  it("--out writes a certificate that --check accepts, and a changed count or record is refused", async () => {
+  it("--out writes a certificate that --check accepts, saying what it checked; an edited count is refused in one line, exit 1", async () => {
     const cert = join(dir, "v.cert.json");
     const r = await cli("verify", "--from", "1", "--to", "2^18", "--sieve-depth", "12", "--out", cert);
     expect(r.code).toBe(0);
     expect(r.stdout).toMatch(/glide records/);
     expect(r.stdout).toMatch(/wrote the certificate to/);
-    const ok = await cli("verify", "--check", cert, "--sample", "200");
+    const ok = await cli("verify", "--check", cert, "--sample", "3");
     expect(ok.code).toBe(0);
     expect(ok.stdout).toMatch(/^the certificate holds/);
+    expect(ok.stdout).toMatch(/digest over the whole document/);
+    expect(ok.stdout).toMatch(/3 of \d+ blocks run again at random/);
+    const full = await cli("verify", "--check", cert, "--full", "--json");
+    expect(parseExactJson(full.stdout)).toMatchObject({ holds: true, failure: null });
     const text = readFileSync(cert, "utf8");
-    const j = parseExactJson(text) as { counts: { checked: bigint }; records: { glide: { n: bigint }[] } };
-    expect(j.records.glide.map((g) => g.n).slice(0, 5)).toEqual([2n, 3n, 7n, 27n, 703n]); // OEIS A060412
+    const j = parseExactJson(text) as { version: bigint; counts: { checked: bigint }; glideRecords: { n: bigint }[] };
+    expect(j.version).toBe(2n);
+    expect(j.glideRecords.map((g) => g.n).slice(0, 5)).toEqual([2n, 3n, 7n, 27n, 703n]); // OEIS A060412
     const bad = join(dir, "v.bad.json");
-    const { writeFileSync } = await import("node:fs");
     writeFileSync(bad, text.replace(`"checked": ${j.counts.checked}`, `"checked": ${j.counts.checked + 1n}`));
     const refused = await cli("verify", "--check", bad);
     expect(refused.code).toBe(1);
-    expect(refused.stdout).toMatch(/does NOT hold/);
-    writeFileSync(bad, text.replace(/"n": 703,\n(\s+)"standardSteps": 132/, '"n": 703,\n$1"standardSteps": 133'));
-    expect((await cli("verify", "--check", bad)).stdout).toMatch(/glide record 703/);
+    expect(refused.stdout.trim().split("\n")).toHaveLength(1);
+    expect(refused.stdout).toMatch(/does NOT hold: digest: [0-9a-f]{64} in the certificate; its content gives [0-9a-f]{64}/);
+    writeFileSync(bad, text.replace(`"checked": ${j.counts.checked}`, `"checked": "${j.counts.checked}"`));
+    const typed = await cli("verify", "--check", bad);
+    expect(typed.code).toBe(2);
+    expect(typed.stderr).toMatch(/counts.checked must be a whole number written as digits, got the string/);
+    writeFileSync(bad, '{"kind": "glidepath class table"}');
+    expect((await cli("verify", "--check", bad)).stderr).toMatch(/not a glidepath verification certificate/);
+  });
+
+  it("a checkpoint of another unfinished run is not overwritten without --force; --out and --checkpoint may not name one file", async () => {
+    const sub = mkdtempSync(join(dir, "ck-"));
+    const ck = join(sub, "run.ck.json");
+    const args = ["verify", "--from", "2^40", "--to", "2^40+2^31", "--sieve-depth", "20", "--json"];
+    const child = spawn("node", [BIN, ...args, "--checkpoint", ck], { stdio: ["ignore", "ignore", "pipe"] });
+    let stderr = "";
+    child.stderr.on("data", (d: Buffer) => {
+      stderr += d.toString();
+    });
+    const exited = new Promise<number | null>((res) => child.on("exit", (code) => res(code)));
+    while (!existsSync(ck)) await new Promise((r) => setTimeout(r, 20));
+    child.kill("SIGINT");
+    expect(await exited).toBe(130);
+    expect(stderr).toMatch(new RegExp(`the checkpoint ${ck} holds \\d+ blocks? of \\d+; continue with: glidepath verify --resume ${ck}`));
+    const other = await cli("verify", "--from", "1", "--to", "2^20", "--checkpoint", ck);
+    expect(other.code).toBe(2);
+    expect(other.stderr).toMatch(/holds an unfinished checkpoint of another run .* --force/);
+    const same = await cli(...args, "--checkpoint", ck);
+    expect(same.stderr).toMatch(/holds this run, unfinished .* --resume/);
+    const resumed = await cli("verify", "--resume", ck, "--json");
+    expect(resumed.code).toBe(0);
+    expect(resumed.stderr).toMatch(/resumed .*: \d+ blocks? of \d+ done, \d+ blocks? to go/);
+    expect((await cli("verify", "--from", "1", "--to", "2^20", "--checkpoint", ck)).code).toBe(0); // a finished one may go
+    expect((await cli("verify", "--from", "1", "--to", "10", "--checkpoint", ck, "--out", ck)).stderr).toMatch(/name the same file/);
+    expect((await cli("verify", "--from", "1", "--to", "10", "--checkpoint", sub)).stderr).toMatch(/it is a directory/);
   });
 
   const bad: [string[], number, RegExp][] = [
@@ -389,11 +425,15 @@ describe("cli: verify", () => {
     [["verify", "--from", "1", "--to", "2^70"], 2, /numbers at or above 2\^64 are verified in BigInt/],
     [["verify", "--check", "/nonexistent.json"], 2, /cannot read/],
     [["verify", "--resume", "/nonexistent.json"], 2, /cannot read/],
+    [["verify", "--resume", "/tmp"], 2, /cannot read \/tmp: it is a folder/],
+    [["verify", "--from", "1", "--to", "10", "--out", ""], 2, /--out needs a file name/],
+    [["verify", "--from", "1", "--to", "10", "--checkpoint", ""], 2, /--checkpoint needs a file name/],
   ];
   for (const [args, code, msg] of bad) {
     it(`${args.join(" ")} -> exit ${code}, one line, no certificate`, async () => {
       const out = join(dir, "never.json");
-      const r = await cli(...args, ...(args.includes("--check") || args.includes("--resume") ? [] : ["--out", out]));
+      const own = ["--check", "--resume", "--out", "--checkpoint"].some((a) => args.includes(a));
+      const r = await cli(...args, ...(own ? [] : ["--out", out]));
       expect(r.code).toBe(code);
       expect(r.stderr.trim().split("\n")).toHaveLength(1);
       expect(r.stderr).toMatch(msg);
@@ -419,7 +459,6 @@ describe("cli: verify with table files", () => {
     expect((await cli(...args.map((a) => (a === "16" ? "18" : a)), "--sieve-table", sieve)).stderr).toMatch(
       /manifest says depth 16, this run needs 18/,
     );
-    const { writeFileSync } = await import("node:fs");
     const bytes = readFileSync(sieve);
     bytes[5] = bytes[5]! ^ 1;
     const changed = join(sub, "changed.u32");

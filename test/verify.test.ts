@@ -2,11 +2,13 @@
 import { afterAll, describe, expect, it } from "vitest";
 import { parseMap } from "../src/core/map.js";
 import type { CollatzMap } from "../src/core/map.js";
-import { runVerify, planVerify } from "../src/jobs/verify/verify.js";
-import type { StoredBlock, VerifyResult } from "../src/jobs/verify/verify.js";
+import { runVerify } from "../src/jobs/verify/verify.js";
+import { planVerify } from "../src/jobs/verify/plan.js";
+import type { BlockEntry } from "../src/jobs/verify/block.js";
+import type { VerifyResult } from "../src/jobs/verify/merge.js";
 import { LimitError, UsageError } from "../src/core/errors.js";
 import { toExactJson } from "../src/outputs/json.js";
-import { verifyJson } from "../src/outputs/summary.js";
+import { verifyJson } from "../src/jobs/verify/certificate.js";
 import { nodePool } from "../src/node/kernel.js";
 
 const pool = await nodePool(2);
@@ -92,7 +94,7 @@ function expectAgrees(r: VerifyResult, b: ReturnType<typeof brute>) {
   expect(r.unresolvedList).toEqual(b.unresolved);
   expect(r.cycleEntrants.map((e) => [e.n, e.cycleMin])).toEqual(b.entrants);
   expect(r.maxGlide?.standardSteps ?? -1).toBe(b.bestGlide);
-  expect(r.maxPath?.value ?? -1n).toBe(b.bestPath);
+  expect(r.maxPath?.peakT ?? -1n).toBe(b.bestPath);
   expect(r.maxGlide?.n ?? -1n).toBe(b.maxGlideN);
   expect(r.maxPath?.n ?? -1n).toBe(b.maxPathN);
   const c = r.counts;
@@ -102,7 +104,7 @@ function expectAgrees(r: VerifyResult, b: ReturnType<typeof brute>) {
   expect(c.unresolved).toBe(BigInt(b.unresolved.length));
 }
 
-const stable = (r: VerifyResult) => toExactJson({ ...verifyJson(r), seconds: 0, blocks: 0 });
+const stable = (r: VerifyResult) => toExactJson({ ...verifyJson(r), seconds: 0, blockCount: 0 });
 
 describe("verify: published records", () => {
   it("3x+1 from 1 below 2^28: glide records are OEIS A060412 (both odd and halving steps counted)", async () => {
@@ -129,9 +131,9 @@ describe("verify: published records", () => {
         v = v % 2n === 0n ? v / 2n : (3n * v + 1n) / 2n;
         if (v > max) max = v;
       } while (v >= p.n);
-      expect(max).toBe(p.value);
+      expect(max).toBe(p.peakT);
     }
-    expect(r.pathRecords.find((p) => p.n === 27n)!.value).toBe(9232n / 2n); // 27 rises to 9232 (common practice)
+    expect(r.pathRecords.find((p) => p.n === 27n)!.peakT).toBe(9232n / 2n); // 27 rises to 9232 (common practice)
   });
 
   it("agrees with a plain BigInt brute force on every n of [1, 2^16), for sieve depths 6, 12 and 16", async () => {
@@ -242,7 +244,7 @@ describe("verify: splits, resumes and the BigInt handoff give the same result", 
   it("a run resumed from some of its blocks equals the whole run", async () => {
     const req = { map, from, to, sieveDepth: 14, blocks: 16 };
     const whole = await runVerify(pool, req);
-    const done = new Map<number, StoredBlock>();
+    const done = new Map<number, BlockEntry>();
     await runVerify(pool, req, { onBlock: (res) => void (res.index % 3 === 0 && done.set(res.index, res)) });
     let ran = 0;
     const resumed = await runVerify(pool, req, { done, onBlock: () => void ran++ });
@@ -272,7 +274,7 @@ describe("verify: splits, resumes and the BigInt handoff give the same result", 
       });
     };
     expect(sweep([...a.glideRecords, ...b.glideRecords], (g) => BigInt(g.standardSteps))).toEqual(u.glideRecords);
-    expect(sweep([...a.pathRecords, ...b.pathRecords], (p) => p.value)).toEqual(u.pathRecords);
+    expect(sweep([...a.pathRecords, ...b.pathRecords], (p) => p.peakT)).toEqual(u.pathRecords);
   });
 });
 

@@ -25,7 +25,14 @@ import { verifyBatch } from "./verify.js";
 export interface MergeOutput<R> {
   readonly formats: readonly FileFormat[];
   readonly what: string;
-  write(pool: KernelPool, result: R, out: OutputChoice<FileFormat>, stamp: ToolStamp, tables: readonly string[]): Promise<void>;
+  write(
+    pool: KernelPool,
+    result: R,
+    out: OutputChoice<FileFormat>,
+    stamp: ToolStamp,
+    tables: readonly string[],
+    span: { readonly started: string; readonly finished: string },
+  ): Promise<void>;
 }
 
 /** A job as the cluster commands see it: the plan layer's job, its options, its JSON and its --out. */
@@ -206,6 +213,10 @@ async function merge(dir: string, o: RawOptions): Promise<void> {
         out,
         stamp,
         parts.flatMap((p) => (p.table ? [p.table] : [])),
+        {
+          started: parts.map((p) => p.started).reduce((a, b) => (b < a ? b : a)),
+          finished: parts.map((p) => p.finished).reduce((a, b) => (b > a ? b : a)),
+        },
       );
     print(`${toExactJson(spec.json(result))}\n`);
     if (out) process.stderr.write(`wrote ${spec.out!.what} to ${out.path}\n`);

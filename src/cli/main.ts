@@ -17,6 +17,7 @@ import { periodicCommand } from "./periodic.js";
 import { sieveCommand } from "./sieve.js";
 import { stepsCommand } from "./steps.js";
 import { verifyCommand } from "./verify.js";
+import { interruptLine } from "./print.js";
 
 /** Each entry adds one command (its options, help text and action) to the program. */
 const COMMANDS: readonly ((program: Command) => Command)[] = [
@@ -75,7 +76,7 @@ function installHandlers(): void {
   for (const sig of ["SIGINT", "SIGTERM"] as const) {
     process.on(sig, () => {
       removePendingFiles();
-      process.stderr.write(`\nglidepath: ${sig === "SIGINT" ? "interrupted" : "terminated"}; no output file was written\n`);
+      process.stderr.write(`\nglidepath: ${sig === "SIGINT" ? "interrupted" : "terminated"}; ${interruptLine()}\n`);
       process.exit(sig === "SIGINT" ? 130 : 143);
     });
   }

@@ -75,6 +75,7 @@ export function outputOption<F extends FileFormat>(o: RawOptions, allowed: reado
     return null;
   }
   const path = o.out;
+  if (path.trim() === "") throw new UsageError("--out needs a file name");
   const named = ENDINGS.find(([end]) => path.toLowerCase().endsWith(end))?.[1];
   let format: F;
   if (o.format !== undefined) {
@@ -94,7 +95,7 @@ export function outputOption<F extends FileFormat>(o: RawOptions, allowed: reado
 }
 
 /** The target is not a directory and its folder exists (the write itself is tried when the file is opened). */
-function checkWritableTarget(path: string): void {
+export function checkWritableTarget(path: string): void {
   const stat = statSync(path, { throwIfNoEntry: false });
   if (stat?.isDirectory()) throw new UsageError(`cannot write ${path}: it is a directory`);
   const folder = statSync(dirname(path), { throwIfNoEntry: false });

@@ -29,3 +29,15 @@ export function yielder(): () => Promise<void> {
     last = performance.now();
   };
 }
+
+let interruptNote: (() => string) | null = null;
+
+/** What Ctrl-C should say instead of "no output file was written" (a verification run's checkpoint); null to reset. */
+export function setInterruptNote(note: (() => string) | null): void {
+  interruptNote = note;
+}
+
+/** The line Ctrl-C prints after "interrupted; ". */
+export function interruptLine(): string {
+  return interruptNote?.() ?? "no output file was written";
+}

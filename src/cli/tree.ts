@@ -3,7 +3,7 @@ import type { Command } from "commander";
 import { CSV_ROW_GUARD } from "../outputs/tables.js";
 import { MAX_TREE_DEPTH, runTree, treeEdges } from "../jobs/tree/tree.js";
 import type { StepConvention, TreeEdge, TreeResult } from "../jobs/tree/tree.js";
-import { parseBound } from "../jobs/verify/verify.js";
+import { parseWhole } from "../core/parse.js";
 import { treeEdgesArrow } from "../outputs/arrow.js";
 import { group, plural } from "../outputs/format.js";
 import { toExactJson } from "../outputs/json.js";
@@ -42,13 +42,13 @@ function stepsOption(v: string | undefined): StepConvention {
 
 async function tree(nText: string, o: TreeOptions): Promise<void> {
   const map = mapOption(o.map);
-  const n = parseBound("N", nText);
+  const n = parseWhole("N", nText);
   const params = {
     map,
     n,
     depth: intOption("depth", o.depth, 0, MAX_TREE_DEPTH),
     steps: stepsOption(o.steps),
-    below: o.below === undefined ? null : parseBound("--below", o.below),
+    below: o.below === undefined ? null : parseWhole("--below", o.below),
   };
   const workers = workersOption(o.workers);
   const out = outputOption(o, ["csv", "arrow"], "csv");

@@ -1,5 +1,6 @@
 // What crosses the worker boundary (comlink): shard requests and results of every kernel job, as
 // plain data and typed arrays, and the one object each worker exposes.
+import type { BlockEntry } from "../jobs/verify/block.js";
 import type { ToolStamp } from "../outputs/manifest.js";
 
 export type Mode = "survivors" | "full";
@@ -177,8 +178,8 @@ export interface KernelWorkerApi {
   sortBucket(keys: Uint32Array, bits: number, high: number, wide: boolean): Promise<Uint32Array>;
   /** Keeps a verification run's tables in the worker's kernel (once per run). */
   verifyPrepare(tables: VerifyTables): Promise<void>;
-  /** Runs one block on the tables prepared for its run. */
-  verifyBlock(block: VerifyBlock): Promise<VerifyBlockResult>;
+  /** Runs one block (on the tables prepared for its run, or in BigInt) and finishes it there. */
+  verifyBlock(block: VerifyBlock): Promise<BlockEntry>;
 }
 
 /** The tables of one verification run, sent to each worker once (verifyPrepare). */
@@ -200,14 +201,20 @@ export interface VerifyTables {
   readonly sievedSlack: bigint;
   readonly survivorSlack: bigint;
   readonly slacks: BigUint64Array;
+  /** Classes mod 2^j stopping at j, j = 0..depth (the exact counter): the sieved counts of aligned blocks. */
+  readonly stoppedClasses: BigUint64Array;
 }
 
 /**
  * One block of a verification run: whole periods of the sieve (aligned), any first..last (range), or
- * the delays (steps to reach 1) of first..last (delay).
+ * the delays (steps to reach 1) of first..last (delay); on the BigInt engine, walked n by n.
  */
 export interface VerifyBlock {
   readonly key: string;
+  readonly engine: "kernel" | "bigint";
+  readonly q: number;
+  readonly r: number;
+  readonly sieveDepth: number;
   readonly index: number;
   readonly kind: "aligned" | "range" | "delay";
   /** The numbers first..last (inclusive). */
@@ -216,10 +223,11 @@ export interface VerifyBlock {
   /** aligned: n = a + 2^K h for h0 <= h < h0 + periods. */
   readonly h0: bigint;
   readonly periods: bigint;
-  /** aligned: the sieve's exceptions in the block, ascending. */
+  /** aligned: the sieve's exceptions in the block, ascending, and the depth of each one's class. */
   readonly exceptions: BigUint64Array;
+  readonly exceptionDepths: Uint8Array;
   readonly maxSteps: number;
-  /** Values at or above 2^limitBits go to the host (128; lower only in tests). */
+  /** Values at or above 2^limitBits go to BigInt (128; lower only in tests). */
   readonly limitBits: number;
 }
 

@@ -7,7 +7,7 @@ import { enumerateShard } from "../jobs/sieve/kernel.js";
 import { censusShard } from "../jobs/census/kernel.js";
 import { cycleShard } from "../jobs/cycles/kernel.js";
 import { inverseShard } from "../jobs/tree/kernel.js";
-import { verifyBlock, verifyPrepare } from "../jobs/verify/kernel.js";
+import { verifyBlockEntry, verifyPrepare } from "../jobs/verify/kernel.js";
 import type { VerifyTables } from "./messages.js";
 import { makeMap } from "../core/map.js";
 import { classFromResidue } from "../core/padic.js";
@@ -85,13 +85,7 @@ export function createWorkerApi(): KernelWorkerApi {
     },
     async verifyBlock(block) {
       if (!kernel) throw new Error("worker used before init");
-      if (!verifyTables || verifyTables.key !== block.key) throw new Error("internal error: a verification block before its run's tables");
-      const res = verifyBlock(kernel, verifyTables, block);
-      const arrays = [res.counts, res.glideRecords, res.pathRecords, res.handoffs, res.cycleMembers, res.unresolved];
-      return transfer(
-        res,
-        arrays.map((x) => asArrayBuffer(x.buffer)),
-      );
+      return verifyBlockEntry(kernel, verifyTables, block);
     },
     async runCycles(req) {
       if (!kernel) throw new Error("worker used before init");

@@ -11,7 +11,7 @@ import { LimitError, UsageError } from "../core/errors.js";
 import { PLAN_KIND, planHash } from "../engine/plan.js";
 import type { ByteSink, JobKind, PartBase, Plan, ShardEstimate } from "../engine/plan.js";
 import type { KernelPool } from "../engine/pool.js";
-import { packData, toExactJson, unpackData } from "../outputs/json.js";
+import { packData, parseExactJson, toExactJson, unpackData } from "../outputs/json.js";
 import type { DataFile } from "../outputs/manifest.js";
 import { finishBucket } from "../outputs/tables.js";
 import { AtomicFile, writeFileAtomic } from "./files.js";
@@ -228,7 +228,7 @@ export async function runShardToDisk<P, Part extends PartBase>(
       files.push(await f.finish());
       await f.place();
     }
-    const manifest = {
+    const body = {
       kind: PART_KIND,
       shard,
       plan: run.plan.hash,
@@ -241,6 +241,7 @@ export async function runShardToDisk<P, Part extends PartBase>(
       files: files.map((f) => ({ file: f.file, bytes: f.bytes, sha256: f.sha256 })),
       data,
     };
+    const manifest = { ...body, digest: partDigest(body) };
     await writeFileAtomic(partPath(run.dir, shard, "json"), `${toExactJson(manifest)}\n`);
     await unlink(failed).catch(() => {});
     return { seconds: part.seconds, files };
@@ -251,6 +252,11 @@ export async function runShardToDisk<P, Part extends PartBase>(
     );
     throw e;
   }
+}
+
+/** The digest a part carries over everything else in it (its results, plan hash, shard, files, times). */
+function partDigest(body: Record<string, unknown>): string {
+  return createHash("sha256").update(toExactJson(body)).digest("hex");
 }
 
 export interface RunStatus {
@@ -317,6 +323,9 @@ export interface CheckedPart<Part> {
   readonly shard: number;
   readonly part: Part;
   readonly table: string | null;
+  /** When the shard ran (ISO times from its manifest). */
+  readonly started: string;
+  readonly finished: string;
 }
 
 /**
@@ -343,10 +352,13 @@ export async function checkParts<P, Part extends PartBase>(run: RunDir<P>, build
       continue;
     }
     let m: Record<string, unknown>;
+    let exact: Record<string, unknown>;
     try {
-      m = JSON.parse(await readFile(path, "utf8")) as Record<string, unknown>;
+      const text = await readFile(path, "utf8");
+      m = JSON.parse(text) as Record<string, unknown>;
+      exact = parseExactJson(text) as Record<string, unknown>;
     } catch {
-      problems.push(`part ${i}: ${PARTS}/${i}.json is not JSON`);
+      problems.push(`part ${i}: ${PARTS}/${i}.json is not JSON (truncated or damaged)`);
       continue;
     }
     if (m.kind !== PART_KIND) problems.push(`part ${i}: ${PARTS}/${i}.json is not a glidepath part`);
@@ -354,6 +366,8 @@ export async function checkParts<P, Part extends PartBase>(run: RunDir<P>, build
     else if (m.plan !== run.plan.hash)
       problems.push(`part ${i}: written for plan ${String(m.plan).slice(0, 16)}, this run's plan is ${run.plan.hash.slice(0, 16)}`);
     else if (m.kernelBuild !== run.plan.kernelBuild) problems.push(`part ${i}: written by kernel build ${String(m.kernelBuild)}`);
+    else if (typeof m.digest !== "string" || partDigest(withoutDigest(exact)) !== m.digest)
+      problems.push(`part ${i}: ${PARTS}/${i}.json was changed after it was written (its digest does not match its content)`);
     else {
       const files = m.files as { file: string; bytes: number; sha256: string }[];
       let bad = false;
@@ -381,7 +395,13 @@ export async function checkParts<P, Part extends PartBase>(run: RunDir<P>, build
         continue;
       }
       const table = files.find((f) => f.file === `${i}.table`);
-      parts.push({ shard: i, part, table: table ? join(run.dir, PARTS, table.file) : null });
+      parts.push({
+        shard: i,
+        part,
+        table: table ? join(run.dir, PARTS, table.file) : null,
+        started: String(m.started),
+        finished: String(m.finished),
+      });
     }
   }
   if (problems.length > 0)
@@ -389,6 +409,11 @@ export async function checkParts<P, Part extends PartBase>(run: RunDir<P>, build
       `merge refused: ${problems.length} of ${n} parts are missing or bad (nothing was written): ${problems.join("; ")}`,
     );
   return parts;
+}
+
+function withoutDigest(m: Record<string, unknown>): Record<string, unknown> {
+  const { digest: _digest, ...rest } = m;
+  return rest;
 }
 
 /** Bytes each reader buffers; the window of residues merged at once is 2^WINDOW_BITS wide. */

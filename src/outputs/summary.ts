@@ -8,7 +8,6 @@ import type { Card } from "../jobs/inspect.js";
 import type { Level } from "../core/exact.js";
 import type { CollatzMap } from "../core/map.js";
 import type { PeriodicPoint } from "../core/padic.js";
-import type { VerifyResult } from "../jobs/verify/verify.js";
 import type { TreeResult } from "../jobs/tree/tree.js";
 import { heuristicGrowth } from "../jobs/tree/tree.js";
 
@@ -140,44 +139,4 @@ export function classJson(map: CollatzMap, card: Card) {
 /** The fields of `glidepath periodic --json`. */
 export function periodicJson(map: CollatzMap, p: PeriodicPoint, digits: string) {
   return { map: map.name, pre: p.pre, word: p.word, numerator: p.num, denominator: p.den, digits, integer: p.integer, cycle: p.cycle };
-}
-
-/** A verification's counts, as the JSON and the certificate give them. */
-export function verifyCountsJson(r: VerifyResult) {
-  const c = r.counts;
-  return {
-    numbers: c.numbers,
-    checked: c.checked,
-    sieved: c.sieved,
-    sievedByDepth: c.sievedByDepth.flatMap((count, depth) => (count > 0n ? [{ depth, count }] : [])),
-    exceptions: c.exceptions,
-    cycleMembers: c.cycleMembers,
-    cycleEntrants: c.cycleEntrants,
-    unresolved: c.unresolved,
-  };
-}
-
-/** The fields of `glidepath verify --json` (the certificate holds the same and the run's provenance). */
-export function verifyJson(r: VerifyResult) {
-  return {
-    map: r.map.name,
-    from: r.from,
-    to: r.to,
-    sieveDepth: r.sieveDepth,
-    stepDepth: r.stepDepth,
-    maxSteps: r.maxSteps,
-    engine: r.engine,
-    counts: verifyCountsJson(r),
-    maxGlide: r.maxGlide,
-    maxPath: r.maxPath,
-    glideRecords: r.glideRecords,
-    pathRecords: r.pathRecords,
-    cycleMembers: r.cycleMembers,
-    cycleEntrants: r.cycleEntrants,
-    unresolved: r.unresolvedList,
-    delay: r.delay,
-    handoffs: r.handoffs,
-    blocks: r.blocks,
-    seconds: Number(r.seconds.toFixed(3)),
-  };
 }

@@ -5,7 +5,7 @@ import { parseMap } from "../../src/core/map.js";
 import type { CollatzMap } from "../../src/core/map.js";
 import { checkTree, heuristicGrowth, MAX_TREE_DEPTH, runTree, treeEdges } from "../../src/jobs/tree/tree.js";
 import type { StepConvention, TreeParams, TreeResult } from "../../src/jobs/tree/tree.js";
-import { parseBound } from "../../src/jobs/verify/verify.js";
+import { parseWhole } from "../../src/core/parse.js";
 import { group } from "../../src/outputs/format.js";
 import { toExactJson } from "../../src/outputs/json.js";
 import { growth, treeJson } from "../../src/outputs/summary.js";
@@ -37,7 +37,7 @@ let whole = { ...view };
 /** Reads and checks the form; errors appear beside the fields and nothing runs. */
 function readTreeForm(): TreeParams | null {
   const map = parseField("tree-map", parseMap);
-  const n = parseField("tree-n", (t) => parseBound("N", t));
+  const n = parseField("tree-n", (t) => parseWhole("N", t));
   const text = ($("tree-depth") as HTMLInputElement).value.trim();
   const depth = Number(text);
   const depthOk = /^\d+$/.test(text) && depth <= MAX_TREE_DEPTH;

@@ -1,13 +1,17 @@
 // The Verify view: a range of n checked in the page's workers, with its counts, maxima, record
 // lists and a certificate to download (the same library and certificate format as the CLI).
 import { parseMap } from "../../src/core/map.js";
-import { certificate, tableHashes } from "../../src/jobs/verify/certificate.js";
+import { parseWhole } from "../../src/core/parse.js";
+import { certificate, tableHashes, verifyJson } from "../../src/jobs/verify/certificate.js";
 import type { TableHashes } from "../../src/jobs/verify/certificate.js";
-import { MAX_VERIFY_SIEVE_DEPTH, parseBound, planVerify, runVerify, verifyTables } from "../../src/jobs/verify/verify.js";
-import type { VerifyRequest, VerifyResult, VerifyTableData } from "../../src/jobs/verify/verify.js";
+import type { VerifyResult } from "../../src/jobs/verify/merge.js";
+import { MAX_VERIFY_SIEVE_DEPTH, planVerify } from "../../src/jobs/verify/plan.js";
+import type { VerifyRequest } from "../../src/jobs/verify/plan.js";
+import { verifyTables } from "../../src/jobs/verify/tables.js";
+import type { VerifyTableData } from "../../src/jobs/verify/tables.js";
+import { runVerify } from "../../src/jobs/verify/verify.js";
 import { group } from "../../src/outputs/format.js";
 import { toExactJson } from "../../src/outputs/json.js";
-import { verifyJson } from "../../src/outputs/summary.js";
 import pkg from "../../package.json";
 import { RunController } from "../controller.js";
 import { $, download, fieldError, parseField, ResultsPanel } from "../dom.js";
@@ -27,8 +31,8 @@ let lastCertificate: string | null = null;
 /** Reads and checks the form; errors appear beside the fields and nothing runs. */
 export function readVerifyForm(): VerifyRequest | null {
   const map = parseField("verify-map", parseMap);
-  const from = parseField("verify-from", (t) => parseBound("from", t));
-  const to = parseField("verify-to", (t) => parseBound("to", t));
+  const from = parseField("verify-from", (t) => parseWhole("from", t));
+  const to = parseField("verify-to", (t) => parseWhole("to", t));
   const text = ($("verify-depth") as HTMLInputElement).value.trim();
   const depth = Number(text);
   const depthOk = /^\d+$/.test(text) && depth >= 1 && depth <= MAX_VERIFY_SIEVE_DEPTH;
@@ -38,7 +42,9 @@ export function readVerifyForm(): VerifyRequest | null {
   try {
     planVerify(req);
   } catch (e) {
-    fieldError("verify-to", (e as Error).message);
+    // a message about from alone belongs beside From; the rest (the range, its size, the depth) beside To
+    const msg = (e as Error).message;
+    fieldError(/^from /.test(msg) ? "verify-from" : "verify-to", msg);
     return null;
   }
   return req;
@@ -64,9 +70,9 @@ function render(r: VerifyResult): void {
     ["exceptions of the sieve", group(c.exceptions)],
     ["cycle members", group(c.cycleMembers)],
     ["enter a cycle of larger numbers", group(c.cycleEntrants)],
-    [`unresolved after ${group(r.maxSteps)} steps`, group(c.unresolved)],
+    [`unresolved after ${group(r.maxSteps)} step${r.maxSteps === 1 ? "" : "s"}`, group(c.unresolved)],
     ["largest glide (standard steps)", r.maxGlide ? `${r.maxGlide.standardSteps} at n = ${r.maxGlide.n}` : "–"],
-    ["largest path", r.maxPath ? `${r.maxPath.value} at n = ${r.maxPath.n}` : "–"],
+    ["largest path (highest value under T)", r.maxPath ? `${group(r.maxPath.peakT)} at n = ${group(r.maxPath.n)}` : "–"],
   ];
   $("verify-counts").innerHTML =
     `<tbody>${counts.map(([k, v]) => `<tr><th scope="row" class="left">${k}</th><td>${v}</td></tr>`).join("")}</tbody>`;
@@ -75,8 +81,8 @@ function render(r: VerifyResult): void {
     r.glideRecords.map((g) => [String(g.n), String(g.standardSteps), String(g.steps)]),
   );
   $("verify-path").innerHTML = rows(
-    ["path record n", "largest value"],
-    r.pathRecords.map((p) => [String(p.n), String(p.value)]),
+    ["path record n", "highest value under T"],
+    r.pathRecords.map((p) => [String(p.n), String(p.peakT)]),
   );
   $("run-summary").textContent = toExactJson({ verify: verifyJson(r) });
 }
@@ -110,7 +116,7 @@ export async function startVerify(workers: number): Promise<boolean> {
   if (!out.ok) return true;
   render(out.value);
   const stamp = { version: pkg.version, kernelBuild: await kernelBuildId() };
-  lastCertificate = `${toExactJson(certificate(out.value, hashes, stamp, { started, finished: new Date().toISOString(), workers }), 2)}\n`;
+  lastCertificate = `${toExactJson(await certificate(out.value, hashes, stamp, { started, finished: new Date().toISOString(), workers }), 2)}\n`;
   ($("verify-certificate") as HTMLButtonElement).disabled = false;
   return true;
 }

@@ -1,17 +1,22 @@
-// Certificates of verification runs, and checkpoints of runs in progress: plain JSON with exact
-// integers, written by the CLI and the web app, read back by `verify --check` and `verify --resume`.
+// Certificates of verification runs (format version 2), and checkpoints of runs in progress: plain
+// JSON with exact integers, written by the CLI and the web app, read back strictly (one line naming
+// the field that is wrong) by `verify --check` and `verify --resume`. A certificate carries the
+// run's block table, each entry with a digest, and a digest over the whole document.
 import { UsageError } from "../../core/errors.js";
 import type { CollatzMap } from "../../core/map.js";
 import { parseMap } from "../../core/map.js";
-import type { VerifyBlockResult } from "../../engine/messages.js";
-import { parseExactJson } from "../../outputs/json.js";
-import { verifyCountsJson } from "../../outputs/summary.js";
+import { sha256Hex } from "../../engine/plan.js";
 import type { ToolStamp } from "../../outputs/manifest.js";
-import { cycleEntry, traceBig } from "./verify.js";
-import type { StoredBlock, VerifyRequest, VerifyResult, VerifyTableData } from "./verify.js";
+import { parseExactJson, toExactJson } from "../../outputs/json.js";
+import type { BlockEntry, CycleEntrant, CycleMember, GlideRecord, PathRecord } from "./block.js";
+import type { VerifyResult } from "./merge.js";
+import type { VerifyRequest } from "./plan.js";
+import type { VerifyTableData } from "./tables.js";
 
 export const CERTIFICATE_KIND = "glidepath verification certificate";
 export const CHECKPOINT_KIND = "glidepath verification checkpoint";
+/** The certificate format's version: 2 adds the block table and the digests. */
+export const CERTIFICATE_VERSION = 2;
 
 /** The hashes of the tables a run used (sha256 of their raw files, as `sieve --out` and `steps --out` write them). */
 export interface TableHashes {
@@ -30,18 +35,86 @@ export async function tableHashes(data: VerifyTableData, sha256: (bytes: Uint8Ar
   };
 }
 
-/**
- * The certificate of a finished run: what was checked, how, what was found, and by which build.
- * @example certificate(result, hashes, stamp, { started, finished, workers: 2 })
- */
-export function certificate(
-  r: VerifyResult,
-  tables: TableHashes | null,
-  tool: ToolStamp,
-  run: { started: string; finished: string; workers: number },
-) {
+const glideJson = (g: GlideRecord) => ({ n: g.n, standardSteps: g.standardSteps, steps: g.steps });
+const pathJson = (p: PathRecord) => ({ n: p.n, peakT: p.peakT });
+const memberJson = (m: CycleMember) => ({ n: m.n, period: m.period });
+const entrantJson = (e: CycleEntrant) => ({ n: e.n, cycleMin: e.cycleMin, period: e.period });
+
+/** A block entry as the block table holds it (without its digest), in a fixed key order. */
+export function entryJson(e: BlockEntry) {
   return {
-    kind: CERTIFICATE_KIND,
+    index: e.index,
+    kind: e.kind,
+    first: e.first,
+    last: e.last,
+    counts: {
+      checked: e.counts.checked,
+      sievedByDepth: e.counts.sievedByDepth,
+      exceptions: e.counts.exceptions,
+      cycleMembers: e.counts.cycleMembers,
+      cycleEntrants: e.counts.cycleEntrants,
+      unresolved: e.counts.unresolved,
+    },
+    glideRecords: e.glideRecords.map(glideJson),
+    pathRecords: e.pathRecords.map(pathJson),
+    cycleMembers: e.cycleMembers.map(memberJson),
+    cycleEntrants: e.cycleEntrants.map(entrantJson),
+    unresolved: e.unresolved,
+    delay: e.delay && { records: e.delay.records.map(glideJson), unreached: e.delay.unreached, unreachedList: e.delay.unreachedList },
+    handoffs: e.handoffs,
+  };
+}
+
+/** The sha256 (hex) of a value's exact JSON: the digest of an entry or a document (without its own digest). */
+export function digestOf(value: unknown): Promise<string> {
+  return sha256Hex(toExactJson(value));
+}
+
+/** The counts of a run as `--json` and the certificate write them. */
+export function verifyCountsJson(r: VerifyResult) {
+  const c = r.counts;
+  return {
+    numbers: c.numbers,
+    checked: c.checked,
+    sieved: c.sieved,
+    sievedByDepth: c.sievedByDepth.flatMap((count, depth) => (count > 0n ? [{ depth, count }] : [])),
+    exceptions: c.exceptions,
+    cycleMembers: c.cycleMembers,
+    cycleEntrants: c.cycleEntrants,
+    unresolved: c.unresolved,
+  };
+}
+
+/** What a run found, with the key names `--json` and the certificate share. */
+export function verifyFindings(r: VerifyResult) {
+  return {
+    counts: verifyCountsJson(r),
+    maxGlide: r.maxGlide && glideJson(r.maxGlide),
+    maxPath: r.maxPath && pathJson(r.maxPath),
+    glideRecords: r.glideRecords.map(glideJson),
+    pathRecords: r.pathRecords.map(pathJson),
+    cycleMembers: r.cycleMembers.map(memberJson),
+    cycleEntrants: r.cycleEntrants.map(entrantJson),
+    unresolved: r.unresolvedList,
+    delay: r.delay && {
+      records: r.delay.records.map(glideJson),
+      max: r.delay.max && glideJson(r.delay.max),
+      unreached: r.delay.unreached,
+      unreachedList: r.delay.unreachedList,
+    },
+    handoffs: r.handoffs,
+    blockCount: r.entries.length,
+  };
+}
+
+/** The fields of `glidepath verify --json`: the certificate's, less the block table and provenance, plus the time. */
+export function verifyJson(r: VerifyResult) {
+  return { ...paramsJson(r), engine: r.engine, ...verifyFindings(r), seconds: Number(r.seconds.toFixed(3)) };
+}
+
+/** The run's parameters as a certificate and a checkpoint name them. */
+function paramsJson(r: VerifyResult) {
+  return {
     map: r.map.name,
     q: r.map.q,
     r: r.map.r,
@@ -50,42 +123,50 @@ export function certificate(
     sieveDepth: r.sieveDepth,
     stepDepth: r.stepDepth,
     maxSteps: r.maxSteps,
+    blockTarget: r.blockTarget,
+  };
+}
+
+/**
+ * The certificate of a finished run: what was checked, how, what was found, block by block, and by
+ * which build, with a digest per block entry and one over the whole document.
+ * @example await certificate(result, hashes, stamp, { started, finished, workers: 2 })
+ */
+export async function certificate(
+  r: VerifyResult,
+  tables: TableHashes | null,
+  tool: ToolStamp,
+  run: { started: string; finished: string; workers: number },
+) {
+  const blockTable = await Promise.all(
+    r.entries.map(async (e) => {
+      const body = entryJson(e);
+      return { ...body, digest: await digestOf(body) };
+    }),
+  );
+  const body = {
+    kind: CERTIFICATE_KIND,
+    version: CERTIFICATE_VERSION,
+    ...paramsJson(r),
     engine: r.engine,
     tables,
-    counts: verifyCountsJson(r),
-    maxima: {
-      glide: r.maxGlide && { n: r.maxGlide.n, standardSteps: r.maxGlide.standardSteps, steps: r.maxGlide.steps },
-      path: r.maxPath && { n: r.maxPath.n, value: r.maxPath.value },
-    },
-    records: {
-      glide: r.glideRecords.map((g) => ({ n: g.n, standardSteps: g.standardSteps, steps: g.steps })),
-      path: r.pathRecords.map((p) => ({ n: p.n, value: p.value })),
-    },
-    cycleMembers: r.cycleMembers,
-    cycleEntrants: r.cycleEntrants,
-    unresolved: r.unresolvedList,
-    delay: r.delay && {
-      records: r.delay.records.map((g) => ({ n: g.n, standardSteps: g.standardSteps, steps: g.steps })),
-      max: r.delay.max,
-      unreached: r.delay.unreached,
-      unreachedList: r.delay.unreachedList,
-    },
-    handoffs: r.handoffs,
-    blocks: r.blocks,
+    ...verifyFindings(r),
+    blockTable,
     tool: { name: "glidepath", ...tool },
     started: run.started,
     finished: run.finished,
     workers: run.workers,
   };
+  return { ...body, digest: await digestOf(body) };
 }
 
-export type Certificate = ReturnType<typeof certificate>;
+export type Certificate = Awaited<ReturnType<typeof certificate>>;
 
-/** A checkpoint: the request, its plan key, and every completed block's raw result. */
-export function checkpoint(req: VerifyRequest, key: string, blocks: number, done: ReadonlyMap<number, StoredBlock>) {
-  const arr = (x: BigUint64Array) => Array.from(x);
+/** A checkpoint: the request, its plan key, and every completed block's finished entry. */
+export function checkpoint(req: VerifyRequest, key: string, blocks: number, done: ReadonlyMap<number, BlockEntry>) {
   return {
     kind: CHECKPOINT_KIND,
+    version: CERTIFICATE_VERSION,
     key,
     request: {
       map: req.map.name,
@@ -95,232 +176,217 @@ export function checkpoint(req: VerifyRequest, key: string, blocks: number, done
       stepDepth: req.stepDepth,
       maxSteps: req.maxSteps,
       delay: req.delay === true,
+      blockTarget: req.blocks ?? null,
     },
     blocks,
-    done: [...done.values()]
-      .sort((u, v) => u.index - v.index)
-      .map((b) => ({
-        index: b.index,
-        visited: b.visited,
-        counts: arr(b.counts),
-        glideRecords: arr(b.glideRecords),
-        pathRecords: arr(b.pathRecords),
-        handoffs: arr(b.handoffs),
-        cycleMembers: arr(b.cycleMembers),
-        unresolved: arr(b.unresolved),
-      })),
+    done: [...done.values()].sort((u, v) => u.index - v.index).map(entryJson),
+  };
+}
+
+// ---- strict reading: every field checked for its type, one line naming the field that is wrong ----
+
+type Json = Record<string, unknown>;
+
+function field(o: unknown, key: string, path: string): unknown {
+  if (o === null || typeof o !== "object" || Array.isArray(o)) throw new UsageError(`${path || "the file"} is not an object`);
+  if (!(key in (o as Json))) throw new UsageError(`${path ? `${path}.` : ""}${key} is missing`);
+  return (o as Json)[key];
+}
+
+const where = (path: string, key: string) => (path ? `${path}.${key}` : key);
+
+function big(o: unknown, key: string, path = "", min = 0n): bigint {
+  const v = field(o, key, path);
+  if (typeof v !== "bigint") throw new UsageError(`${where(path, key)} must be a whole number written as digits, got ${describe(v)}`);
+  if (v < min) throw new UsageError(`${where(path, key)} must be at least ${min}, got ${v}`);
+  return v;
+}
+
+function int(o: unknown, key: string, path = "", min = 0): number {
+  const v = big(o, key, path, BigInt(min));
+  if (v > BigInt(Number.MAX_SAFE_INTEGER)) throw new UsageError(`${where(path, key)} is too large: ${v}`);
+  return Number(v);
+}
+
+function text(o: unknown, key: string, path = ""): string {
+  const v = field(o, key, path);
+  if (typeof v !== "string") throw new UsageError(`${where(path, key)} must be a string, got ${describe(v)}`);
+  return v;
+}
+
+function list(o: unknown, key: string, path = ""): unknown[] {
+  const v = field(o, key, path);
+  if (!Array.isArray(v)) throw new UsageError(`${where(path, key)} must be a list, got ${describe(v)}`);
+  return v;
+}
+
+function bigList(o: unknown, key: string, path = ""): bigint[] {
+  return list(o, key, path).map((x, i) => {
+    if (typeof x !== "bigint" || x < 0n) throw new UsageError(`${where(path, key)}[${i}] must be a whole number, got ${describe(x)}`);
+    return x;
+  });
+}
+
+function describe(v: unknown): string {
+  if (typeof v === "string") return `the string "${v.length > 40 ? `${v.slice(0, 40)}...` : v}"`;
+  if (v === null) return "null";
+  if (Array.isArray(v)) return "a list";
+  if (typeof v === "object") return "an object";
+  return `${typeof v} ${String(v)}`;
+}
+
+const readGlide = (x: unknown, p: string): GlideRecord => ({
+  n: big(x, "n", p, 1n),
+  standardSteps: int(x, "standardSteps", p),
+  steps: int(x, "steps", p),
+});
+const readPath = (x: unknown, p: string): PathRecord => ({ n: big(x, "n", p, 1n), peakT: big(x, "peakT", p, 1n) });
+const readMember = (x: unknown, p: string): CycleMember => ({ n: big(x, "n", p, 1n), period: int(x, "period", p, 1) });
+const readEntrant = (x: unknown, p: string): CycleEntrant => ({
+  n: big(x, "n", p, 1n),
+  cycleMin: big(x, "cycleMin", p, 1n),
+  period: int(x, "period", p, 1),
+});
+
+function readList<T>(o: unknown, key: string, path: string, read: (x: unknown, p: string) => T): T[] {
+  return list(o, key, path).map((x, i) => read(x, `${where(path, key)}[${i}]`));
+}
+
+/** A block entry read back strictly. */
+export function readEntry(x: unknown, path: string): BlockEntry {
+  const kind = text(x, "kind", path);
+  if (kind !== "aligned" && kind !== "range" && kind !== "delay")
+    throw new UsageError(`${path}.kind must be aligned, range or delay, got "${kind}"`);
+  const c = field(x, "counts", path);
+  const cp = `${path}.counts`;
+  const d = field(x, "delay", path);
+  return {
+    index: int(x, "index", path),
+    kind,
+    first: big(x, "first", path, 1n),
+    last: big(x, "last", path, 1n),
+    counts: {
+      checked: big(c, "checked", cp),
+      sievedByDepth: bigList(c, "sievedByDepth", cp),
+      exceptions: big(c, "exceptions", cp),
+      cycleMembers: big(c, "cycleMembers", cp),
+      cycleEntrants: big(c, "cycleEntrants", cp),
+      unresolved: big(c, "unresolved", cp),
+    },
+    glideRecords: readList(x, "glideRecords", path, readGlide),
+    pathRecords: readList(x, "pathRecords", path, readPath),
+    cycleMembers: readList(x, "cycleMembers", path, readMember),
+    cycleEntrants: readList(x, "cycleEntrants", path, readEntrant),
+    unresolved: bigList(x, "unresolved", path),
+    delay:
+      d === null
+        ? null
+        : {
+            records: readList(d, "records", `${path}.delay`, readGlide),
+            unreached: big(d, "unreached", `${path}.delay`),
+            unreachedList: bigList(d, "unreachedList", `${path}.delay`),
+          },
+    handoffs: big(x, "handoffs", path),
+  };
+}
+
+function parseDocument(text: string, what: string): Json {
+  let j: unknown;
+  try {
+    j = parseExactJson(text);
+  } catch {
+    throw new UsageError(`the ${what} is not JSON`);
+  }
+  if (j === null || typeof j !== "object" || Array.isArray(j)) throw new UsageError(`the ${what} is not a JSON object`);
+  return j as Json;
+}
+
+/** The request a checkpoint or certificate names, read strictly. */
+function readRequest(j: unknown, path: string, delaySection = false): VerifyRequest {
+  const mapText = text(j, "map", path);
+  let map: CollatzMap;
+  try {
+    map = parseMap(mapText);
+  } catch {
+    throw new UsageError(`${where(path, "map")} is not a map: "${mapText}"`);
+  }
+  // a checkpoint's request says delay: true or false; a certificate has a delay section or null
+  const delay = delaySection ? field(j, "delay", path) !== null : field(j, "delay", path);
+  if (typeof delay !== "boolean") throw new UsageError(`${where(path, "delay")} must be true or false`);
+  return {
+    map,
+    from: big(j, "from", path, 1n),
+    to: big(j, "to", path, 1n),
+    sieveDepth: int(j, "sieveDepth", path, 1),
+    stepDepth: int(j, "stepDepth", path, 1),
+    maxSteps: int(j, "maxSteps", path, 1),
+    delay,
+    blocks: field(j, "blockTarget", path) === null ? undefined : int(j, "blockTarget", path, 1),
   };
 }
 
 /** Reads a checkpoint back: the request and the completed blocks. One clear line when it is not one. */
-export function readCheckpoint(text: string): { request: VerifyRequest; key: string; blocks: number; done: Map<number, StoredBlock> } {
-  let j: Record<string, unknown>;
-  try {
-    j = parseExactJson(text) as Record<string, unknown>;
-  } catch {
-    throw new UsageError("the checkpoint is not JSON");
-  }
+export function readCheckpoint(source: string): { request: VerifyRequest; key: string; blocks: number; done: Map<number, BlockEntry> } {
+  const j = parseDocument(source, "checkpoint");
+  if (j.kind === CERTIFICATE_KIND) throw new UsageError("this is a certificate of a finished run, not a checkpoint: check it with --check");
   if (j.kind !== CHECKPOINT_KIND) throw new UsageError(`not a glidepath verification checkpoint (kind: ${String(j.kind)})`);
-  const req = j.request as {
-    map: string;
-    from: bigint;
-    to: bigint;
-    sieveDepth: bigint;
-    stepDepth: bigint;
-    maxSteps: bigint;
-    delay?: boolean;
-  };
-  const u64 = (xs: unknown) => BigUint64Array.from(xs as bigint[]);
-  const done = new Map<number, VerifyBlockResult>();
-  for (const b of j.done as Record<string, unknown>[]) {
-    const index = Number(b.index);
-    done.set(index, {
-      index,
-      visited: b.visited as bigint,
-      counts: u64(b.counts),
-      glideRecords: u64(b.glideRecords),
-      pathRecords: u64(b.pathRecords),
-      handoffs: u64(b.handoffs),
-      cycleMembers: u64(b.cycleMembers),
-      unresolved: u64(b.unresolved),
-    });
+  if (j.version !== BigInt(CERTIFICATE_VERSION))
+    throw new UsageError(`checkpoint version ${String(j.version ?? 1)}: this glidepath resumes version ${CERTIFICATE_VERSION} only`);
+  const done = new Map<number, BlockEntry>();
+  for (const [i, x] of list(j, "done").entries()) {
+    const e = readEntry(x, `done[${i}]`);
+    done.set(e.index, e);
   }
-  return {
-    request: {
-      map: parseMap(req.map),
-      from: req.from,
-      to: req.to,
-      sieveDepth: Number(req.sieveDepth),
-      stepDepth: Number(req.stepDepth),
-      maxSteps: Number(req.maxSteps),
-      delay: req.delay === true,
-    },
-    key: String(j.key),
-    blocks: Number(j.blocks),
-    done,
-  };
+  return { request: readRequest(j.request, "request"), key: text(j, "key"), blocks: int(j, "blocks"), done };
 }
 
-/** What `verify --check` found: every finding, and whether the certificate holds. */
-export interface CheckReport {
-  readonly holds: boolean;
-  readonly findings: string[];
-  readonly sampled: number;
-}
-
-/** The parts of a certificate read back for checking (exact integers). */
+/** A certificate read back strictly: its parameters, what it states, and its block table with the digests as written. */
 export interface ReadCertificate {
-  readonly map: CollatzMap;
-  readonly from: bigint;
-  readonly to: bigint;
-  readonly sieveDepth: number;
-  readonly stepDepth: number;
-  readonly maxSteps: number;
+  readonly request: VerifyRequest;
+  readonly engine: string;
   readonly tables: TableHashes | null;
-  readonly counts: Record<string, bigint>;
-  readonly sievedByDepth: { depth: number; count: bigint }[];
-  readonly glideRecords: { n: bigint; standardSteps: number; steps: number }[];
-  readonly pathRecords: { n: bigint; value: bigint }[];
-  readonly maxGlide: { n: bigint; standardSteps: number } | null;
-  readonly maxPath: { n: bigint; value: bigint } | null;
-  readonly cycleMembers: { n: bigint; period: number }[];
-  readonly cycleEntrants: { n: bigint; cycleMin: bigint; period: number }[];
-  readonly unresolved: bigint[];
+  /** The document as parsed (exact integers), for the field-by-field comparison and the digest. */
+  readonly document: Json;
+  readonly entries: BlockEntry[];
+  readonly entryDigests: string[];
 }
 
-/** Parses a certificate file; one clear line when it is not one. */
-export function readCertificate(text: string): ReadCertificate {
-  let j: Record<string, unknown>;
-  try {
-    j = parseExactJson(text) as Record<string, unknown>;
-  } catch {
-    throw new UsageError("the certificate is not JSON");
-  }
+/** Parses a certificate file; one clear line naming the field when it is not one. */
+export function readCertificate(source: string): ReadCertificate {
+  const j = parseDocument(source, "certificate");
   if (j.kind === CHECKPOINT_KIND) throw new UsageError("this is a checkpoint, not a certificate: finish the run with --resume");
   if (j.kind !== CERTIFICATE_KIND) throw new UsageError(`not a glidepath verification certificate (kind: ${String(j.kind)})`);
-  const c = j.counts as Record<string, unknown>;
-  const rec = j.records as { glide: Record<string, bigint>[]; path: Record<string, bigint>[] };
-  const max = j.maxima as { glide: Record<string, bigint> | null; path: Record<string, bigint> | null };
-  const t = j.tables as { sieve: { rows: bigint; sha256: string }; steps: { rows: bigint; sha256: string } } | null;
+  const version = field(j, "version", "");
+  if (version !== BigInt(CERTIFICATE_VERSION))
+    throw new UsageError(
+      `certificate version ${typeof version === "bigint" ? version : describe(version)}: this glidepath checks version ${CERTIFICATE_VERSION} (re-run the range to get one)`,
+    );
+  const t = field(j, "tables", "");
+  const table = (key: string) => ({
+    rows: int(field(t, key, "tables"), "rows", `tables.${key}`),
+    sha256: text(field(t, key, "tables"), "sha256", `tables.${key}`),
+  });
+  const entries: BlockEntry[] = [];
+  const entryDigests: string[] = [];
+  for (const [i, x] of list(j, "blockTable").entries()) {
+    entries.push(readEntry(x, `blockTable[${i}]`));
+    entryDigests.push(text(x, "digest", `blockTable[${i}]`));
+  }
+  text(j, "digest");
+  // the stated totals must at least be whole numbers (their values are compared by --check)
+  const counts = field(j, "counts", "");
+  for (const k of ["numbers", "checked", "sieved", "exceptions", "cycleMembers", "cycleEntrants", "unresolved"]) big(counts, k, "counts");
+  readList(counts, "sievedByDepth", "counts", (x, p) => [int(x, "depth", p), big(x, "count", p)]);
+  readList(j, "glideRecords", "", readGlide);
+  readList(j, "pathRecords", "", readPath);
+  big(j, "handoffs");
+  int(j, "blockCount");
   return {
-    map: parseMap(String(j.map)),
-    from: j.from as bigint,
-    to: j.to as bigint,
-    sieveDepth: Number(j.sieveDepth),
-    stepDepth: Number(j.stepDepth),
-    maxSteps: Number(j.maxSteps),
-    tables: t && {
-      sieve: { rows: Number(t.sieve.rows), sha256: t.sieve.sha256 },
-      steps: { rows: Number(t.steps.rows), sha256: t.steps.sha256 },
-    },
-    counts: {
-      numbers: c.numbers as bigint,
-      checked: c.checked as bigint,
-      sieved: c.sieved as bigint,
-      exceptions: c.exceptions as bigint,
-      cycleMembers: c.cycleMembers as bigint,
-      cycleEntrants: (c.cycleEntrants as bigint | undefined) ?? 0n,
-      unresolved: c.unresolved as bigint,
-    },
-    sievedByDepth: (c.sievedByDepth as { depth: bigint; count: bigint }[]).map((x) => ({ depth: Number(x.depth), count: x.count })),
-    glideRecords: rec.glide.map((g) => ({ n: g.n!, standardSteps: Number(g.standardSteps), steps: Number(g.steps) })),
-    pathRecords: rec.path.map((p) => ({ n: p.n!, value: p.value! })),
-    maxGlide: max.glide && { n: max.glide.n!, standardSteps: Number(max.glide.standardSteps) },
-    maxPath: max.path && { n: max.path.n!, value: max.path.value! },
-    cycleMembers: (j.cycleMembers as { n: bigint; period: bigint }[]).map((x) => ({ n: x.n, period: Number(x.period) })),
-    cycleEntrants: ((j.cycleEntrants as { n: bigint; cycleMin: bigint; period: bigint }[] | undefined) ?? []).map((x) => ({
-      n: x.n,
-      cycleMin: x.cycleMin,
-      period: Number(x.period),
-    })),
-    unresolved: j.unresolved as bigint[],
+    request: readRequest(j, "", true),
+    engine: text(j, "engine"),
+    tables: t === null ? null : { sieve: table("sieve"), steps: table("steps") },
+    document: j,
+    entries,
+    entryDigests,
   };
-}
-
-/**
- * Re-derives what can be re-derived cheaply: the count arithmetic, the order of the records and
- * maxima, every record, cycle member and unresolved n iterated again in BigInt, and `sample`
- * further n of the range (each must descend, or be listed, within the maxima). The table hashes
- * are compared by the caller (they need the tables rebuilt).
- */
-export function checkCertificate(c: ReadCertificate, sample: bigint[]): CheckReport {
-  const findings: string[] = [];
-  const k = c.counts;
-  const sum = k.checked! + k.sieved! + k.exceptions! + k.cycleMembers! + k.cycleEntrants! + k.unresolved!;
-  if (k.numbers !== c.to - c.from) findings.push(`numbers ${k.numbers} is not to - from = ${c.to - c.from}`);
-  if (sum !== k.numbers)
-    findings.push(`checked + sieved + exceptions + cycle members + cycle entrants + unresolved = ${sum}, not ${k.numbers}`);
-  if (c.sievedByDepth.reduce((s, x) => s + x.count, 0n) !== k.sieved)
-    findings.push("the sieved counts by depth do not add up to the sieved count");
-  if (BigInt(c.cycleMembers.length) !== k.cycleMembers) findings.push("the cycle member list does not match its count");
-  const inRange = (n: bigint) => n >= c.from && n < c.to;
-  const increasing = <T>(xs: T[], n: (x: T) => bigint, v: (x: T) => bigint) =>
-    xs.every((x, i) => i === 0 || (n(xs[i - 1]!) < n(x) && v(xs[i - 1]!) < v(x)));
-  if (
-    !increasing(
-      c.glideRecords,
-      (g) => g.n,
-      (g) => BigInt(g.standardSteps),
-    )
-  )
-    findings.push("the glide records are not increasing");
-  if (
-    !increasing(
-      c.pathRecords,
-      (p) => p.n,
-      (p) => p.value,
-    )
-  )
-    findings.push("the path records are not increasing");
-  const lastG = c.glideRecords.at(-1);
-  if ((lastG?.n ?? null) !== (c.maxGlide?.n ?? null)) findings.push("the largest glide is not the last glide record");
-  const lastP = c.pathRecords.at(-1);
-  if ((lastP?.n ?? null) !== (c.maxPath?.n ?? null)) findings.push("the largest path is not the last path record");
-  const cycleSet = new Set(c.cycleMembers.map((x) => x.n));
-  const unresolvedSet = new Set(c.unresolved);
-  let sampled = 0;
-  for (const g of c.glideRecords) {
-    sampled++;
-    const t = traceBig(c.map, g.n, c.maxSteps, 0);
-    if (!inRange(g.n) || t.outcome !== "descent" || t.steps + t.odd !== g.standardSteps || t.steps !== g.steps)
-      findings.push(`glide record ${g.n}: BigInt iteration gives ${t.outcome} after ${t.steps} steps (${t.steps + t.odd} standard)`);
-  }
-  for (const p of c.pathRecords) {
-    sampled++;
-    const t = traceBig(c.map, p.n, c.maxSteps, 0);
-    const value = t.outcome === "cycle" ? p.n : t.path;
-    if (!inRange(p.n) || t.outcome === "unresolved" || value !== p.value)
-      findings.push(`path record ${p.n}: BigInt iteration gives ${value}, not ${p.value}`);
-  }
-  for (const m of c.cycleMembers) {
-    sampled++;
-    const t = traceBig(c.map, m.n, c.maxSteps, 0);
-    if (t.outcome !== "cycle" || t.steps !== m.period)
-      findings.push(`cycle member ${m.n}: BigInt iteration gives ${t.outcome} after ${t.steps} steps`);
-  }
-  for (const e of c.cycleEntrants) {
-    sampled++;
-    const t = traceBig(c.map, e.n, c.maxSteps, 0);
-    const entry = cycleEntry(c.map, e.n, 2 * c.maxSteps);
-    if (t.outcome !== "unresolved" || entry?.min !== e.cycleMin || entry.period !== e.period)
-      findings.push(`cycle entrant ${e.n}: BigInt iteration does not show it entering the cycle of ${e.cycleMin}`);
-  }
-  const entrantSet = new Set(c.cycleEntrants.map((e) => e.n));
-  for (const n of c.unresolved) {
-    sampled++;
-    if (traceBig(c.map, n, c.maxSteps, 0).outcome !== "unresolved")
-      findings.push(`unresolved ${n}: it resolves within ${c.maxSteps} steps`);
-  }
-  for (const n of sample) {
-    sampled++;
-    const t = traceBig(c.map, n, c.maxSteps, 0);
-    if (t.outcome === "cycle" && !cycleSet.has(n)) findings.push(`${n} is on a cycle but not listed`);
-    else if (t.outcome === "unresolved" && !unresolvedSet.has(n) && !entrantSet.has(n)) findings.push(`${n} is unresolved but not listed`);
-    else if (t.outcome === "descent") {
-      if (c.maxGlide && t.steps + t.odd > c.maxGlide.standardSteps)
-        findings.push(`${n} has a glide of ${t.steps + t.odd} standard steps, above the largest`);
-      if (c.maxPath && t.path > c.maxPath.value) findings.push(`${n} has a path of ${t.path}, above the largest`);
-    }
-  }
-  return { holds: findings.length === 0, findings, sampled };
 }

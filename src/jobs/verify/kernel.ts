@@ -4,6 +4,9 @@ import type { Kernel } from "../../engine/loader.js";
 import { collector } from "../../engine/loader.js";
 import type { VerifyBlock, VerifyBlockResult, VerifyTables } from "../../engine/messages.js";
 import { writeDropTables } from "../../engine/tables.js";
+import { makeMap } from "../../core/map.js";
+import { bigintBlock, finishKernelBlock } from "./block.js";
+import type { BlockEntry } from "./block.js";
 
 /** Writes the run's tables into the kernel (once per run and worker; `tables.key` names the run). */
 export function verifyPrepare(kernel: Kernel, t: VerifyTables): void {
@@ -28,8 +31,32 @@ export function verifyPrepare(kernel: Kernel, t: VerifyTables): void {
   kernel.call("verifyPrepare", [t.q, t.r, t.depth, t.stepDepth, tables, S, a, m, b, peak, sm, sb, speak]);
 }
 
-/** Runs one block on tables already prepared. */
-export function verifyBlock(kernel: Kernel, t: VerifyTables, block: VerifyBlock): VerifyBlockResult {
+/**
+ * Runs one block and finishes it (handoffs and unresolved n in BigInt): on the kernel with the
+ * run's tables, or walked in BigInt on the BigInt engine (no tables).
+ */
+export function verifyBlockEntry(kernel: Kernel, tables: VerifyTables | null, block: VerifyBlock): BlockEntry {
+  const map = makeMap(block.q, block.r);
+  if (block.engine === "bigint")
+    return bigintBlock({ map, sieveDepth: block.sieveDepth, maxSteps: block.maxSteps, stoppedClasses: [] }, block);
+  if (!tables || tables.key !== block.key) throw new Error("internal error: a verification block before its run's tables");
+  const raw = verifyBlock(kernel, tables, block);
+  const L = (name: string) => kernel.layout(name);
+  return finishKernelBlock(
+    { map, sieveDepth: tables.depth, maxSteps: block.maxSteps, stoppedClasses: Array.from(tables.stoppedClasses) },
+    block,
+    raw,
+    {
+      checked: L("VERIFY_COUNT_CHECKED"),
+      exceptions: L("VERIFY_COUNT_EXCEPTIONS"),
+      unresolved: L("VERIFY_COUNT_UNRESOLVED"),
+      sieved: L("VERIFY_COUNT_SIEVED"),
+    },
+  );
+}
+
+/** Runs one block on tables already prepared: the kernel's raw counters and lists. */
+function verifyBlock(kernel: Kernel, t: VerifyTables, block: VerifyBlock): VerifyBlockResult {
   const L = (name: string) => kernel.layout(name);
   const tables = kernel.region("tables", L("TABLE_BYTES"));
   const counts = kernel.region("verify.counts", L("VERIFY_COUNTS") * 8);

@@ -1,0 +1,175 @@
+// The merge of a verification run: finished blocks swept in range order. Counts add; a record of
+// the union is a block record that beats the running maximum of every block before it (a record of
+// the whole range is a record of its own block, so the sweep is exact); lists are the smallest of
+// the union. Equal for any split of the range: the one merge for threads, checkpoints and clusters,
+// and what `verify --check` re-derives from a certificate's block table.
+import type { CollatzMap } from "../../core/map.js";
+import { EXCEPTION_LIMIT } from "../sieve/exceptions.js";
+import { blockTotal, sweepRecords } from "./block.js";
+import { blockSize } from "./plan.js";
+import type { BlockEntry, CycleEntrant, CycleMember, GlideRecord, PathRecord } from "./block.js";
+import type { BlockSpec, VerifyPlan } from "./plan.js";
+
+/** Delays of a run: the records (steps to reach 1, in standard steps and steps of T) and the n that do not reach 1. */
+export interface DelayResult {
+  readonly records: GlideRecord[];
+  readonly max: GlideRecord | null;
+  /** n that did not reach 1 within maxSteps (on another cycle, or unresolved): their count and the smallest. */
+  readonly unreached: bigint;
+  readonly unreachedList: bigint[];
+}
+
+export interface VerifyCounts {
+  readonly numbers: bigint;
+  /** Survivors of the sieve iterated to their descent. */
+  readonly checked: bigint;
+  /** n in classes cut by the sieve at depth j (they descend at step j): by depth j = 0..K, and in all. */
+  readonly sievedByDepth: bigint[];
+  readonly sieved: bigint;
+  /** The sieve's exceptions, iterated to their descent. */
+  readonly exceptions: bigint;
+  readonly cycleMembers: bigint;
+  /** n whose trajectory enters a cycle of larger numbers (shown by Brent's method) instead of descending. */
+  readonly cycleEntrants: bigint;
+  readonly unresolved: bigint;
+}
+
+export interface VerifyResult {
+  readonly map: CollatzMap;
+  readonly from: bigint;
+  readonly to: bigint;
+  readonly sieveDepth: number;
+  readonly stepDepth: number;
+  readonly maxSteps: number;
+  /** The request's block count, when it gave one. */
+  readonly blockTarget: number | null;
+  /** "kernel" (u128 in wasm, BigInt for the rare values past 128 bits) or "bigint" (all of it). */
+  readonly engine: "kernel" | "bigint";
+  readonly counts: VerifyCounts;
+  /** Each n whose glide (standard steps), or path, beats every smaller n of the range. */
+  readonly glideRecords: GlideRecord[];
+  readonly pathRecords: PathRecord[];
+  /** The largest glide and path with their n (the smallest n on ties); null when none. */
+  readonly maxGlide: GlideRecord | null;
+  readonly maxPath: PathRecord | null;
+  /** n on a cycle (each is its cycle's least element), with the period. */
+  readonly cycleMembers: CycleMember[];
+  /** n that enter a cycle of larger numbers: the cycle's least element and period (the smallest 100,000 n). */
+  readonly cycleEntrants: CycleEntrant[];
+  /** n that neither descended, returned nor were shown to enter a cycle within maxSteps (the smallest 100,000). */
+  readonly unresolvedList: bigint[];
+  /** With `delay`: the delays' records. */
+  readonly delay: DelayResult | null;
+  /** Numbers the kernel handed to BigInt (values past 2^limitBits). */
+  readonly handoffs: bigint;
+  /** The block table: every block's finished entry, in plan order. */
+  readonly entries: readonly BlockEntry[];
+  readonly seconds: number;
+}
+
+/** Blocks of a plan that an entry list does not match (missing, extra, or another range): one line, or null. */
+export function entryMismatch(blocks: readonly BlockSpec[], entries: readonly BlockEntry[]): string | null {
+  if (entries.length !== blocks.length) return `the block table has ${entries.length} entries, the plan ${blocks.length} blocks`;
+  for (let i = 0; i < blocks.length; i++) {
+    const b = blocks[i]!;
+    const e = entries[i]!;
+    if (e.index !== b.index || e.kind !== b.kind || e.first !== b.first || e.last !== b.last)
+      return `block ${i}: the entry is ${e.kind} [${e.first}, ${e.last}], the plan's block is ${b.kind} [${b.first}, ${b.last}]`;
+    if (b.kind !== "delay" && blockTotal(e.counts) !== blockSize(b))
+      return `block ${i}: its counts add up to ${blockTotal(e.counts)}, the block has ${blockSize(b)} numbers`;
+  }
+  return null;
+}
+
+/**
+ * Sweeps the entries (in plan order, one per block) into the run's result.
+ * @example mergeVerify(plan, entries, seconds).counts.numbers === plan.to - plan.from
+ */
+export function mergeVerify(plan: VerifyPlan, entries: readonly BlockEntry[], seconds: number): VerifyResult {
+  const bad = entryMismatch(plan.blocks, entries);
+  if (bad) throw new Error(`internal error: ${bad}`);
+  const K = plan.sieveDepth;
+  const sievedByDepth = new Array<bigint>(K + 1).fill(0n);
+  let checked = 0n;
+  let exceptions = 0n;
+  let cycles = 0n;
+  let entrants = 0n;
+  let unresolved = 0n;
+  let handoffs = 0n;
+  let unreached = 0n;
+  const cycleMembers: CycleMember[] = [];
+  const cycleEntrants: CycleEntrant[] = [];
+  const unresolvedList: bigint[] = [];
+  const unreachedList: bigint[] = [];
+  let glides = { records: [] as GlideRecord[], best: -1 };
+  let paths = { records: [] as PathRecord[], best: -1n };
+  let delays = { records: [] as GlideRecord[], best: -1 };
+  const glideRecords: GlideRecord[] = [];
+  const pathRecords: PathRecord[] = [];
+  const delayRecords: GlideRecord[] = [];
+  for (const e of entries) {
+    const c = e.counts;
+    checked += c.checked;
+    exceptions += c.exceptions;
+    cycles += c.cycleMembers;
+    entrants += c.cycleEntrants;
+    unresolved += c.unresolved;
+    handoffs += e.handoffs;
+    c.sievedByDepth.forEach((x, j) => {
+      sievedByDepth[j]! += x;
+    });
+    cycleMembers.push(...e.cycleMembers);
+    cycleEntrants.push(...e.cycleEntrants);
+    unresolvedList.push(...e.unresolved);
+    glides = sweepRecords(e.glideRecords, (g) => g.standardSteps, glides.best);
+    glideRecords.push(...glides.records);
+    paths = sweepRecords(e.pathRecords, (p) => p.peakT, paths.best);
+    pathRecords.push(...paths.records);
+    if (e.delay) {
+      unreached += e.delay.unreached;
+      unreachedList.push(...e.delay.unreachedList);
+      delays = sweepRecords(e.delay.records, (g) => g.standardSteps, delays.best);
+      delayRecords.push(...delays.records);
+    }
+  }
+  const sieved = sievedByDepth.reduce((s, x) => s + x, 0n);
+  const ascending = (u: bigint, v: bigint) => (u < v ? -1 : u > v ? 1 : 0);
+  return {
+    map: plan.map,
+    from: plan.from,
+    to: plan.to,
+    sieveDepth: K,
+    stepDepth: plan.stepDepth,
+    maxSteps: plan.maxSteps,
+    blockTarget: plan.blockTarget,
+    engine: plan.engine,
+    counts: {
+      numbers: plan.to - plan.from,
+      checked,
+      sievedByDepth,
+      sieved,
+      exceptions,
+      cycleMembers: cycles,
+      cycleEntrants: entrants,
+      unresolved,
+    },
+    glideRecords,
+    pathRecords,
+    maxGlide: glideRecords.at(-1) ?? null,
+    maxPath: pathRecords.at(-1) ?? null,
+    cycleMembers: cycleMembers.sort((u, v) => ascending(u.n, v.n)),
+    cycleEntrants: cycleEntrants.sort((u, v) => ascending(u.n, v.n)).slice(0, EXCEPTION_LIMIT),
+    unresolvedList: unresolvedList.sort(ascending).slice(0, EXCEPTION_LIMIT),
+    delay: plan.delay
+      ? {
+          records: delayRecords,
+          max: delayRecords.at(-1) ?? null,
+          unreached,
+          unreachedList: unreachedList.sort(ascending).slice(0, EXCEPTION_LIMIT),
+        }
+      : null,
+    handoffs,
+    entries,
+    seconds,
+  };
+}

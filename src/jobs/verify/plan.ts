@@ -1,0 +1,131 @@
+// A verification request checked and cut into blocks: the sieve's partial periods at both ends as
+// ranged blocks, whole periods in between as aligned blocks, and (with delays) blocks of delays.
+// The defaults and limits of a run are defined here once.
+import { LimitError, UsageError } from "../../core/errors.js";
+import type { CollatzMap } from "../../core/map.js";
+import { kernelDepthLimit } from "../../core/map.js";
+
+export const DEFAULT_SIEVE_DEPTH = 26;
+export const DEFAULT_STEP_DEPTH = 16;
+export const MAX_VERIFY_SIEVE_DEPTH = 30;
+export const MAX_VERIFY_STEP_DEPTH = 20;
+export const DEFAULT_MAX_STEPS = 100_000;
+export const MAX_MAX_STEPS = 100_000_000;
+/** Numbers a run may take through BigInt alone (maps with r < 0, n >= 2^64): it is slow. */
+export const MAX_BIGINT_NUMBERS = 1n << 22n;
+/** Numbers per ranged block (partial periods, iterated one by one). */
+const RANGE_BLOCK = 1n << 20n;
+/** Numbers per block on the BigInt engine (about a tenth of a second each). */
+const BIGINT_BLOCK = 1n << 12n;
+const TWO64 = 1n << 64n;
+
+export interface VerifyRequest {
+  readonly map: CollatzMap;
+  readonly from: bigint;
+  readonly to: bigint;
+  /** Sieve depth K and table step depth KS (DEFAULT_SIEVE_DEPTH, DEFAULT_STEP_DEPTH). */
+  readonly sieveDepth?: number;
+  readonly stepDepth?: number;
+  readonly maxSteps?: number;
+  /** About how many blocks (default: from the range's size); the result does not depend on it. */
+  readonly blocks?: number;
+  /** Values at or above 2^limitBits are finished in BigInt (128; lower it only to test that path). */
+  readonly limitBits?: number;
+  /** Also the delay of every n (its total stopping time: the steps to reach 1) and its records. */
+  readonly delay?: boolean;
+}
+
+/** One block of a plan: first..last (inclusive); aligned blocks are n = a + 2^K h, h0 <= h < h0 + periods. */
+export interface BlockSpec {
+  readonly index: number;
+  readonly kind: "aligned" | "range" | "delay";
+  readonly first: bigint;
+  readonly last: bigint;
+  readonly h0: bigint;
+  readonly periods: bigint;
+}
+
+/** A checked request with its defaults filled in. */
+export interface VerifyPlan {
+  readonly map: CollatzMap;
+  readonly from: bigint;
+  readonly to: bigint;
+  readonly sieveDepth: number;
+  readonly stepDepth: number;
+  readonly maxSteps: number;
+  readonly limitBits: number;
+  readonly engine: "kernel" | "bigint";
+  readonly delay: boolean;
+  /** The request's block count (null: from the range's size), which certificates keep to re-plan the run. */
+  readonly blockTarget: number | null;
+  /** Names the parameters: checkpoints and blocks of another plan are refused. */
+  readonly key: string;
+  readonly blocks: readonly BlockSpec[];
+}
+
+/** The size of a block (numbers). */
+export const blockSize = (b: { first: bigint; last: bigint }) => b.last - b.first + 1n;
+
+/**
+ * Checks a request and splits it into blocks.
+ * @example planVerify({ map: parseMap("3x+1"), from: 1n, to: 1n << 30n }).blocks.length // 17
+ */
+export function planVerify(req: VerifyRequest): VerifyPlan {
+  const { map, from, to } = req;
+  if (from < 1n) throw new UsageError(`from must be at least 1, got ${from}`);
+  if (to <= from) throw new UsageError(`to must be above from (the range is [from, to)), got from ${from} to ${to}`);
+  const sieveDepth = req.sieveDepth ?? DEFAULT_SIEVE_DEPTH;
+  const stepDepth = req.stepDepth ?? DEFAULT_STEP_DEPTH;
+  const maxSteps = req.maxSteps ?? DEFAULT_MAX_STEPS;
+  const limitBits = req.limitBits ?? 128;
+  const depthLimit = Math.min(MAX_VERIFY_SIEVE_DEPTH, kernelDepthLimit(map));
+  if (!Number.isInteger(sieveDepth) || sieveDepth < 1 || sieveDepth > depthLimit)
+    throw new LimitError(`sieve depth ${sieveDepth} is out of range for ${map.name}: 1 to ${depthLimit} (the sieve table's exact limit)`);
+  const stepLimit = Math.min(MAX_VERIFY_STEP_DEPTH, kernelDepthLimit(map));
+  if (!Number.isInteger(stepDepth) || stepDepth < 1 || stepDepth > stepLimit)
+    throw new LimitError(`step depth ${stepDepth} is out of range: 1 to ${stepLimit}`);
+  if (!Number.isInteger(maxSteps) || maxSteps < 1 || maxSteps > MAX_MAX_STEPS)
+    throw new UsageError(`max steps must be from 1 to ${MAX_MAX_STEPS}`);
+  if (!Number.isInteger(limitBits) || limitBits < 8 || limitBits > 128) throw new UsageError("limitBits must be from 8 to 128");
+  const engine = map.r > 0 && to <= TWO64 ? "kernel" : "bigint";
+  if (engine === "bigint" && to - from > MAX_BIGINT_NUMBERS) {
+    const why = map.r < 0 ? `maps with r < 0 (${map.name})` : "numbers at or above 2^64";
+    throw new LimitError(`${why} are verified in BigInt, one by one: at most ${MAX_BIGINT_NUMBERS} numbers a run, got ${to - from}`);
+  }
+  const delay = req.delay === true;
+  const blockTarget = req.blocks ?? null;
+  if (blockTarget !== null && (!Number.isInteger(blockTarget) || blockTarget < 1))
+    throw new UsageError("blocks must be a positive whole number");
+  const key = `${map.name}|${from}|${to}|${sieveDepth}|${stepDepth}|${maxSteps}|${limitBits}${delay ? "|delay" : ""}${blockTarget === null ? "" : `|blocks ${blockTarget}`}`;
+  const blocks: BlockSpec[] = [];
+  const push = (kind: BlockSpec["kind"], first: bigint, last: bigint, h0 = 0n, periods = 0n) =>
+    blocks.push({ index: blocks.length, kind, first, last, h0, periods });
+  const chunks = (kind: "range" | "delay", first: bigint, end: bigint, size: bigint) => {
+    for (let s = first; s < end; s += size) push(kind, s, s + size < end ? s + size - 1n : end - 1n);
+  };
+  if (engine === "bigint") {
+    chunks("range", from, to, BIGINT_BLOCK);
+    if (delay) chunks("delay", from, to, BIGINT_BLOCK);
+    return { map, from, to, sieveDepth, stepDepth, maxSteps, limitBits, engine, delay, blockTarget, key, blocks };
+  }
+  const period = 1n << BigInt(sieveDepth);
+  // aligned periods: [hA 2^K, hB 2^K), below 2^64 - 2^K so that no period's end wraps
+  const hA = (from + period - 1n) / period;
+  let hB = to / period;
+  const hMax = TWO64 / period - 1n;
+  if (hB > hMax) hB = hMax;
+  if (hB <= hA) chunks("range", from, to, RANGE_BLOCK);
+  else {
+    if (from < hA * period) chunks("range", from, hA * period, RANGE_BLOCK);
+    const periods = hB - hA;
+    const target = BigInt(Math.max(1, blockTarget ?? Math.max(16, Math.min(4096, Number((periods * period) >> 26n)))));
+    const per = (periods + target - 1n) / target;
+    for (let h = hA; h < hB; h += per) {
+      const count = h + per <= hB ? per : hB - h;
+      push("aligned", h * period, (h + count) * period - 1n, h, count);
+    }
+    if (hB * period < to) chunks("range", hB * period, to, RANGE_BLOCK);
+  }
+  if (delay) chunks("delay", from, to, RANGE_BLOCK);
+  return { map, from, to, sieveDepth, stepDepth, maxSteps, limitBits, engine, delay, blockTarget, key, blocks };
+}

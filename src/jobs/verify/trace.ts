@@ -1,0 +1,89 @@
+// The BigInt reference iteration of verification: one n step by step, exactly, at any size. It
+// finishes what the kernel hands off (values past its word size), runs the BigInt engine, and is
+// what `verify --check` iterates again.
+import type { CollatzMap } from "../../core/map.js";
+import { step } from "../../core/map.js";
+
+/** One n, iterated in BigInt. */
+export interface Trace {
+  readonly outcome: "descent" | "cycle" | "unresolved";
+  /** Steps of T to the first value below n (descent), or back to n (cycle). */
+  readonly steps: number;
+  readonly odd: number;
+  /** The highest value of T on the way, before the descent (n itself for a cycle member). */
+  readonly path: bigint;
+  /** The depth at which n's class coefficient q^m / 2^j first drops below 1, within `depth`. */
+  readonly cutDepth: number | null;
+}
+
+/**
+ * n iterated step by step in BigInt until it goes below n, returns to n, or passes maxSteps. A
+ * return to n is a cycle whatever the cap (n on a cycle of period p > maxSteps is still a cycle
+ * member once the cap allows p steps; below it, it is unresolved, then shown by cycleEntry).
+ * @example traceBig(parseMap("3x+1"), 27n, 1000, 24) // { outcome: "descent", steps: 59, odd: 37, path: 4616n, ... }
+ */
+export function traceBig(map: CollatzMap, n: bigint, maxSteps: number, depth: number): Trace {
+  const q = BigInt(map.q);
+  const r = BigInt(map.r);
+  let v = n;
+  let odd = 0;
+  let path = n;
+  let cutDepth: number | null = null;
+  let qm = 1n;
+  for (let steps = 1; steps <= maxSteps; steps++) {
+    if ((v & 1n) === 1n) {
+      v = (q * v + r) >> 1n;
+      odd++;
+      qm *= q;
+    } else v >>= 1n;
+    if (cutDepth === null && steps <= depth && qm >> BigInt(steps) === 0n) cutDepth = steps;
+    if (v > path) path = v;
+    if (v < n) return { outcome: "descent", steps, odd, path, cutDepth };
+    if (v === n) return { outcome: "cycle", steps, odd, path: n, cutDepth };
+  }
+  return { outcome: "unresolved", steps: maxSteps, odd, path, cutDepth };
+}
+
+/** n's delay in BigInt: steps of T to reach 1 and the odd steps among them, or null past maxSteps. */
+export function delayBig(map: CollatzMap, n: bigint, maxSteps: number): { steps: number; odd: number } | null {
+  const q = BigInt(map.q);
+  const r = BigInt(map.r);
+  let v = n;
+  let odd = 0;
+  for (let steps = 0; steps <= maxSteps; steps++) {
+    if (v === 1n) return { steps, odd };
+    if ((v & 1n) === 1n) {
+      v = (q * v + r) >> 1n;
+      odd++;
+    } else v >>= 1n;
+  }
+  return null;
+}
+
+/**
+ * Whether n's trajectory enters a cycle (without going below n: the cycle's elements are all above
+ * n), by Brent's method within `budget` steps while its values stay below 2^maxBits: the cycle's
+ * least element and period, exactly, or null when that is not shown.
+ * @example cycleEntry(parseMap("3x+5"), 3n, 1000) // { min: 19n, period: 5 }
+ */
+export function cycleEntry(map: CollatzMap, n: bigint, budget: number, maxBits = 256): { min: bigint; period: number } | null {
+  const T = (v: bigint) => step(map, v);
+  const limit = 1n << BigInt(maxBits);
+  let power = 1;
+  let lam = 1;
+  let tortoise = n;
+  let hare = T(n);
+  for (let steps = 1; tortoise !== hare; steps++) {
+    if (steps > budget || hare >= limit || hare <= -limit) return null;
+    if (power === lam) {
+      tortoise = hare;
+      power *= 2;
+      lam = 0;
+    }
+    hare = T(hare);
+    lam++;
+  }
+  let min = hare;
+  for (let v = T(hare); v !== hare; v = T(v)) if (v < min) min = v;
+  return { min, period: lam };
+}
