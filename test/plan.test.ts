@@ -65,15 +65,15 @@ describe("plan layer: shards merge to the whole run", () => {
 });
 
 describe("plan layer: layout, weights and hashes", () => {
-  it("splitTasks covers every task once, contiguously, balancing weights where given", () => {
-    for (const [tasks, shards] of [
-      [10, 3],
-      [3, 5],
-      [0, 2],
-      [100, 1],
+  it("splitTasks covers every task once, contiguously, balancing weights where given, and makes no shard without work", () => {
+    for (const [tasks, shards, made] of [
+      [10, 3, 3],
+      [3, 5, 3],
+      [0, 2, 1],
+      [100, 1, 1],
     ] as const) {
       const ranges = splitTasks(tasks, shards);
-      expect(ranges).toHaveLength(shards);
+      expect(ranges).toHaveLength(made);
       expect(ranges[0]!.first).toBe(0);
       expect(ranges.at(-1)!.end).toBe(tasks);
       for (let i = 1; i < ranges.length; i++) expect(ranges[i]!.first).toBe(ranges[i - 1]!.end);
@@ -83,6 +83,11 @@ describe("plan layer: layout, weights and hashes", () => {
     expect(splitTasks(8, 2, w)).toEqual([
       { first: 0, end: 6 },
       { first: 6, end: 8 },
+    ]);
+    // one heavy task and weightless ones: 4 shards asked, the work fits 2 (the weightless tasks join a neighbour)
+    expect(splitTasks(5, 4, [0n, 9n, 0n, 0n, 1n])).toEqual([
+      { first: 0, end: 2 },
+      { first: 2, end: 5 },
     ]);
   });
 

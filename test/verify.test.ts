@@ -18,8 +18,14 @@ afterAll(() => {
   pool1.terminate();
 });
 
-/** Every n of [from, to) iterated here in BigInt: its glide, path, cycle, or none within `cap` steps. */
-function brute(map: CollatzMap, from: bigint, to: bigint, cap: number) {
+/**
+ * Every n of [from, to) iterated here in BigInt: its glide, path, cycle, or none within `cap` steps,
+ * and (given the sieve depth K) its outcome as a verification counts it: sieved at depth j when its
+ * class's coefficient q^m/2^j first drops below 1 at j <= K and n descends at that step, an exception
+ * when it drops but n does not descend there, checked when it does not drop within K.
+ */
+function brute(map: CollatzMap, from: bigint, to: bigint, cap: number, K = 0) {
+  const counts = { checked: 0n, exceptions: 0n, sievedByDepth: new Array<bigint>(K + 1).fill(0n) };
   const q = BigInt(map.q),
     r = BigInt(map.r);
   const glideRecords: bigint[] = [];
@@ -36,7 +42,8 @@ function brute(map: CollatzMap, from: bigint, to: bigint, cap: number) {
       steps = 0,
       odd = 0,
       path = n,
-      outcome = "unresolved";
+      outcome = "unresolved",
+      cut = 0;
     while (steps < cap) {
       if (v % 2n === 0n) v /= 2n;
       else {
@@ -44,6 +51,7 @@ function brute(map: CollatzMap, from: bigint, to: bigint, cap: number) {
         odd++;
       }
       steps++;
+      if (cut === 0 && steps <= K && q ** BigInt(odd) < 1n << BigInt(steps)) cut = steps;
       if (v > path) path = v;
       if (v < n) {
         outcome = "descent";
@@ -70,6 +78,11 @@ function brute(map: CollatzMap, from: bigint, to: bigint, cap: number) {
       } else unresolved.push(n);
       continue;
     }
+    if (outcome === "descent") {
+      if (cut > 0 && steps === cut) counts.sievedByDepth[cut]!++;
+      else if (cut > 0) counts.exceptions++;
+      else counts.checked++;
+    }
     if (outcome === "cycle") {
       cycles.push(n);
       path = n;
@@ -84,7 +97,7 @@ function brute(map: CollatzMap, from: bigint, to: bigint, cap: number) {
       maxPathN = n;
     }
   }
-  return { glideRecords, pathRecords, cycles, unresolved, entrants, bestGlide, bestPath, maxGlideN, maxPathN };
+  return { glideRecords, pathRecords, cycles, unresolved, entrants, bestGlide, bestPath, maxGlideN, maxPathN, counts, K };
 }
 
 function expectAgrees(r: VerifyResult, b: ReturnType<typeof brute>) {
@@ -98,7 +111,13 @@ function expectAgrees(r: VerifyResult, b: ReturnType<typeof brute>) {
   expect(r.maxGlide?.n ?? -1n).toBe(b.maxGlideN);
   expect(r.maxPath?.n ?? -1n).toBe(b.maxPathN);
   const c = r.counts;
-  expect(c.checked + c.sieved + c.exceptions + c.cycleMembers + c.cycleEntrants + c.unresolved).toBe(r.to - r.from);
+  if (b.K > 0) {
+    // counts by outcome and by cut depth, each n classified here
+    expect(r.sieveDepth).toBe(b.K);
+    expect(c.sievedByDepth).toEqual(b.counts.sievedByDepth);
+    expect(c.checked).toBe(b.counts.checked);
+    expect(c.exceptions).toBe(b.counts.exceptions);
+  }
   expect(c.cycleEntrants).toBe(BigInt(b.entrants.length));
   expect(c.cycleMembers).toBe(BigInt(b.cycles.length));
   expect(c.unresolved).toBe(BigInt(b.unresolved.length));
@@ -138,9 +157,8 @@ describe("verify: published records", () => {
 
   it("agrees with a plain BigInt brute force on every n of [1, 2^16), for sieve depths 6, 12 and 16", async () => {
     const map = parseMap("3x+1");
-    const b = brute(map, 1n, 1n << 16n, 100_000);
     for (const sieveDepth of [6, 12, 16])
-      expectAgrees(await runVerify(pool, { map, from: 1n, to: 1n << 16n, sieveDepth, stepDepth: 8 }), b);
+      expectAgrees(await runVerify(pool, { map, from: 1n, to: 1n << 16n, sieveDepth, stepDepth: 8 }), brute(map, 1n, 1n << 16n, 100_000, sieveDepth));
   });
 });
 
@@ -194,13 +212,13 @@ describe("verify: far ranges and other maps, against the brute force", () => {
       const map = parseMap(text);
       const r = await runVerify(pool, { map, from, to, sieveDepth, stepDepth: 16 });
       expect(r.engine).toBe("kernel");
-      expectAgrees(r, brute(map, from, to, 100_000));
+      expectAgrees(r, brute(map, from, to, 100_000, sieveDepth));
     });
   }
   it("3x+5: its cycle members are reported as such (minima 1, 5, 19, 23, 187, 347; Lagarias 1990, from memory)", async () => {
     const map = parseMap("3x+5");
     const r = await runVerify(pool, { map, from: 1n, to: 40_000n, sieveDepth: 12, stepDepth: 8 });
-    expectAgrees(r, brute(map, 1n, 40_000n, 100_000));
+    expectAgrees(r, brute(map, 1n, 40_000n, 100_000, 12));
     expect(r.cycleMembers.map((c) => c.n)).toEqual([1n, 5n, 19n, 23n, 187n, 347n]);
     // n such as 3 enter the cycle of 19 without going below themselves (3 -> 7 -> 13 -> 22 -> 11 -> 19)
     expect(r.cycleEntrants.find((e) => e.n === 3n)).toEqual({ n: 3n, cycleMin: 19n, period: 5 });
@@ -208,7 +226,7 @@ describe("verify: far ranges and other maps, against the brute force", () => {
   it("5x+1: the trajectories that pass the step cap are listed exactly as unresolved", async () => {
     const map = parseMap("5x+1");
     const r = await runVerify(pool, { map, from: 1n, to: 4000n, sieveDepth: 8, stepDepth: 8, maxSteps: 5000 });
-    const b = brute(map, 1n, 4000n, 5000);
+    const b = brute(map, 1n, 4000n, 5000, 8);
     expect(b.unresolved.length).toBeGreaterThan(100);
     expectAgrees(r, b);
     // 5x+1 cycles: 1 (period 5), 13 and 17 (7) (common practice)
@@ -222,8 +240,67 @@ describe("verify: far ranges and other maps, against the brute force", () => {
     const map = parseMap("3x-1");
     const r = await runVerify(pool, { map, from: 1n, to: 5000n, sieveDepth: 10 });
     expect(r.engine).toBe("bigint");
-    expectAgrees(r, brute(map, 1n, 5000n, 100_000));
+    expectAgrees(r, brute(map, 1n, 5000n, 100_000, 10));
     expect(r.cycleMembers.map((c) => c.n)).toEqual([1n, 5n, 17n]);
+  });
+});
+
+describe("verify: ends that are not aligned, shallow sieves, and numbers past 2^64 and 2^100", () => {
+  const cases: [string, bigint, bigint, number][] = [
+    ["3x+1", (1n << 40n) + 12345n, (1n << 40n) + (1n << 20n) + 777n, 12],
+    ["3x+1", 3n, 70_001n, 9],
+    ["5x+1", 999n, 3001n, 7],
+    ["7x+3", 1n, 5000n, 6],
+    ["3x+1", (1n << 64n) + 5n, (1n << 64n) + 3000n, 14],
+    ["3x+1", (1n << 100n) + 1n, (1n << 100n) + 1500n, 16],
+    ["3x+5", (1n << 65n) + (1n << 10n), (1n << 65n) + 3000n, 10],
+    ["3x-1", (1n << 70n) + 7n, (1n << 70n) + 2000n, 12],
+  ];
+  for (const [text, from, to, K] of cases) {
+    it(`${text} over [${from}, ${to}), sieve depth ${K}: counts by outcome and depth, records, maxima and lists`, async () => {
+      const map = parseMap(text);
+      const cap = text === "5x+1" || text === "7x+3" ? 3000 : 100_000;
+      expectAgrees(await runVerify(pool, { map, from, to, sieveDepth: K, stepDepth: 6, maxSteps: cap }), brute(map, from, to, cap, K));
+    });
+  }
+  it("sieve depths 1 to 6 (the kernel's own cycle path runs) agree with the brute force", async () => {
+    const map = parseMap("3x+1");
+    for (let K = 1; K <= 6; K++) {
+      for (const [from, to] of [
+        [1n, 3000n],
+        [(1n << 50n) + 11n, (1n << 50n) + 5000n],
+      ] as const)
+        expectAgrees(await runVerify(pool, { map, from, to, sieveDepth: K, stepDepth: 4 }), brute(map, from, to, 100_000, K));
+    }
+  });
+  it("delay records past 2^100 by plain iteration here", async () => {
+    const map = parseMap("3x+1");
+    const from = (1n << 100n) + 1n;
+    const r = await runVerify(pool, { map, from, to: from + 600n, sieveDepth: 10, delay: true });
+    let best = -1;
+    const records: bigint[] = [];
+    for (let n = from; n < from + 600n; n++) {
+      let v = n,
+        std = 0;
+      while (v !== 1n) {
+        std += v % 2n === 0n ? 1 : 2;
+        v = v % 2n === 0n ? v / 2n : (3n * v + 1n) / 2n;
+      }
+      if (std > best) {
+        best = std;
+        records.push(n);
+      }
+    }
+    expect(r.delay!.records.map((d) => d.n)).toEqual(records);
+    expect(r.delay!.max!.standardSteps).toBe(best);
+  });
+  it("a cycle member is one whatever the step cap (1 with a cap of 1; 19 of 3x+5 with a cap of 3)", async () => {
+    const one = await runVerify(pool, { map: parseMap("3x+1"), from: 1n, to: 3n, maxSteps: 1, sieveDepth: 4 });
+    expect(one.cycleMembers).toEqual([{ n: 1n, period: 2 }]);
+    expect(one.cycleEntrants).toEqual([]);
+    const five = await runVerify(pool, { map: parseMap("3x+5"), from: 1n, to: 40n, maxSteps: 3, sieveDepth: 4 });
+    expect(five.cycleMembers.map((m) => m.n)).toContain(19n);
+    expect(five.unresolvedList).not.toContain(19n);
   });
 });
 

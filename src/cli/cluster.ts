@@ -9,9 +9,19 @@ import type { KernelPool } from "../engine/pool.js";
 import { group, plural } from "../outputs/format.js";
 import { toExactJson } from "../outputs/json.js";
 import type { ToolStamp } from "../outputs/manifest.js";
-import { arrayList, checkParts, checkShard, createRun, readRun, runShardToDisk, runStatus, SCRIPT_FILE } from "../node/cluster.js";
+import {
+  arrayList,
+  checkParts,
+  checkShard,
+  createRun,
+  inspectParts,
+  readRun,
+  runShardToDisk,
+  runStatus,
+  SCRIPT_FILE,
+} from "../node/cluster.js";
 import type { RunDir } from "../node/cluster.js";
-import { toolStamp, withPool } from "../node/kernel.js";
+import { kernelBuildId, toolStamp, withPool } from "../node/kernel.js";
 import { censusBatch } from "./census.js";
 import { conjugacyBatch } from "./conjugacy.js";
 import { cyclesBatch } from "./cycles.js";
@@ -131,9 +141,13 @@ async function planBatch(name: string, spec: AnyBatchJob, o: BatchOptions): Prom
   const dir = o.dir;
   const plan = await withPool(workers, `plan ${name}`, (pool) => makePlan(pool, spec.job, params, shards, shards * cpus));
   const estimate = spec.job.estimate(plan, cpus);
+  if (plan.shards.length < shards)
+    process.stderr.write(
+      `asked for ${plural(shards, "shard")}, but only ${plan.shards.length} would have work (${plural(plan.tasks, "kernel task")}): planned ${plan.shards.length}\n`,
+    );
   await createRun(dir, spec.job, plan, { cpusPerTask: cpus, partition: o.partition, estimate });
   const head =
-    `planned ${spec.job.describe(plan.params)} as ${plural(shards, "shard")} of ${plural(plan.tasks, "kernel task")} ` +
+    `planned ${spec.job.describe(plan.params)} as ${plural(plan.shards.length, "shard")} of ${plural(plan.tasks, "kernel task")} ` +
     `in ${dir} (plan ${plan.hash.slice(0, 16)})\n` +
     `each task: ${cpus} cores, at most ${estimate.memoryMiB} MiB, about ${Math.ceil(estimate.seconds)} s of work (the script asks for more)\n`;
   if (!o.local) {
@@ -143,13 +157,13 @@ async function planBatch(name: string, spec: AnyBatchJob, o: BatchOptions): Prom
   print(head);
   const run = await readRun(dir, jobOf);
   await withPool(workers, `${name} shards`, async (pool, onProgress) => {
-    for (let i = 0; i < shards; i++) {
+    for (let i = 0; i < plan.shards.length; i++) {
       const r = await runShardToDisk(run, spec.job, i, pool, { table: spec.table });
-      onProgress(i + 1, shards);
+      onProgress(i + 1, plan.shards.length);
       process.stderr.write(`shard ${i}: ${r.seconds.toFixed(2)} s\n`);
     }
   });
-  print(`ran ${plural(shards, "shard")} here; next: glidepath merge ${dir}\n`);
+  print(`ran ${plural(plan.shards.length, "shard")} here; next: glidepath merge ${dir}\n`);
 }
 
 async function shard(dir: string, index: string, o: RawOptions): Promise<void> {
@@ -166,28 +180,54 @@ async function shard(dir: string, index: string, o: RawOptions): Promise<void> {
   );
 }
 
+/**
+ * What is done, failed, missing or damaged, with the same checks as merge (digests, hashes, plan);
+ * the lines that rerun the rest on Slurm and here; exit 1 while the run is not complete and sound.
+ */
 async function status(dir: string, o: RawOptions): Promise<void> {
   const run = await readRun(dir, jobOf);
   const s = runStatus(run);
-  const rerun = [...s.failed.map((f) => f.shard), ...s.missing].sort((a, b) => a - b);
-  const line = rerun.length > 0 ? `sbatch --array=${arrayList(rerun)} ${dir}/${SCRIPT_FILE}` : null;
+  const inspected = await inspectParts(run, await kernelBuildId());
+  const failed = s.failed.filter((f) => inspected.missing.includes(f.shard));
+  const missing = inspected.missing.filter((i) => !failed.some((f) => f.shard === i));
+  const rerun = [...inspected.missing, ...inspected.bad].sort((a, b) => a - b);
+  const complete = rerun.length === 0 && inspected.problems.length === 0;
+  const slurmLine = rerun.length > 0 ? `sbatch --array=${arrayList(rerun)} ${dir}/${SCRIPT_FILE}` : null;
+  const localLine =
+    rerun.length === 0
+      ? null
+      : rerun.length === 1
+        ? `glidepath shard ${dir} ${rerun[0]}`
+        : `for i in ${rerun.join(" ")}; do glidepath shard ${dir} $i; done`;
   if (o.json) {
     print(
-      `${toExactJson({ shards: s.shards, done: s.done.length, failed: s.failed, missing: s.missing, complete: rerun.length === 0, rerun: line })}\n`,
+      `${toExactJson({
+        shards: s.shards,
+        done: inspected.parts.length,
+        failed,
+        missing,
+        damaged: inspected.bad,
+        problems: inspected.problems,
+        complete,
+        rerun: slurmLine,
+        rerunHere: localLine,
+      })}\n`,
     );
-    return;
+  } else {
+    const spec = batchJob(run.plan.job);
+    print(
+      [
+        `${spec.job.describe(run.plan.params)}: ${plural(s.shards, "shard")} (plan ${run.plan.hash.slice(0, 16)})`,
+        `done ${inspected.parts.length}, failed ${failed.length}, missing ${missing.length}, damaged ${inspected.bad.length}`,
+        ...failed.map((f) => `  failed: shard ${f.shard}: ${f.error}`),
+        ...(missing.length > 0 ? [`  missing: ${arrayList(missing)} (not run yet, running, or killed before it could say)`] : []),
+        ...inspected.problems.filter((p) => !/: missing/.test(p)).map((p) => `  damaged: ${p}`),
+        ...(slurmLine ? [`rerun what is not done: ${slurmLine}`, `  or here: ${localLine}`] : [`complete: glidepath merge ${dir}`]),
+        "",
+      ].join("\n"),
+    );
   }
-  const spec = batchJob(run.plan.job);
-  print(
-    [
-      `${spec.job.describe(run.plan.params)}: ${plural(s.shards, "shard")} (plan ${run.plan.hash.slice(0, 16)})`,
-      `done ${s.done.length}, failed ${s.failed.length}, missing ${s.missing.length}`,
-      ...s.failed.map((f) => `  failed: shard ${f.shard}: ${f.error}`),
-      ...(s.missing.length > 0 ? [`  missing: ${arrayList(s.missing)} (not run yet, running, or killed before it could say)`] : []),
-      line ? `rerun what is not done: ${line}` : `complete: glidepath merge ${dir}`,
-      "",
-    ].join("\n"),
-  );
+  if (!complete) throw new Error(`${dir} is not complete: ${plural(rerun.length, "shard")} to rerun`); // exit 1, after the report
 }
 
 async function merge(dir: string, o: RawOptions): Promise<void> {

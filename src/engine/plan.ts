@@ -140,7 +140,8 @@ export function planHash<P>(job: JobKind<P, PartBase, unknown>, p: Omit<Plan<P>,
 /**
  * Tasks 0..tasks-1 cut into `shards` contiguous ranges: of nearly equal total weight when weights
  * are given (boundary i is the first task whose preceding weights reach i/shards of the total),
- * else of sizes that differ by at most one.
+ * else of sizes that differ by at most one. Shards that would get no work (no task, or tasks of
+ * weight 0) are not made: fewer shards come back.
  * @example splitTasks(4, 2) // [{ first: 0, end: 2 }, { first: 2, end: 4 }]
  */
 export function splitTasks(tasks: number, shards: number, weights?: readonly bigint[] | null): TaskRange[] {
@@ -155,7 +156,17 @@ export function splitTasks(tasks: number, shards: number, weights?: readonly big
     }
   } else for (let i = 1; i < shards; i++) bounds.push(Math.floor((i * tasks) / shards));
   bounds.push(tasks);
-  return Array.from({ length: shards }, (_, i) => ({ first: bounds[i]!, end: bounds[i + 1]! }));
+  // a shard with no task, or with tasks of no weight, would run for nothing: its tasks join a neighbour
+  const ranges = Array.from({ length: shards }, (_, i) => ({ first: bounds[i]!, end: bounds[i + 1]! }));
+  const weightOf = (r: TaskRange) => (weights ? weights.slice(r.first, r.end).reduce((s, w) => s + w, 0n) : BigInt(r.end - r.first));
+  const kept: TaskRange[] = [];
+  for (const r of ranges) {
+    if (r.end === r.first) continue;
+    const last = kept.at(-1);
+    if (last && (weightOf(r) === 0n || weightOf(last) === 0n)) kept[kept.length - 1] = { first: last.first, end: r.end };
+    else kept.push(r);
+  }
+  return kept.length > 0 ? kept : [{ first: 0, end: tasks }];
 }
 
 /**

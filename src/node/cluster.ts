@@ -328,17 +328,28 @@ export interface CheckedPart<Part> {
   readonly finished: string;
 }
 
+/** Every part of a run inspected: the good ones read back, and one line for each missing or bad one. */
+export interface PartInspection<Part> {
+  readonly parts: CheckedPart<Part>[];
+  /** Shards with no part (failed or not run), and shards whose part is damaged, altered or foreign. */
+  readonly missing: number[];
+  readonly bad: number[];
+  readonly problems: string[];
+}
+
 /**
- * Checks every part against the plan (kind, shard number, plan hash, kernel build, the size and
- * sha256 of every file it lists; every shard once, nothing else) and reads them back, or refuses
- * with one line naming each missing or bad part.
+ * Checks every part against the plan: kind, shard number, plan hash, kernel build, the part's own
+ * digest (its results cannot be altered unseen), the size and sha256 of every file it lists;
+ * every shard once, nothing else. `merge` and `batch-status` both use it.
  */
-export async function checkParts<P, Part extends PartBase>(run: RunDir<P>, build: string): Promise<CheckedPart<Part>[]> {
+export async function inspectParts<P, Part extends PartBase>(run: RunDir<P>, build: string): Promise<PartInspection<Part>> {
   const n = run.plan.shards.length;
   if (build !== run.plan.kernelBuild)
     throw new UsageError(`${run.dir} was planned by kernel build ${run.plan.kernelBuild}; this glidepath is build ${build}`);
   const problems: string[] = [];
   const parts: CheckedPart<Part>[] = [];
+  const missing: number[] = [];
+  const bad: number[] = [];
   const status = runStatus(run);
   const failed = new Map(status.failed.map((f) => [f.shard, f.error]));
   for (const name of readdirSync(join(run.dir, PARTS))) {
@@ -346,69 +357,71 @@ export async function checkParts<P, Part extends PartBase>(run: RunDir<P>, build
     if (m && Number(m[1]) >= n) problems.push(`part ${m[1]}: not in the plan (shards 0 to ${n - 1})`);
   }
   for (let i = 0; i < n; i++) {
-    const path = partPath(run.dir, i, "json");
-    if (!existsSync(path)) {
+    const why = await inspectPart<Part>(run, i, parts);
+    if (why === null) continue;
+    if (why === "missing") {
+      missing.push(i);
       problems.push(`part ${i}: missing${failed.has(i) ? ` (the shard failed: ${failed.get(i)})` : ""}`);
-      continue;
-    }
-    let m: Record<string, unknown>;
-    let exact: Record<string, unknown>;
-    try {
-      const text = await readFile(path, "utf8");
-      m = JSON.parse(text) as Record<string, unknown>;
-      exact = parseExactJson(text) as Record<string, unknown>;
-    } catch {
-      problems.push(`part ${i}: ${PARTS}/${i}.json is not JSON (truncated or damaged)`);
-      continue;
-    }
-    if (m.kind !== PART_KIND) problems.push(`part ${i}: ${PARTS}/${i}.json is not a glidepath part`);
-    else if (m.shard !== i) problems.push(`part ${i}: its manifest says shard ${String(m.shard)}`);
-    else if (m.plan !== run.plan.hash)
-      problems.push(`part ${i}: written for plan ${String(m.plan).slice(0, 16)}, this run's plan is ${run.plan.hash.slice(0, 16)}`);
-    else if (m.kernelBuild !== run.plan.kernelBuild) problems.push(`part ${i}: written by kernel build ${String(m.kernelBuild)}`);
-    else if (typeof m.digest !== "string" || partDigest(withoutDigest(exact)) !== m.digest)
-      problems.push(`part ${i}: ${PARTS}/${i}.json was changed after it was written (its digest does not match its content)`);
-    else {
-      const files = m.files as { file: string; bytes: number; sha256: string }[];
-      let bad = false;
-      for (const f of files) {
-        const fp = join(run.dir, PARTS, f.file);
-        if (!existsSync(fp)) {
-          problems.push(`part ${i}: ${PARTS}/${f.file} is missing`);
-          bad = true;
-          continue;
-        }
-        const got = await fileSha256(fp);
-        if (got.bytes !== BigInt(f.bytes) || got.sha256 !== f.sha256) {
-          problems.push(
-            `part ${i}: ${PARTS}/${f.file} differs from its manifest (sha256 ${got.sha256.slice(0, 16)}, expected ${f.sha256.slice(0, 16)})`,
-          );
-          bad = true;
-        }
-      }
-      if (bad) continue;
-      let part: Part;
-      try {
-        part = unpackData(m.data, (file) => readFileSync(join(run.dir, PARTS, file))) as Part;
-      } catch (e) {
-        problems.push(`part ${i}: its data cannot be read (${e instanceof Error ? e.message : String(e)})`);
-        continue;
-      }
-      const table = files.find((f) => f.file === `${i}.table`);
-      parts.push({
-        shard: i,
-        part,
-        table: table ? join(run.dir, PARTS, table.file) : null,
-        started: String(m.started),
-        finished: String(m.finished),
-      });
+    } else {
+      bad.push(i);
+      problems.push(`part ${i}: ${why}`);
     }
   }
-  if (problems.length > 0)
+  return { parts, missing, bad, problems };
+}
+
+/** One part checked and, when good, read into `parts`: null, "missing", or what is wrong with it. */
+async function inspectPart<Part>(run: RunDir<unknown>, i: number, parts: CheckedPart<Part>[]): Promise<string | null> {
+  const path = partPath(run.dir, i, "json");
+  if (!existsSync(path)) return "missing";
+  let m: Record<string, unknown>;
+  let exact: Record<string, unknown>;
+  try {
+    const text = await readFile(path, "utf8");
+    m = JSON.parse(text) as Record<string, unknown>;
+    exact = parseExactJson(text) as Record<string, unknown>;
+  } catch {
+    return `${PARTS}/${i}.json is not JSON (truncated or damaged)`;
+  }
+  if (m.kind !== PART_KIND) return `${PARTS}/${i}.json is not a glidepath part`;
+  if (m.shard !== i) return `its manifest says shard ${String(m.shard)}`;
+  if (m.plan !== run.plan.hash) return `written for plan ${String(m.plan).slice(0, 16)}, this run's plan is ${run.plan.hash.slice(0, 16)}`;
+  if (m.kernelBuild !== run.plan.kernelBuild) return `written by kernel build ${String(m.kernelBuild)}`;
+  if (typeof m.digest !== "string" || partDigest(withoutDigest(exact)) !== m.digest)
+    return `${PARTS}/${i}.json was changed after it was written (its digest does not match its content)`;
+  const files = m.files as { file: string; bytes: number; sha256: string }[];
+  for (const f of files) {
+    const fp = join(run.dir, PARTS, f.file);
+    if (!existsSync(fp)) return `${PARTS}/${f.file} is missing`;
+    const got = await fileSha256(fp);
+    if (got.bytes !== BigInt(f.bytes) || got.sha256 !== f.sha256)
+      return `${PARTS}/${f.file} differs from its manifest (sha256 ${got.sha256.slice(0, 16)}, expected ${f.sha256.slice(0, 16)})`;
+  }
+  let part: Part;
+  try {
+    part = unpackData(m.data, (file) => readFileSync(join(run.dir, PARTS, file))) as Part;
+  } catch (e) {
+    return `its data cannot be read (${e instanceof Error ? e.message : String(e)})`;
+  }
+  const table = files.find((f) => f.file === `${i}.table`);
+  parts.push({
+    shard: i,
+    part,
+    table: table ? join(run.dir, PARTS, table.file) : null,
+    started: String(m.started),
+    finished: String(m.finished),
+  });
+  return null;
+}
+
+/** The parts of a complete, undamaged run, or a refusal with one line naming each missing or bad part. */
+export async function checkParts<P, Part extends PartBase>(run: RunDir<P>, build: string): Promise<CheckedPart<Part>[]> {
+  const r = await inspectParts<P, Part>(run, build);
+  if (r.problems.length > 0)
     throw new UsageError(
-      `merge refused: ${problems.length} of ${n} parts are missing or bad (nothing was written): ${problems.join("; ")}`,
+      `merge refused: ${r.problems.length} of ${run.plan.shards.length} parts are missing or bad (nothing was written): ${r.problems.join("; ")}`,
     );
-  return parts;
+  return r.parts;
 }
 
 function withoutDigest(m: Record<string, unknown>): Record<string, unknown> {

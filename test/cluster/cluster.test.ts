@@ -9,7 +9,7 @@ import { promisify } from "node:util";
 import { afterAll, describe, expect, it } from "vitest";
 import { A076227 } from "../../src/core/published.js";
 import { parseExactJson } from "../../src/outputs/json.js";
-import { requireProgram } from "../system.js";
+import { privateSlurm } from "../system.js";
 
 const BIN = new URL("../../bin/glidepath.js", import.meta.url).pathname;
 const exec = promisify(execFile);
@@ -147,11 +147,14 @@ describe("cluster: failures are found, rerun and merged; bad parts are refused",
     expect(ran.map((r) => r.code)).toEqual([0, 0, 0, 1, 0, 0]);
     expect(ran[3]!.stderr.trim().split("\n")).toEqual(["glidepath: shard 3 failed on purpose (GLIDEPATH_FAIL_SHARDS)"]);
     rmSync(join(run, "parts", "5.json")); // as if task 5 had been killed
-    const text = await ok(["batch-status", run]);
-    expect(text).toContain("done 4, failed 1, missing 1");
+    const st = await cli(["batch-status", run]);
+    expect(st.code).toBe(1); // not complete
+    const text = st.stdout;
+    expect(text).toContain("done 4, failed 1, missing 1, damaged 0");
     expect(text).toContain("failed: shard 3: shard 3 failed on purpose");
     expect(text).toContain(`rerun what is not done: sbatch --array=3,5 ${run}/job.sbatch`);
-    const j = parseExactJson(await ok(["batch-status", run, "--json"])) as { complete: boolean; missing: bigint[] };
+    expect(text).toContain(`or here: for i in 3 5; do glidepath shard ${run} $i; done`);
+    const j = parseExactJson((await cli(["batch-status", run, "--json"])).stdout) as { complete: boolean; missing: bigint[] };
     expect(j.complete).toBe(false);
     expect(j.missing).toEqual([5n]);
   });
@@ -201,6 +204,55 @@ describe("cluster: failures are found, rerun and merged; bad parts are refused",
     expect(r2.stderr).toMatch(/part 2: written for plan [0-9a-f]{16}, this run's plan is [0-9a-f]{16}/);
   });
 
+  it("a part whose results were edited, truncated or taken from another run is refused by merge and batch-status, naming it", async () => {
+    const vrun = runDir("tamper-verify");
+    await ok(["batch", "verify", "--from", "1", "--to", "2^22", "--sieve-depth", "12", "--shards", "3", "--dir", vrun, "--local"]);
+    expect((await cli(["batch-status", vrun])).code).toBe(0);
+    const path = join(vrun, "parts", "1.json");
+    const text = readFileSync(path, "utf8");
+    // one count moved from checked to exceptions in a block of part 1 (its total unchanged)
+    const edited = text.replace(
+      /"checked":\{"\$n":"(\d+)"\},"sievedByDepth":(\[[^\]]*\]),"exceptions":\{"\$n":"(\d+)"\}/,
+      (_m, c, s, e) => `"checked":{"$n":"${BigInt(c) - 1n}"},"sievedByDepth":${s},"exceptions":{"$n":"${BigInt(e) + 1n}"}`,
+    );
+    expect(edited).not.toBe(text);
+    for (const [content, why] of [
+      [edited, /part 1: parts\/1\.json was changed after it was written/],
+      [text.slice(0, text.length >> 1), /part 1: parts\/1\.json is not JSON \(truncated or damaged\)/],
+    ] as const) {
+      writeFileSync(path, content);
+      const m = await cli(["merge", vrun]);
+      expect(m.code).toBe(2);
+      expect(m.stderr.trim().split("\n")).toHaveLength(1);
+      expect(m.stderr).toMatch(why);
+      const st = await cli(["batch-status", vrun]);
+      expect(st.code).toBe(1);
+      expect(st.stdout).toMatch(/damaged 1/);
+      expect(st.stdout).toContain(`rerun what is not done: sbatch --array=1 ${vrun}/job.sbatch`);
+    }
+    writeFileSync(path, text);
+    const merged = parseExactJson(await ok(["merge", vrun, "--out", join(dir, "tamper.cert.json")])) as { counts: { numbers: bigint } };
+    expect(merged.counts.numbers).toBe((1n << 22n) - 1n);
+    const cert = parseExactJson(readFileSync(join(dir, "tamper.cert.json"), "utf8")) as { started: string; finished: string };
+    const times = [0, 1, 2].map(
+      (i) => parseExactJson(readFileSync(join(vrun, "parts", `${i}.json`), "utf8")) as { started: string; finished: string },
+    );
+    expect(cert.started).toBe(times.map((t) => t.started).sort()[0]); // the earliest start, the latest finish
+    expect(cert.finished).toBe(
+      times
+        .map((t) => t.finished)
+        .sort()
+        .at(-1),
+    );
+  });
+
+  it("shards beyond the work are not planned, and batch says so", async () => {
+    const r = await cli(["batch", "verify", "--from", "2^26", "--to", "2^27", "--shards", "4", "--dir", runDir("small-verify")]);
+    expect(r.code).toBe(0);
+    expect(r.stderr).toMatch(/asked for 4 shards, but only 1 would have work \(1 kernel task\): planned 1/);
+    expect(r.stdout).toMatch(/as 1 shard of 1 kernel task/);
+  });
+
   it("bad requests get one line and exit 2", async () => {
     const cases: [string[], RegExp][] = [
       [["batch", "sieve", "--depth", "20", "--dir", runDir("x")], /--shards is required/],
@@ -220,14 +272,15 @@ describe("cluster: failures are found, rerun and merged; bad parts are refused",
   });
 });
 
-const hasSlurm = requireProgram("Slurm", "/usr/bin/sbatch", "apt-get install -y slurm-wlm munge; test/cluster/slurm.sh start");
+// submitted only to the private single-node Slurm that test/cluster/slurm.sh started, when asked for
+const slurm = privateSlurm();
 
-describe.runIf(hasSlurm)("cluster: a real Slurm job array (sbatch --wait)", () => {
+describe.runIf(slurm !== null)("cluster: a real Slurm job array (sbatch --wait)", () => {
   for (const job of JOBS.filter((j) => j.name !== "conjugacy")) {
     it(`${job.name}: submitted, merged, equal to the one-machine command`, { timeout: 300_000 }, async () => {
       const run = runDir(`slurm-${job.name}`);
       await ok(["batch", job.name, ...job.opts, "--shards", String(job.shards), "--dir", run, "--cpus-per-task", "1"]);
-      const sub = await sh("sbatch", ["--wait", join(run, "job.sbatch")]);
+      const sub = await sh("sbatch", ["--wait", join(run, "job.sbatch")], slurm!);
       expect(sub.code, sub.stderr).toBe(0);
       expect(await ok(["batch-status", run])).toContain("complete");
       const out = job.name === "sieve" ? ["--out", join(dir, "slurm.u32")] : [];
@@ -241,15 +294,17 @@ describe.runIf(hasSlurm)("cluster: a real Slurm job array (sbatch --wait)", () =
   it("a task that fails is named by batch-status; its rerun line, submitted, completes the run", { timeout: 300_000 }, async () => {
     const run = runDir("slurm-fail");
     await ok(["batch", "census", "--depth", "22", "--shards", "4", "--dir", run, "--cpus-per-task", "1"]);
-    const sub = await sh("sbatch", ["--wait", "--export=ALL,GLIDEPATH_FAIL_SHARDS=2", join(run, "job.sbatch")]);
+    const sub = await sh("sbatch", ["--wait", "--export=ALL,GLIDEPATH_FAIL_SHARDS=2", join(run, "job.sbatch")], slurm!);
     expect(sub.code).not.toBe(0); // sbatch --wait reports the failed task
-    const text = await ok(["batch-status", run]);
+    const status = await cli(["batch-status", run]);
+    expect(status.code).toBe(1);
+    const text = status.stdout;
     expect(text).toContain("failed: shard 2: shard 2 failed on purpose");
     const line = /rerun what is not done: (sbatch .*)$/m.exec(text)?.[1];
     expect(line).toBe(`sbatch --array=2 ${run}/job.sbatch`);
     expect(readFileSync(join(run, "logs", "shard-2.out"), "utf8")).toContain("shard 2 failed on purpose");
     const [cmd, ...args] = line!.split(" ");
-    const again = await sh(cmd!, ["--wait", ...args]);
+    const again = await sh(cmd!, ["--wait", ...args], slurm!);
     expect(again.code, again.stderr).toBe(0);
     expect(await ok(["batch-status", run])).toContain("complete");
     expect(untimed(await ok(["merge", run]))).toEqual(untimed(await ok(["census", "--depth", "22", "--json", "--workers", "2"])));

@@ -1,24 +1,36 @@
 #!/usr/bin/env bash
-# A real single-node Slurm on this machine for the cluster tests (as root, Debian's slurm-wlm and
-# munge): `slurm.sh start` writes slurm.conf from slurm.conf.in, starts munged, slurmctld and
-# slurmd and waits until the node is idle; `slurm.sh stop` stops them.
+# A private single-node Slurm on this machine for the cluster tests (as root, Debian's slurm-wlm and
+# munge). `slurm.sh start` writes its own slurm.conf into its own state folder (never /etc/slurm),
+# starts its own munged (own socket and key), slurmctld and slurmd on ports of their own, records
+# their process ids, and waits until the node is idle. `slurm.sh stop` stops those processes only,
+# by the ids it recorded; a machine's own Slurm and munge are left alone. The tests find the
+# controller through $STATE/slurm.conf (SLURM_CONF) and check it is this one before any sbatch.
 set -euo pipefail
 here="$(cd "$(dirname "$0")" && pwd)"
-state=/var/tmp/glidepath-slurm
-conf=/etc/slurm/slurm.conf
+state="${GLIDEPATH_SLURM_STATE:-/var/tmp/glidepath-slurm}"
+conf="$state/slurm.conf"
+socket="$state/munge/munge.socket"
+# a daemon recorded in PIDFILE, alive and still the program NAME
+alive() { local pid; pid="$(cat "$1" 2>/dev/null)" || return 1; [ -n "$pid" ] && [ "$(cat /proc/"$pid"/comm 2>/dev/null)" = "$2" ]; }
 case "${1:-}" in
 start)
-  mkdir -p "$state/ctld" "$state/d" /run/munge /var/log/munge /var/lib/munge
-  chown munge:munge /run/munge /var/log/munge /var/lib/munge 2>/dev/null || true
-  [ -s /etc/munge/munge.key ] || { dd if=/dev/urandom bs=1 count=1024 of=/etc/munge/munge.key 2>/dev/null; chown munge:munge /etc/munge/munge.key; chmod 400 /etc/munge/munge.key; }
+  for p in slurmctld slurmd munged; do
+    if alive "$state/$p.pid" "$p"; then echo "slurm: already running (from $state)"; exit 0; fi
+  done
+  mkdir -p "$state/ctld" "$state/d" "$state/munge"
+  chmod 700 "$state/munge"
+  [ -s "$state/munge/munge.key" ] || { dd if=/dev/urandom bs=1 count=1024 of="$state/munge/munge.key" 2>/dev/null; chmod 400 "$state/munge/munge.key"; }
   host="$(hostname -s)"
   mem=$(( $(awk '/MemTotal/ {print $2}' /proc/meminfo) / 1024 - 1024 ))
-  sed -e "s|@HOST@|$host|g" -e "s|@CPUS@|$(nproc)|g" -e "s|@MEM@|$mem|g" -e "s|@STATE@|$state|g" "$here/slurm.conf.in" > "$conf"
-  pgrep -x munged >/dev/null || su -s /bin/sh munge -c /usr/sbin/munged || /usr/sbin/munged --force
-  pgrep -x slurmctld >/dev/null || /usr/sbin/slurmctld
-  pgrep -x slurmd >/dev/null || /usr/sbin/slurmd
+  sed -e "s|@HOST@|$host|g" -e "s|@CPUS@|$(nproc)|g" -e "s|@MEM@|$mem|g" -e "s|@STATE@|$state|g" -e "s|@SOCKET@|$socket|g" \
+    "$here/slurm.conf.in" > "$conf"
+  /usr/sbin/munged --force --socket="$socket" --key-file="$state/munge/munge.key" --pid-file="$state/munged.pid" \
+    --log-file="$state/munged.log" --seed-file="$state/munge/munged.seed"
+  /usr/sbin/slurmctld -f "$conf"
+  /usr/sbin/slurmd -f "$conf"
+  export SLURM_CONF="$conf"
   for _ in $(seq 1 60); do
-    if sinfo -h -N -o '%t' 2>/dev/null | grep -qx 'idle'; then echo "slurm: $host idle"; exit 0; fi
+    if sinfo -h -N -o '%t' 2>/dev/null | grep -qx 'idle'; then echo "slurm: $host idle (SLURM_CONF=$conf)"; exit 0; fi
     scontrol update nodename="$host" state=resume >/dev/null 2>&1 || true
     sleep 1
   done
@@ -28,10 +40,15 @@ start)
   exit 1
   ;;
 stop)
-  pkill -x slurmd 2>/dev/null || true
-  pkill -x slurmctld 2>/dev/null || true
-  pkill -x munged 2>/dev/null || true
-  echo "slurm: stopped"
+  for p in slurmd slurmctld munged; do
+    if alive "$state/$p.pid" "$p"; then kill "$(cat "$state/$p.pid")"; fi
+  done
+  for _ in $(seq 1 20); do
+    alive "$state/slurmd.pid" slurmd || alive "$state/slurmctld.pid" slurmctld || alive "$state/munged.pid" munged || break
+    sleep 0.5
+  done
+  rm -f "$state/slurmd.pid" "$state/slurmctld.pid" "$state/munged.pid"
+  echo "slurm: stopped (the daemons started from $state)"
   ;;
 *)
   echo "usage: $0 start|stop" >&2
