@@ -123,7 +123,7 @@ function expectAgrees(r: VerifyResult, b: ReturnType<typeof brute>) {
   expect(c.unresolved).toBe(BigInt(b.unresolved.length));
 }
 
-const stable = (r: VerifyResult) => toExactJson({ ...verifyJson(r), seconds: 0, blockCount: 0 });
+const stable = (r: VerifyResult) => toExactJson({ ...verifyJson(r), seconds: 0, blockCount: 0, blockTarget: null });
 
 describe("verify: published records", () => {
   it("3x+1 from 1 below 2^28: glide records are OEIS A060412 (both odd and halving steps counted)", async () => {
@@ -158,7 +158,10 @@ describe("verify: published records", () => {
   it("agrees with a plain BigInt brute force on every n of [1, 2^16), for sieve depths 6, 12 and 16", async () => {
     const map = parseMap("3x+1");
     for (const sieveDepth of [6, 12, 16])
-      expectAgrees(await runVerify(pool, { map, from: 1n, to: 1n << 16n, sieveDepth, stepDepth: 8 }), brute(map, 1n, 1n << 16n, 100_000, sieveDepth));
+      expectAgrees(
+        await runVerify(pool, { map, from: 1n, to: 1n << 16n, sieveDepth, stepDepth: 8 }),
+        brute(map, 1n, 1n << 16n, 100_000, sieveDepth),
+      );
   });
 });
 
@@ -295,10 +298,12 @@ describe("verify: ends that are not aligned, shallow sieves, and numbers past 2^
     expect(r.delay!.max!.standardSteps).toBe(best);
   });
   it("a cycle member is one whatever the step cap (1 with a cap of 1; 19 of 3x+5 with a cap of 3)", async () => {
-    const one = await runVerify(pool, { map: parseMap("3x+1"), from: 1n, to: 3n, maxSteps: 1, sieveDepth: 4 });
+    // a cap below the sieve depth is refused: the sieve's classes descend at their cut depth
+    expect(() => planVerify({ map: parseMap("3x+1"), from: 1n, to: 3n, maxSteps: 1, sieveDepth: 4 })).toThrow(/below the sieve depth/);
+    const one = await runVerify(pool, { map: parseMap("3x+1"), from: 1n, to: 3n, maxSteps: 1, sieveDepth: 1 });
     expect(one.cycleMembers).toEqual([{ n: 1n, period: 2 }]);
     expect(one.cycleEntrants).toEqual([]);
-    const five = await runVerify(pool, { map: parseMap("3x+5"), from: 1n, to: 40n, maxSteps: 3, sieveDepth: 4 });
+    const five = await runVerify(pool, { map: parseMap("3x+5"), from: 1n, to: 40n, maxSteps: 3, sieveDepth: 3 });
     expect(five.cycleMembers.map((m) => m.n)).toContain(19n);
     expect(five.unresolvedList).not.toContain(19n);
   });

@@ -86,6 +86,11 @@ export function planVerify(req: VerifyRequest): VerifyPlan {
     throw new LimitError(`step depth ${stepDepth} is out of range: 1 to ${stepLimit}`);
   if (!Number.isInteger(maxSteps) || maxSteps < 1 || maxSteps > MAX_MAX_STEPS)
     throw new UsageError(`max steps must be from 1 to ${MAX_MAX_STEPS}`);
+  // the sieve counts its classes as descending at their cut depth j <= K, which a smaller cap would contradict
+  if (maxSteps < sieveDepth)
+    throw new UsageError(
+      `max steps ${maxSteps} is below the sieve depth ${sieveDepth}: give a sieve depth of at most ${maxSteps}, or more steps`,
+    );
   if (!Number.isInteger(limitBits) || limitBits < 8 || limitBits > 128) throw new UsageError("limitBits must be from 8 to 128");
   const engine = map.r > 0 && to <= TWO64 ? "kernel" : "bigint";
   if (engine === "bigint" && to - from > MAX_BIGINT_NUMBERS) {
