@@ -98,15 +98,32 @@ describe("exact counter: special", () => {
   it("depth 0 is the single class, nothing stopped", () => {
     expect(exactCounts(parseMap("3x+1"), 0).levels).toEqual([{ depth: 0, survivors: 1n, stopped: 0n }]);
   });
-  it("reaches depth 10,000 with every class mod 2^K accounted for (conservation: sum stopped(j) 2^(K-j) + survivors(K) = 2^K)", () => {
-    let total = 0n;
-    let last = 0n;
-    const K = 10_000;
-    for (const row of exactRows(parseMap("3x+1"), K)) {
-      total += row.stopped << BigInt(K - row.depth);
-      last = row.survivors;
+  it("to depth 1,200, survivors and stopped counts equal a plain lattice-path count written here (3x+1 and 5x+1)", () => {
+    // a class mod 2^j is alive while q^m >= 2^i at every step i <= j (m: odd steps among the first i);
+    // count the parity words by their number of odd steps, step by step, with the bound tested in BigInt
+    for (const [text, K] of [
+      ["3x+1", 1200],
+      ["5x+1", 700],
+    ] as const) {
+      const q = BigInt(parseMap(text).q);
+      let alive = [1n]; // alive[m]: live words of the current length with m odd steps
+      const rows = [...exactRows(parseMap(text), K)];
+      for (let j = 1; j <= K; j++) {
+        const next = new Array<bigint>(alive.length + 1).fill(0n);
+        let stopped = 0n;
+        const bound = 1n << BigInt(j);
+        alive.forEach((count, m) => {
+          if (count === 0n) return;
+          for (const odd of [0, 1]) {
+            if (q ** BigInt(m + odd) >= bound) next[m + odd]! += count;
+            else stopped += count;
+          }
+        });
+        alive = next;
+        expect(rows[j]!.stopped, `${text} stopped at depth ${j}`).toBe(stopped);
+        expect(rows[j]!.survivors, `${text} survivors at depth ${j}`).toBe(alive.reduce((s, x) => s + x, 0n));
+      }
     }
-    expect(total + last).toBe(1n << BigInt(K));
   }, 60_000);
   it("the streamed rows equal the collected counts", () => {
     const map = parseMap("3x-1");

@@ -124,6 +124,17 @@ describe("inverse tree: against a forward brute force", () => {
     const byDepth = new Array<bigint>(31).fill(0n);
     for (const e of edges) byDepth[e.depth]!++;
     expect(r.levels.map((l) => l.nodes)).toEqual(byDepth);
+    // complete, by forward steps alone: every x with T(x) = y for a node y above depth 30 is a node one
+    // depth down (T(x) = y needs x = 2y, or q x + r = 2y: x within a window around 2y/3, tried forward)
+    const at = new Map(edges.map((e) => [e.node, e.depth]));
+    for (const e of edges) {
+      if (e.depth === 30) continue;
+      const y = e.node;
+      for (let x = (2n * y - 1n) / 3n - 2n; x <= (2n * y - 1n) / 3n + 2n; x++)
+        if (x > 0n && T(3n, 1n, x) === y) expect(at.get(x), `odd predecessor ${x} of ${y}`).toBe(e.depth + 1);
+      for (const x of [2n * y - 1n, 2n * y, 2n * y + 1n])
+        if (T(3n, 1n, x) === y) expect(at.get(x), `predecessor ${x} of ${y}`).toBe(e.depth + 1);
+    }
   });
 });
 
