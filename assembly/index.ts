@@ -7,3 +7,4 @@ export { cycleSearch } from "./cycles";
 export { census } from "./census";
 export { inverseTree } from "./inverse";
 export { verifyPrepare, verifyAligned, verifyRange, verifyDelays } from "./verify";
+export { probe128 } from "./u128";

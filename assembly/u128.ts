@@ -1,9 +1,12 @@
-// Signed 128-bit helpers as (hi, lo) pairs of u64 in two's complement; results in globals rlo/rhi.
-// Only what the kernels need: add, arithmetic shift by one, multiply by a small factor, the low
-// 128 bits of a product, comparison.
+// The kernels' one 128-bit library: (hi, lo) pairs of u64, results in globals rlo/rhi (and carry,
+// for the checked unsigned multiply-add). Signed (two's complement): add, arithmetic shift by one,
+// the low 128 bits of a product. Unsigned: the checked multiply-add of the verification kernel,
+// comparisons. probe128 runs one of them for the tests (test/u128.test.ts, against BigInt).
 
 export let rlo: u64 = 0;
 export let rhi: u64 = 0;
+/** Set by mulAdd: the exact result needs more than 128 bits (rlo/rhi then hold its low 128 bits). */
+export let carry: bool = false;
 
 /** High 64 bits of the unsigned product x * y. */
 @inline export function mulhi(x: u64, y: u64): u64 {
@@ -35,4 +38,56 @@ export let rhi: u64 = 0;
 /** Unsigned (ahi, alo) <= (bhi, blo). */
 @inline export function leU(alo: u64, ahi: u64, blo: u64, bhi: u64): bool {
   return ahi < bhi || (ahi == bhi && alo <= blo);
+}
+
+/** Unsigned (ahi, alo) < (bhi, blo). */
+@inline export function ltU(alo: u64, ahi: u64, blo: u64, bhi: u64): bool {
+  return ahi < bhi || (ahi == bhi && alo < blo);
+}
+
+/** Unsigned (hi, lo) * y + add into (rhi, rlo); carry when the result needs more than 128 bits. */
+@inline export function mulAdd(lo: u64, hi: u64, y: u64, add: u64): void {
+  if (hi == 0 && clz(lo) + clz(y) >= 64) {
+    // bits(lo) + bits(y) <= 64: the product fits one word
+    const p = lo * y + add;
+    rlo = p;
+    rhi = select<u64>(1, 0, p < add);
+    carry = false;
+    return;
+  }
+  const l = lo * y;
+  const c1 = mulhi(lo, y);
+  let hh = c1;
+  carry = false;
+  if (hi != 0) {
+    const h = hi * y;
+    hh = h + c1;
+    carry = mulhi(hi, y) != 0 || hh < h;
+  }
+  const l2 = l + add;
+  if (l2 < l) {
+    hh++;
+    if (hh == 0) carry = true;
+  }
+  rlo = l2;
+  rhi = hh;
+}
+
+/**
+ * One helper on given operands, for the tests: op 0 mulAdd(a, b, c), 1 add(a, b), 2 shr1(a),
+ * 3 mul(a, b), 4 mulhi(alo, blo); (rlo, rhi, carry or the comparison ltU(a, b) as 0/1) stored at out.
+ */
+export function probe128(op: i32, alo: u64, ahi: u64, blo: u64, bhi: u64, c: u64, out: usize): void {
+  carry = false;
+  if (op == 0) mulAdd(alo, ahi, blo, c);
+  else if (op == 1) add(alo, ahi, blo, bhi);
+  else if (op == 2) shr1(alo, ahi);
+  else if (op == 3) mul(alo, ahi, blo, bhi);
+  else {
+    rlo = mulhi(alo, blo);
+    rhi = 0;
+  }
+  store<u64>(out, rlo);
+  store<u64>(out, rhi, 8);
+  store<u64>(out, op == 0 ? <u64>carry : <u64>ltU(alo, ahi, blo, bhi), 16);
 }

@@ -33,7 +33,7 @@ import {
   VERIFY_COUNTS,
   VERIFY_REGION_BYTES,
 } from "./layout";
-import { mulhi } from "./u128";
+import { carry, ltU, mulAdd, rhi, rlo } from "./u128";
 import { dropDepth, useTables } from "./tree";
 
 const DONE_DESCENT: i32 = 0;
@@ -74,10 +74,6 @@ let pathLo: u64 = 0;
 let pathHi: u64 = 0;
 let cutDepth: i32 = 0; // the depth where n's class coefficient first drops (0: not within K)
 let exceededPath: bool = false; // the path bound could exceed the block's best (fast mode)
-// u128 results
-let rl: u64 = 0;
-let rh: u64 = 0;
-let carry: bool = false;
 
 @inline function bump(i: i32): void {
   const p = countsPtr + (<usize>i << 3);
@@ -98,34 +94,6 @@ function push(ch: i32, x0: u64, x1: u64, x2: u64): void {
   } else unchecked((chanN[slot] = n + 1));
 }
 
-/** (hi, lo) * y + add into (rh, rl); carry when the result needs more than 128 bits. */
-@inline function mulAdd(lo: u64, hi: u64, y: u64, add: u64): void {
-  if (hi == 0 && clz(lo) + clz(y) >= 64) {
-    // bits(lo) + bits(y) <= 64: the product fits one word
-    const p = lo * y + add;
-    rl = p;
-    rh = select<u64>(1, 0, p < add);
-    carry = false;
-    return;
-  }
-  const l = lo * y;
-  const c1 = mulhi(lo, y);
-  let hh = c1;
-  carry = false;
-  if (hi != 0) {
-    const h = hi * y;
-    hh = h + c1;
-    carry = mulhi(hi, y) != 0 || hh < h;
-  }
-  const l2 = l + add;
-  if (l2 < l) {
-    hh++;
-    if (hh == 0) carry = true;
-  }
-  rl = l2;
-  rh = hh;
-}
-
 /** The value is at or above 2^limitBits (so n goes to the host). */
 @inline function tooLarge(lo: u64, hi: u64): bool {
   if (limitBits >= 128) return false;
@@ -137,9 +105,6 @@ function push(ch: i32, x0: u64, x1: u64, x2: u64): void {
   return load<u64>(slackPtr + (<usize>d << 3));
 }
 
-@inline function less(alo: u64, ahi: u64, blo: u64, bhi: u64): bool {
-  return ahi < bhi || (ahi == bhi && alo < blo);
-}
 
 /**
  * n iterated one step at a time from step 0: the exact glide, odd steps and path, and the depth at
@@ -157,14 +122,14 @@ function exact(n: u64): i32 {
     } else {
       // q (v >> 1) + (q + r) / 2
       mulAdd((vl >> 1) | (vh << 63), vh >> 1, Q, HQ);
-      if (carry || tooLarge(rl, rh)) return DONE_HANDOFF;
-      vl = rl;
-      vh = rh;
+      if (carry || tooLarge(rlo, rhi)) return DONE_HANDOFF;
+      vl = rlo;
+      vh = rhi;
       odd++;
     }
     steps++;
     if (cutDepth == 0 && steps <= K && steps >= dropDepth(odd)) cutDepth = steps;
-    if (less(pl, ph, vl, vh)) {
+    if (ltU(pl, ph, vl, vh)) {
       pl = vl;
       ph = vh;
     }
@@ -193,14 +158,14 @@ function exact(n: u64): i32 {
   mulAdd(vl, vh, load<u64>(qpowPtr + (<usize>mp << 3)), 0);
   const over = carry;
   if (ip > 0) {
-    rl = (rl >> <u64>ip) | (rh << <u64>(64 - ip));
-    rh >>= <u64>ip;
+    rlo = (rlo >> <u64>ip) | (rhi << <u64>(64 - ip));
+    rhi >>= <u64>ip;
   }
-  const l = rl + slack;
-  if (l < rl) rh++;
-  rl = l + 1;
-  if (rl == 0) rh++;
-  carry = over || rh == 0xffffffffffffffff;
+  const l = rlo + slack;
+  if (l < rlo) rhi++;
+  rlo = l + 1;
+  if (rlo == 0) rhi++;
+  carry = over || rhi == 0xffffffffffffffff;
 }
 
 /**
@@ -217,15 +182,15 @@ function fast(n: u64, i: i32, h: u64): i32 {
   let bl = n, bh: u64 = 0;
   if (nBits + dropDepth(mp) - ip + 2 >= bestPathBits || 64 - <i32>clz(slackK) > nBits) {
     peakBound(n, 0, ip, mp, slackK);
-    bl = rl;
-    bh = carry ? <u64>-1 : rh;
+    bl = rlo;
+    bh = carry ? <u64>-1 : rhi;
   }
   mulAdd(h, 0, load<u64>(qpowPtr + (<usize>m << 3)), load<u64>(survB + (<usize>i << 3)));
-  if (carry || tooLarge(rl, rh)) return DONE_HANDOFF;
-  let vl = rl, vh = rh;
+  if (carry || tooLarge(rlo, rhi)) return DONE_HANDOFF;
+  let vl = rlo, vh = rhi;
   let steps = K, odd = m;
   while (true) {
-    if (less(bl, bh, vl, vh)) {
+    if (ltU(bl, bh, vl, vh)) {
       bl = vl;
       bh = vh;
     }
@@ -250,17 +215,17 @@ function fast(n: u64, i: i32, h: u64): i32 {
       if (bits + dropDepth(mp) - ip + 2 >= bestPathBits || 64 - <i32>clz(sl) > bits) {
         peakBound(vl, vh, ip, mp, sl);
         if (carry) bh = <u64>-1;
-        else if (less(bl, bh, rl, rh)) {
-          bl = rl;
-          bh = rh;
+        else if (ltU(bl, bh, rlo, rhi)) {
+          bl = rlo;
+          bh = rhi;
         }
       }
       const sm = <i32>load<u8>(stepM + c);
       const xl = (vl >> <u64>d) | (vh << <u64>(64 - d)), xh = vh >> <u64>d;
       mulAdd(xl, xh, load<u64>(qpowPtr + (<usize>sm << 3)), load<u64>(stepB + (c << 3)));
-      if (carry || tooLarge(rl, rh)) return DONE_HANDOFF;
-      vl = rl;
-      vh = rh;
+      if (carry || tooLarge(rlo, rhi)) return DONE_HANDOFF;
+      vl = rlo;
+      vh = rhi;
       steps += d;
       odd += sm;
     } else if ((vl & 1) == 0) {
@@ -269,16 +234,16 @@ function fast(n: u64, i: i32, h: u64): i32 {
       steps++;
     } else {
       mulAdd((vl >> 1) | (vh << 63), vh >> 1, Q, HQ);
-      if (carry || tooLarge(rl, rh)) return DONE_HANDOFF;
-      vl = rl;
-      vh = rh;
+      if (carry || tooLarge(rlo, rhi)) return DONE_HANDOFF;
+      vl = rlo;
+      vh = rhi;
       steps++;
       odd++;
     }
   }
   glideT = steps;
   glideOdd = odd;
-  exceededPath = less(bestPathLo, bestPathHi, bl, bh);
+  exceededPath = ltU(bestPathLo, bestPathHi, bl, bh);
   return DONE_DESCENT;
 }
 
@@ -288,7 +253,7 @@ function fast(n: u64, i: i32, h: u64): i32 {
     bestGlide = glideStd;
     push(CHANNEL_GLIDE_RECORDS, n, <u64>glideT, <u64>glideStd);
   }
-  if (less(bestPathLo, bestPathHi, pathLo, pathHi)) {
+  if (ltU(bestPathLo, bestPathHi, pathLo, pathHi)) {
     bestPathLo = pathLo;
     bestPathHi = pathHi;
     bestPathBits = pathHi != 0 ? 128 - <i32>clz(pathHi) : 64 - <i32>clz(pathLo);
@@ -307,7 +272,7 @@ function settle(n: u64, done: i32, counted: i32): void {
     push(CHANNEL_CYCLE_MEMBERS, n, <u64>glideT, 0);
     pathLo = n;
     pathHi = 0;
-    if (less(bestPathLo, bestPathHi, pathLo, pathHi)) {
+    if (ltU(bestPathLo, bestPathHi, pathLo, pathHi)) {
       bestPathLo = pathLo;
       bestPathHi = pathHi;
       bestPathBits = pathHi != 0 ? 128 - <i32>clz(pathHi) : 64 - <i32>clz(pathLo);
@@ -452,7 +417,7 @@ export function verifyAligned(
           const bits = 64 - <i32>clz(next);
           if (bits + sievedPeakBits + 2 >= bestPathBits || 64 - <i32>clz(sievedSlack) > bits) {
             peakBound(next, 0, sievedPeak, sievedPeak, sievedSlack);
-            candidate = carry || less(bestPathLo, bestPathHi, rl, rh);
+            candidate = carry || ltU(bestPathLo, bestPathHi, rlo, rhi);
           }
         }
         for (let n = prev; n < next; n++) {
@@ -484,6 +449,9 @@ export function verifyAligned(
           // its path could be a record: the exact path, in single steps
           const again = exact(n);
           if (again == DONE_DESCENT) noteRecords(n, glideT + glideOdd);
+          // a value past the limit on the way (inside the first K steps, which fast() only bounds): n is
+          // counted as checked already; the host iterates it for its records
+          else settle(n, again, -1);
         }
       } else if (done == DONE_CYCLE) settle(n, done, -1);
       else {
@@ -551,8 +519,8 @@ export function verifyDelays(
         t += d;
         odd += sm;
       } else if ((vl & 1) == 0) {
-        rl = (vl >> 1) | (vh << 63);
-        rh = vh >> 1;
+        rlo = (vl >> 1) | (vh << 63);
+        rhi = vh >> 1;
         carry = false;
         t++;
       } else {
@@ -560,12 +528,12 @@ export function verifyDelays(
         t++;
         odd++;
       }
-      if (carry || tooLarge(rl, rh)) {
+      if (carry || tooLarge(rlo, rhi)) {
         done = DONE_HANDOFF;
         break;
       }
-      vl = rl;
-      vh = rh;
+      vl = rlo;
+      vh = rhi;
     }
     if (done == DONE_DESCENT) {
       bump(VERIFY_COUNT_CHECKED);

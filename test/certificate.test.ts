@@ -47,8 +47,8 @@ async function reseal(doc: Doc): Promise<string> {
   return toExactJson(doc, 2);
 }
 
-async function check(text: string, full = true) {
-  return checkCertificate(readCertificate(text), { pool, sha256, sample: 2, full, randomBelow: (n) => randomInt(n) });
+async function check(text: string, full = true, sample = 2) {
+  return checkCertificate(readCertificate(text), { pool, sha256, sample, full, randomBelow: (n) => randomInt(n) });
 }
 
 describe("certificate: --check finds every edited field", async () => {
@@ -150,6 +150,28 @@ describe("certificate: --check finds every edited field", async () => {
       if (failure && / in the certificate; /.test(failure)) expect(failure).toMatch(/: .+ in the certificate; .+ gives .+/);
     });
   }
+
+  it("a path value changed in its block and the totals, every digest recomputed, no block run again: BigInt iteration finds it", async () => {
+    const d = fresh();
+    const target = d.pathRecords[6];
+    target.peakT += 2n;
+    for (const e of d.blockTable) for (const p of e.pathRecords as Loose[]) if (p.n === target.n) p.peakT = target.peakT;
+    if (d.maxPath.n === target.n) d.maxPath.peakT = target.peakT;
+    const r = await check(await reseal(d), false, 0);
+    expect(r.failure).toMatch(/^pathRecords\[6\]\.peakT \(n = \d+\): \d+ in the certificate; BigInt iteration gives \d+/);
+  });
+
+  it("an entry changed and only the document's digest recomputed: the entry's own digest finds it", async () => {
+    const d = fresh();
+    const target = d.pathRecords[6];
+    target.peakT += 2n;
+    for (const e of d.blockTable) for (const p of e.pathRecords as Loose[]) if (p.n === target.n) p.peakT = target.peakT;
+    if (d.maxPath.n === target.n) d.maxPath.peakT = target.peakT;
+    delete d.digest;
+    d.digest = await digestOf(d);
+    const r = await check(toExactJson(d, 2), false, 0);
+    expect(r.failure).toMatch(/^blockTable\[\d+\]\.digest: [0-9a-f]{64} in the certificate; the entry gives [0-9a-f]{64}/);
+  });
 
   it("a count written as a string, a missing field and another version are refused with one line naming the field", () => {
     const d = fresh();

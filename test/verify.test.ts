@@ -253,19 +253,37 @@ describe("verify: ends that are not aligned, shallow sieves, and numbers past 2^
     ["3x+1", (1n << 40n) + 12345n, (1n << 40n) + (1n << 20n) + 777n, 12],
     ["3x+1", 3n, 70_001n, 9],
     ["5x+1", 999n, 3001n, 7],
+    // 13 and 17 of 5x+1 (cycles of period 7) are survivors of the depth-5 sieve: the kernel's fast path finds them
+    ["5x+1", 1n, 2000n, 5],
     ["7x+3", 1n, 5000n, 6],
     ["3x+1", (1n << 64n) + 5n, (1n << 64n) + 3000n, 14],
     ["3x+1", (1n << 100n) + 1n, (1n << 100n) + 1500n, 16],
     ["3x+5", (1n << 65n) + (1n << 10n), (1n << 65n) + 3000n, 10],
     ["3x-1", (1n << 70n) + 7n, (1n << 70n) + 2000n, 12],
+    // a large r: the path bounds' slack r (q/2)^L is as large as the values, so a bound without it would miss records
+    ["3x+65535", 1n, 6000n, 8],
+    ["5x+4095", 1n, 3000n, 6],
+    ["3x-4097", 1n, 3000n, 8],
   ];
   for (const [text, from, to, K] of cases) {
     it(`${text} over [${from}, ${to}), sieve depth ${K}: counts by outcome and depth, records, maxima and lists`, async () => {
       const map = parseMap(text);
-      const cap = text === "5x+1" || text === "7x+3" ? 3000 : 100_000;
+      const cap = text.startsWith("5x") || text === "7x+3" ? 3000 : 100_000;
       expectAgrees(await runVerify(pool, { map, from, to, sieveDepth: K, stepDepth: 6, maxSteps: cap }), brute(map, from, to, cap, K));
     });
   }
+  it("handed off at a lowered limit (2^8), n of every outcome finished in BigInt agree with the brute force", async () => {
+    // 3x+65535 has many sieve exceptions below r; 5x+1 cycles and unresolved n
+    for (const [text, to, K, cap] of [
+      ["3x+65535", 1500n, 8, 100_000],
+      ["5x+1", 2000n, 5, 3000],
+    ] as const) {
+      const map = parseMap(text);
+      const r = await runVerify(pool, { map, from: 1n, to, sieveDepth: K, stepDepth: 6, maxSteps: cap, limitBits: 8 });
+      expect(r.handoffs).toBeGreaterThan(100n);
+      expectAgrees(r, brute(map, 1n, to, cap, K));
+    }
+  });
   it("sieve depths 1 to 6 (the kernel's own cycle path runs) agree with the brute force", async () => {
     const map = parseMap("3x+1");
     for (let K = 1; K <= 6; K++) {

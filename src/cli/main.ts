@@ -5,6 +5,7 @@
 import { Command, CommanderError } from "commander";
 import { exitCodeOf } from "../core/errors.js";
 import { removePendingFiles } from "../node/files.js";
+import { watchStdoutReader } from "../node/pipe.js";
 import { toolVersion } from "../node/version.js";
 import { censusCommand } from "./census.js";
 import { clusterCommands } from "./cluster.js";
@@ -80,6 +81,11 @@ function installHandlers(): void {
       process.exit(sig === "SIGINT" ? 130 : 143);
     });
   }
+  // a reader that goes away while the run writes nothing yet (verify | head -1 after the first line)
+  watchStdoutReader(() => {
+    removePendingFiles();
+    process.exit(0);
+  });
   process.stdout.on("error", (e: NodeJS.ErrnoException) => {
     if (e.code !== "EPIPE") throw e;
     // the reader (head, less) has gone: stop quietly

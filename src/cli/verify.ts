@@ -250,6 +250,7 @@ async function verify(o: VerifyOptions): Promise<void> {
     return `the checkpoint ${checkpointPath} holds ${plural(held, "block")} of ${plan.blocks.length}; continue with: glidepath verify --resume ${checkpointPath}`;
   };
   setInterruptNote(checkpointPath ? resumeLine : null);
+  if (!o.json) print(`${verifyHeader(plan)}\n`); // the first line at once (a reader such as head -1 has it and may go)
   let hashes: TableHashes | null = null;
   const result = await withPool(
     workers,
@@ -286,11 +287,16 @@ async function verify(o: VerifyOptions): Promise<void> {
   if (checkpointPath) note(`checkpoint: ${checkpointPath} (complete: ${plural(plan.blocks.length, "block")})\n`);
 }
 
+/** The report's first line, printed before the run starts. */
+function verifyHeader(p: { map: CollatzMap; from: bigint; to: bigint; sieveDepth: number; stepDepth: number }): string {
+  return `verification of ${p.map.name} over [${p.from}, ${p.to}): ${group(p.to - p.from)} numbers, sieve depth ${p.sieveDepth}, table steps of ${p.stepDepth}`;
+}
+
+/** The report after its first line. */
 function verifyText(r: VerifyResult, workers: number): string {
   const c = r.counts;
   const rate = Number(c.numbers) / Math.max(r.seconds, 1e-9);
   const lines = [
-    `verification of ${r.map.name} over [${r.from}, ${r.to}): ${group(c.numbers)} numbers, sieve depth ${r.sieveDepth}, table steps of ${r.stepDepth}`,
     `every n reaches a value below n, except the cycle members, cycle entrants and unresolved numbers listed below`,
     "",
     `  sieved (descend at their class's depth)  ${group(c.sieved).padStart(22)}`,
