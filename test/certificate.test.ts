@@ -151,22 +151,24 @@ describe("certificate: --check finds every edited field", async () => {
     });
   }
 
-  it("a path value changed in its block and the totals, every digest recomputed, no block run again: BigInt iteration finds it", async () => {
-    const d = fresh();
-    const target = d.pathRecords[6];
+  /** Path record i's value raised by 2 in its block, the list and the maximum, consistently. */
+  function raisePathRecord(d: Record<string, Loose>, i: number): void {
+    const target = d.pathRecords[i];
     target.peakT += 2n;
     for (const e of d.blockTable) for (const p of e.pathRecords as Loose[]) if (p.n === target.n) p.peakT = target.peakT;
     if (d.maxPath.n === target.n) d.maxPath.peakT = target.peakT;
+  }
+
+  it("a path value changed in its block and the totals, every digest recomputed, no block run again: BigInt iteration finds it", async () => {
+    const d = fresh();
+    raisePathRecord(d, 6);
     const r = await check(await reseal(d), false, 0);
     expect(r.failure).toMatch(/^pathRecords\[6\]\.peakT \(n = \d+\): \d+ in the certificate; BigInt iteration gives \d+/);
   });
 
   it("an entry changed and only the document's digest recomputed: the entry's own digest finds it", async () => {
     const d = fresh();
-    const target = d.pathRecords[6];
-    target.peakT += 2n;
-    for (const e of d.blockTable) for (const p of e.pathRecords as Loose[]) if (p.n === target.n) p.peakT = target.peakT;
-    if (d.maxPath.n === target.n) d.maxPath.peakT = target.peakT;
+    raisePathRecord(d, 6);
     delete d.digest;
     d.digest = await digestOf(d);
     const r = await check(toExactJson(d, 2), false, 0);

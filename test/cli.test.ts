@@ -1,5 +1,5 @@
 // The command line as a user runs it: reports, class tables, manifests, errors and exit codes.
-import { execFile, spawn } from "node:child_process";
+import { execFile, spawn, spawnSync } from "node:child_process";
 import { createHash } from "node:crypto";
 import { copyFileSync, existsSync, mkdirSync, mkdtempSync, readdirSync, readFileSync, rmSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
@@ -413,6 +413,17 @@ describe("cli: verify", () => {
     expect((await cli("verify", "--from", "1", "--to", "2^20", "--checkpoint", ck)).code).toBe(0); // a finished one may go
     expect((await cli("verify", "--from", "1", "--to", "10", "--checkpoint", ck, "--out", ck)).stderr).toMatch(/name the same file/);
     expect((await cli("verify", "--from", "1", "--to", "10", "--checkpoint", sub)).stderr).toMatch(/it is a directory/);
+  });
+
+  it("verify | head -1: the run stops when the reader has gone; --string-integers writes every integer as a string", async () => {
+    const t0 = performance.now();
+    const r = spawnSync("sh", ["-c", `node ${BIN} verify --from 2^40 --to 2^40+2^36 | head -1`], { encoding: "utf8" });
+    expect(r.stdout).toMatch(/^verification of 3x\+1 over \[1099511627776, 1168231104512\): 68,719,476,736 numbers/);
+    expect(performance.now() - t0).toBeLessThan(20_000); // the whole range takes minutes
+    const s = await cli("verify", "--from", "2^60", "--to", "2^60+100", "--sieve-depth", "4", "--json", "--string-integers");
+    const j = JSON.parse(s.stdout) as { from: string; counts: { numbers: string } };
+    expect(j.from).toBe("1152921504606846976"); // JSON.parse would round 2^60 + ... as a double; a string keeps it
+    expect(j.counts.numbers).toBe("100");
   });
 
   const bad: [string[], number, RegExp][] = [

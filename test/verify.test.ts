@@ -3,6 +3,7 @@ import { afterAll, describe, expect, it } from "vitest";
 import { parseMap } from "../src/core/map.js";
 import type { CollatzMap } from "../src/core/map.js";
 import { runVerify } from "../src/jobs/verify/verify.js";
+import { traceBig } from "../src/jobs/verify/trace.js";
 import { planVerify } from "../src/jobs/verify/plan.js";
 import type { BlockEntry } from "../src/jobs/verify/block.js";
 import type { VerifyResult } from "../src/jobs/verify/merge.js";
@@ -282,6 +283,28 @@ describe("verify: ends that are not aligned, shallow sieves, and numbers past 2^
       const r = await runVerify(pool, { map, from: 1n, to, sieveDepth: K, stepDepth: 6, maxSteps: cap, limitBits: 8 });
       expect(r.handoffs).toBeGreaterThan(100n);
       expectAgrees(r, brute(map, 1n, to, cap, K));
+    }
+  });
+  it("every survivor's glide and path in the kernel's fast path (depth-1 sieve, one period a block) equal BigInt iteration", async () => {
+    // with K = 1 a block is {2h, 2h + 1}: 2h descends in one step, so the survivor 2h + 1 is always the block's own
+    // glide and path record: the block table shows every odd n's glide and path as the kernel found them
+    for (const [text, from, stepDepth] of [
+      ["3x+1", (1n << 40n) + 2n, 8],
+      ["3x+1", 1n << 20n, 12],
+      ["5x+3", 1n << 30n, 6],
+    ] as const) {
+      const map = parseMap(text);
+      const r = await runVerify(pool, { map, from, to: from + 4096n, sieveDepth: 1, stepDepth, blocks: 2048, maxSteps: 3000 });
+      let seen = 0;
+      for (const e of r.entries) {
+        const n = e.first + 1n;
+        const t = traceBig(map, n, 3000, 0);
+        if (t.outcome !== "descent") continue;
+        expect(e.glideRecords.at(-1), `${text}: glide of ${n}`).toEqual({ n, steps: t.steps, standardSteps: t.steps + t.odd });
+        expect(e.pathRecords.at(-1), `${text}: path of ${n}`).toEqual({ n, peakT: t.path });
+        seen++;
+      }
+      expect(seen).toBeGreaterThan(1000);
     }
   });
   it("sieve depths 1 to 6 (the kernel's own cycle path runs) agree with the brute force", async () => {

@@ -35,6 +35,8 @@ import { verifyBatch } from "./verify.js";
 export interface MergeOutput<R> {
   readonly formats: readonly FileFormat[];
   readonly what: string;
+  /** How a refusal names what it writes (default: the formats). */
+  readonly writes?: string;
   write(
     pool: KernelPool,
     result: R,
@@ -236,7 +238,7 @@ async function merge(dir: string, o: RawOptions): Promise<void> {
   let out: OutputChoice<FileFormat> | null = null;
   if (o.out !== undefined || o.format !== undefined) {
     if (!spec.out) throw new UsageError(`merge of ${run.plan.job} writes no file: its JSON goes to stdout`);
-    out = outputOption(o, spec.out.formats, spec.out.formats[0]!);
+    out = outputOption(o, spec.out.formats, spec.out.formats[0]!, spec.out.writes);
   }
   const stamp = await toolStamp();
   await withPool(workersOption(o.workers), `merge ${run.plan.job}`, async (pool) => {

@@ -68,7 +68,12 @@ export interface OutputChoice<F extends FileFormat> {
  * command cannot write, or a name whose ending contradicts the format, is refused; the target must
  * not be a directory and its folder must exist. Returns null without --out.
  */
-export function outputOption<F extends FileFormat>(o: RawOptions, allowed: readonly F[], fallback: F): OutputChoice<F> | null {
+export function outputOption<F extends FileFormat>(
+  o: RawOptions,
+  allowed: readonly F[],
+  fallback: F,
+  writes: string = allowed.join(" or "),
+): OutputChoice<F> | null {
   if (o.out === undefined) {
     if (o.format !== undefined) throw new UsageError("--format needs --out FILE");
     if (o.force) throw new UsageError("--force needs --out FILE");
@@ -86,7 +91,7 @@ export function outputOption<F extends FileFormat>(o: RawOptions, allowed: reado
       throw new UsageError(`${path} is named as ${named} but --format is ${format}: rename the file or change --format`);
   } else if (named !== undefined) {
     if (!(allowed as readonly string[]).includes(named))
-      throw new UsageError(`${path} is named as ${named}, which this command does not write (it writes ${allowed.join(" or ")})`);
+      throw new UsageError(`${path} is named as ${named}, which this command does not write (it writes ${writes})`);
     format = named as F;
   } else format = fallback;
   checkWritableTarget(path);

@@ -105,6 +105,7 @@ export const verifyBatch: BatchJob<VerifyParams, VerifyResult> = {
   out: {
     formats: ["raw"],
     what: "the certificate",
+    writes: "the certificate, JSON: name it .json",
     async write(pool, result, out, stamp, _tables, span) {
       const { map, from, to, sieveDepth, stepDepth, maxSteps } = result;
       const plan = planVerify({ map, from, to, sieveDepth, stepDepth, maxSteps });
@@ -226,7 +227,7 @@ async function verify(o: VerifyOptions): Promise<void> {
     if (!b || b.first !== e.first || b.last !== e.last || b.kind !== e.kind)
       throw new UsageError(`${o.resume}: its block ${e.index} is not the plan's block ${e.index}: it cannot be resumed`);
   }
-  const out = outputOption<"raw">({ ...o, format: undefined }, ["raw"], "raw");
+  const out = outputOption<"raw">({ ...o, format: undefined }, ["raw"], "raw", "the certificate, JSON: name it .json");
   if (checkpointPath !== undefined && !(resumed && checkpointPath === o.resume))
     checkCheckpointTarget(checkpointPath, plan.key, out?.path, o.force);
   else if (checkpointPath !== undefined && out && resolve(out.path) === resolve(checkpointPath))

@@ -150,16 +150,23 @@ export interface Trajectory {
 
 /**
  * Brent's cycle detection on the orbit of n: the entry step mu and period lambda, if the orbit
- * enters a cycle within about `limit` steps (no set of visited values: big orbits stay cheap).
+ * enters a cycle within about `limit` steps (no set of visited values: big orbits stay cheap), and
+ * never reaches a value for which `escapes` holds (an orbit past a size bound is taken as divergent).
+ * @example findCycle((v) => (v % 2n ? 3n * v + 1n : v / 2n), 3n, 100) // { mu: 5, lambda: 3 }
  */
-function findCycle(step: (v: bigint) => bigint, n: bigint, limit: number): { mu: number; lambda: number } | null {
+export function findCycle(
+  step: (v: bigint) => bigint,
+  n: bigint,
+  limit: number,
+  escapes: (v: bigint) => boolean = () => false,
+): { mu: number; lambda: number } | null {
   let power = 1,
     lambda = 1,
     tortoise = n,
     hare = step(n),
     taken = 1;
   while (tortoise !== hare) {
-    if (taken > 3 * limit + 3) return null;
+    if (taken > 3 * limit + 3 || escapes(hare)) return null;
     if (power === lambda) {
       tortoise = hare;
       power *= 2;

@@ -146,7 +146,27 @@ export async function readRun(dir: string, jobOf: (name: string) => JobKind<unkn
     throw new UsageError(code ? `${dir} is not a glidepath run: cannot read ${path} (${code})` : `${path} is not JSON`);
   }
   if (raw.kind !== PLAN_KIND) throw new UsageError(`${path} is not a glidepath plan`);
+  let plan: Plan<unknown>;
+  let job: JobKind<unknown, PartBase, unknown>;
+  try {
+    ({ plan, job } = decodePlan(raw, jobOf));
+  } catch (e) {
+    throw new UsageError(`${path} is damaged: ${e instanceof Error ? e.message : String(e)}`);
+  }
+  const { hash: _stored, ...body } = plan;
+  if ((await planHash(job, body)) !== plan.hash) throw new UsageError(`${path} was changed after it was written: its hash does not match`);
+  const stored = raw as unknown as StoredPlan;
+  return { dir, plan, cpusPerTask: Number(stored.cpusPerTask), estimate: stored.estimate };
+}
+
+/** The plan of a stored plan.json (throws on a malformed one). */
+function decodePlan(
+  raw: Record<string, unknown>,
+  jobOf: (name: string) => JobKind<unknown, PartBase, unknown>,
+): { plan: Plan<unknown>; job: JobKind<unknown, PartBase, unknown> } {
   const p = unpackData(raw.plan) as Record<string, unknown>;
+  if (p === null || typeof p !== "object" || typeof p.job !== "string" || !Array.isArray(p.shards) || typeof p.params !== "object")
+    throw new Error("it does not hold a plan (job, params, shards)");
   const job = jobOf(String(p.job));
   const list = (xs: unknown) => (xs instanceof BigUint64Array ? Array.from(xs) : null);
   const plan: Plan<unknown> = {
@@ -161,10 +181,7 @@ export async function readRun(dir: string, jobOf: (name: string) => JobKind<unkn
     kernelBuild: String(p.kernelBuild),
     hash: String(p.hash),
   };
-  const { hash: _stored, ...body } = plan;
-  if ((await planHash(job, body)) !== plan.hash) throw new UsageError(`${path} was changed after it was written: its hash does not match`);
-  const stored = raw as unknown as StoredPlan;
-  return { dir, plan, cpusPerTask: Number(stored.cpusPerTask), estimate: stored.estimate };
+  return { plan, job };
 }
 
 const partPath = (dir: string, shard: number, suffix: string) => join(dir, PARTS, `${shard}.${suffix}`);

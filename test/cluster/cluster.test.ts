@@ -2,7 +2,7 @@
 // another with --local or `glidepath shard`, and as a real Slurm job array), batch-status finds what
 // failed, merge checks the parts and gives exactly the one-machine command's JSON and file.
 import { execFile } from "node:child_process";
-import { copyFileSync, existsSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from "node:fs";
+import { copyFileSync, existsSync, mkdirSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
 import { promisify } from "node:util";
@@ -262,7 +262,15 @@ describe("cluster: failures are found, rerun and merged; bad parts are refused",
       [["shard", run, "6"], /shard 6 is not in the plan/],
       [["shard", join(dir, "nowhere"), "0"], /is not a glidepath run/],
       [["merge", run, "--out", join(dir, "c.csv")], /--format|csv/],
+      [
+        ["merge", runDir("tamper-verify"), "--out", join(dir, "c.csv")],
+        /c\.csv is named as csv, .*it writes the certificate, JSON: name it \.json/,
+      ],
+      [["merge", runDir("damaged-plan")], /plan\.json is damaged: it does not hold a plan/],
+      [["batch-status", runDir("damaged-plan")], /plan\.json is damaged: it does not hold a plan/],
     ];
+    mkdirSync(join(runDir("damaged-plan"), "parts"), { recursive: true });
+    writeFileSync(join(runDir("damaged-plan"), "plan.json"), '{"kind": "glidepath plan", "plan": {"job": "verify"}}');
     for (const [args, msg] of cases) {
       const r = await cli(args);
       expect(r.code, args.join(" ")).toBe(2);

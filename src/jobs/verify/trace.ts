@@ -3,6 +3,7 @@
 // what `verify --check` iterates again.
 import type { CollatzMap } from "../../core/map.js";
 import { step } from "../../core/map.js";
+import { findCycle } from "../../core/padic.js";
 
 /** One n, iterated in BigInt. */
 export interface Trace {
@@ -62,28 +63,18 @@ export function delayBig(map: CollatzMap, n: bigint, maxSteps: number): { steps:
 
 /**
  * Whether n's trajectory enters a cycle (without going below n: the cycle's elements are all above
- * n), by Brent's method within `budget` steps while its values stay below 2^maxBits: the cycle's
- * least element and period, exactly, or null when that is not shown.
+ * n), by Brent's method within about `budget` steps while its values stay below 2^maxBits: the
+ * cycle's least element and period, exactly, or null when that is not shown.
  * @example cycleEntry(parseMap("3x+5"), 3n, 1000) // { min: 19n, period: 5 }
  */
 export function cycleEntry(map: CollatzMap, n: bigint, budget: number, maxBits = 256): { min: bigint; period: number } | null {
   const T = (v: bigint) => step(map, v);
   const limit = 1n << BigInt(maxBits);
-  let power = 1;
-  let lam = 1;
-  let tortoise = n;
-  let hare = T(n);
-  for (let steps = 1; tortoise !== hare; steps++) {
-    if (steps > budget || hare >= limit || hare <= -limit) return null;
-    if (power === lam) {
-      tortoise = hare;
-      power *= 2;
-      lam = 0;
-    }
-    hare = T(hare);
-    lam++;
-  }
-  let min = hare;
-  for (let v = T(hare); v !== hare; v = T(v)) if (v < min) min = v;
-  return { min, period: lam };
+  const found = findCycle(T, n, budget, (v) => v >= limit || v <= -limit);
+  if (!found) return null;
+  let v = n;
+  for (let i = 0; i < found.mu; i++) v = T(v);
+  let min = v;
+  for (let i = 1, w = T(v); i < found.lambda; i++, w = T(w)) if (w < min) min = w;
+  return { min, period: found.lambda };
 }
