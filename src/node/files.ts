@@ -26,6 +26,9 @@ export function removePendingFiles(): void {
   pending.clear();
 }
 
+/** Writes smaller than this are gathered into one of about this size. */
+const WRITE_BUFFER_BYTES = 1 << 20;
+
 export class AtomicFile {
   private readonly hash: Hash = createHash("sha256");
   bytes = 0n;
@@ -51,10 +54,34 @@ export class AtomicFile {
     return new AtomicFile(path, tempPath, fh);
   }
 
+  /** Small writes are gathered here and written together (a CSV row is one call). */
+  private buffered: Uint8Array[] = [];
+  private bufferedBytes = 0;
+
   async write(data: Uint8Array | string): Promise<void> {
     const bytes = typeof data === "string" ? Buffer.from(data, "utf8") : data;
     this.hash.update(bytes);
     this.bytes += BigInt(bytes.byteLength);
+    if (bytes.byteLength < WRITE_BUFFER_BYTES) {
+      // copy: the caller may reuse its buffer once this call returns
+      this.buffered.push(typeof data === "string" ? bytes : bytes.slice());
+      this.bufferedBytes += bytes.byteLength;
+      if (this.bufferedBytes >= WRITE_BUFFER_BYTES) await this.flush();
+      return;
+    }
+    await this.flush();
+    await this.writeOut(bytes);
+  }
+
+  private async flush(): Promise<void> {
+    if (this.bufferedBytes === 0) return;
+    const joined = Buffer.concat(this.buffered, this.bufferedBytes);
+    this.buffered = [];
+    this.bufferedBytes = 0;
+    await this.writeOut(joined);
+  }
+
+  private async writeOut(bytes: Uint8Array): Promise<void> {
     let off = 0;
     while (off < bytes.byteLength) {
       const { bytesWritten } = await this.fh.write(bytes, off, bytes.byteLength - off);
@@ -64,6 +91,7 @@ export class AtomicFile {
 
   /** Flushes and closes the temporary file; returns what a manifest says of it. */
   async finish(): Promise<DataFile> {
+    await this.flush();
     await this.fh.sync();
     await this.fh.close();
     this.closed = true;
