@@ -1,15 +1,9 @@
 // Plain BigInt references written for the tests, independent of src/ arithmetic.
 import type { CollatzMap } from "../src/core/map.js";
 import { Kernel } from "../src/engine/loader.js";
-import type {
-  CensusShard,
-  CensusShardResult,
-  CycleShard,
-  CycleShardResult,
-  LeafChunk,
-  ShardRequest,
-  ShardResult,
-} from "../src/engine/messages.js";
+import type { CensusShard, CensusShardResult } from "../src/jobs/census/messages.js";
+import type { CycleShard, CycleShardResult } from "../src/jobs/cycles/messages.js";
+import type { LeafChunk, ShardRequest, ShardResult } from "../src/jobs/sieve/messages.js";
 import { enumerateShard } from "../src/jobs/sieve/kernel.js";
 import { censusShard } from "../src/jobs/census/kernel.js";
 import { cycleShard } from "../src/jobs/cycles/kernel.js";

@@ -8,6 +8,7 @@ import { LimitError } from "../src/core/errors.js";
 import { nodePool } from "../src/node/kernel.js";
 import { A076227 } from "../src/core/published.js";
 import { coefficientStop, kernelOf, rowSums, T } from "./helpers.js";
+import type { JobApi } from "../src/jobs/registry.js";
 
 const pool2 = await nodePool(2);
 const pool1 = await nodePool(1);
@@ -185,7 +186,7 @@ describe("sieve on the pool: special", () => {
       await expect(
         debugPool.run(
           [bad],
-          (api, s) => api.runShard(s),
+          (api: JobApi, s) => api.runShard(s),
           () => {},
         ),
       ).rejects.toThrow(/kernel assertion failed/);
@@ -217,7 +218,7 @@ describe("sieve on the pool: special", () => {
     await expect(
       dying.run(
         [shard],
-        (api, s) => api.runShard(s),
+        (api: JobApi, s) => api.runShard(s),
         () => {},
       ),
     ).rejects.toThrow(/worker failed: simulated out of memory/);

@@ -2,7 +2,7 @@
 import { describe, expect, it } from "vitest";
 import { passPlan, ResidueSorter } from "../src/outputs/tables.js";
 import { radixSortU32 } from "../src/outputs/sort.js";
-import type { LeafChunk } from "../src/engine/messages.js";
+import type { LeafChunk } from "../src/jobs/sieve/messages.js";
 import { parseMap } from "../src/core/map.js";
 import { runSieve } from "../src/jobs/sieve/sieve.js";
 import { nodePool } from "../src/node/kernel.js";

@@ -5,7 +5,8 @@ import { compileKernel } from "../src/engine/loader.js";
 import { KernelPool, PoolOwner } from "../src/engine/pool.js";
 import type { SpawnWorker, WorkerHandle } from "../src/engine/pool.js";
 import { releaseProxy, wrap } from "comlink";
-import type { KernelWorkerApi } from "../src/engine/messages.js";
+import type { WorkerApi } from "../src/engine/worker.js";
+import type { JobApi, JobHandlers } from "../src/jobs/registry.js";
 
 const spawn: SpawnWorker = (): WorkerHandle => {
   const w = new Worker(new URL("./worker.ts", import.meta.url), { type: "module" });
@@ -55,9 +56,9 @@ export function pagePoolPending(): number {
 }
 
 /** A one-off worker for exports (so the page never does the BigInt work itself). */
-export async function withExportWorker<T>(work: (api: ReturnType<typeof wrap<KernelWorkerApi>>) => Promise<T>): Promise<T> {
+export async function withExportWorker<T>(work: (api: JobApi) => Promise<T>): Promise<T> {
   const h = spawn();
-  const api = wrap<KernelWorkerApi>(h.endpoint);
+  const api = wrap<WorkerApi<JobHandlers>>(h.endpoint);
   try {
     return await work(api);
   } finally {

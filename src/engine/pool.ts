@@ -3,7 +3,10 @@
 // Isomorphic: the caller passes a spawner (worker_threads in Node, Web Workers in the browser).
 import { releaseProxy, wrap } from "comlink";
 import type { Endpoint, Remote } from "comlink";
-import type { KernelWorkerApi } from "./messages.js";
+import type { HandlerMap, WorkerApi } from "./worker.js";
+
+/** What every worker offers whatever it serves: init. */
+type WorkerInit = { init(module: WebAssembly.Module): Promise<void> };
 
 export interface WorkerHandle {
   readonly endpoint: Endpoint;
@@ -22,7 +25,7 @@ export class CancelledError extends Error {
 
 interface Slot {
   readonly handle: WorkerHandle;
-  readonly api: Remote<KernelWorkerApi>;
+  readonly api: Remote<WorkerInit>;
   ready: Promise<void>;
 }
 
@@ -33,9 +36,10 @@ export interface RunOptions {
 }
 
 /**
- * A fixed-size pool of kernel workers.
+ * A fixed-size pool of kernel workers. It knows no job: a run names the handlers its calls use by
+ * the type of `api` (the jobs' registry, src/jobs/registry.ts: JobApi).
  * @example const pool = new KernelPool(spawn, module, 2, buildId);
- *   await pool.run(shards, (api, s) => api.runShard(s), (s, out) => merge(out));
+ *   await pool.run(shards, (api: JobApi, s) => api.runShard(s), (s, out) => merge(out));
  */
 export class KernelPool {
   private slots: Slot[] = [];
@@ -56,16 +60,16 @@ export class KernelPool {
     while (this.slots.length < this.size) {
       const handle = this.spawn();
       handle.onError?.((e) => this.crash?.(e));
-      const api = wrap<KernelWorkerApi>(handle.endpoint);
+      const api = wrap<WorkerInit>(handle.endpoint);
       this.slots.push({ handle, api, ready: api.init(this.module) });
     }
     return this.slots;
   }
 
   /** Runs every task through `call` on some worker; `onResult` sees each output once, in completion order. */
-  async run<T, O>(
+  async run<H extends HandlerMap, T, O>(
     tasks: readonly T[],
-    call: (api: Remote<KernelWorkerApi>, task: T) => Promise<O>,
+    call: (api: Remote<WorkerApi<H>>, task: T) => Promise<O>,
     onResult: (task: T, out: O) => void,
     options: RunOptions = {},
   ): Promise<void> {
@@ -97,7 +101,7 @@ export class KernelPool {
         await slot.ready;
         while (failure === null && next < tasks.length) {
           const task = tasks[next++]!;
-          const out = await call(slot.api, task);
+          const out = await call(slot.api as unknown as Remote<WorkerApi<H>>, task); // the workers serve H: the registry
           onResult(task, out);
           done++;
           onProgress?.(done, tasks.length);

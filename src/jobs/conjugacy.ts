@@ -8,6 +8,7 @@ import { largestShare, makePlan, runWhole, shardEstimate } from "../engine/plan.
 import type { JobKind, PartBase } from "../engine/plan.js";
 import { parseMap } from "../core/map.js";
 import { UsageError } from "../core/errors.js";
+import type { JobApi } from "./registry.js";
 
 export const MAX_CONJUGACY_DEPTH = 26;
 
@@ -70,7 +71,7 @@ export const conjugacyJob: JobKind<ConjugacyParams, ConjugacyPart, ConjugacyResu
     const parts: Uint32Array[] = [];
     await pool.run(
       censusTasks(plan, shard, true),
-      (api, s) => api.runCensus(s),
+      (api: JobApi, s) => api.runCensus(s),
       (_s, out) => parts.push(out.leafVectors!),
       options,
     );

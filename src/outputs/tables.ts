@@ -3,7 +3,7 @@
 // the low bits as u32), and each bucket is radix-sorted when emitted, so buckets come out in order.
 // When the whole table would not fit the memory budget, the caller runs the enumeration once per
 // pass and each pass keeps one range of buckets (`passPlan`).
-import type { BucketRange, GroupedResidues, LeafChunk } from "../engine/messages.js";
+import type { BucketRange, GroupedResidues, LeafChunk } from "../jobs/sieve/messages.js";
 import { radixSortU32 } from "./sort.js";
 import { LimitError } from "../core/errors.js";
 

@@ -5,7 +5,7 @@
 import type { CollatzMap } from "../../core/map.js";
 import { kernelDepthLimit, parseMap } from "../../core/map.js";
 import { TALLY_STRIDE } from "../../engine/messages.js";
-import type { CensusShard, CensusShardResult } from "../../engine/messages.js";
+import type { CensusShard, CensusShardResult } from "./messages.js";
 import { concat, threadKernel } from "../../engine/loader.js";
 import { decodeExceptionClasses, EXCEPTION_LIMIT, expandExceptions } from "../sieve/exceptions.js";
 import type { SieveException } from "../sieve/exceptions.js";
@@ -19,6 +19,7 @@ import { classFromResidue, firstDescent } from "../../core/padic.js";
 import { LimitError, UsageError } from "../../core/errors.js";
 import { bitLength } from "../../core/arith.js";
 import { Smallest } from "../../core/smallest.js";
+import type { JobApi } from "../registry.js";
 
 export const MAX_CENSUS_DEPTH = 32;
 /** Least members listed among those whose descent differs (the smallest; the count is exact). */
@@ -295,7 +296,7 @@ export const censusJob: JobKind<CensusParams, CensusPart, CensusResult> = {
     const signed = plan.params.map.r < 0;
     await pool.run(
       tasks,
-      (api, s) => api.runCensus(s),
+      (api: JobApi, s) => api.runCensus(s),
       (_s, out) => tally.addShard(out, signed),
       options,
     );

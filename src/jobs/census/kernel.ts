@@ -2,8 +2,9 @@
 // the fast log2 bin, the ratio bounds), one shard's run, and its tallies and channels copied out.
 import { bitLength } from "../../core/arith.js";
 import type { Kernel } from "../../engine/loader.js";
+import type { WorkerContext } from "../../engine/worker.js";
 import { collector, concat } from "../../engine/loader.js";
-import type { CensusShard, CensusShardResult } from "../../engine/messages.js";
+import type { CensusShard, CensusShardResult } from "./messages.js";
 import { checkTallyStride, writeDropTables } from "../../engine/tables.js";
 import { makeMap } from "../../core/map.js";
 import { classFromWord } from "../../core/padic.js";
@@ -160,3 +161,8 @@ function pairCollector(kernel: Kernel, base: number) {
     all: () => concat(parts, (n) => new Uint32Array(n)),
   };
 }
+
+/** What this job asks of its workers. */
+export const censusHandlers = {
+  runCensus: (ctx: WorkerContext, req: CensusShard): CensusShardResult => censusShard(ctx.kernel(), req),
+};

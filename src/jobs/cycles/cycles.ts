@@ -6,13 +6,14 @@
 import type { CollatzMap } from "../../core/map.js";
 import { kernelDepthLimit, parseMap } from "../../core/map.js";
 import { concatU64, threadKernel } from "../../engine/loader.js";
-import type { CycleShard } from "../../engine/messages.js";
+import type { CycleShard } from "./messages.js";
 import { choosePrefixBits, largestShare, runWhole, shardEstimate, shardPrefixes } from "../../engine/plan.js";
 import type { JobKind, PartBase } from "../../engine/plan.js";
 import { cycleShard } from "./kernel.js";
 import type { KernelPool, RunOptions } from "../../engine/pool.js";
 import { cycleRepresentative, iterate } from "../../core/padic.js";
 import { LimitError, UsageError } from "../../core/errors.js";
+import type { JobApi } from "../registry.js";
 
 export const MAX_CYCLE_PERIOD = 63;
 
@@ -147,7 +148,7 @@ export const cycleJob: JobKind<CycleParams, CyclePart, CycleSearchResult> = {
     const tasks: CycleShard[] = prefixes.map((prefix) => ({ ...base, depth: maxPeriod, prefixBits: d, prefix, walkTallies: false }));
     await pool.run(
       tasks,
-      (api, task) => api.runCycles(task),
+      (api: JobApi, task) => api.runCycles(task),
       (_s, out) => {
         found.push(out.candidates);
         nodes += out.nodes;

@@ -2,8 +2,9 @@
 // assembly/cycles.ts reads, one shard's run, and its candidates copied out.
 import { inverseMod2k } from "../../core/arith.js";
 import type { Kernel } from "../../engine/loader.js";
+import type { WorkerContext } from "../../engine/worker.js";
 import { collector } from "../../engine/loader.js";
-import type { CycleShard, CycleShardResult } from "../../engine/messages.js";
+import type { CycleShard, CycleShardResult } from "./messages.js";
 
 /**
  * Runs one shard of the cycle search.
@@ -59,3 +60,8 @@ function writeCycleTables(mem: ArrayBuffer, qTables: number, dTable: number, q: 
     }
   }
 }
+
+/** What this job asks of its workers. */
+export const cyclesHandlers = {
+  runCycles: (ctx: WorkerContext, req: CycleShard): CycleShardResult => cycleShard(ctx.kernel(), req),
+};

@@ -2,8 +2,14 @@
 // copies its tallies, leaves and exception classes out of wasm memory.
 import type { Kernel } from "../../engine/loader.js";
 import { concatU64 } from "../../engine/loader.js";
-import type { LeafChunk, ShardRequest, ShardResult } from "../../engine/messages.js";
+import type { LeafChunk, ShardOutput, ShardRequest, ShardResult, TableExport } from "./messages.js";
 import { checkTallyStride, writeDropTables } from "../../engine/tables.js";
+import type { WorkerContext } from "../../engine/worker.js";
+import { makeMap } from "../../core/map.js";
+import { classFromResidue } from "../../core/padic.js";
+import { classTableArrow } from "../../outputs/arrow.js";
+import { csvLines, finishBucket, groupResidues } from "../../outputs/tables.js";
+import type { CsvRow } from "../../outputs/tables.js";
 
 /**
  * Runs one shard; leaves go to `onLeaves` chunk by chunk (copies, safe to keep).
@@ -62,4 +68,51 @@ export function enumerateShard(kernel: Kernel, req: ShardRequest, onLeaves?: (ch
     stopped: new BigUint64Array(buf, tallies + L("TALLY_TABLE_BYTES"), rows).slice(),
     exceptionClasses: concatU64(excParts),
   };
+}
+
+/** What the sieve asks of its workers: a shard, a bucket of the class table sorted, a table export. */
+export const sieveHandlers = {
+  runShard(ctx: WorkerContext, req: ShardRequest): ShardOutput {
+    const chunks: LeafChunk[] = [];
+    const res = enumerateShard(ctx.kernel(), req, req.leaves ? (c) => chunks.push(c) : undefined);
+    if (!req.leaves) return res;
+    return req.buckets
+      ? { ...res, grouped: groupResidues(chunks, req.depth, req.buckets) }
+      : { ...res, leaves: concatLeaves(chunks, req.r < 0) };
+  },
+  /** Sorts one bucket of a class table (outputs/tables.ts finishBucket). */
+  sortBucket(_ctx: WorkerContext, req: { keys: Uint32Array; bits: number; high: number; wide: boolean }): Uint32Array {
+    return finishBucket(req.keys, req.bits, req.high, req.wide);
+  },
+  /** A class table export made in a worker: the rows' (m, b) come from each residue, in BigInt. */
+  exportTable(_ctx: WorkerContext, req: TableExport): Uint8Array {
+    const map = makeMap(req.q, req.r);
+    const rows: CsvRow[] = Array.from(req.residues, (a) => {
+      const c = classFromResidue(map, BigInt(a), req.depth);
+      return { residue: c.residue, odd: c.odd, image: c.image };
+    });
+    return req.format === "arrow"
+      ? classTableArrow(rows, map, req.depth, req.tool)
+      : new TextEncoder().encode([...csvLines(rows)].join(""));
+  },
+};
+
+/** Joins streamed chunks into one struct-of-arrays. */
+function concatLeaves(chunks: LeafChunk[], signed: boolean): LeafChunk {
+  const n = chunks.reduce((s, c) => s + c.a.length, 0);
+  const nb = chunks.reduce((s, c) => s + c.b.length, 0); // 0 when only residues were streamed
+  const a = new BigUint64Array(n);
+  const b = signed ? new BigInt64Array(nb) : new BigUint64Array(nb);
+  const m = new Uint8Array(nb);
+  let o = 0,
+    ob = 0;
+  for (const c of chunks) {
+    a.set(c.a, o);
+    if (b instanceof BigInt64Array) b.set(c.b as BigInt64Array, ob);
+    else b.set(c.b as BigUint64Array, ob);
+    m.set(c.m, ob);
+    o += c.a.length;
+    ob += c.b.length;
+  }
+  return { a, b, m };
 }

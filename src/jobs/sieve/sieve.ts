@@ -10,7 +10,8 @@ import { exactCounts } from "../../core/exact.js";
 import { threadKernel } from "../../engine/loader.js";
 import type { Kernel } from "../../engine/loader.js";
 import { TALLY_STRIDE } from "../../engine/messages.js";
-import type { LeafChunk, Mode, ShardRequest, ShardResult } from "../../engine/messages.js";
+import type { LeafChunk, ShardRequest, ShardResult } from "./messages.js";
+import type { Mode } from "../../engine/messages.js";
 import { choosePrefixBits, largestShare, runWhole, shardEstimate, shardPrefixes } from "../../engine/plan.js";
 import type { JobKind, PartBase, ShardOptions } from "../../engine/plan.js";
 import { enumerateShard } from "./kernel.js";
@@ -19,6 +20,7 @@ import { decodeExceptionClasses, EXCEPTION_LIMIT, expandExceptions } from "./exc
 import type { ExceptionClass, SieveException } from "./exceptions.js";
 import { UsageError } from "../../core/errors.js";
 import { DEFAULT_PASS_BUDGET, passPlan, ResidueSorter } from "../../outputs/tables.js";
+import type { JobApi } from "../registry.js";
 
 export interface SieveRequest {
   readonly map: CollatzMap;
@@ -206,7 +208,7 @@ export const sieveJob: JobKind<SieveParams, SievePart, SieveResult> = {
       if (tasks.length > 0)
         await pool.run(
           passTasks,
-          (api, task) => api.runShard(task),
+          (api: JobApi, task) => api.runShard(task),
           (_task, out) => {
             m.add(out, depth);
             if (out.grouped) sorter!.addGrouped(out.grouped);
@@ -225,7 +227,8 @@ export const sieveJob: JobKind<SieveParams, SievePart, SieveResult> = {
           const done = new Map<number, Uint32Array>();
           await pool.run(
             some,
-            (api, b) => api.sortBucket(transfer(b.keys, [b.keys.buffer]), sorter.keyBits, sorter.highOf(b.k), depth > 32),
+            (api: JobApi, b) =>
+              api.sortBucket(transfer({ keys: b.keys, bits: sorter.keyBits, high: sorter.highOf(b.k), wide: depth > 32 }, [b.keys.buffer])),
             (b, out) => done.set(b.k, out),
             { signal: options.signal },
           );

@@ -1,7 +1,8 @@
 // The inverse tree's kernel adapter: the roots written into the kernel's memory, one walk
 // (assembly/inverse.ts), and the per-depth tallies copied out.
 import type { Kernel } from "../../engine/loader.js";
-import type { InverseShard, InverseShardResult } from "../../engine/messages.js";
+import type { WorkerContext } from "../../engine/worker.js";
+import type { InverseShard, InverseShardResult } from "./messages.js";
 
 /**
  * Walks the subtrees below `req.roots` (all at inverse depth rootDepth) to req.depth.
@@ -25,3 +26,8 @@ export function inverseShard(kernel: Kernel, req: InverseShard): InverseShardRes
     belowX: table("INVERSE_BELOW_X"),
   };
 }
+
+/** What this job asks of its workers. */
+export const treeHandlers = {
+  runInverse: (ctx: WorkerContext, req: InverseShard): InverseShardResult => inverseShard(ctx.kernel(), req),
+};

@@ -9,7 +9,8 @@ import { CancelledError } from "../../engine/pool.js";
 import type { KernelPool, RunOptions } from "../../engine/pool.js";
 import { runWhole, shardEstimate, shardPrefixes, largestShare } from "../../engine/plan.js";
 import type { JobKind, PartBase } from "../../engine/plan.js";
-import type { InverseShardResult } from "../../engine/messages.js";
+import type { InverseShardResult } from "./messages.js";
+import type { JobApi } from "../registry.js";
 
 /** "T": steps of T (n/2, (q n + r)/2); "standard": steps of n/2 and q n + r. */
 export type StepConvention = "T" | "standard";
@@ -256,7 +257,7 @@ export const treeJob: JobKind<TreeParams, TreePart, TreeResult> = {
       const tasks = Array.from({ length: groups }, (_, g) => BigUint64Array.from(roots.filter((_, i) => i % groups === g)));
       await pool.run(
         tasks,
-        (api, r) =>
+        (api: JobApi, r) =>
           api.runInverse({
             q: p.map.q,
             r: p.map.r,

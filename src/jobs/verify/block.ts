@@ -3,7 +3,7 @@
 // a cycle, and its lists cut to the block's own records. This is what a checkpoint, a cluster part
 // and a certificate's block table keep, and what the merge sweeps; it is made in the worker.
 import type { CollatzMap } from "../../core/map.js";
-import type { VerifyBlock, VerifyBlockResult } from "../../engine/messages.js";
+import type { VerifyBlock, VerifyBlockResult } from "./messages.js";
 import { EXCEPTION_LIMIT } from "../sieve/exceptions.js";
 import { cycleEntry, delayBig, traceBig } from "./trace.js";
 

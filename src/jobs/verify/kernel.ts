@@ -1,8 +1,9 @@
 // The verification kernel's adapter: the run's tables written into a worker's kernel once
 // (verifyPrepare), then one block at a time (verifyAligned or verifyRange), results copied out.
 import type { Kernel } from "../../engine/loader.js";
+import type { WorkerContext } from "../../engine/worker.js";
 import { collector } from "../../engine/loader.js";
-import type { VerifyBlock, VerifyBlockResult, VerifyTables } from "../../engine/messages.js";
+import type { VerifyBlock, VerifyBlockResult, VerifyTables } from "./messages.js";
 import { writeDropTables } from "../../engine/tables.js";
 import { makeMap } from "../../core/map.js";
 import { bigintBlock, finishKernelBlock } from "./block.js";
@@ -131,3 +132,15 @@ function verifyBlock(kernel: Kernel, t: VerifyTables, block: VerifyBlock): Verif
     unresolved: lists.unresolved.all(),
   };
 }
+
+/** What verification asks of its workers: a run's tables kept once, then blocks. */
+export const verifyHandlers = {
+  verifyPrepare(ctx: WorkerContext, tables: VerifyTables): void {
+    verifyPrepare(ctx.kernel(), tables);
+    ctx.state.set("verify.tables", tables);
+  },
+  verifyBlock(ctx: WorkerContext, block: VerifyBlock): BlockEntry {
+    const tables = (ctx.state.get("verify.tables") as VerifyTables | undefined) ?? null;
+    return verifyBlockEntry(ctx.kernel(), tables, block);
+  },
+};

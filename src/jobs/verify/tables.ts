@@ -4,7 +4,7 @@ import { LimitError } from "../../core/errors.js";
 import { exactCounts } from "../../core/exact.js";
 import type { CollatzMap } from "../../core/map.js";
 import { dropDepth, stoppingOdds } from "../../core/map.js";
-import type { VerifyTables } from "../../engine/messages.js";
+import type { VerifyTables } from "./messages.js";
 import type { KernelPool, RunOptions } from "../../engine/pool.js";
 import { stepTableRaw } from "../../outputs/manifest.js";
 import { ResidueSorter } from "../../outputs/tables.js";

@@ -6,7 +6,7 @@
 // order (merge.ts). This file is the run: the scheduling of blocks, and the job of the plan layer.
 import { exactCounts } from "../../core/exact.js";
 import { parseMap } from "../../core/map.js";
-import type { VerifyBlock } from "../../engine/messages.js";
+import type { VerifyBlock } from "./messages.js";
 import { shardEstimate } from "../../engine/plan.js";
 import type { JobKind, PartBase } from "../../engine/plan.js";
 import type { KernelPool, RunOptions } from "../../engine/pool.js";
@@ -17,6 +17,7 @@ import { blockSize, planVerify } from "./plan.js";
 import type { BlockSpec, VerifyPlan, VerifyRequest } from "./plan.js";
 import { exceptionsIn, verifyTables } from "./tables.js";
 import type { VerifyTableData } from "./tables.js";
+import type { JobApi } from "../registry.js";
 
 /** Options of a run: progress and cancel, and blocks already done (a resumed run) with a callback per block. */
 export interface VerifyOptions extends RunOptions {
@@ -61,7 +62,7 @@ async function executeBlocks(
   let failed: unknown = null;
   await pool.run(
     todo.map((b) => blockMessage(plan, data, b)),
-    async (api, block) => {
+    async (api: JobApi, block) => {
       if (data && !prepared.has(api)) {
         await api.verifyPrepare(data.tables);
         prepared.add(api);
