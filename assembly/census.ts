@@ -20,7 +20,7 @@
 
 import { flush } from "./buffers";
 import {
-  CENSUS_BATCH, CENSUS_BATCH_AT, CENSUS_BIN_OFFSET, CENSUS_BINS_AT, CENSUS_COUNTS_AT, CENSUS_EXCEPTIONS_AT, CENSUS_RATIO_AT, CENSUS_REACH_AT, CENSUS_REGION_BYTES, CENSUS_SEED_AT,
+  CENSUS_BATCH, CENSUS_BATCH_AT, CENSUS_COUNT_DIFFER, CENSUS_COUNT_EARLY, CENSUS_COUNT_NONPOSITIVE, CENSUS_COUNT_SLOW, CENSUS_BIN_OFFSET, CENSUS_BINS_AT, CENSUS_COUNTS_AT, CENSUS_EXCEPTIONS_AT, CENSUS_RATIO_AT, CENSUS_REACH_AT, CENSUS_REGION_BYTES, CENSUS_SEED_AT,
   CENSUS_TALLY_BYTES, CHANNEL_AMBIGUOUS, CHANNEL_CHUNK, CHANNEL_DIFFER, CHANNEL_EXCEPTIONS, CHANNEL_RATIO, CHANNEL_VECTORS, TABLE_BINMIN, TALLY_TABLE_BYTES,
 } from "./layout";
 import { dropDepth, evenBit, evenImage, evenResidue, oddImage, qpow, stepImage, stepValue, tally, useTables } from "./tree";
@@ -193,15 +193,15 @@ function binBatch(): void {
   // first descent versus coefficient stopping time
   const isEarly = a < early;
   if (isEarly || <i64>a <= excMax) {
-    bump(1);
-    if (isEarly) bump(2);
+    bump(CENSUS_COUNT_DIFFER);
+    if (isEarly) bump(CENSUS_COUNT_EARLY);
     push(CHANNEL_DIFFER, a, isEarly ? 1 : 2, 0, 0);
   }
 }
 
 function leafSlow(a: u64, b: i64, m: i32): void {
-  bump(4 + m);
-  if (b <= 0) bump(0);
+  bump(CENSUS_COUNT_SLOW + m);
+  if (b <= 0) bump(CENSUS_COUNT_NONPOSITIVE);
   else {
     const p = batchPtr + (<usize>batchN << 4);
     store<u64>(p, a);

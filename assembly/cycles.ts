@@ -6,7 +6,7 @@
 // Two widths: u64/i64 (host-proven as for enumerate) and signed 128-bit (u128.ts).
 
 import { flush } from "./buffers";
-import { CHANNEL_CHUNK, CHANNEL_CYCLES } from "./layout";
+import { CHANNEL_CHUNK, CHANNEL_CYCLES, CYCLE_QPOW_HIGH } from "./layout";
 import { evenBit, evenImage, evenResidue, oddImage, stepImage, stepValue } from "./tree";
 import { rlo, rhi, add, shr1, mul, leU } from "./u128";
 
@@ -151,8 +151,8 @@ function walk128(prefixBits: i32, prefix: u64, own: bool): void {
 
 /**
  * Tests every node of depth 1..depth below the prefix class (and, with walkTallies, the ancestors this
- * shard owns: prefix >> j == 0). tables: CYCLE_QPOW_BYTES, q^m low words at [0, 512), high words at
- * [512, 1024); dTable: CYCLE_DIVISOR_BYTES, 64 x 64 entries of 32 bytes (inverse and limit, low then
+ * shard owns: prefix >> j == 0). tables: CYCLE_QPOW_BYTES, q^m low words at [0, CYCLE_QPOW_HIGH), high words at
+ * [CYCLE_QPOW_HIGH, CYCLE_QPOW_BYTES); dTable: CYCLE_DIVISOR_BYTES, 64 x 64 entries of 32 bytes (inverse and limit, low then
  * high words; high words unused at 64 bits); candidates: CHANNEL_CHUNK entries, 4 u64 each: a, b low,
  * b high, (j << 32 | m). Returns the nodes visited below the prefix.
  */
@@ -166,7 +166,7 @@ export function cycleSearch(
   Q = <u64>q;
   H = (<i64>q + <i64>r) >> 1;
   qlo = tables;
-  qhi = tables + 512;
+  qhi = tables + CYCLE_QPOW_HIGH;
   dtab = dTable;
   candPtr = candidates;
   candN = 0;

@@ -10,7 +10,7 @@
 // The drop test q^m < 2^j is exact: the host passes bitlen(q^m) per m, and q^m < 2^j iff j >= bitlen(q^m).
 
 import { flush } from "./buffers";
-import { CHANNEL_CHUNK, CHANNEL_EXCEPTIONS, CHANNEL_LEAVES, LEAF_CHUNK, TALLY_STRIDE, TALLY_TABLE_BYTES } from "./layout";
+import { CHANNEL_CHUNK, CHANNEL_EXCEPTIONS, CHANNEL_LEAVES, LEAF_B_AT, LEAF_CHUNK, LEAF_M_AT, TALLY_STRIDE, TALLY_TABLE_BYTES } from "./layout";
 import { dropDepth, evenBit, evenImage, evenResidue, oddImage, qpow, stepImage, stepValue, tally, useTables } from "./tree";
 
 export const MODE_SURVIVORS: i32 = 0;
@@ -206,8 +206,8 @@ export function enumerate(
   memory.fill(livePtr, 0, rowBytes);
   memory.fill(stoppedPtr, 0, rowBytes);
   leafA = leaves;
-  leafB = leaves + (<usize>LEAF_CHUNK << 3);
-  leafM = leaves + (<usize>LEAF_CHUNK << 4);
+  leafB = leaves + <usize>LEAF_B_AT;
+  leafM = leaves + <usize>LEAF_M_AT;
   leafN = 0;
   excPtr = exceptions;
   excN = 0;

@@ -6,7 +6,7 @@
 // Width: the host proves every node below 2^62 (max(N, |r|) 2^K), so 2y and 2y - r stay in i64.
 import {
   INVERSE_BELOW_N, INVERSE_BELOW_X, INVERSE_LEVELS, INVERSE_MAX, INVERSE_MIN, INVERSE_NODES, INVERSE_ODD, INVERSE_TALLY_BYTES,
-  INVERSE_ZERO,
+  INVERSE_BOUND_BITS, INVERSE_ZERO,
 } from "./layout";
 
 let Q: i64 = 0;
@@ -71,7 +71,7 @@ export function inverseTree(
   memory.fill(at(INVERSE_MIN, 0), 0xff, INVERSE_LEVELS << 3);
   for (let i = 0; i < count; i++) {
     const y = load<u64>(roots + (<usize>i << 3));
-    assert(y > 0 && y < (<u64>1 << 62));
+    assert(y > 0 && y < (<u64>1 << <u64>INVERSE_BOUND_BITS));
     visit(y, rootDepth);
   }
   let total: u64 = 0;

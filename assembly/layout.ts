@@ -26,9 +26,14 @@ export const CHANNEL_RATIO: i32 = 5; // census: (member, T^j(member), j, -)
 export const CHANNEL_VECTORS: i32 = 6; // census: (a, parity vector, -, -)
 /** Entries of the 4-word channels: 4 u64. */
 export const ENTRY_BYTES: i32 = 32;
+/** u64 words of a channel entry (ENTRY_BYTES / 8). */
+export const ENTRY_WORDS: i32 = ENTRY_BYTES >> 3;
 export const CHANNEL_CHUNK: i32 = 1024;
 /** Leaves per chunk; the region holds a[LEAF_CHUNK] u64, b[LEAF_CHUNK] u64, m[LEAF_CHUNK] u8. */
 export const LEAF_CHUNK: i32 = 1 << 16;
+/** A leaf chunk's arrays: a (u64) at 0, b (u64) at LEAF_B_AT, m (u8) at LEAF_M_AT. */
+export const LEAF_B_AT: i32 = LEAF_CHUNK * 8;
+export const LEAF_M_AT: i32 = LEAF_CHUNK * 16;
 export const LEAF_BYTES: i32 = LEAF_CHUNK * 17;
 
 // ---- enumerate ----
@@ -40,8 +45,12 @@ export const ENUM_EXCEPTION_BYTES: i32 = CHANNEL_CHUNK * ENTRY_BYTES;
 /** log2(T^K(a)/a) in quarter units, bin k at index k + CENSUS_BIN_OFFSET. */
 export const CENSUS_BINS: i32 = 1024;
 export const CENSUS_BIN_OFFSET: i32 = 512;
-/** counts: [0] nonpositive images, [1] differ, [2] early descents, [3] unused, [4 + m] slow-path leaves. */
-export const CENSUS_COUNTS: i32 = 68;
+/** counts: nonpositive images, differing members, early descents, (one unused), then per m the slow-path leaves. */
+export const CENSUS_COUNT_NONPOSITIVE: i32 = 0;
+export const CENSUS_COUNT_DIFFER: i32 = 1;
+export const CENSUS_COUNT_EARLY: i32 = 2;
+export const CENSUS_COUNT_SLOW: i32 = 4;
+export const CENSUS_COUNTS: i32 = CENSUS_COUNT_SLOW + 64;
 /** live and stopped tables (the live part of the tree only), then bins, then counts. */
 export const CENSUS_BINS_AT: i32 = 2 * TALLY_TABLE_BYTES;
 export const CENSUS_COUNTS_AT: i32 = CENSUS_BINS_AT + CENSUS_BINS * 8;
@@ -61,8 +70,9 @@ export const CENSUS_REACH_AT: i32 = CENSUS_SEED_AT + 8;
 export const CENSUS_SCRATCH_BYTES: i32 = CENSUS_REACH_AT + 64 * 64 * 8;
 
 // ---- cycles ----
-/** q^m low words at 0, high words at 512 (u64, m = 0..63). */
-export const CYCLE_QPOW_BYTES: i32 = 1024;
+/** q^m low words at 0, high words at CYCLE_QPOW_HIGH (u64, m = 0..63). */
+export const CYCLE_QPOW_HIGH: i32 = 512;
+export const CYCLE_QPOW_BYTES: i32 = 2 * CYCLE_QPOW_HIGH;
 /** Per (j, m), 32 bytes: inverse of |2^j - q^m| mod 2^w and floor((2^w - 1) / |2^j - q^m|), low then high words. */
 export const CYCLE_DIVISOR_BYTES: i32 = TALLY_STRIDE * TALLY_STRIDE * 32;
 export const CYCLE_CANDIDATE_BYTES: i32 = CHANNEL_CHUNK * ENTRY_BYTES;
@@ -78,6 +88,9 @@ export const VERIFY_REGION_BYTES: i32 = CHANNEL_CHUNK * ENTRY_BYTES;
 export const VERIFY_SCRATCH_BYTES: i32 = 5 * VERIFY_REGION_BYTES;
 /** u64 counts: survivors checked, exceptions that descended, cycle members, unresolved, handoffs,
  * then (ranged blocks) sieved n by cut depth j at VERIFY_COUNT_SIEVED + j. */
+/** The deepest sieve and step tables a verification run uses (the host plans within them: src/jobs/verify/plan.ts). */
+export const VERIFY_MAX_DEPTH: i32 = 30;
+export const VERIFY_MAX_STEP_DEPTH: i32 = 20;
 export const VERIFY_COUNT_CHECKED: i32 = 0;
 export const VERIFY_COUNT_EXCEPTIONS: i32 = 1;
 export const VERIFY_COUNT_CYCLES: i32 = 2;
@@ -100,3 +113,7 @@ export const INVERSE_BELOW_N: i32 = 5;
 export const INVERSE_BELOW_X: i32 = 6;
 export const INVERSE_TABLES: i32 = 7;
 export const INVERSE_TALLY_BYTES: i32 = INVERSE_TABLES * INVERSE_LEVELS * 8;
+
+// ---- inverse tree ----
+/** Every node the kernel walks lies below 2^INVERSE_BOUND_BITS (the host proves it: max(N, |r|) 2^K), so 2y and 2y - r stay in i64. */
+export const INVERSE_BOUND_BITS: i32 = 62;

@@ -18,6 +18,8 @@
 
 import { flush } from "./buffers";
 import {
+  VERIFY_MAX_DEPTH,
+  VERIFY_MAX_STEP_DEPTH,
   CHANNEL_CHUNK,
   CHANNEL_CYCLE_MEMBERS,
   CHANNEL_GLIDE_RECORDS,
@@ -358,7 +360,7 @@ export function verifyPrepare(
   q: u32, r: u32, depth: i32, stepDepth: i32, tables: usize, survivors: i32,
   a: usize, m: usize, b: usize, peak: usize, sm: usize, sb: usize, speak: usize,
 ): void {
-  assert(r > 0 && depth >= 1 && depth <= 32 && stepDepth >= 1 && stepDepth <= 24 && survivors >= 0);
+  assert(r > 0 && depth >= 1 && depth <= VERIFY_MAX_DEPTH && stepDepth >= 1 && stepDepth <= VERIFY_MAX_STEP_DEPTH && survivors >= 0);
   Q = <u64>q;
   HQ = (<u64>q + <u64>r) >> 1;
   useTables(tables);
@@ -396,7 +398,7 @@ export function verifyAligned(
   h0: u64, periods: u64, exc: usize, excN: i32, sievedGlide: i32, sievedPeak: i32, sievedSlack: u64,
   survivorSlack: u64, slacks: usize, counts: usize, scratch: usize,
 ): u64 {
-  assert(r > 0 && survivors > 0 && depth >= 1 && depth <= 32 && stepDepth >= 1 && stepDepth <= 24 && limit >= 1 && limit <= 128);
+  assert(r > 0 && survivors > 0 && depth >= 1 && depth <= VERIFY_MAX_DEPTH && stepDepth >= 1 && stepDepth <= VERIFY_MAX_STEP_DEPTH && limit >= 1 && limit <= 128);
   begin(q, r, depth, stepDepth, steps, limit, tables, counts, scratch);
   slackK = survivorSlack;
   slackPtr = slacks;
@@ -474,7 +476,7 @@ export function verifyAligned(
 export function verifyRange(
   q: u32, r: u32, depth: i32, steps: i32, limit: i32, tables: usize, first: u64, last: u64, counts: usize, scratch: usize,
 ): u64 {
-  assert(r > 0 && depth >= 1 && depth <= 32 && first >= 1 && first <= last && limit >= 1 && limit <= 128);
+  assert(r > 0 && depth >= 1 && depth <= VERIFY_MAX_DEPTH && first >= 1 && first <= last && limit >= 1 && limit <= 128);
   begin(q, r, depth, 1, steps, limit, tables, counts, scratch);
   for (let n = first; ; n++) {
     const done = exact(n);
@@ -500,7 +502,7 @@ export function verifyRange(
 export function verifyDelays(
   q: u32, r: u32, stepDepth: i32, steps: i32, limit: i32, tables: usize, first: u64, last: u64, counts: usize, scratch: usize,
 ): u64 {
-  assert(r > 0 && stepDepth >= 1 && stepDepth <= 24 && first >= 1 && first <= last && limit >= 1 && limit <= 128);
+  assert(r > 0 && stepDepth >= 1 && stepDepth <= VERIFY_MAX_STEP_DEPTH && first >= 1 && first <= last && limit >= 1 && limit <= 128);
   begin(q, r, 1, stepDepth, steps, limit, tables, counts, scratch);
   for (let n = first; ; n++) {
     let vl = n, vh: u64 = 0, t = 0, odd = 0, done = DONE_DESCENT;

@@ -12,7 +12,7 @@ import { planVerify } from "../src/jobs/verify/plan.js";
 import { runVerify } from "../src/jobs/verify/verify.js";
 import { tableHashes } from "../src/jobs/verify/certificate.js";
 import { UsageError } from "../src/core/errors.js";
-import { parseExactJson, toExactJson } from "../src/outputs/json.js";
+import { parseExactJson, toExactJson } from "../src/core/json.js";
 import { nodePool } from "../src/node/kernel.js";
 import { createHash } from "node:crypto";
 

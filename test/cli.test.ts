@@ -7,7 +7,7 @@ import { join } from "node:path";
 import { promisify } from "node:util";
 import { afterAll, describe, expect, it } from "vitest";
 import { parseMap } from "../src/core/map.js";
-import { parseExactJson } from "../src/outputs/json.js";
+import { parseExactJson } from "../src/core/json.js";
 import { parseCsv } from "../src/outputs/tables.js";
 import { A076227 } from "../src/core/published.js";
 import { coefficientStop, T } from "./helpers.js";

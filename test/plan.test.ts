@@ -9,7 +9,7 @@ import { conjugacyJob } from "../src/jobs/conjugacy.js";
 import { cycleJob } from "../src/jobs/cycles/cycles.js";
 import { liveDescendants, sieveJob, sieveParams } from "../src/jobs/sieve/sieve.js";
 import { verifyJob } from "../src/jobs/verify/verify.js";
-import { packData, toExactJson, unpackData } from "../src/outputs/json.js";
+import { packData, toExactJson, unpackData } from "../src/core/json.js";
 import { censusJson, conjugacyJson, cyclesJson, sieveJson } from "../src/outputs/summary.js";
 import { verifyJson } from "../src/jobs/verify/certificate.js";
 import { nodePool } from "../src/node/kernel.js";

@@ -243,7 +243,8 @@ describe("census: brute force", () => {
       const full = kernel.census({ ...req, vectors: true }); // vectors mode visits all 2^(K+1) - 1 nodes
       expect(full.nodes).toBe((2n << BigInt(K)) - 1n);
       expect(pruned.nodes, map.name).toBeLessThan(full.nodes);
-      for (const key of ["live", "stopped", "bins", "counts"] as const) expect(pruned[key], `${map.name} ${key}`).toEqual(full[key]);
+      for (const key of ["live", "stopped", "bins", "nonpositive", "differCount", "early", "slow"] as const)
+        expect(pruned[key], `${map.name} ${key}`).toEqual(full[key]);
       const entries = (x: BigUint64Array) => Array.from({ length: x.length / 4 }, (_, i) => `${x[4 * i]},${x[4 * i + 1]}`).sort();
       expect(entries(pruned.differ)).toEqual(entries(full.differ));
       expect(entries(pruned.ambiguous)).toEqual(entries(full.ambiguous));

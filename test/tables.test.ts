@@ -1,12 +1,12 @@
 // Sorting class tables in bounded memory: buckets, passes and the u64 path, against a plain sort.
 import { describe, expect, it } from "vitest";
-import { passPlan, ResidueSorter } from "../src/outputs/tables.js";
-import { radixSortU32 } from "../src/outputs/sort.js";
+import { passPlan, ResidueSorter } from "../src/jobs/sieve/sort.js";
+import { radixSortU32 } from "../src/jobs/sieve/sort.js";
 import type { LeafChunk } from "../src/jobs/sieve/messages.js";
 import { parseMap } from "../src/core/map.js";
 import { runSieve } from "../src/jobs/sieve/sieve.js";
 import { nodePool } from "../src/node/kernel.js";
-import { toExactJson, parseExactJson } from "../src/outputs/json.js";
+import { toExactJson, parseExactJson } from "../src/core/json.js";
 import { sortBig } from "./helpers.js";
 import { classTableArrow } from "../src/outputs/arrow.js";
 

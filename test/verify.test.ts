@@ -8,7 +8,7 @@ import { planVerify } from "../src/jobs/verify/plan.js";
 import type { BlockEntry } from "../src/jobs/verify/block.js";
 import type { VerifyResult } from "../src/jobs/verify/merge.js";
 import { LimitError, UsageError } from "../src/core/errors.js";
-import { toExactJson } from "../src/outputs/json.js";
+import { toExactJson } from "../src/core/json.js";
 import { verifyJson } from "../src/jobs/verify/certificate.js";
 import { nodePool } from "../src/node/kernel.js";
 

@@ -6,7 +6,7 @@ import { KernelPool, PoolOwner } from "../src/engine/pool.js";
 import type { SpawnWorker, WorkerHandle } from "../src/engine/pool.js";
 import { releaseProxy, wrap } from "comlink";
 import type { WorkerApi } from "../src/engine/worker.js";
-import type { JobApi, JobHandlers } from "../src/jobs/registry.js";
+import type { ExportApi, exportHandlers } from "../src/outputs/export.js";
 
 const spawn: SpawnWorker = (): WorkerHandle => {
   const w = new Worker(new URL("./worker.ts", import.meta.url), { type: "module" });
@@ -56,9 +56,9 @@ export function pagePoolPending(): number {
 }
 
 /** A one-off worker for exports (so the page never does the BigInt work itself). */
-export async function withExportWorker<T>(work: (api: JobApi) => Promise<T>): Promise<T> {
+export async function withExportWorker<T>(work: (api: ExportApi) => Promise<T>): Promise<T> {
   const h = spawn();
-  const api = wrap<WorkerApi<JobHandlers>>(h.endpoint);
+  const api = wrap<WorkerApi<typeof exportHandlers>>(h.endpoint);
   try {
     return await work(api);
   } finally {

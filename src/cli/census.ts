@@ -4,10 +4,10 @@ import { censusJob, MAX_CENSUS_DEPTH, runCensus } from "../jobs/census/census.js
 import type { CensusParams, CensusResult } from "../jobs/census/census.js";
 import type { DataFile, ToolStamp } from "../outputs/manifest.js";
 import type { AtomicFile } from "../node/files.js";
-import type { BatchJob } from "./cluster.js";
+import type { BatchJob } from "./batch.js";
 import { censusArrow } from "../outputs/arrow.js";
 import { group, plural } from "../outputs/format.js";
-import { toExactJson } from "../outputs/json.js";
+import { toExactJson } from "../core/json.js";
 import { manifest } from "../outputs/manifest.js";
 import { censusJson, log2Coefficient } from "../outputs/summary.js";
 import { withManifestOutput } from "../node/files.js";

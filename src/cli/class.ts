@@ -3,7 +3,7 @@ import type { Command } from "commander";
 import { MAX_INSPECT_STEPS } from "../core/padic.js";
 import { inspect, parseInspectInput } from "../jobs/inspect.js";
 import { cardText } from "../outputs/card.js";
-import { toExactJson } from "../outputs/json.js";
+import { toExactJson } from "../core/json.js";
 import { classJson } from "../outputs/summary.js";
 import { intOption, jobCommand, mapOption } from "./options.js";
 import type { RawOptions } from "./options.js";

@@ -5,10 +5,8 @@ import type { Command } from "commander";
 import { UsageError } from "../core/errors.js";
 import { makePlan } from "../engine/plan.js";
 import type { JobKind, PartBase, Plan } from "../engine/plan.js";
-import type { KernelPool } from "../engine/pool.js";
 import { group, plural } from "../outputs/format.js";
-import { toExactJson } from "../outputs/json.js";
-import type { ToolStamp } from "../outputs/manifest.js";
+import { toExactJson } from "../core/json.js";
 import {
   arrayList,
   checkParts,
@@ -30,34 +28,7 @@ import type { FileFormat, OutputChoice, RawOptions } from "./options.js";
 import { print } from "./print.js";
 import { sieveBatch } from "./sieve.js";
 import { verifyBatch } from "./verify.js";
-
-/** What `merge --out FILE` writes: the file the one-machine command's --out writes. */
-export interface MergeOutput<R> {
-  readonly formats: readonly FileFormat[];
-  readonly what: string;
-  /** How a refusal names what it writes (default: the formats). */
-  readonly writes?: string;
-  write(
-    pool: KernelPool,
-    result: R,
-    out: OutputChoice<FileFormat>,
-    stamp: ToolStamp,
-    tables: readonly string[],
-    span: { readonly started: string; readonly finished: string },
-  ): Promise<void>;
-}
-
-/** A job as the cluster commands see it: the plan layer's job, its options, its JSON and its --out. */
-export interface BatchJob<P, R> {
-  readonly job: JobKind<P, PartBase, R>;
-  /** The job's own options (the same as its one-machine command's). */
-  options(cmd: Command): Command;
-  params(o: RawOptions): P;
-  json(result: R): unknown;
-  /** Its shards write their sorted part of the class table (RUN/parts/I.table). */
-  readonly table?: boolean;
-  readonly out?: MergeOutput<R>;
-}
+import type { BatchJob } from "./batch.js";
 
 // biome-ignore lint/suspicious/noExplicitAny: the table holds jobs of every parameter and result type
 type AnyBatchJob = BatchJob<any, any>;

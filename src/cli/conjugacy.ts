@@ -2,8 +2,8 @@
 import type { Command } from "commander";
 import { conjugacy, conjugacyJob, MAX_CONJUGACY_DEPTH } from "../jobs/conjugacy.js";
 import type { ConjugacyParams, ConjugacyResult } from "../jobs/conjugacy.js";
-import type { BatchJob } from "./cluster.js";
-import { toExactJson } from "../outputs/json.js";
+import type { BatchJob } from "./batch.js";
+import { toExactJson } from "../core/json.js";
 import { conjugacyJson } from "../outputs/summary.js";
 import { withPool } from "../node/kernel.js";
 import { intOption, jobCommand, mapOption, workersOption } from "./options.js";

@@ -6,12 +6,12 @@ import type { Command } from "commander";
 import { exactRows, MAX_EXACT_DEPTH } from "../core/exact.js";
 import type { ExactRow } from "../core/exact.js";
 import type { CollatzMap } from "../core/map.js";
-import { toExactJson } from "../outputs/json.js";
+import { toExactJson } from "../core/json.js";
 import { countsHeadJson, countsOddJson, levelJson } from "../outputs/summary.js";
 import { intOption, jobCommand, mapOption } from "./options.js";
 import type { RawOptions } from "./options.js";
 import { print, yielder } from "./print.js";
-import { progressBar } from "./progress.js";
+import { progressBar } from "../node/progress.js";
 import { levelHeader, levelLine, levelWidths } from "./report.js";
 
 interface CountsOptions extends RawOptions {

@@ -4,10 +4,10 @@ import { cycleJob, MAX_CYCLE_PERIOD, searchCycles } from "../jobs/cycles/cycles.
 import type { CycleParams, CycleSearchResult } from "../jobs/cycles/cycles.js";
 import type { DataFile, ToolStamp } from "../outputs/manifest.js";
 import type { AtomicFile } from "../node/files.js";
-import type { BatchJob } from "./cluster.js";
+import type { BatchJob } from "./batch.js";
 import { cyclesArrow } from "../outputs/arrow.js";
 import { group, plural } from "../outputs/format.js";
-import { toExactJson } from "../outputs/json.js";
+import { toExactJson } from "../core/json.js";
 import { manifest } from "../outputs/manifest.js";
 import { cyclesJson } from "../outputs/summary.js";
 import { withManifestOutput } from "../node/files.js";

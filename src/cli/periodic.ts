@@ -2,7 +2,7 @@
 import type { Command } from "commander";
 import { cycleRepresentative, parsePeriodicWord, periodicPoint, twoAdicDigits } from "../core/padic.js";
 import { abbreviate } from "../outputs/card.js";
-import { toExactJson } from "../outputs/json.js";
+import { toExactJson } from "../core/json.js";
 import { periodicJson } from "../outputs/summary.js";
 import { intOption, jobCommand, mapOption } from "./options.js";
 import type { RawOptions } from "./options.js";

@@ -1,10 +1,10 @@
 // glidepath steps: the k-step acceleration table (m, b) for every residue mod 2^k.
 import type { Command } from "commander";
 import { UsageError } from "../core/errors.js";
-import { MAX_STEP_DEPTH, stepTable } from "../jobs/steps.js";
+import { MAX_STEP_DEPTH, stepTable, stepTableRaw } from "../jobs/steps.js";
 import { stepTableArrow } from "../outputs/arrow.js";
 import { group } from "../outputs/format.js";
-import { stepManifest, stepTableRaw } from "../outputs/manifest.js";
+import { stepManifest } from "../outputs/manifest.js";
 import { withManifestOutput } from "../node/files.js";
 import { toolStamp, withPool } from "../node/kernel.js";
 import { intOption, jobCommand, mapOption, outputOption, workersOption } from "./options.js";

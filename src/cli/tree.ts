@@ -6,7 +6,7 @@ import type { StepConvention, TreeEdge, TreeResult } from "../jobs/tree/tree.js"
 import { parseWhole } from "../core/parse.js";
 import { treeEdgesArrow } from "../outputs/arrow.js";
 import { group, plural } from "../outputs/format.js";
-import { toExactJson } from "../outputs/json.js";
+import { toExactJson } from "../core/json.js";
 import { manifest } from "../outputs/manifest.js";
 import { growth, treeJson } from "../outputs/summary.js";
 import { withManifestOutput } from "../node/files.js";

@@ -9,3 +9,9 @@ export type Mode = "survivors" | "full";
  * own value (assembly/layout.ts) is checked against it when a kernel is loaded (engine/tables.ts).
  */
 export const TALLY_STRIDE = 64;
+
+/** The tool version and kernel build that outputs, plans and parts carry. */
+export interface ToolStamp {
+  readonly version: string;
+  readonly kernelBuild: string;
+}

@@ -60,3 +60,20 @@ export function applySteps(table: StepTable, n: bigint): bigint {
   const a = Number(n & ((1n << k) - 1n));
   return BigInt(table.map.q) ** BigInt(table.odd[a]!) * (n >> k) + BigInt(table.image[a]!);
 }
+
+/** Offset of the image array in a raw step table: after 2^k bytes of odd steps, 8-aligned. */
+export function stepImageOffset(depth: number): number {
+  return Math.ceil(2 ** depth / 8) * 8;
+}
+
+/**
+ * A step table as its raw file holds it, in order and without copies: odd_steps (u8 per residue),
+ * zero padding to stepImageOffset, image (8 bytes per residue, little-endian).
+ */
+export function stepTableRaw(t: StepTable): Uint8Array[] {
+  return [
+    t.odd,
+    new Uint8Array(stepImageOffset(t.depth) - t.odd.length),
+    new Uint8Array(t.image.buffer, t.image.byteOffset, t.image.byteLength),
+  ];
+}

@@ -11,9 +11,9 @@ import { LimitError, UsageError } from "../core/errors.js";
 import { PLAN_KIND, planHash } from "../engine/plan.js";
 import type { ByteSink, JobKind, PartBase, Plan, ShardEstimate } from "../engine/plan.js";
 import type { KernelPool } from "../engine/pool.js";
-import { packData, parseExactJson, toExactJson, unpackData } from "../outputs/json.js";
+import { packData, parseExactJson, toExactJson, unpackData } from "../core/json.js";
 import type { DataFile } from "../outputs/manifest.js";
-import { finishBucket } from "../outputs/tables.js";
+import { finishBucket } from "../jobs/sieve/sort.js";
 import { AtomicFile, writeFileAtomic } from "./files.js";
 import { toolVersion } from "./version.js";
 

@@ -8,7 +8,7 @@ import { open, rename, unlink } from "node:fs/promises";
 import type { FileHandle } from "node:fs/promises";
 import { basename, dirname, join } from "node:path";
 import { UsageError } from "../core/errors.js";
-import { toExactJson } from "../outputs/json.js";
+import { toExactJson } from "../core/json.js";
 import type { DataFile } from "../outputs/manifest.js";
 
 const pending = new Set<string>();

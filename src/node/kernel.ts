@@ -8,7 +8,7 @@ import { compileKernel } from "../engine/loader.js";
 import { KernelPool } from "../engine/pool.js";
 import type { SpawnWorker } from "../engine/pool.js";
 import type { ToolStamp } from "../outputs/manifest.js";
-import { progressBar } from "../cli/progress.js";
+import { progressBar } from "./progress.js";
 import { toolVersion } from "./version.js";
 
 export type Flavour = "release" | "debug";

@@ -3,7 +3,7 @@ import { parentPort } from "node:worker_threads";
 import { expose } from "comlink";
 import nodeEndpoint from "comlink/dist/esm/node-adapter.mjs";
 import { createWorkerApi } from "../engine/worker.js";
-import { jobHandlers } from "../jobs/registry.js";
+import { workerHandlers } from "../registry.js";
 
 if (!parentPort) throw new Error("src/node/worker.ts must run inside a worker thread");
-expose(createWorkerApi(jobHandlers), nodeEndpoint(parentPort));
+expose(createWorkerApi(workerHandlers), nodeEndpoint(parentPort));

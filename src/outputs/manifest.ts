@@ -1,7 +1,7 @@
 // Manifests: the JSON written beside every output file (FILE.json), saying what the file holds,
 // how to read it, its sha256, and the tool and kernel build that wrote it.
 import type { CollatzMap } from "../core/map.js";
-import type { StepTable } from "../jobs/steps.js";
+import { stepImageOffset } from "../jobs/steps.js";
 import type { TableFormat } from "./tables.js";
 
 export interface DataFile {
@@ -10,10 +10,8 @@ export interface DataFile {
   readonly sha256: string;
 }
 
-export interface ToolStamp {
-  readonly version: string;
-  readonly kernelBuild: string;
-}
+import type { ToolStamp } from "../engine/messages.js";
+export type { ToolStamp };
 
 /** The fields every manifest carries: what it is, the map, the data file and its hash, the tool. */
 export interface ManifestCommon {
@@ -64,23 +62,6 @@ export function tableManifest(map: CollatzMap, depth: number, rows: bigint, form
     element: format === "raw" ? (depth <= 32 ? "u32" : "u64") : format,
     byteOrder: format === "raw" ? "little-endian" : null,
   });
-}
-
-/** Offset of the image array in a raw step table: after 2^k bytes of odd steps, 8-aligned. */
-export function stepImageOffset(depth: number): number {
-  return Math.ceil(2 ** depth / 8) * 8;
-}
-
-/**
- * A step table as its raw file holds it, in order and without copies: odd_steps (u8 per residue),
- * zero padding to stepImageOffset, image (8 bytes per residue, little-endian).
- */
-export function stepTableRaw(t: StepTable): Uint8Array[] {
-  return [
-    t.odd,
-    new Uint8Array(stepImageOffset(t.depth) - t.odd.length),
-    new Uint8Array(t.image.buffer, t.image.byteOffset, t.image.byteLength),
-  ];
 }
 
 /** The manifest of a step table; raw layout: odd_steps (u8 per residue), then image (i64 or u64) 8-aligned. */

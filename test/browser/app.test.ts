@@ -2,7 +2,7 @@
 import { readFileSync } from "node:fs";
 import { describe, expect, it } from "vitest";
 import type { Page } from "playwright-core";
-import { parseExactJson } from "../../src/outputs/json.js";
+import { parseExactJson } from "../../src/core/json.js";
 import { parseCsv } from "../../src/outputs/tables.js";
 import { parseMap } from "../../src/core/map.js";
 import { A076227 } from "../../src/core/published.js";

@@ -3,7 +3,7 @@
 // census against the exact counter and a BigInt brute force.
 import { describe, expect, it } from "vitest";
 import type { Page } from "playwright-core";
-import { parseExactJson } from "../../src/outputs/json.js";
+import { parseExactJson } from "../../src/core/json.js";
 import { parseMap } from "../../src/core/map.js";
 import { exactCounts } from "../../src/core/exact.js";
 import { A076227 } from "../../src/core/published.js";

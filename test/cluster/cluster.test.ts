@@ -8,7 +8,7 @@ import { join } from "node:path";
 import { promisify } from "node:util";
 import { afterAll, describe, expect, it } from "vitest";
 import { A076227 } from "../../src/core/published.js";
-import { parseExactJson } from "../../src/outputs/json.js";
+import { parseExactJson } from "../../src/core/json.js";
 import { privateSlurm } from "../system.js";
 
 const BIN = new URL("../../bin/glidepath.js", import.meta.url).pathname;

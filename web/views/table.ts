@@ -5,7 +5,7 @@ import type { CollatzMap } from "../../src/core/map.js";
 import { classFromResidue, firstDescent, MAX_INSPECT_STEPS } from "../../src/core/padic.js";
 import { CSV_ROW_GUARD } from "../../src/outputs/tables.js";
 import { tableManifest } from "../../src/outputs/manifest.js";
-import { toExactJson } from "../../src/outputs/json.js";
+import { toExactJson } from "../../src/core/json.js";
 import { affineText } from "../../src/outputs/card.js";
 import { kernelBuildId, sha256, withExportWorker } from "../engine.js";
 import pkg from "../../package.json";

@@ -7,7 +7,7 @@ import { checkTree, heuristicGrowth, MAX_TREE_DEPTH, runTree, treeEdges } from "
 import type { StepConvention, TreeParams, TreeResult } from "../../src/jobs/tree/tree.js";
 import { parseWhole } from "../../src/core/parse.js";
 import { group } from "../../src/outputs/format.js";
-import { toExactJson } from "../../src/outputs/json.js";
+import { toExactJson } from "../../src/core/json.js";
 import { growth, treeJson } from "../../src/outputs/summary.js";
 import { RunController } from "../controller.js";
 import { $, fieldError, parseField, ResultsPanel } from "../dom.js";

@@ -11,7 +11,7 @@ import { verifyTables } from "../../src/jobs/verify/tables.js";
 import type { VerifyTableData } from "../../src/jobs/verify/tables.js";
 import { runVerify } from "../../src/jobs/verify/verify.js";
 import { group } from "../../src/outputs/format.js";
-import { toExactJson } from "../../src/outputs/json.js";
+import { toExactJson } from "../../src/core/json.js";
 import pkg from "../../package.json";
 import { RunController } from "../controller.js";
 import { $, download, fieldError, parseField, ResultsPanel } from "../dom.js";

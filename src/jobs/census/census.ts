@@ -162,10 +162,10 @@ class CensusTally {
   addShard(out: CensusShardResult, signed: boolean): void {
     if (out.binOffset !== this.binOffset || out.bins.length !== this.bins.length) throw new Error("internal error: census bins differ");
     this.addTables(out);
-    this.nonpositive += out.counts[0]!;
-    this.differCount += out.counts[1]!;
-    this.early += out.counts[2]!;
-    for (let m = 0; m <= this.depth; m++) this.slow[m] = this.slow[m]! + out.counts[4 + m]!;
+    this.nonpositive += out.nonpositive;
+    this.differCount += out.differCount;
+    this.early += out.early;
+    for (let m = 0; m <= this.depth; m++) this.slow[m] = this.slow[m]! + out.slow[m]!;
     for (let i = 0; i < out.ambiguous.length; i += 4) {
       const b = signed ? BigInt.asIntN(64, out.ambiguous[i + 1]!) : out.ambiguous[i + 1]!;
       this.bins[quarterLog2(out.ambiguous[i]!, b) + this.binOffset]!++;

@@ -56,7 +56,7 @@ export function censusShard(kernel: Kernel, req: CensusShard): CensusShardResult
     stopped: table(1),
     bins: new BigUint64Array(buf, tallies + L("CENSUS_BINS_AT"), L("CENSUS_BINS")).slice(),
     binOffset: L("CENSUS_BIN_OFFSET"),
-    counts: new BigUint64Array(buf, tallies + L("CENSUS_COUNTS_AT"), L("CENSUS_COUNTS")).slice(),
+    ...censusCounts(new BigUint64Array(buf, tallies + L("CENSUS_COUNTS_AT"), L("CENSUS_COUNTS")), L),
     ambiguous: ambiguous.all(),
     differ: differ.all(),
     ratio: ratio.all(),
@@ -132,6 +132,17 @@ function writeRatioBounds(out: Float64Array, q: number, r: number, depth: number
 function ratioSeed(q: number, r: number, depth: number): number {
   const c = classFromWord(makeMap(q, r), "1".repeat(depth));
   return c.residue > 0n && c.image > 0n ? (Number(c.image) / Number(c.residue)) * (1 - 2 ** -20) : 0;
+}
+
+/** The kernel's census counters by name (their positions: assembly/layout.ts CENSUS_COUNT_*). */
+function censusCounts(counts: BigUint64Array, L: (name: string) => number) {
+  const slow = L("CENSUS_COUNT_SLOW");
+  return {
+    nonpositive: counts[L("CENSUS_COUNT_NONPOSITIVE")]!,
+    differCount: counts[L("CENSUS_COUNT_DIFFER")]!,
+    early: counts[L("CENSUS_COUNT_EARLY")]!,
+    slow: counts.slice(slow, slow + 64),
+  };
 }
 
 /** reach[(m << 6) + top] = max(binMin[m..top]): the slow-bin bound of every m a subtree can reach. */

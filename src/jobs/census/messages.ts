@@ -19,10 +19,13 @@ export interface CensusShardResult {
   /** bins[k + binOffset]: least members with floor(4 log2(T^K(a)/a)) = k, decided in the kernel. */
   readonly bins: BigUint64Array;
   readonly binOffset: number;
-  /** [nonpositive images, differing members, early descents, -, then per m the least members
-   * a >= 1 binned on the slow path]; the others with m odd steps belong in the bin of the
-   * coefficient q^m/2^K (coefficientBins). */
-  readonly counts: BigUint64Array;
+  /** Least members with a nonpositive image, members that differ from their class, early descents. */
+  readonly nonpositive: bigint;
+  readonly differCount: bigint;
+  readonly early: bigint;
+  /** Per m = 0..63: the least members a >= 1 binned on the slow path; the others with m odd steps
+   * belong in the bin of the coefficient q^m/2^K (coefficientBins). */
+  readonly slow: BigUint64Array;
   /** 4 u64 per entry, (a, b raw bits, -, -): least members whose bin the host decides exactly. */
   readonly ambiguous: BigUint64Array;
   /** 4 u64 per entry, (a, kind, -, -): kind 1 early descent, 2 no descent at the drop. */

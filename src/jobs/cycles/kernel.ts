@@ -16,7 +16,9 @@ export function cycleShard(kernel: Kernel, req: CycleShard): CycleShardResult {
   const qTables = kernel.region("cycles.qpow", L("CYCLE_QPOW_BYTES"));
   const dTable = kernel.region("cycles.divisors", L("CYCLE_DIVISOR_BYTES"));
   const candidates = kernel.region("cycles.candidates", L("CYCLE_CANDIDATE_BYTES"));
-  kernel.tablesFor("cycles", `${q} ${depth} ${wide}`, () => writeCycleTables(kernel.memory, qTables, dTable, q, depth, wide ? 128 : 64));
+  kernel.tablesFor("cycles", `${q} ${depth} ${wide}`, () =>
+    writeCycleTables(kernel.memory, qTables, kernel.layout("CYCLE_QPOW_HIGH"), dTable, q, depth, wide ? 128 : 64),
+  );
   const found = collector(kernel, candidates);
   const nodes = kernel.call(
     "cycleSearch",
@@ -32,9 +34,9 @@ export function cycleShard(kernel: Kernel, req: CycleShard): CycleShardResult {
  * q^m as two u64 words, and per (j, m) with 1 <= j <= depth the exact divisibility data for
  * |D| = |2^j - q^m| (odd): its inverse mod 2^w and floor((2^w - 1) / |D|), low word then high word.
  */
-function writeCycleTables(mem: ArrayBuffer, qTables: number, dTable: number, q: number, depth: number, w: 64 | 128): void {
+function writeCycleTables(mem: ArrayBuffer, qTables: number, qHigh: number, dTable: number, q: number, depth: number, w: 64 | 128): void {
   const lo = new BigUint64Array(mem, qTables, 64);
-  const hi = new BigUint64Array(mem, qTables + 512, 64);
+  const hi = new BigUint64Array(mem, qTables + qHigh, 64);
   const d = new BigUint64Array(mem, dTable, 64 * 64 * 4);
   const mask64 = (1n << 64n) - 1n;
   const mod = 1n << BigInt(w);

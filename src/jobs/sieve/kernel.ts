@@ -2,14 +2,10 @@
 // copies its tallies, leaves and exception classes out of wasm memory.
 import type { Kernel } from "../../engine/loader.js";
 import { concatU64 } from "../../engine/loader.js";
-import type { LeafChunk, ShardOutput, ShardRequest, ShardResult, TableExport } from "./messages.js";
+import type { LeafChunk, ShardOutput, ShardRequest, ShardResult } from "./messages.js";
 import { checkTallyStride, writeDropTables } from "../../engine/tables.js";
 import type { WorkerContext } from "../../engine/worker.js";
-import { makeMap } from "../../core/map.js";
-import { classFromResidue } from "../../core/padic.js";
-import { classTableArrow } from "../../outputs/arrow.js";
-import { csvLines, finishBucket, groupResidues } from "../../outputs/tables.js";
-import type { CsvRow } from "../../outputs/tables.js";
+import { finishBucket, groupResidues } from "./sort.js";
 
 /**
  * Runs one shard; leaves go to `onLeaves` chunk by chunk (copies, safe to keep).
@@ -23,7 +19,6 @@ export function enumerateShard(kernel: Kernel, req: ShardRequest, onLeaves?: (ch
   const tallies = kernel.region("enumerate.tallies", L("ENUM_TALLY_BYTES"));
   const leaves = kernel.region("enumerate.leaves", L("LEAF_BYTES"));
   const exceptions = kernel.region("enumerate.exceptions", L("ENUM_EXCEPTION_BYTES"));
-  const chunk = L("LEAF_CHUNK");
   kernel.tablesFor("tables", `drop ${q} ${depth}`, () => {
     checkTallyStride(kernel);
     writeDropTables(kernel, tables, q, depth);
@@ -52,8 +47,8 @@ export function enumerateShard(kernel: Kernel, req: ShardRequest, onLeaves?: (ch
         const n = req.residuesOnly ? 0 : count;
         onLeaves({
           a: new BigUint64Array(buf, leaves, count).slice(),
-          b: (r < 0 ? new BigInt64Array(buf, leaves + chunk * 8, n) : new BigUint64Array(buf, leaves + chunk * 8, n)).slice(),
-          m: new Uint8Array(buf, leaves + chunk * 16, n).slice(),
+          b: (r < 0 ? new BigInt64Array(buf, leaves + L("LEAF_B_AT"), n) : new BigUint64Array(buf, leaves + L("LEAF_B_AT"), n)).slice(),
+          m: new Uint8Array(buf, leaves + L("LEAF_M_AT"), n).slice(),
         });
       } else if (channel === L("CHANNEL_EXCEPTIONS")) {
         excParts.push(new BigUint64Array(buf, exceptions, count * 4).slice());
@@ -70,7 +65,7 @@ export function enumerateShard(kernel: Kernel, req: ShardRequest, onLeaves?: (ch
   };
 }
 
-/** What the sieve asks of its workers: a shard, a bucket of the class table sorted, a table export. */
+/** What the sieve asks of its workers: a shard, and a bucket of the class table sorted. */
 export const sieveHandlers = {
   runShard(ctx: WorkerContext, req: ShardRequest): ShardOutput {
     const chunks: LeafChunk[] = [];
@@ -80,20 +75,9 @@ export const sieveHandlers = {
       ? { ...res, grouped: groupResidues(chunks, req.depth, req.buckets) }
       : { ...res, leaves: concatLeaves(chunks, req.r < 0) };
   },
-  /** Sorts one bucket of a class table (outputs/tables.ts finishBucket). */
+  /** Sorts one bucket of a class table (sort.ts finishBucket). */
   sortBucket(_ctx: WorkerContext, req: { keys: Uint32Array; bits: number; high: number; wide: boolean }): Uint32Array {
     return finishBucket(req.keys, req.bits, req.high, req.wide);
-  },
-  /** A class table export made in a worker: the rows' (m, b) come from each residue, in BigInt. */
-  exportTable(_ctx: WorkerContext, req: TableExport): Uint8Array {
-    const map = makeMap(req.q, req.r);
-    const rows: CsvRow[] = Array.from(req.residues, (a) => {
-      const c = classFromResidue(map, BigInt(a), req.depth);
-      return { residue: c.residue, odd: c.odd, image: c.image };
-    });
-    return req.format === "arrow"
-      ? classTableArrow(rows, map, req.depth, req.tool)
-      : new TextEncoder().encode([...csvLines(rows)].join(""));
   },
 };
 

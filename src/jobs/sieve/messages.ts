@@ -1,7 +1,7 @@
 // What crosses to the sieve's workers: a shard of the enumeration, its leaves and tallies, a bucket
 // of residues to sort, and a class table to export.
 import type { Mode } from "../../engine/messages.js";
-import type { ToolStamp } from "../../outputs/manifest.js";
+import type { ToolStamp } from "../../engine/messages.js";
 
 /** One sieve shard: every class extending `prefix` mod 2^prefixBits, enumerated to `depth`. */
 export interface ShardRequest {

@@ -19,7 +19,7 @@ import type { KernelPool, RunOptions } from "../../engine/pool.js";
 import { decodeExceptionClasses, EXCEPTION_LIMIT, expandExceptions } from "./exceptions.js";
 import type { ExceptionClass, SieveException } from "./exceptions.js";
 import { UsageError } from "../../core/errors.js";
-import { DEFAULT_PASS_BUDGET, passPlan, ResidueSorter } from "../../outputs/tables.js";
+import { DEFAULT_PASS_BUDGET, passPlan, ResidueSorter } from "./sort.js";
 import type { JobApi } from "../registry.js";
 
 export interface SieveRequest {

@@ -2,6 +2,7 @@
 // (assembly/inverse.ts), and the per-depth tallies copied out.
 import type { Kernel } from "../../engine/loader.js";
 import type { WorkerContext } from "../../engine/worker.js";
+import { INVERSE_BOUND_BITS } from "./messages.js";
 import type { InverseShard, InverseShardResult } from "./messages.js";
 
 /**
@@ -10,6 +11,8 @@ import type { InverseShard, InverseShardResult } from "./messages.js";
  */
 export function inverseShard(kernel: Kernel, req: InverseShard): InverseShardResult {
   const L = (name: string) => kernel.layout(name);
+  if (L("INVERSE_BOUND_BITS") !== INVERSE_BOUND_BITS)
+    throw new Error("internal error: the kernel's inverse-tree bound (assembly/layout.ts) is not the host's (messages.ts)");
   const tallies = kernel.region("inverse.tallies", L("INVERSE_TALLY_BYTES"));
   const roots = kernel.region("inverse.roots", req.roots.byteLength);
   new BigUint64Array(kernel.memory, roots, req.roots.length).set(req.roots);

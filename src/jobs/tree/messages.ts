@@ -25,3 +25,6 @@ export interface InverseShardResult {
   readonly belowN: BigUint64Array;
   readonly belowX: BigUint64Array;
 }
+
+/** Every node the kernel walks lies below 2^62 (assembly/layout.ts INVERSE_BOUND_BITS, checked when a shard runs). */
+export const INVERSE_BOUND_BITS = 62;

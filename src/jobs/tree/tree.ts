@@ -11,6 +11,7 @@ import { runWhole, shardEstimate, shardPrefixes, largestShare } from "../../engi
 import type { JobKind, PartBase } from "../../engine/plan.js";
 import type { InverseShardResult } from "./messages.js";
 import type { JobApi } from "../registry.js";
+import { INVERSE_BOUND_BITS } from "./messages.js";
 
 /** "T": steps of T (n/2, (q n + r)/2); "standard": steps of n/2 and q n + r. */
 export type StepConvention = "T" | "standard";
@@ -19,7 +20,7 @@ export const MAX_TREE_DEPTH = 100;
 /** Most nodes the BigInt engine walks (trees whose nodes pass 2^62). */
 export const MAX_BIGINT_TREE_NODES = 2 ** 22;
 /** Every node below this fits the kernel's signed 64-bit arithmetic (2y - r included). */
-const KERNEL_BOUND = 1n << 62n;
+const KERNEL_BOUND = 1n << BigInt(INVERSE_BOUND_BITS);
 
 export interface TreeParams {
   readonly map: CollatzMap;

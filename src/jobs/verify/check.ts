@@ -7,7 +7,7 @@ import type { CollatzMap } from "../../core/map.js";
 import { dropDepths } from "../../core/map.js";
 import { exactCounts } from "../../core/exact.js";
 import type { KernelPool } from "../../engine/pool.js";
-import { toExactJson } from "../../outputs/json.js";
+import { toExactJson } from "../../core/json.js";
 import { digestOf, entryJson, tableHashes, verifyFindings } from "./certificate.js";
 import type { ReadCertificate } from "./certificate.js";
 import { entryMismatch, mergeVerify } from "./merge.js";

@@ -7,11 +7,14 @@ import type { VerifyBlock, VerifyBlockResult, VerifyTables } from "./messages.js
 import { writeDropTables } from "../../engine/tables.js";
 import { makeMap } from "../../core/map.js";
 import { bigintBlock, finishKernelBlock } from "./block.js";
+import { MAX_VERIFY_SIEVE_DEPTH, MAX_VERIFY_STEP_DEPTH } from "./plan.js";
 import type { BlockEntry } from "./block.js";
 
 /** Writes the run's tables into the kernel (once per run and worker; `tables.key` names the run). */
 export function verifyPrepare(kernel: Kernel, t: VerifyTables): void {
   const L = (name: string) => kernel.layout(name);
+  if (L("VERIFY_MAX_DEPTH") !== MAX_VERIFY_SIEVE_DEPTH || L("VERIFY_MAX_STEP_DEPTH") !== MAX_VERIFY_STEP_DEPTH)
+    throw new Error("internal error: the kernel's verification depth limits (assembly/layout.ts) are not the host's (plan.ts)");
   const S = t.residues.length;
   const size = 2 ** (t.stepDepth + 1) - 2; // the step tables of depths 1..KS, built by the kernel
   const tables = kernel.region("tables", L("TABLE_BYTES"));

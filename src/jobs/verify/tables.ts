@@ -6,11 +6,10 @@ import type { CollatzMap } from "../../core/map.js";
 import { dropDepth, stoppingOdds } from "../../core/map.js";
 import type { VerifyTables } from "./messages.js";
 import type { KernelPool, RunOptions } from "../../engine/pool.js";
-import { stepTableRaw } from "../../outputs/manifest.js";
-import { ResidueSorter } from "../../outputs/tables.js";
+import { ResidueSorter } from "../sieve/sort.js";
 import { expandExceptions } from "../sieve/exceptions.js";
 import { runSieve } from "../sieve/sieve.js";
-import { stepTable } from "../steps.js";
+import { stepTable, stepTableRaw } from "../steps.js";
 import type { VerifyPlan } from "./plan.js";
 
 /** Exceptions a run may carry (they are listed and iterated one by one). */

@@ -1,0 +1,36 @@
+// What a job offers the cluster commands (batch, shard, batch-status, merge): its plan-layer job,
+// its options, its JSON and what `merge --out` writes. Each command file defines its job's entry;
+// cluster.ts lists them.
+import type { Command } from "commander";
+import type { JobKind, PartBase } from "../engine/plan.js";
+import type { KernelPool } from "../engine/pool.js";
+import type { ToolStamp } from "../engine/messages.js";
+import type { FileFormat, OutputChoice, RawOptions } from "./options.js";
+
+/** What `merge --out FILE` writes: the file the one-machine command's --out writes. */
+export interface MergeOutput<R> {
+  readonly formats: readonly FileFormat[];
+  readonly what: string;
+  /** How a refusal names what it writes (default: the formats). */
+  readonly writes?: string;
+  write(
+    pool: KernelPool,
+    result: R,
+    out: OutputChoice<FileFormat>,
+    stamp: ToolStamp,
+    tables: readonly string[],
+    span: { readonly started: string; readonly finished: string },
+  ): Promise<void>;
+}
+
+/** A job as the cluster commands see it: the plan layer's job, its options, its JSON and its --out. */
+export interface BatchJob<P, R> {
+  readonly job: JobKind<P, PartBase, R>;
+  /** The job's own options (the same as its one-machine command's). */
+  options(cmd: Command): Command;
+  params(o: RawOptions): P;
+  json(result: R): unknown;
+  /** Its shards write their sorted part of the class table (RUN/parts/I.table). */
+  readonly table?: boolean;
+  readonly out?: MergeOutput<R>;
+}
