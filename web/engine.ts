@@ -2,6 +2,7 @@
 // comlink, and the runs the views start. Arithmetic stays in src/; this file only wires it up.
 import wasmUrl from "../build/release.wasm?url";
 import { compileKernel } from "../src/engine/loader.js";
+import { sha256Hex } from "../src/outputs/format.js";
 import { KernelPool, PoolOwner } from "../src/engine/pool.js";
 import type { SpawnWorker, WorkerHandle } from "../src/engine/pool.js";
 import { releaseProxy, wrap } from "comlink";
@@ -28,11 +29,8 @@ export async function kernelModule(): Promise<WebAssembly.Module> {
   return compileKernel("release", await kernelBytes());
 }
 
-/** sha256 of bytes, as hex digits (Web Crypto). */
-export async function sha256(bytes: Uint8Array | ArrayBuffer): Promise<string> {
-  const d = await crypto.subtle.digest("SHA-256", bytes as Uint8Array<ArrayBuffer>);
-  return Array.from(new Uint8Array(d), (x) => x.toString(16).padStart(2, "0")).join("");
-}
+/** sha256 of bytes, as hex digits (the library's: outputs/format.ts). */
+export const sha256 = sha256Hex;
 
 /** Content hash of the kernel build (16 hex digits), as the CLI stamps into manifests. */
 export async function kernelBuildId(): Promise<string> {

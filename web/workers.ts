@@ -1,5 +1,6 @@
 // The page's worker count, read from the run view's field: 1 to 16, refused (not clamped) otherwise.
-import { $, fieldError } from "./dom.js";
+import { parseCount } from "../src/core/parse.js";
+import { $, parseField } from "./dom.js";
 
 export const MAX_PAGE_WORKERS = 16;
 
@@ -8,11 +9,8 @@ export const MAX_PAGE_WORKERS = 16;
  * of the view that asked, when that is another view).
  */
 export function readWorkers(message?: string): number | null {
-  const text = ($("run-workers") as HTMLInputElement).value.trim();
-  const n = Number(text);
-  const ok = /^\d+$/.test(text) && n >= 1 && n <= MAX_PAGE_WORKERS;
-  const why = ok ? "" : `workers must be a whole number from 1 to ${MAX_PAGE_WORKERS}`;
-  fieldError("run-workers", why);
+  const n = parseField("run-workers", (t) => parseCount("workers", t, 1, MAX_PAGE_WORKERS));
+  const why = n === null ? $("run-workers-error").textContent : "";
   if (message) $(message).textContent = why && `${why} (set in the Sieve and census view)`;
-  return ok ? n : null;
+  return n;
 }

@@ -6,7 +6,7 @@ import type { DataFile, ToolStamp } from "../outputs/manifest.js";
 import type { AtomicFile } from "../node/files.js";
 import type { BatchJob } from "./batch.js";
 import { censusArrow } from "../outputs/arrow.js";
-import { group, plural } from "../outputs/format.js";
+import { group, plural, ratioText } from "../outputs/format.js";
 import { toExactJson } from "../core/json.js";
 import { manifest } from "../outputs/manifest.js";
 import { censusJson, log2Coefficient } from "../outputs/summary.js";
@@ -130,11 +130,4 @@ function censusText(c: CensusResult, workers: number): string {
     "",
   ];
   return lines.join("\n");
-}
-
-/** v / n to three decimals (display only: the maximum itself was decided by exact cross-multiplication). */
-function ratioText(v: bigint, n: bigint): string {
-  const scaled = (v * 2000n + n) / (2n * n);
-  const s = scaled.toString().padStart(4, "0");
-  return `${group(BigInt(s.slice(0, -3)))}.${s.slice(-3)}`;
 }

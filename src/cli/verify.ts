@@ -197,36 +197,37 @@ function checkCheckpointTarget(path: string, key: string, out: string | undefine
   );
 }
 
-async function verify(o: VerifyOptions): Promise<void> {
-  let req: VerifyRequest;
-  let done = new Map<number, BlockEntry>();
-  let checkpointPath = o.checkpoint;
-  let resumed: { key: string; blocks: number } | null = null;
-  if (o.resume !== undefined) {
-    if (
-      o.from !== undefined ||
-      o.to !== undefined ||
-      o.sieveDepth !== undefined ||
-      o.stepDepth !== undefined ||
-      o.maxSteps !== undefined ||
-      o.delay === true ||
-      o.map !== "3x+1"
-    )
-      throw new UsageError("--resume takes the run's options from the checkpoint: give no --map, --from, --to or depths");
-    const c = readCheckpoint(readText(o.resume));
-    req = c.request;
-    resumed = c;
-    done = c.done;
-    checkpointPath ??= o.resume;
-  } else req = request(o, mapOption(o.map));
-  const plan = planVerify(req); // checks the request before anything is opened
-  if (resumed && (plan.key !== resumed.key || plan.blocks.length !== resumed.blocks))
+/** The request of a run, new or resumed: a checkpoint's request and its finished blocks, checked against the plan. */
+function startOrResume(o: VerifyOptions) {
+  if (o.resume === undefined) {
+    const req = request(o, mapOption(o.map));
+    return { req, plan: planVerify(req), done: new Map<number, BlockEntry>(), resumed: false };
+  }
+  if (
+    o.from !== undefined ||
+    o.to !== undefined ||
+    o.sieveDepth !== undefined ||
+    o.stepDepth !== undefined ||
+    o.maxSteps !== undefined ||
+    o.delay === true ||
+    o.map !== "3x+1"
+  )
+    throw new UsageError("--resume takes the run's options from the checkpoint: give no --map, --from, --to or depths");
+  const c = readCheckpoint(readText(o.resume));
+  const plan = planVerify(c.request);
+  if (plan.key !== c.key || plan.blocks.length !== c.blocks)
     throw new UsageError(`${o.resume} was written by another plan or build of glidepath: it cannot be resumed here`);
-  for (const e of done.values()) {
+  for (const e of c.done.values()) {
     const b = plan.blocks[e.index];
     if (!b || b.first !== e.first || b.last !== e.last || b.kind !== e.kind)
       throw new UsageError(`${o.resume}: its block ${e.index} is not the plan's block ${e.index}: it cannot be resumed`);
   }
+  return { req: c.request, plan, done: c.done, resumed: true };
+}
+
+async function verify(o: VerifyOptions): Promise<void> {
+  const { req, plan, done, resumed } = startOrResume(o); // checks the request before anything is opened
+  const checkpointPath = o.checkpoint ?? o.resume;
   const out = outputOption<"raw">({ ...o, format: undefined }, ["raw"], "raw", "the certificate, JSON: name it .json");
   if (checkpointPath !== undefined && !(resumed && checkpointPath === o.resume))
     checkCheckpointTarget(checkpointPath, plan.key, out?.path, o.force);

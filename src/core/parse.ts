@@ -20,3 +20,16 @@ export function parseWhole(name: string, text: string | undefined): bigint {
     return s + (e === undefined ? BigInt(b!) : BigInt(b!) ** BigInt(e));
   }, 0n);
 }
+
+/**
+ * A whole number from min to max (max Infinity: no upper bound), written as digits: the one check of
+ * small counts and depths for every form; `name` is how the message names the field.
+ * @example parseCount("depth", "20", 0, 40) // 20
+ */
+export function parseCount(name: string, text: string, min: number, max: number): number {
+  const t = text.trim();
+  const n = Number(t);
+  if (!/^\d+$/.test(t) || n < min || n > max)
+    throw new UsageError(`${name} must be a whole number from ${min}${max === Number.POSITIVE_INFINITY ? " up" : ` to ${max}`}`);
+  return n;
+}

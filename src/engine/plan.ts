@@ -107,7 +107,7 @@ export function largestShare(plan: TaskLayout & { shards: readonly TaskRange[] }
 }
 
 /** sha256 as hex (Web Crypto: the same in Node and the browser). */
-export async function sha256Hex(bytes: Uint8Array | string): Promise<string> {
+export async function sha256Hex(bytes: Uint8Array | ArrayBuffer | string): Promise<string> {
   const data = typeof bytes === "string" ? new TextEncoder().encode(bytes) : bytes;
   const d = await crypto.subtle.digest("SHA-256", data as Uint8Array<ArrayBuffer>);
   return Array.from(new Uint8Array(d), (x) => x.toString(16).padStart(2, "0")).join("");

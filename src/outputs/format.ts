@@ -29,3 +29,16 @@ export function density(survivors: bigint, depth: number, digits = 8): string {
 export function plural(n: number | bigint, word: string, many = `${word}s`): string {
   return `${group(n)} ${n === 1 || n === 1n ? word : many}`;
 }
+
+/**
+ * value / n to three decimals, rounded half up, grouped (for reading only: the value itself is
+ * decided exactly elsewhere).
+ * @example ratioText(10n, 3n) // "3.333"
+ */
+export function ratioText(value: bigint, n: bigint): string {
+  const scaled = (value * 2000n + n) / (2n * n);
+  const s = scaled.toString().padStart(4, "0");
+  return `${group(BigInt(s.slice(0, -3)))}.${s.slice(-3)}`;
+}
+
+export { sha256Hex } from "../engine/plan.js";

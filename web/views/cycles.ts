@@ -7,6 +7,7 @@ import { RunController } from "../controller.js";
 import { $, download, fieldError, parseField, ResultsPanel } from "../dom.js";
 import { cyclesCsv } from "../../src/outputs/summary.js";
 import { pagePoolPending, withPagePool } from "../engine.js";
+import { parseCount } from "../../src/core/parse.js";
 
 const panel = new ResultsPanel("cycles-results", "cycles-stale");
 let last: CycleSearchResult | null = null;
@@ -22,10 +23,9 @@ const controller = new RunController({
 /** Reads and checks the form; errors appear beside the fields. */
 function readCyclesForm(mapText: string, periodText: string): { map: CollatzMap; period: number } | null {
   const map = parseField("cycles-map", parseMap, mapText);
-  const period = Number(periodText);
-  let ok = /^\d+$/.test(periodText.trim()) && period >= 1 && period <= MAX_CYCLE_PERIOD;
-  if (!ok) fieldError("cycles-period", `a whole number from 1 to ${MAX_CYCLE_PERIOD}`);
-  else if (map) {
+  const period = parseField("cycles-period", (t) => parseCount("period", t, 1, MAX_CYCLE_PERIOD), periodText) ?? 0;
+  let ok = period > 0;
+  if (ok && map) {
     try {
       cycleWidth(map, period);
       fieldError("cycles-period", "");

@@ -1,5 +1,5 @@
 // The run view: map, depth and mode in; per-depth table, exceptions, charts and the run summary out.
-import { parseMap, kernelDepthLimit, stoppingOdds } from "../../src/core/map.js";
+import { parseMap, stoppingOdds } from "../../src/core/map.js";
 import type { CollatzMap } from "../../src/core/map.js";
 import { exactCounts } from "../../src/core/exact.js";
 import { classFromResidue } from "../../src/core/padic.js";
@@ -8,19 +8,21 @@ import { runSieve } from "../../src/jobs/sieve/sieve.js";
 import type { Mode } from "../../src/engine/messages.js";
 import type { RunOptions } from "../../src/engine/pool.js";
 import type { SieveResult } from "../../src/jobs/sieve/sieve.js";
-import { MAX_CENSUS_DEPTH, runCensus } from "../../src/jobs/census/census.js";
+import { runCensus } from "../../src/jobs/census/census.js";
 import type { CensusResult } from "../../src/jobs/census/census.js";
 import { passPlan, ResidueSorter } from "../../src/jobs/sieve/sort.js";
 import { censusJson, log2Coefficient, sieveJson } from "../../src/outputs/summary.js";
 import { toExactJson } from "../../src/core/json.js";
 import { A076227 } from "../../src/core/published.js";
-import { density, group } from "../../src/outputs/format.js";
+import { density, group, ratioText } from "../../src/outputs/format.js";
 import { pagePoolPending, withPagePool } from "../engine.js";
 import { RunController } from "../controller.js";
 import { drawCensus, drawDensity, drawHeat, drawStopped } from "./charts.js";
 import { showTable } from "./table.js";
 import { readWorkers } from "../workers.js";
 import { $, fieldError, parseField, ResultsPanel } from "../dom.js";
+import { parseCount } from "../../src/core/parse.js";
+import { runDepthLimit } from "../../src/jobs/census/census.js";
 
 /** Memory a run may take for its class table (the sorter's bytes per residue; kept in one pass). */
 const TABLE_BUDGET = 1.5 * 2 ** 30;
@@ -38,19 +40,15 @@ export interface RunRequest {
 }
 
 /** The deepest run the library allows for this map and mode (the census also within its own cap). */
-export function depthLimit(map: CollatzMap, mode: Mode): number {
-  return mode === "full" ? Math.min(MAX_CENSUS_DEPTH, kernelDepthLimit(map, "i64")) : kernelDepthLimit(map);
-}
+export const depthLimit = runDepthLimit;
 
 /** Reads and checks the form; errors appear beside the fields and nothing runs. */
 export function readRunForm(): RunRequest | null {
   const map = parseField("run-map", parseMap);
   const mode: Mode = ($("run-mode") as HTMLSelectElement).value === "full" ? "full" : "survivors";
-  const text = ($("run-depth") as HTMLInputElement).value.trim();
-  const depth = Number(text);
-  let ok = /^\d+$/.test(text) && depth >= 1;
-  if (!ok) fieldError("run-depth", "depth must be a whole number from 1 up");
-  else if (map) {
+  const depth = parseField("run-depth", (t) => parseCount("depth", t, 1, Number.POSITIVE_INFINITY)) ?? 0;
+  let ok = depth > 0;
+  if (ok && map) {
     const limit = depthLimit(map, mode);
     ok = depth <= limit;
     fieldError(
@@ -121,13 +119,6 @@ function renderCensus(c: CensusResult): void {
 }
 
 const panel = new ResultsPanel("run-results", "run-stale");
-/** value / n to 6 significant digits, for reading only (the exact pair is shown beside it). */
-function ratioText(value: bigint, n: bigint): string {
-  const digits = (value / n).toString().length;
-  const scale = 10n ** BigInt(Math.max(0, 6 - digits));
-  const r = Number((value * scale) / n) / Number(scale);
-  return r.toLocaleString("en-US", { maximumSignificantDigits: 6 });
-}
 
 const controller = new RunController({
   start: "run-start",

@@ -5,7 +5,7 @@ import { parseMap } from "../../src/core/map.js";
 import type { CollatzMap } from "../../src/core/map.js";
 import { checkTree, heuristicGrowth, MAX_TREE_DEPTH, runTree, treeEdges } from "../../src/jobs/tree/tree.js";
 import type { StepConvention, TreeParams, TreeResult } from "../../src/jobs/tree/tree.js";
-import { parseWhole } from "../../src/core/parse.js";
+import { parseCount, parseWhole } from "../../src/core/parse.js";
 import { group } from "../../src/outputs/format.js";
 import { toExactJson } from "../../src/core/json.js";
 import { growth, treeJson } from "../../src/outputs/summary.js";
@@ -38,12 +38,9 @@ let whole = { ...view };
 function readTreeForm(): TreeParams | null {
   const map = parseField("tree-map", parseMap);
   const n = parseField("tree-n", (t) => parseWhole("N", t));
-  const text = ($("tree-depth") as HTMLInputElement).value.trim();
-  const depth = Number(text);
-  const depthOk = /^\d+$/.test(text) && depth <= MAX_TREE_DEPTH;
-  fieldError("tree-depth", depthOk ? "" : `depth must be a whole number from 0 to ${MAX_TREE_DEPTH}`);
+  const depth = parseField("tree-depth", (t) => parseCount("depth", t, 0, MAX_TREE_DEPTH));
   const steps: StepConvention = ($("tree-steps") as HTMLSelectElement).value === "standard" ? "standard" : "T";
-  if (!map || n === null || !depthOk) return null;
+  if (!map || n === null || depth === null) return null;
   const params = { map, n, depth, steps, below: null };
   try {
     checkTree(params);

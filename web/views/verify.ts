@@ -1,7 +1,7 @@
 // The Verify view: a range of n checked in the page's workers, with its counts, maxima, record
 // lists and a certificate to download (the same library and certificate format as the CLI).
 import { parseMap } from "../../src/core/map.js";
-import { parseWhole } from "../../src/core/parse.js";
+import { parseCount, parseWhole } from "../../src/core/parse.js";
 import { certificate, tableHashes, verifyJson } from "../../src/jobs/verify/certificate.js";
 import type { TableHashes } from "../../src/jobs/verify/certificate.js";
 import type { VerifyResult } from "../../src/jobs/verify/merge.js";
@@ -33,11 +33,8 @@ export function readVerifyForm(): VerifyRequest | null {
   const map = parseField("verify-map", parseMap);
   const from = parseField("verify-from", (t) => parseWhole("from", t));
   const to = parseField("verify-to", (t) => parseWhole("to", t));
-  const text = ($("verify-depth") as HTMLInputElement).value.trim();
-  const depth = Number(text);
-  const depthOk = /^\d+$/.test(text) && depth >= 1 && depth <= MAX_VERIFY_SIEVE_DEPTH;
-  fieldError("verify-depth", depthOk ? "" : `a whole number from 1 to ${MAX_VERIFY_SIEVE_DEPTH}`);
-  if (!map || from === null || to === null || !depthOk) return null;
+  const depth = parseField("verify-depth", (t) => parseCount("sieve depth", t, 1, MAX_VERIFY_SIEVE_DEPTH));
+  if (!map || from === null || to === null || depth === null) return null;
   const req: VerifyRequest = { map, from, to, sieveDepth: depth };
   try {
     planVerify(req);

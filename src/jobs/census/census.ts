@@ -5,6 +5,7 @@
 import type { CollatzMap } from "../../core/map.js";
 import { kernelDepthLimit, parseMap } from "../../core/map.js";
 import { TALLY_STRIDE } from "../../engine/messages.js";
+import type { Mode } from "../../engine/messages.js";
 import type { CensusShard, CensusShardResult } from "./messages.js";
 import { concat, threadKernel } from "../../engine/loader.js";
 import { decodeExceptionClasses, EXCEPTION_LIMIT, expandExceptions } from "../sieve/exceptions.js";
@@ -22,6 +23,15 @@ import { Smallest } from "../../core/smallest.js";
 import type { JobApi } from "../registry.js";
 
 export const MAX_CENSUS_DEPTH = 32;
+
+/**
+ * The deepest run of a map the page and CLI allow: the sieve (survivors) to its exact 64-bit limit,
+ * the census (full) to MAX_CENSUS_DEPTH within the signed limit.
+ * @example runDepthLimit(parseMap("3x+1"), "survivors") // 40
+ */
+export function runDepthLimit(map: CollatzMap, mode: Mode): number {
+  return mode === "full" ? Math.min(MAX_CENSUS_DEPTH, kernelDepthLimit(map, "i64")) : kernelDepthLimit(map);
+}
 /** Least members listed among those whose descent differs (the smallest; the count is exact). */
 export const DIFFER_LISTED = 1000;
 

@@ -161,6 +161,8 @@ export const sieveJob: JobKind<SieveParams, SievePart, SieveResult> = {
     return { prefixBits: d, prefixes, tasks: prefixes.length, weights: odd.map((m) => below[m]!) };
   },
 
+  // one piece on purpose (91 lines): the passes, the sorted output and the table's merge share the
+  // pass plan and the sorter's state; split, they would pass half a dozen values back and forth
   async runShard(pool, plan, shard, options: SieveShardOptions = {}) {
     const started = performance.now();
     const p = plan.params;

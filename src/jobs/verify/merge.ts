@@ -3,7 +3,6 @@
 // the whole range is a record of its own block, so the sweep is exact); lists are the smallest of
 // the union. Equal for any split of the range: the one merge for threads, checkpoints and clusters,
 // and what `verify --check` re-derives from a certificate's block table.
-import type { CollatzMap } from "../../core/map.js";
 import { EXCEPTION_LIMIT } from "../sieve/exceptions.js";
 import { blockTotal, sweepRecords } from "./block.js";
 import { blockSize } from "./plan.js";
@@ -34,17 +33,9 @@ export interface VerifyCounts {
   readonly unresolved: bigint;
 }
 
-export interface VerifyResult {
-  readonly map: CollatzMap;
-  readonly from: bigint;
-  readonly to: bigint;
-  readonly sieveDepth: number;
-  readonly stepDepth: number;
-  readonly maxSteps: number;
-  /** The request's block count, when it gave one. */
-  readonly blockTarget: number | null;
-  /** "kernel" (u128 in wasm, BigInt for the rare values past 128 bits) or "bigint" (all of it). */
-  readonly engine: "kernel" | "bigint";
+/** A run's result: its plan's parameters (engine: "kernel", u128 in wasm and BigInt past 128 bits, or "bigint"), and what it found. */
+export interface VerifyResult
+  extends Pick<VerifyPlan, "map" | "from" | "to" | "sieveDepth" | "stepDepth" | "maxSteps" | "blockTarget" | "engine"> {
   readonly counts: VerifyCounts;
   /** Each n whose glide (standard steps), or path, beats every smaller n of the range. */
   readonly glideRecords: GlideRecord[];
@@ -81,6 +72,26 @@ export function entryMismatch(blocks: readonly BlockSpec[], entries: readonly Bl
   return null;
 }
 
+/** The plan's parameters a result repeats. */
+function pickParams(p: VerifyPlan) {
+  const { map, from, to, sieveDepth, stepDepth, maxSteps, blockTarget, engine } = p;
+  return { map, from, to, sieveDepth, stepDepth, maxSteps, blockTarget, engine };
+}
+
+/** Records of consecutive candidate lists: each list swept against the best of all before it. */
+function recordSweep<T extends { n: bigint }, V extends number | bigint>(value: (x: T) => V, start: V) {
+  let best = start;
+  const records: T[] = [];
+  return {
+    records,
+    add(candidates: readonly T[]) {
+      const r = sweepRecords(candidates, value, best);
+      best = r.best;
+      records.push(...r.records);
+    },
+  };
+}
+
 /**
  * Sweeps the entries (in plan order, one per block) into the run's result.
  * @example mergeVerify(plan, entries, seconds).counts.numbers === plan.to - plan.from
@@ -90,59 +101,45 @@ export function mergeVerify(plan: VerifyPlan, entries: readonly BlockEntry[], se
   if (bad) throw new Error(`internal error: ${bad}`);
   const K = plan.sieveDepth;
   const sievedByDepth = new Array<bigint>(K + 1).fill(0n);
-  let checked = 0n;
-  let exceptions = 0n;
-  let cycles = 0n;
-  let entrants = 0n;
-  let unresolved = 0n;
-  let handoffs = 0n;
-  let unreached = 0n;
+  const t = { checked: 0n, exceptions: 0n, cycles: 0n, entrants: 0n, unresolved: 0n, handoffs: 0n, unreached: 0n };
   const cycleMembers: CycleMember[] = [];
   const cycleEntrants: CycleEntrant[] = [];
   const unresolvedList: bigint[] = [];
   const unreachedList: bigint[] = [];
-  let glides = { records: [] as GlideRecord[], best: -1 };
-  let paths = { records: [] as PathRecord[], best: -1n };
-  let delays = { records: [] as GlideRecord[], best: -1 };
-  const glideRecords: GlideRecord[] = [];
-  const pathRecords: PathRecord[] = [];
-  const delayRecords: GlideRecord[] = [];
+  // the records: each block's own, swept in range order against the running best
+  const glides = recordSweep<GlideRecord, number>((g) => g.standardSteps, -1);
+  const paths = recordSweep<PathRecord, bigint>((p) => p.peakT, -1n);
+  const delays = recordSweep<GlideRecord, number>((g) => g.standardSteps, -1);
   for (const e of entries) {
     const c = e.counts;
-    checked += c.checked;
-    exceptions += c.exceptions;
-    cycles += c.cycleMembers;
-    entrants += c.cycleEntrants;
-    unresolved += c.unresolved;
-    handoffs += e.handoffs;
+    t.checked += c.checked;
+    t.exceptions += c.exceptions;
+    t.cycles += c.cycleMembers;
+    t.entrants += c.cycleEntrants;
+    t.unresolved += c.unresolved;
+    t.handoffs += e.handoffs;
     c.sievedByDepth.forEach((x, j) => {
       sievedByDepth[j]! += x;
     });
     cycleMembers.push(...e.cycleMembers);
     cycleEntrants.push(...e.cycleEntrants);
     unresolvedList.push(...e.unresolved);
-    glides = sweepRecords(e.glideRecords, (g) => g.standardSteps, glides.best);
-    glideRecords.push(...glides.records);
-    paths = sweepRecords(e.pathRecords, (p) => p.peakT, paths.best);
-    pathRecords.push(...paths.records);
+    glides.add(e.glideRecords);
+    paths.add(e.pathRecords);
     if (e.delay) {
-      unreached += e.delay.unreached;
+      t.unreached += e.delay.unreached;
       unreachedList.push(...e.delay.unreachedList);
-      delays = sweepRecords(e.delay.records, (g) => g.standardSteps, delays.best);
-      delayRecords.push(...delays.records);
+      delays.add(e.delay.records);
     }
   }
+  const { checked, exceptions, cycles, entrants, unresolved, handoffs, unreached } = t;
+  const glideRecords = glides.records;
+  const pathRecords = paths.records;
+  const delayRecords = delays.records;
   const sieved = sievedByDepth.reduce((s, x) => s + x, 0n);
   const ascending = (u: bigint, v: bigint) => (u < v ? -1 : u > v ? 1 : 0);
   return {
-    map: plan.map,
-    from: plan.from,
-    to: plan.to,
-    sieveDepth: K,
-    stepDepth: plan.stepDepth,
-    maxSteps: plan.maxSteps,
-    blockTarget: plan.blockTarget,
-    engine: plan.engine,
+    ...pickParams(plan),
     counts: {
       numbers: plan.to - plan.from,
       checked,

@@ -1,4 +1,5 @@
 // What crosses to the verification's workers: a run's tables, once, then blocks.
+import type { BlockSpec } from "./plan.js";
 
 /** The tables of one verification run, sent to each worker once (verifyPrepare). */
 export interface VerifyTables {
@@ -27,20 +28,12 @@ export interface VerifyTables {
  * One block of a verification run: whole periods of the sieve (aligned), any first..last (range), or
  * the delays (steps to reach 1) of first..last (delay); on the BigInt engine, walked n by n.
  */
-export interface VerifyBlock {
+export interface VerifyBlock extends BlockSpec {
   readonly key: string;
   readonly engine: "kernel" | "bigint";
   readonly q: number;
   readonly r: number;
   readonly sieveDepth: number;
-  readonly index: number;
-  readonly kind: "aligned" | "range" | "delay";
-  /** The numbers first..last (inclusive). */
-  readonly first: bigint;
-  readonly last: bigint;
-  /** aligned: n = a + 2^K h for h0 <= h < h0 + periods. */
-  readonly h0: bigint;
-  readonly periods: bigint;
   /** aligned: the sieve's exceptions in the block, ascending, and the depth of each one's class. */
   readonly exceptions: BigUint64Array;
   readonly exceptionDepths: Uint8Array;

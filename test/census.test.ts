@@ -1,126 +1,17 @@
-// Census, cycle search, conjugacy and step tables against published values and BigInt brute force.
+// The census against a BigInt brute force over every residue, exact decisions and edges.
 import { afterAll, describe, expect, it } from "vitest";
-import { tableFromIPC } from "apache-arrow";
 import { parseMap } from "../src/core/map.js";
-import type { CollatzMap } from "../src/core/map.js";
 import { runCensus, quarterLog2 } from "../src/jobs/census/census.js";
 import { runSieve } from "../src/jobs/sieve/sieve.js";
-import { searchCycles, CycleCollector } from "../src/jobs/cycles/cycles.js";
-import { conjugacy, conjugacyPermutation, cycleStructure } from "../src/jobs/conjugacy.js";
-import { applySteps, stepTable } from "../src/jobs/steps.js";
 import { exactCounts, peakCounts } from "../src/core/exact.js";
-import { censusArrow, cyclesArrow, stepTableArrow } from "../src/outputs/arrow.js";
-import { LimitError, UsageError } from "../src/core/errors.js";
+import { UsageError } from "../src/core/errors.js";
 import { nodePool } from "../src/node/kernel.js";
 import { coefficientStop, kernelOf, parities, T } from "./helpers.js";
 
 const pool = await nodePool(2);
 afterAll(() => pool.terminate());
 const maps = ["3x+1", "3x-1", "3x+5", "5x+1"].map(parseMap);
-
-function iterateBig(map: CollatzMap, n: bigint, k: number): bigint {
-  for (let i = 0; i < k; i++) n = T(BigInt(map.q), BigInt(map.r), n);
-  return n;
-}
-
-/** floor(4 log2(v / a)) for positive a, v, decided here by integer comparisons: 2^k a^4 <= v^4 < 2^(k+1) a^4. */
-function quarterBin(a: bigint, v: bigint): number {
-  const A = a ** 4n,
-    V = v ** 4n;
-  const atMost = (k: number) => (k >= 0 ? A << BigInt(k) <= V : A <= V << BigInt(-k)); // 2^k a^4 <= v^4
-  let k = 0;
-  if (atMost(0)) while (atMost(k + 1)) k++;
-  else while (!atMost(k)) k--;
-  return k;
-}
-
-/** Cycles reached from every start value with |n| <= bound, by direct iteration (a set of seen values). */
-function bruteCycles(map: CollatzMap, bound: number, maxPeriod: number): Map<bigint, number> {
-  const found = new Map<bigint, number>();
-  for (let s = -bound; s <= bound; s++) {
-    if (s === 0) continue;
-    const seen = new Map<bigint, number>();
-    let v = BigInt(s);
-    for (let i = 0; i < 5000 && !seen.has(v); i++) {
-      seen.set(v, i);
-      v = T(BigInt(map.q), BigInt(map.r), v);
-    }
-    if (!seen.has(v) || v === 0n) continue;
-    const period = seen.size - seen.get(v)!;
-    const cyc = [v];
-    for (let u = T(BigInt(map.q), BigInt(map.r), v); u !== v; u = T(BigInt(map.q), BigInt(map.r), u)) cyc.push(u);
-    const rep = cyc.reduce((a, b) => ((a < 0n ? -a : a) <= (b < 0n ? -b : b) ? a : b));
-    if (period <= maxPeriod) found.set(rep, period);
-  }
-  return found;
-}
-
-describe("cycles: published values", () => {
-  it("3x+1 to period 30: {1, 2} the only positive cycle; negative cycles of -1, -5, -17 with periods 1, 3, 11 (common practice)", async () => {
-    const r = await searchCycles(pool, parseMap("3x+1"), 30);
-    expect(r.cycles.map((c) => [c.representative, c.period])).toEqual([
-      [1n, 2],
-      [-1n, 1],
-      [-5n, 3],
-      [-17n, 11],
-    ]);
-    expect(r.nodes).toBe((1n << 31n) - 1n);
-  });
-  it("3x+5 to period 27: minima 1 (3), 5 (2), 19 (5), 23 (5), 187 (27), 347 (27) (Lagarias 1990, from memory)", async () => {
-    const r = await searchCycles(pool, parseMap("3x+5"), 27);
-    const pos = r.cycles.filter((c) => c.representative > 0n).map((c) => [c.min, c.period]);
-    expect(pos).toEqual([
-      [1n, 3],
-      [5n, 2],
-      [19n, 5],
-      [23n, 5],
-      [187n, 27],
-      [347n, 27],
-    ]);
-  });
-  it("5x+1 to period 28 (past the 64-bit range: the 128-bit path): 1 (5), 13 (7), 17 (7) (common practice)", async () => {
-    const r = await searchCycles(pool, parseMap("5x+1"), 28);
-    expect(r.width).toBe(128);
-    expect(r.cycles.filter((c) => c.representative > 0n).map((c) => [c.min, c.period])).toEqual([
-      [1n, 5],
-      [13n, 7],
-      [17n, 7],
-    ]);
-  });
-});
-
-describe("cycles: brute force and widths", () => {
-  for (const map of maps) {
-    it(`${map.name}: every cycle found from |n| <= 1000 by iteration is in the complete search, and conversely`, async () => {
-      const K = 20;
-      const r = await searchCycles(pool, map, K);
-      const brute = bruteCycles(map, 1000, K);
-      const listed = new Map(
-        r.cycles
-          .filter((c) => (c.representative < 0n ? -c.representative : c.representative) <= 1000n)
-          .map((c) => [c.representative, c.period]),
-      );
-      expect(listed).toEqual(brute);
-      for (const c of r.cycles) expect(iterateBig(map, c.representative, c.period)).toBe(c.representative);
-    });
-  }
-  it("the 128-bit kernel path finds exactly what the 64-bit path finds (3x+1, 3x-1 to depth 18)", async () => {
-    const kernel = await kernelOf("debug");
-    for (const map of [parseMap("3x+1"), parseMap("3x-1")]) {
-      const narrow = new CycleCollector(map),
-        wide = new CycleCollector(map);
-      const base = { q: map.q, r: map.r, depth: 18, prefixBits: 0, prefix: 0n, walkTallies: true };
-      narrow.add(kernel.cycles({ ...base, wide: false }).candidates);
-      wide.add(kernel.cycles({ ...base, wide: true }).candidates);
-      expect(wide.sorted()).toEqual(narrow.sorted());
-      expect(wide.candidates).toBe(narrow.candidates);
-    }
-  });
-  it("refuses periods beyond the 128-bit range", async () => {
-    await expect(searchCycles(pool, parseMap("99x+1"), 30)).rejects.toBeInstanceOf(LimitError);
-    await expect(searchCycles(pool, parseMap("3x+1"), 0)).rejects.toBeInstanceOf(UsageError);
-  });
-});
+import { quarterBin } from "./brute.js";
 
 describe("census: brute force", () => {
   for (const map of maps) {
@@ -273,52 +164,5 @@ describe("census: brute force", () => {
   });
   it("census depth 32 is the limit; beyond it a usage error", async () => {
     await expect(runCensus(pool, parseMap("3x+1"), 33)).rejects.toBeInstanceOf(UsageError);
-  });
-});
-
-describe("conjugacy and step tables", () => {
-  it("Q_k is a permutation of Z/2^k and its cycle structure matches a brute force, k <= 12 (Terras 1976)", async () => {
-    for (const map of maps) {
-      for (const k of [1, 5, 12]) {
-        const perm = await conjugacyPermutation(pool, map, k);
-        const brute = new Uint32Array(1 << k);
-        for (let a = 0; a < 1 << k; a++) brute[a] = parities(map, BigInt(a), k).reduce((s, p, i) => s + p * 2 ** i, 0);
-        expect(Array.from(perm)).toEqual(Array.from(brute));
-        expect(new Set(perm).size).toBe(1 << k);
-        const r = await conjugacy(pool, map, k);
-        expect(r.cycles).toBe(cycleStructure(brute).cycles);
-        expect(r.fixedPoints).toBe(cycleStructure(brute).fixedPoints);
-      }
-    }
-  });
-  it("a step table reproduces k single steps for n up to 2^200, every map (k = 12)", async () => {
-    let s = 2n ** 61n - 1n;
-    for (const map of maps) {
-      const t = await stepTable(pool, map, 12);
-      for (let i = 0; i < 200; i++) {
-        s = (s * 6364136223846793005n + 1442695040888963407n) % 2n ** 200n; // a fixed LCG stream
-        expect(applySteps(t, s)).toBe(iterateBig(map, s, 12));
-      }
-    }
-  });
-});
-
-describe("arrow exports round-trip through apache-arrow's reader", () => {
-  it("step table, census tallies and cycles", async () => {
-    const map = parseMap("3x-1");
-    const t = await stepTable(pool, map, 8);
-    const st = tableFromIPC(stepTableArrow(t));
-    expect(st.numRows).toBe(256);
-    expect(st.schema.fields.map((f) => `${f.name}:${f.type}`)).toEqual(["residue:Uint32", "odd_steps:Uint8", "image:Int64"]);
-    expect(Array.from(st.getChild("image")!.toArray() as BigInt64Array)).toEqual(Array.from(t.image));
-    const c = await runCensus(pool, map, 10);
-    const ct = tableFromIPC(censusArrow(c));
-    const rows = ct.toArray().map((r) => r.toJSON());
-    const live10 = rows.filter((r) => r.tally === "live" && r.depth === 10).reduce((s, r) => s + (r.count as bigint), 0n);
-    expect(live10).toBe(c.levels[10]!.survivors);
-    const cy = await searchCycles(pool, parseMap("3x+5"), 12);
-    const yt = tableFromIPC(cyclesArrow(cy));
-    expect(yt.getChild("representative")!.toArray()).toEqual(cy.cycles.map((x) => String(x.representative)));
-    expect(Array.from(yt.getChild("elements")!.get(0)!.toArray())).toEqual(cy.cycles[0]!.elements.map(String));
   });
 });
