@@ -28,6 +28,7 @@ import type { FileFormat, OutputChoice, RawOptions } from "./options.js";
 import { print } from "./print.js";
 import { sieveBatch } from "./sieve.js";
 import { verifyBatch } from "./verify.js";
+import { treeBatch } from "./tree.js";
 import type { BatchJob } from "./batch.js";
 
 // biome-ignore lint/suspicious/noExplicitAny: the table holds jobs of every parameter and result type
@@ -39,6 +40,7 @@ const JOBS: Record<string, AnyBatchJob> = {
   cycles: cyclesBatch,
   conjugacy: conjugacyBatch,
   verify: verifyBatch,
+  tree: treeBatch,
 };
 
 function batchJob(name: string): AnyBatchJob {

@@ -1,13 +1,17 @@
 // glidepath tree N: the inverse tree of N, level by level, exact at every size; --out writes its edges.
 import type { Command } from "commander";
 import { CSV_ROW_GUARD } from "../outputs/tables.js";
-import { MAX_TREE_DEPTH, runTree, treeEdges } from "../jobs/tree/tree.js";
-import type { StepConvention, TreeEdge, TreeResult } from "../jobs/tree/tree.js";
+import { MAX_TREE_DEPTH, runTree, treeEdges, treeJob } from "../jobs/tree/tree.js";
+import type { StepConvention, TreeEdge, TreeParams, TreeResult } from "../jobs/tree/tree.js";
 import { parseWhole } from "../core/parse.js";
 import { treeEdgesArrow } from "../outputs/arrow.js";
 import { group, plural } from "../outputs/format.js";
 import { toExactJson } from "../core/json.js";
 import { manifest } from "../outputs/manifest.js";
+import type { DataFile, ToolStamp } from "../outputs/manifest.js";
+import type { AtomicFile } from "../node/files.js";
+import type { BatchJob } from "./batch.js";
+import type { FileFormat } from "./options.js";
 import { growth, treeJson } from "../outputs/summary.js";
 import { withManifestOutput } from "../node/files.js";
 import { toolStamp, withPool } from "../node/kernel.js";
@@ -17,6 +21,7 @@ import type { RawOptions } from "./options.js";
 import { confirmOutput, print } from "./print.js";
 
 interface TreeOptions extends RawOptions {
+  readonly n?: string;
   readonly depth?: string;
   readonly below?: string;
   readonly steps?: string;
@@ -40,46 +45,73 @@ function stepsOption(v: string | undefined): StepConvention {
   throw new UsageError(`--steps must be T or standard, got "${v}"`);
 }
 
-async function tree(nText: string, o: TreeOptions): Promise<void> {
-  const map = mapOption(o.map);
-  const n = parseWhole("N", nText);
-  const params = {
-    map,
-    n,
-    depth: intOption("depth", o.depth, 0, MAX_TREE_DEPTH),
-    steps: stepsOption(o.steps),
+/** The tree's parameters from the command line (N positional for `tree`, --n for `batch tree`). */
+function treeParams(nText: string | undefined, o: TreeOptions): TreeParams {
+  return {
+    map: mapOption(o.map),
+    n: parseWhole("N", nText),
+    depth: intOption("depth", o.depth, 0, MAX_TREE_DEPTH, 20),
+    steps: stepsOption(o.steps ?? "T"),
     below: o.below === undefined ? null : parseWhole("--below", o.below),
   };
+}
+
+/** The edges of a tree (walked in BigInt) into an open file, under the row guard. */
+async function writeEdges(file: AtomicFile, format: FileFormat, result: TreeResult, force: boolean | undefined): Promise<void> {
+  const edges = result.total + 1n;
+  if (edges > BigInt(CSV_ROW_GUARD) && !force)
+    throw new LimitError(
+      `the tree has ${group(edges)} nodes, over the ${group(CSV_ROW_GUARD)}-row guard: choose a smaller --depth, or --force`,
+    );
+  const all = treeEdges(result.map, result.steps, result.n, result.depth);
+  if (format === "arrow") await file.write(treeEdgesArrow([...all]));
+  else {
+    await file.write("node,parent,depth,kind\n");
+    for (const e of all) await file.write(edgeLine(e));
+  }
+}
+
+const edgeManifest = (res: TreeResult, format: FileFormat, data: DataFile, stamp: ToolStamp) =>
+  manifest("glidepath tree edges", res.map, format, data, stamp, { n: res.n, depth: res.depth, steps: res.steps, rows: res.total + 1n });
+
+/** The inverse tree on a cluster: shards are groups of subtrees; merge --out writes the edges. */
+export const treeBatch: BatchJob<TreeParams, TreeResult> = {
+  job: treeJob,
+  options: (cmd) =>
+    cmd
+      .option("--n <N>", "the root N: a positive integer not divisible by q (digits, or powers such as 2^40+1)")
+      .option("--depth <K>", `inverse depth: 0 to ${MAX_TREE_DEPTH} (default 20)`)
+      .option("--below <X>", "also count the nodes below X")
+      .option("--steps <T|standard>", "steps of T (n/2, (qn+r)/2) or standard steps (n/2, qn+r) (default T)"),
+  params: (o: TreeOptions) => treeParams(o.n, o),
+  json: treeJson,
+  out: {
+    formats: ["csv", "arrow"],
+    what: "the edges of the tree",
+    async write(_pool, result, out, stamp) {
+      await withManifestOutput(
+        out.path,
+        (file) => writeEdges(file!, out.format, result, true),
+        (_res, data) => edgeManifest(result, out.format, data, stamp),
+      );
+    },
+  },
+};
+
+async function tree(nText: string, o: TreeOptions): Promise<void> {
+  const params = treeParams(nText, o);
   const workers = workersOption(o.workers);
   const out = outputOption(o, ["csv", "arrow"], "csv");
   const stamp = await toolStamp();
-  const r = await withPool(workers, `tree of ${n} under ${map.name}`, (pool, onProgress) =>
+  const r = await withPool(workers, `tree of ${params.n} under ${params.map.name}`, (pool, onProgress) =>
     withManifestOutput(
       out?.path,
       async (file) => {
         const result = await runTree(pool, params, { onProgress });
-        if (file && out) {
-          const edges = result.total + 1n;
-          if (edges > BigInt(CSV_ROW_GUARD) && !o.force)
-            throw new LimitError(
-              `the tree has ${group(edges)} nodes, over the ${group(CSV_ROW_GUARD)}-row guard: choose a smaller --depth, or --force`,
-            );
-          const all = treeEdges(map, params.steps, n, params.depth);
-          if (out.format === "arrow") await file.write(treeEdgesArrow([...all]));
-          else {
-            await file.write("node,parent,depth,kind\n");
-            for (const e of all) await file.write(edgeLine(e));
-          }
-        }
+        if (file && out) await writeEdges(file, out.format, result, o.force);
         return result;
       },
-      (res, data) =>
-        manifest("glidepath tree edges", map, out!.format, data, stamp, {
-          n: res.n,
-          depth: res.depth,
-          steps: res.steps,
-          rows: res.total + 1n,
-        }),
+      (res, data) => edgeManifest(res, out!.format, data, stamp),
     ),
   );
   print(o.json ? `${toExactJson(treeJson(r))}\n` : treeText(r, workers));

@@ -92,6 +92,17 @@ const JOBS = [
     outside: (j: Record<string, unknown>) =>
       expect((j.lengths as { length: bigint; count: bigint }[]).reduce((s, l) => s + l.length * l.count, 0n)).toBe(1n << 16n),
   },
+  {
+    name: "tree",
+    opts: ["--n", "1", "--depth", "30"],
+    single: ["tree", "1", "--depth", "30"],
+    shards: 4,
+    // nodes at inverse depth j of the tree of 1 under steps of T: OEIS A060322 (published entry, terms 0..11)
+    outside: (j: Record<string, unknown>) =>
+      expect((j.levels as { nodes: bigint }[]).slice(0, 12).map((l) => l.nodes)).toEqual(
+        [1, 1, 1, 1, 2, 3, 4, 5, 6, 8, 12, 18].map(BigInt),
+      ),
+  },
 ] as const;
 
 /** Runs every shard of RUN with `glidepath shard`, one after another. */
@@ -107,11 +118,18 @@ describe("cluster: batch --local and merge equal the one-machine command", () =>
       const run = runDir(`local-${job.name}`);
       await ok(["batch", job.name, ...job.opts, "--shards", String(job.shards), "--dir", run, "--local", "--cpus-per-task", "2"]);
       const merged = await ok(["merge", run]);
-      const single = await ok([job.name, ...job.opts, "--json", "--workers", "2"]);
+      const single = await ok([...("single" in job ? job.single : [job.name, ...job.opts]), "--json", "--workers", "2"]);
       expect(untimed(merged)).toEqual(untimed(single));
       job.outside(parseExactJson(merged) as Record<string, unknown>);
     });
   }
+
+  it("tree: merge --out writes the edges that tree --out writes", async () => {
+    const run = runDir("local-tree");
+    await ok(["merge", run, "--out", join(dir, "merged-edges.csv")]);
+    await ok(["tree", "1", "--depth", "30", "--out", join(dir, "single-edges.csv"), "--workers", "2"]);
+    expect(readFileSync(join(dir, "merged-edges.csv")).equals(readFileSync(join(dir, "single-edges.csv")))).toBe(true);
+  });
 
   it("sieve: the merged class table is byte-identical to sieve --out, and so is its manifest's sha256", async () => {
     const run = runDir("local-sieve");
@@ -284,7 +302,7 @@ describe("cluster: failures are found, rerun and merged; bad parts are refused",
 const slurm = privateSlurm();
 
 describe.runIf(slurm !== null)("cluster: a real Slurm job array (sbatch --wait)", () => {
-  for (const job of JOBS.filter((j) => j.name !== "conjugacy")) {
+  for (const job of JOBS.filter((j) => j.name !== "conjugacy" && j.name !== "tree")) {
     it(`${job.name}: submitted, merged, equal to the one-machine command`, { timeout: 300_000 }, async () => {
       const run = runDir(`slurm-${job.name}`);
       await ok(["batch", job.name, ...job.opts, "--shards", String(job.shards), "--dir", run, "--cpus-per-task", "1"]);
