@@ -89,7 +89,10 @@ function rangeOptions(cmd: Command): Command {
     .option("--sieve-depth <K>", `sieve depth: 1 to ${MAX_VERIFY_SIEVE_DEPTH} (default ${DEFAULT_SIEVE_DEPTH})`)
     .option("--step-depth <k>", `table step depth: 1 to ${MAX_VERIFY_STEP_DEPTH} (default ${DEFAULT_STEP_DEPTH})`)
     .option("--delay", "also the delay of every n (steps to reach 1) and its records: each n iterated to the end, slower")
-    .option("--max-steps <S>", `steps after which a trajectory is reported unresolved (default ${DEFAULT_MAX_STEPS})`);
+    .option(
+      "--max-steps <S>",
+      `steps after which a trajectory is reported unresolved (default ${DEFAULT_MAX_STEPS}; at least the sieve depth)`,
+    );
 }
 
 /** A verification range on a cluster: shards are runs of its blocks; merge --out writes the certificate. */
