@@ -9,7 +9,8 @@ import { toExactJson } from "../../src/core/json.js";
 import { affineText } from "../../src/outputs/card.js";
 import { kernelBuildId, sha256, withExportWorker } from "../engine.js";
 import pkg from "../../package.json";
-import { $, download, fieldError } from "../dom.js";
+import { $, download, parseField } from "../dom.js";
+import { parseCount } from "../../src/core/parse.js";
 
 const ROW = 24;
 const MAX_SCROLL = 8_000_000; // px: far below browsers' element-height limits
@@ -253,23 +254,21 @@ export function setupTable(open: (t: ClassTable, row: number) => void): void {
   });
   $("table-search").addEventListener("change", () => {
     const v = ($("table-search") as HTMLInputElement).value.trim();
-    if (!current) return;
-    if (!/^\d+$/.test(v)) return fieldError("table-search", "a residue is a whole number");
-    const a = Number(v);
-    if (a >= 2 ** current.depth) return fieldError("table-search", `a residue mod 2^${current.depth} is below ${2 ** current.depth}`);
-    fieldError("table-search", "");
-    const i = lowerBound(current.residues, a);
-    hit = i < current.residues.length ? i : current.residues.length - 1;
-    $("table-search-error").textContent = current.residues[hit] === a ? "" : `${a} is not a survivor; showing the next one`;
+    const table = current;
+    if (!table) return;
+    const a = parseField("table-search", (t) => parseCount(`a residue mod 2^${table.depth}`, t, 0, 2 ** table.depth - 1), v);
+    if (a === null) return;
+    const i = lowerBound(table.residues, a);
+    hit = i < table.residues.length ? i : table.residues.length - 1;
+    $("table-search-error").textContent = table.residues[hit] === a ? "" : `${a} is not a survivor; showing the next one`;
     moveCursor(hit);
   });
   $("table-jump").addEventListener("change", () => {
     const v = ($("table-jump") as HTMLInputElement).value.trim();
-    if (!current) return;
-    const i = Number(v);
-    if (!/^\d+$/.test(v) || i < 1 || i > current.residues.length)
-      return fieldError("table-jump", `a row from 1 to ${current.residues.length}`);
-    fieldError("table-jump", "");
+    const table = current;
+    if (!table) return;
+    const i = parseField("table-jump", (t) => parseCount("the row", t, 1, table.residues.length), v);
+    if (i === null) return;
     hit = i - 1;
     moveCursor(hit);
   });
