@@ -7,17 +7,7 @@ import { makePlan } from "../engine/plan.js";
 import type { JobKind, PartBase, Plan } from "../engine/plan.js";
 import { group, plural } from "../outputs/format.js";
 import { toExactJson } from "../core/json.js";
-import {
-  arrayList,
-  checkParts,
-  checkShard,
-  createRun,
-  inspectParts,
-  readRun,
-  runShardToDisk,
-  runStatus,
-  SCRIPT_FILE,
-} from "../node/cluster.js";
+import { arrayList, checkParts, checkShard, createRun, inspectParts, readRun, runShardToDisk, SCRIPT_FILE } from "../node/cluster.js";
 import type { RunDir } from "../node/cluster.js";
 import { kernelBuildId, toolStamp, withPool } from "../node/kernel.js";
 import { censusBatch } from "./census.js";
@@ -161,11 +151,10 @@ async function shard(dir: string, index: string, o: RawOptions): Promise<void> {
  */
 async function status(dir: string, o: RawOptions): Promise<void> {
   const run = await readRun(dir, jobOf);
-  const s = runStatus(run);
+  const shards = run.plan.shards.length;
   const inspected = await inspectParts(run, await kernelBuildId());
-  const failed = s.failed.filter((f) => inspected.missing.includes(f.shard));
-  const missing = inspected.missing.filter((i) => !failed.some((f) => f.shard === i));
-  const rerun = [...inspected.missing, ...inspected.bad].sort((a, b) => a - b);
+  const { failed, missing } = inspected;
+  const rerun = [...failed.map((f) => f.shard), ...missing, ...inspected.bad].sort((a, b) => a - b);
   const complete = rerun.length === 0 && inspected.problems.length === 0;
   const slurmLine = rerun.length > 0 ? `sbatch --array=${arrayList(rerun)} ${dir}/${SCRIPT_FILE}` : null;
   const localLine =
@@ -177,7 +166,7 @@ async function status(dir: string, o: RawOptions): Promise<void> {
   if (o.json) {
     print(
       `${toExactJson({
-        shards: s.shards,
+        shards,
         done: inspected.parts.length,
         failed,
         missing,
@@ -192,11 +181,11 @@ async function status(dir: string, o: RawOptions): Promise<void> {
     const spec = batchJob(run.plan.job);
     print(
       [
-        `${spec.job.describe(run.plan.params)}: ${plural(s.shards, "shard")} (plan ${run.plan.hash.slice(0, 16)})`,
+        `${spec.job.describe(run.plan.params)}: ${plural(shards, "shard")} (plan ${run.plan.hash.slice(0, 16)})`,
         `done ${inspected.parts.length}, failed ${failed.length}, missing ${missing.length}, damaged ${inspected.bad.length}`,
         ...failed.map((f) => `  failed: shard ${f.shard}: ${f.error}`),
         ...(missing.length > 0 ? [`  missing: ${arrayList(missing)} (not run yet, running, or killed before it could say)`] : []),
-        ...inspected.problems.filter((p) => !/: missing/.test(p)).map((p) => `  damaged: ${p}`),
+        ...inspected.damaged.map((p) => `  damaged: ${p}`),
         ...(slurmLine ? [`rerun what is not done: ${slurmLine}`, `  or here: ${localLine}`] : [`complete: glidepath merge ${dir}`]),
         "",
       ].join("\n"),

@@ -91,6 +91,7 @@ export const treeBatch: BatchJob<TreeParams, TreeResult> = {
     async write(_pool, result, out, stamp) {
       await withManifestOutput(
         out.path,
+        // a cluster's tree is large by intent, and merge has no --force: the row guard is for interactive runs
         (file) => writeEdges(file!, out.format, result, true),
         (_res, data) => edgeManifest(result, out.format, data, stamp),
       );

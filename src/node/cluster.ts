@@ -276,41 +276,15 @@ function partDigest(body: Record<string, unknown>): string {
   return createHash("sha256").update(toExactJson(body)).digest("hex");
 }
 
-export interface RunStatus {
-  readonly shards: number;
-  readonly done: number[];
-  readonly failed: { readonly shard: number; readonly error: string }[];
-  readonly missing: number[];
-}
-
-/** What is done (a part for this plan), failed (a marker and no part) and missing. */
-export function runStatus(run: RunDir): RunStatus {
-  const done: number[] = [];
-  const failed: RunStatus["failed"] = [];
-  const missing: number[] = [];
-  for (let i = 0; i < run.plan.shards.length; i++) {
-    const manifest = partPath(run.dir, i, "json");
-    let ok = false;
-    if (existsSync(manifest)) {
-      try {
-        const m = JSON.parse(readFileSync(manifest, "utf8")) as Record<string, unknown>;
-        ok = m.kind === PART_KIND && m.plan === run.plan.hash && m.shard === i;
-      } catch {
-        ok = false;
-      }
-    }
-    if (ok) done.push(i);
-    else if (existsSync(partPath(run.dir, i, "failed"))) {
-      let error = "no error line";
-      try {
-        error = String((JSON.parse(readFileSync(partPath(run.dir, i, "failed"), "utf8")) as { error: unknown }).error);
-      } catch {
-        // an unreadable marker still marks the shard failed
-      }
-      failed.push({ shard: i, error });
-    } else missing.push(i);
+/** The error line a failed shard left (RUN/parts/I.failed), or null when it left none. */
+function failedMarker(run: RunDir<unknown>, shard: number): string | null {
+  const path = partPath(run.dir, shard, "failed");
+  if (!existsSync(path)) return null;
+  try {
+    return String((JSON.parse(readFileSync(path, "utf8")) as { error: unknown }).error);
+  } catch {
+    return "no error line"; // an unreadable marker still marks the shard failed
   }
-  return { shards: run.plan.shards.length, done, failed, missing };
 }
 
 /** Shard numbers as Slurm's --array list: 0-3,7,9-10. */
@@ -348,9 +322,14 @@ export interface CheckedPart<Part> {
 /** Every part of a run inspected: the good ones read back, and one line for each missing or bad one. */
 export interface PartInspection<Part> {
   readonly parts: CheckedPart<Part>[];
-  /** Shards with no part (failed or not run), and shards whose part is damaged, altered or foreign. */
+  /** Shards with no part: failed (with the error line they left), or not run (or killed before they could say). */
+  readonly failed: { readonly shard: number; readonly error: string }[];
   readonly missing: number[];
+  /** Shards whose part is damaged, altered or foreign. */
   readonly bad: number[];
+  /** One line for each damaged, altered, foreign or extra part. */
+  readonly damaged: string[];
+  /** One line for every missing or bad part, in shard order (what merge refuses with). */
   readonly problems: string[];
 }
 
@@ -364,27 +343,31 @@ export async function inspectParts<P, Part extends PartBase>(run: RunDir<P>, bui
   if (build !== run.plan.kernelBuild)
     throw new UsageError(`${run.dir} was planned by kernel build ${run.plan.kernelBuild}; this glidepath is build ${build}`);
   const problems: string[] = [];
+  const damaged: string[] = [];
   const parts: CheckedPart<Part>[] = [];
+  const failed: PartInspection<Part>["failed"][number][] = [];
   const missing: number[] = [];
   const bad: number[] = [];
-  const status = runStatus(run);
-  const failed = new Map(status.failed.map((f) => [f.shard, f.error]));
   for (const name of readdirSync(join(run.dir, PARTS))) {
     const m = /^(\d+)\.json$/.exec(name);
-    if (m && Number(m[1]) >= n) problems.push(`part ${m[1]}: not in the plan (shards 0 to ${n - 1})`);
+    if (m && Number(m[1]) >= n) damaged.push(`part ${m[1]}: not in the plan (shards 0 to ${n - 1})`);
   }
+  problems.push(...damaged);
   for (let i = 0; i < n; i++) {
     const why = await inspectPart<Part>(run, i, parts);
     if (why === null) continue;
     if (why === "missing") {
-      missing.push(i);
-      problems.push(`part ${i}: missing${failed.has(i) ? ` (the shard failed: ${failed.get(i)})` : ""}`);
+      const error = failedMarker(run, i);
+      if (error === null) missing.push(i);
+      else failed.push({ shard: i, error });
+      problems.push(`part ${i}: missing${error === null ? "" : ` (the shard failed: ${error})`}`);
     } else {
       bad.push(i);
+      damaged.push(`part ${i}: ${why}`);
       problems.push(`part ${i}: ${why}`);
     }
   }
-  return { parts, missing, bad, problems };
+  return { parts, failed, missing, bad, damaged, problems };
 }
 
 /** One part checked and, when good, read into `parts`: null, "missing", or what is wrong with it. */

@@ -32,6 +32,7 @@ export const MAX_CENSUS_DEPTH = 32;
 export function runDepthLimit(map: CollatzMap, mode: Mode): number {
   return mode === "full" ? Math.min(MAX_CENSUS_DEPTH, kernelDepthLimit(map, "i64")) : kernelDepthLimit(map);
 }
+
 /** Least members listed among those whose descent differs (the smallest; the count is exact). */
 export const DIFFER_LISTED = 1000;
 
@@ -108,18 +109,11 @@ interface Ratio {
 }
 
 /** A shard's census tallies, summed over its tasks, with its ambiguous bins already decided. */
-export interface CensusPart extends PartBase {
-  readonly nodes: bigint;
-  readonly live: BigUint64Array;
-  readonly stopped: BigUint64Array;
+export interface CensusPart
+  extends PartBase,
+    Pick<CensusShardResult, "nodes" | "live" | "stopped" | "binOffset" | "nonpositive" | "differCount" | "early" | "slow"> {
   /** bins[k + binOffset]: least members binned by the kernel or decided exactly here. */
   readonly bins: BigUint64Array;
-  readonly binOffset: number;
-  readonly nonpositive: bigint;
-  readonly differCount: bigint;
-  readonly early: bigint;
-  /** Per m: least members binned on the slow path (the others follow from the vectors). */
-  readonly slow: BigUint64Array;
   /** The smallest least members whose descent differs, ascending (at most DIFFER_LISTED). */
   readonly differ: BigUint64Array;
   /** Dropping classes with b >= a, 4 u64 each (a, b raw bits, j, m). */

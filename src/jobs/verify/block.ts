@@ -4,8 +4,9 @@
 // and a certificate's block table keep, and what the merge sweeps; it is made in the worker.
 import type { CollatzMap } from "../../core/map.js";
 import type { VerifyBlock, VerifyBlockResult } from "./messages.js";
+import { Smallest } from "../../core/smallest.js";
 import { EXCEPTION_LIMIT } from "../sieve/exceptions.js";
-import { cycleEntry, delayBig, traceBig } from "./trace.js";
+import { cycleBudget, cycleEntry, delayBig, traceBig } from "./trace.js";
 
 export interface GlideRecord {
   readonly n: bigint;
@@ -67,10 +68,7 @@ export interface BlockEntry {
   readonly handoffs: bigint;
 }
 
-/** Budget of Brent's method for an n past the cap: at least this, whatever the cap. */
-const CYCLE_SEARCH_STEPS = 100_000;
-
-const byN = <T extends { n: bigint }>(u: T, v: T) => (u.n < v.n ? -1 : u.n > v.n ? 1 : 0);
+export const byN = <T extends { n: bigint }>(u: T, v: T) => (u.n < v.n ? -1 : u.n > v.n ? 1 : 0);
 
 /**
  * The records of a list of candidates: each entry (in n order) whose value beats every earlier
@@ -95,9 +93,20 @@ export function sweepRecords<T extends { n: bigint }, V extends number | bigint>
   return { records, best };
 }
 
-/** The smallest `limit` of a list, ascending. */
-function smallest(xs: bigint[], limit = EXCEPTION_LIMIT): bigint[] {
-  return xs.sort((u, v) => (u < v ? -1 : u > v ? 1 : 0)).slice(0, limit);
+/** The smallest EXCEPTION_LIMIT entries by key, ascending (the capped lists of core/smallest.ts). */
+export function smallestBy<T>(xs: Iterable<T>, key: (x: T) => bigint): T[] {
+  const kept = new Smallest<T>(EXCEPTION_LIMIT, key);
+  for (const x of xs) kept.add(x);
+  return kept.sorted();
+}
+
+const itself = (x: bigint) => x;
+
+/** The kernel's glide entries (n, glide in steps of T, in standard steps, -) as records. */
+function glidesOf(raw: BigUint64Array): GlideRecord[] {
+  const out: GlideRecord[] = [];
+  for (let i = 0; i < raw.length; i += 4) out.push({ n: raw[i]!, steps: Number(raw[i + 1]!), standardSteps: Number(raw[i + 2]!) });
+  return out;
 }
 
 /** Unresolved n tried by Brent's method: a cycle of larger numbers, n's own cycle (a member), or still unresolved. */
@@ -106,7 +115,7 @@ function settle(map: CollatzMap, maxSteps: number, unresolved: readonly bigint[]
   const entrants: CycleEntrant[] = [];
   const still: bigint[] = [];
   for (const n of unresolved) {
-    const c = cycleEntry(map, n, Math.max(2 * maxSteps, CYCLE_SEARCH_STEPS));
+    const c = cycleEntry(map, n, cycleBudget(maxSteps));
     if (c && c.min === n) members.push({ n, period: c.period });
     else if (c && c.min > n) entrants.push({ n, cycleMin: c.min, period: c.period });
     else still.push(n);
@@ -129,7 +138,6 @@ interface Found {
 function finish(map: CollatzMap, maxSteps: number, block: Pick<VerifyBlock, "index" | "kind" | "first" | "last">, f: Found): BlockEntry {
   const s = settle(map, maxSteps, f.unresolved);
   const cycleMembers = [...f.cycles, ...s.members].sort(byN);
-  const entrants = s.entrants.sort(byN);
   return {
     index: block.index,
     kind: block.kind,
@@ -140,14 +148,14 @@ function finish(map: CollatzMap, maxSteps: number, block: Pick<VerifyBlock, "ind
       sievedByDepth: f.sievedByDepth,
       exceptions: f.exceptions,
       cycleMembers: BigInt(cycleMembers.length),
-      cycleEntrants: BigInt(entrants.length),
+      cycleEntrants: BigInt(s.entrants.length),
       unresolved: BigInt(s.still.length),
     },
     glideRecords: sweepRecords(f.glides, (g) => g.standardSteps, -1).records,
     pathRecords: sweepRecords(f.paths, (p) => p.peakT, -1n).records,
     cycleMembers,
-    cycleEntrants: entrants.slice(0, EXCEPTION_LIMIT),
-    unresolved: smallest(s.still),
+    cycleEntrants: smallestBy(s.entrants, (e) => e.n),
+    unresolved: smallestBy(s.still, itself),
     delay: null,
     handoffs: f.handoffs,
   };
@@ -206,16 +214,14 @@ export function finishKernelBlock(ctx: BlockContext, block: VerifyBlock, raw: Ve
     for (let j = 1; j <= K; j++) f.sievedByDepth[j]! += block.periods * ctx.stoppedClasses[j]! * (1n << BigInt(K - j));
     for (const d of block.exceptionDepths) f.sievedByDepth[d]!--;
   } else for (let j = 1; j <= K; j++) f.sievedByDepth[j] = c[counters.sieved + j]!;
-  const e = raw;
-  for (let i = 0; i < e.glideRecords.length; i += 4)
-    f.glides.push({ n: e.glideRecords[i]!, steps: Number(e.glideRecords[i + 1]!), standardSteps: Number(e.glideRecords[i + 2]!) });
-  for (let i = 0; i < e.pathRecords.length; i += 4)
-    f.paths.push({ n: e.pathRecords[i]!, peakT: (e.pathRecords[i + 2]! << 64n) | e.pathRecords[i + 1]! });
-  for (let i = 0; i < e.cycleMembers.length; i += 4) f.cycles.push({ n: e.cycleMembers[i]!, period: Number(e.cycleMembers[i + 1]!) });
-  for (let i = 0; i < e.unresolved.length; i += 4) f.unresolved.push(e.unresolved[i]!);
-  for (let i = 0; i < e.handoffs.length; i += 4) {
+  f.glides.push(...glidesOf(raw.glideRecords));
+  for (let i = 0; i < raw.pathRecords.length; i += 4)
+    f.paths.push({ n: raw.pathRecords[i]!, peakT: (raw.pathRecords[i + 2]! << 64n) | raw.pathRecords[i + 1]! });
+  for (let i = 0; i < raw.cycleMembers.length; i += 4) f.cycles.push({ n: raw.cycleMembers[i]!, period: Number(raw.cycleMembers[i + 1]!) });
+  for (let i = 0; i < raw.unresolved.length; i += 4) f.unresolved.push(raw.unresolved[i]!);
+  for (let i = 0; i < raw.handoffs.length; i += 4) {
     f.handoffs++;
-    tally(map, maxSteps, K, e.handoffs[i]!, f, e.handoffs[i + 1]! === 1n);
+    tally(map, maxSteps, K, raw.handoffs[i]!, f, raw.handoffs[i + 1]! === 1n);
   }
   return finish(map, maxSteps, block, f);
 }
@@ -229,9 +235,7 @@ export interface KernelCounters {
 }
 
 function finishDelay(ctx: BlockContext, block: VerifyBlock, raw: VerifyBlockResult, counters: KernelCounters): BlockEntry {
-  const found: GlideRecord[] = [];
-  for (let i = 0; i < raw.glideRecords.length; i += 4)
-    found.push({ n: raw.glideRecords[i]!, steps: Number(raw.glideRecords[i + 1]!), standardSteps: Number(raw.glideRecords[i + 2]!) });
+  const found = glidesOf(raw.glideRecords);
   const unreachedList: bigint[] = [];
   for (let i = 0; i < raw.unresolved.length; i += 4) unreachedList.push(raw.unresolved[i]!);
   let unreached = raw.counts[counters.unresolved]!;
@@ -274,7 +278,11 @@ function delayEntry(
     cycleMembers: [],
     cycleEntrants: [],
     unresolved: [],
-    delay: { records: sweepRecords(found, (g) => g.standardSteps, -1).records, unreached, unreachedList: smallest(unreachedList) },
+    delay: {
+      records: sweepRecords(found, (g) => g.standardSteps, -1).records,
+      unreached,
+      unreachedList: smallestBy(unreachedList, itself),
+    },
     handoffs,
   };
 }

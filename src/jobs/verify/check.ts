@@ -14,7 +14,7 @@ import { entryMismatch, mergeVerify } from "./merge.js";
 import { planVerify } from "./plan.js";
 import type { VerifyPlan } from "./plan.js";
 import { verifyTables } from "./tables.js";
-import { cycleEntry, delayBig, traceBig } from "./trace.js";
+import { cycleBudget, cycleEntry, delayBig, traceBig } from "./trace.js";
 import { runBlocks } from "./verify.js";
 
 /** What a check did, line by line, and the first difference found (null: the certificate holds). */
@@ -145,7 +145,7 @@ function iterateListed(plan: VerifyPlan, doc: ReturnType<typeof verifyFindings>)
   }
   for (const [i, m] of doc.cycleMembers.entries()) {
     count++;
-    const c = cycleEntry(map, m.n, Math.max(2 * maxSteps, 100_000));
+    const c = cycleEntry(map, m.n, cycleBudget(maxSteps));
     if (!inRange(m.n) || c?.min !== m.n || c.period !== m.period)
       fail(
         `cycleMembers[${i}] (n = ${m.n}, period ${m.period}): BigInt iteration ${c ? `finds the cycle of ${c.min}, period ${c.period}` : "finds no cycle"}`,
@@ -153,7 +153,7 @@ function iterateListed(plan: VerifyPlan, doc: ReturnType<typeof verifyFindings>)
   }
   for (const [i, e] of doc.cycleEntrants.entries()) {
     count++;
-    const c = cycleEntry(map, e.n, Math.max(2 * maxSteps, 100_000));
+    const c = cycleEntry(map, e.n, cycleBudget(maxSteps));
     if (!inRange(e.n) || c?.min !== e.cycleMin || c.period !== e.period || traceBig(map, e.n, maxSteps, 0).outcome !== "unresolved")
       fail(`cycleEntrants[${i}] (n = ${e.n}): BigInt iteration does not show it entering the cycle of ${e.cycleMin}`);
   }
@@ -211,8 +211,9 @@ export async function checkCertificate(c: ReadCertificate, o: CheckOptions): Pro
     checked.push(
       "counts, sieved counts by depth, maxima, glide and path records, cycle members and entrants, unresolved numbers, delays: each re-derived from the block table",
     );
-    if (plan.engine === "kernel") {
-      const data = await verifyTables(o.pool, plan);
+    // the run's tables, rebuilt once: hashed here, and the blocks below run again on them
+    const data = plan.engine === "kernel" ? await verifyTables(o.pool, plan) : null;
+    if (data) {
       const hashes = await tableHashes(data, o.sha256);
       expectSame(c.tables, hashes, "tables", "the rebuilt tables");
       checked.push(
@@ -232,7 +233,6 @@ export async function checkCertificate(c: ReadCertificate, o: CheckOptions): Pro
     else while (pick.size < Math.min(o.sample, n)) pick.add(o.randomBelow(n));
     const chosen = [...pick].sort((u, v) => u - v);
     if (chosen.length > 0) {
-      const data = plan.engine === "kernel" ? await verifyTables(o.pool, plan) : null;
       const rerun = await runBlocks(
         o.pool,
         plan,

@@ -3,8 +3,7 @@
 // the whole range is a record of its own block, so the sweep is exact); lists are the smallest of
 // the union. Equal for any split of the range: the one merge for threads, checkpoints and clusters,
 // and what `verify --check` re-derives from a certificate's block table.
-import { EXCEPTION_LIMIT } from "../sieve/exceptions.js";
-import { blockTotal, sweepRecords } from "./block.js";
+import { blockTotal, byN, smallestBy, sweepRecords } from "./block.js";
 import { blockSize } from "./plan.js";
 import type { BlockEntry, CycleEntrant, CycleMember, GlideRecord, PathRecord } from "./block.js";
 import type { BlockSpec, VerifyPlan } from "./plan.js";
@@ -137,7 +136,6 @@ export function mergeVerify(plan: VerifyPlan, entries: readonly BlockEntry[], se
   const pathRecords = paths.records;
   const delayRecords = delays.records;
   const sieved = sievedByDepth.reduce((s, x) => s + x, 0n);
-  const ascending = (u: bigint, v: bigint) => (u < v ? -1 : u > v ? 1 : 0);
   return {
     ...pickParams(plan),
     counts: {
@@ -154,15 +152,15 @@ export function mergeVerify(plan: VerifyPlan, entries: readonly BlockEntry[], se
     pathRecords,
     maxGlide: glideRecords.at(-1) ?? null,
     maxPath: pathRecords.at(-1) ?? null,
-    cycleMembers: cycleMembers.sort((u, v) => ascending(u.n, v.n)),
-    cycleEntrants: cycleEntrants.sort((u, v) => ascending(u.n, v.n)).slice(0, EXCEPTION_LIMIT),
-    unresolvedList: unresolvedList.sort(ascending).slice(0, EXCEPTION_LIMIT),
+    cycleMembers: cycleMembers.sort(byN),
+    cycleEntrants: smallestBy(cycleEntrants, (e) => e.n),
+    unresolvedList: smallestBy(unresolvedList, (n) => n),
     delay: plan.delay
       ? {
           records: delayRecords,
           max: delayRecords.at(-1) ?? null,
           unreached,
-          unreachedList: unreachedList.sort(ascending).slice(0, EXCEPTION_LIMIT),
+          unreachedList: smallestBy(unreachedList, (n) => n),
         }
       : null,
     handoffs,

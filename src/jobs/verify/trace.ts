@@ -61,6 +61,9 @@ export function delayBig(map: CollatzMap, n: bigint, maxSteps: number): { steps:
   return null;
 }
 
+/** Brent's budget for an n past the step cap: twice the cap, and at least 100,000 steps whatever the cap. */
+export const cycleBudget = (maxSteps: number): number => Math.max(2 * maxSteps, 100_000);
+
 /**
  * Whether n's trajectory enters a cycle (without going below n: the cycle's elements are all above
  * n), by Brent's method within about `budget` steps while its values stay below 2^maxBits: the
