@@ -57,11 +57,11 @@ export interface PartBase {
  * One job of the plan layer: how it lays out its tasks, runs one shard, and merges the parts.
  * `merge` sees the parts in shard order; it is associative (sums, unions, sweeps in range order).
  */
-export interface JobKind<P, Part extends PartBase, R> {
+export interface JobKind<P, Part extends PartBase, R, O extends ShardOptions = ShardOptions> {
   readonly name: JobName;
   /** Checks the parameters (one clear error) and cuts the work for `parallelism` workers in all. */
   layout(pool: KernelPool, params: P, parallelism: number): Promise<TaskLayout>;
-  runShard(pool: KernelPool, plan: Plan<P>, shard: number, options?: ShardOptions): Promise<Part>;
+  runShard(pool: KernelPool, plan: Plan<P>, shard: number, options?: O): Promise<Part>;
   merge(pool: KernelPool, plan: Plan<P>, parts: readonly Part[]): Promise<R>;
   /** The parameters as plain JSON values (bigints allowed) and back: what plan.json stores. */
   encodeParams(params: P): Record<string, unknown>;
@@ -200,11 +200,11 @@ export async function makePlan<P>(
  * The whole job on this pool: one shard, merged, exactly as a cluster's parts would be.
  * @example const r = await runWhole(pool, censusJob, { map: parseMap("3x+1"), depth: 20 });
  */
-export async function runWhole<P, Part extends PartBase, R>(
+export async function runWhole<P, Part extends PartBase, R, O extends ShardOptions>(
   pool: KernelPool,
-  job: JobKind<P, Part, R>,
+  job: JobKind<P, Part, R, O>,
   params: P,
-  options: ShardOptions = {},
+  options: O = {} as O,
 ): Promise<R> {
   const plan = await makePlan(pool, job, params, 1, pool.size);
   const part = await job.runShard(pool, plan, 0, options);

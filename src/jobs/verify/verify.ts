@@ -7,8 +7,8 @@
 import { exactCounts } from "../../core/exact.js";
 import { parseMap } from "../../core/map.js";
 import type { VerifyBlock } from "./messages.js";
-import { shardEstimate } from "../../engine/plan.js";
-import type { JobKind, PartBase } from "../../engine/plan.js";
+import { runWhole, shardEstimate } from "../../engine/plan.js";
+import type { JobKind, PartBase, ShardOptions } from "../../engine/plan.js";
 import type { KernelPool, RunOptions } from "../../engine/pool.js";
 import type { BlockEntry } from "./block.js";
 import { mergeVerify } from "./merge.js";
@@ -20,7 +20,7 @@ import type { VerifyTableData } from "./tables.js";
 import type { JobApi } from "../registry.js";
 
 /** Options of a run: progress and cancel, and blocks already done (a resumed run) with a callback per block. */
-export interface VerifyOptions extends RunOptions {
+export interface VerifyOptions extends ShardOptions {
   /** The plan's tables, when the caller built them already (verifyTables). */
   readonly tables?: VerifyTableData;
   readonly done?: ReadonlyMap<number, BlockEntry>;
@@ -109,6 +109,17 @@ function numberProgress(blocks: readonly BlockSpec[], done: (b: BlockSpec) => bo
   };
 }
 
+/** The plan of a request, made once per request object (every method of the job reads it). */
+const plans = new WeakMap<VerifyRequest, VerifyPlan>();
+function planOf(req: VerifyRequest): VerifyPlan {
+  let plan = plans.get(req);
+  if (!plan) {
+    plan = planVerify(req);
+    plans.set(req, plan);
+  }
+  return plan;
+}
+
 /** What plan.json keeps of a verification run: its request. */
 export type VerifyParams = VerifyRequest;
 
@@ -117,7 +128,7 @@ export interface VerifyPart extends PartBase {
   readonly blocks: BlockEntry[];
 }
 
-export const verifyJob: JobKind<VerifyParams, VerifyPart, VerifyResult> = {
+export const verifyJob: JobKind<VerifyParams, VerifyPart, VerifyResult, VerifyOptions> = {
   name: "verify",
   describe: (p) => `verify ${p.map.name} over [${p.from}, ${p.to})`,
   encodeParams: (p) => ({
@@ -142,7 +153,7 @@ export const verifyJob: JobKind<VerifyParams, VerifyPart, VerifyResult> = {
     };
   },
   estimate(plan, cpus) {
-    const vplan = planVerify(plan.params);
+    const vplan = planOf(plan.params);
     let numbers = 0n;
     for (const r of plan.shards) {
       const n = vplan.blocks.slice(r.first, r.end).reduce((s, b) => s + blockSize(b), 0n);
@@ -154,33 +165,36 @@ export const verifyJob: JobKind<VerifyParams, VerifyPart, VerifyResult> = {
     return shardEstimate(numbers, vplan.engine === "kernel" ? 1e8 : 2e5, cpus, tables * (cpus + 2));
   },
   async layout(_pool, p) {
-    return { prefixBits: 0, prefixes: null, tasks: planVerify(p).blocks.length };
+    return { prefixBits: 0, prefixes: null, tasks: planOf(p).blocks.length };
   },
-  async runShard(pool, plan, shard, options = {}) {
+  async runShard(pool, plan, shard, options: VerifyOptions = {}) {
     const started = performance.now();
-    const vplan = planVerify(plan.params);
+    const vplan = planOf(plan.params);
     const range = plan.shards[shard];
     if (!range) throw new RangeError(`shard ${shard} is not in the plan (0 to ${plan.shards.length - 1})`);
-    const todo = vplan.blocks.slice(range.first, range.end);
-    const data = vplan.engine === "kernel" && todo.length > 0 ? await verifyTables(pool, vplan, options) : null;
-    const blocks: BlockEntry[] = [];
-    const progress = numberProgress(todo, () => false, options.onProgress);
+    const mine = vplan.blocks.slice(range.first, range.end);
+    // blocks already done (a resumed run) are kept as they are
+    const results = new Map<number, BlockEntry>([...(options.done ?? [])].filter(([i]) => i >= range.first && i < range.end));
+    const todo = mine.filter((b) => !results.has(b.index));
+    const data = vplan.engine === "kernel" && todo.length > 0 ? (options.tables ?? (await verifyTables(pool, vplan, options))) : null;
+    const progress = numberProgress(mine, (b) => results.has(b.index), options.onProgress);
     await executeBlocks(
       pool,
       vplan,
       data,
       todo,
-      (entry) => {
-        blocks.push(entry);
+      async (entry) => {
+        results.set(entry.index, entry);
         progress(vplan.blocks[entry.index]!);
+        await options.onBlock?.(entry, results.size, mine.length);
       },
       options.signal,
     );
-    blocks.sort((u, v) => u.index - v.index);
+    const blocks = mine.map((b) => results.get(b.index)!);
     return { blocks, seconds: (performance.now() - started) / 1000 };
   },
   async merge(_pool, plan, parts) {
-    const vplan = planVerify(plan.params);
+    const vplan = planOf(plan.params);
     const entries = parts.flatMap((p) => p.blocks).sort((u, v) => u.index - v.index);
     return mergeVerify(
       vplan,
@@ -191,28 +205,10 @@ export const verifyJob: JobKind<VerifyParams, VerifyPart, VerifyResult> = {
 };
 
 /**
- * Verifies the range on the pool: the blocks not in `options.done`, then the merge of all of them.
+ * Verifies the range on the pool: the blocks not in `options.done`, then the merge of all of them
+ * (the plan layer's one-shard run, as for every job).
  * @example const r = await runVerify(pool, { map: parseMap("3x+1"), from: 1n, to: 1n << 20n }); r.maxGlide?.n // 77671n
  */
-export async function runVerify(pool: KernelPool, req: VerifyRequest, options: VerifyOptions = {}): Promise<VerifyResult> {
-  const started = performance.now();
-  const plan = planVerify(req);
-  const results = new Map<number, BlockEntry>(options.done ?? []);
-  const todo = plan.blocks.filter((b) => !results.has(b.index));
-  const data = plan.engine === "kernel" && todo.length > 0 ? (options.tables ?? (await verifyTables(pool, plan, options))) : null;
-  const progress = numberProgress(plan.blocks, (b) => results.has(b.index), options.onProgress);
-  await executeBlocks(
-    pool,
-    plan,
-    data,
-    todo,
-    async (entry) => {
-      results.set(entry.index, entry);
-      progress(plan.blocks[entry.index]!);
-      await options.onBlock?.(entry, results.size, plan.blocks.length);
-    },
-    options.signal,
-  );
-  const entries = plan.blocks.map((b) => results.get(b.index)!);
-  return mergeVerify(plan, entries, (performance.now() - started) / 1000);
+export function runVerify(pool: KernelPool, req: VerifyRequest, options: VerifyOptions = {}): Promise<VerifyResult> {
+  return runWhole(pool, verifyJob, req, options);
 }
