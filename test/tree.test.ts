@@ -6,7 +6,7 @@ import type { CollatzMap } from "../src/core/map.js";
 import { UsageError } from "../src/core/errors.js";
 import { nodePool } from "../src/node/kernel.js";
 import { makePlan } from "../src/engine/plan.js";
-import { runTree, treeByBigInt, treeEdges, treeJob } from "../src/jobs/tree/tree.js";
+import { runTree, treeByBigInt, treeEdges, treeJob, walkWithEdges } from "../src/jobs/tree/tree.js";
 import type { StepConvention, TreeParams } from "../src/jobs/tree/tree.js";
 import { T } from "./helpers.js";
 
@@ -112,6 +112,11 @@ describe("inverse tree: against a forward brute force", () => {
         for (let i = 0; i < shards; i++) parts.push(await treeJob.runShard(pool, plan, i));
         expect((await treeJob.merge(pool, plan, parts)).levels).toEqual(kernel.levels);
       }
+      // tree --out: the one walk that writes the edges tallies the same levels, and hands each edge once
+      const edges: bigint[] = [];
+      const walked = await walkWithEdges(p, (e) => void edges.push(e.node));
+      expect(walked.levels).toEqual(kernel.levels);
+      expect(BigInt(edges.length)).toBe(kernel.total + 1n);
     }
   });
 

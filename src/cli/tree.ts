@@ -1,7 +1,7 @@
 // glidepath tree N: the inverse tree of N, level by level, exact at every size; --out writes its edges.
 import type { Command } from "commander";
 import { CSV_ROW_GUARD } from "../outputs/tables.js";
-import { MAX_TREE_DEPTH, runTree, treeEdges, treeJob } from "../jobs/tree/tree.js";
+import { MAX_TREE_DEPTH, runTree, treeEdges, treeJob, walkWithEdges } from "../jobs/tree/tree.js";
 import type { StepConvention, TreeEdge, TreeParams, TreeResult } from "../jobs/tree/tree.js";
 import { parseWhole } from "../core/parse.js";
 import { treeEdgesArrow } from "../outputs/arrow.js";
@@ -56,19 +56,24 @@ function treeParams(nText: string | undefined, o: TreeOptions): TreeParams {
   };
 }
 
-/** The edges of a tree (walked in BigInt) into an open file, under the row guard. */
-async function writeEdges(file: AtomicFile, format: FileFormat, result: TreeResult, force: boolean | undefined): Promise<void> {
-  const edges = result.total + 1n;
-  if (edges > BigInt(CSV_ROW_GUARD) && !force)
-    throw new LimitError(
-      `the tree has ${group(edges)} nodes, over the ${group(CSV_ROW_GUARD)}-row guard: choose a smaller --depth, or --force`,
-    );
-  const all = treeEdges(result.map, result.steps, result.n, result.depth);
-  if (format === "arrow") await file.write(treeEdgesArrow([...all]));
-  else {
-    await file.write("node,parent,depth,kind\n");
-    for (const e of all) await file.write(edgeLine(e));
-  }
+/** Writes edges into an open file as they come (CSV) or at the end (Arrow, one record batch). */
+function edgeWriter(file: AtomicFile, format: FileFormat, force: boolean | undefined) {
+  const held: TreeEdge[] = [];
+  let rows = 0;
+  return {
+    async edge(e: TreeEdge): Promise<void> {
+      if (++rows > CSV_ROW_GUARD && !force)
+        throw new LimitError(
+          `the tree has more edges than rows allowed, over the ${group(CSV_ROW_GUARD)}-row guard: choose a smaller --depth, or --force`,
+        );
+      if (format === "arrow") held.push(e);
+      else await file.write(`${rows === 1 ? "node,parent,depth,kind\n" : ""}${edgeLine(e)}`);
+    },
+    async end(): Promise<void> {
+      if (format === "arrow") await file.write(treeEdgesArrow(held));
+      else if (rows === 0) await file.write("node,parent,depth,kind\n");
+    },
+  };
 }
 
 const edgeManifest = (res: TreeResult, format: FileFormat, data: DataFile, stamp: ToolStamp) =>
@@ -92,7 +97,12 @@ export const treeBatch: BatchJob<TreeParams, TreeResult> = {
       await withManifestOutput(
         out.path,
         // a cluster's tree is large by intent, and merge has no --force: the row guard is for interactive runs
-        (file) => writeEdges(file!, out.format, result, true),
+        async (file) => {
+          // the cluster's parts hold tallies, not edges: the edges come from a walk here
+          const w = edgeWriter(file!, out.format, true);
+          for (const e of treeEdges(result.map, result.steps, result.n, result.depth)) await w.edge(e);
+          await w.end();
+        },
         (_res, data) => edgeManifest(result, out.format, data, stamp),
       );
     },
@@ -108,8 +118,11 @@ async function tree(nText: string, o: TreeOptions): Promise<void> {
     withManifestOutput(
       out?.path,
       async (file) => {
-        const result = await runTree(pool, params, { onProgress });
-        if (file && out) await writeEdges(file, out.format, result, o.force);
+        if (!file || !out) return runTree(pool, params, { onProgress });
+        // one walk makes the tallies and the edges
+        const w = edgeWriter(file, out.format, o.force);
+        const result = await walkWithEdges(params, (e) => w.edge(e), { onProgress });
+        await w.end();
         return result;
       },
       (res, data) => edgeManifest(res, out!.format, data, stamp),

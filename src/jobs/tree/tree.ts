@@ -333,6 +333,32 @@ function walkBig(p: TreeParams, tally: TreeTally, signal?: AbortSignal): void {
 }
 
 /**
+ * The tree and its edges from one BigInt walk (tree --out): each edge goes to `onEdge` in level order,
+ * ascending within a level, as the tallies are made; a callback that throws ends the walk.
+ * @example await walkWithEdges({ map: parseMap("3x+1"), n: 1n, depth: 4, steps: "T", below: null }, async () => {}) // total 4n
+ */
+export async function walkWithEdges(
+  p: TreeParams,
+  onEdge: (e: TreeEdge) => void | Promise<void>,
+  options: RunOptions = {},
+): Promise<TreeResult> {
+  checkTree(p);
+  const started = performance.now();
+  const tally = new TreeTally(p);
+  let depth = 0;
+  for (const e of treeEdges(p.map, p.steps, p.n, p.depth)) {
+    if (e.depth !== depth) {
+      depth = e.depth;
+      if (options.signal?.aborted) throw new CancelledError();
+      options.onProgress?.(depth, p.depth);
+    }
+    tally.node(e.node, e.depth);
+    await onEdge(e);
+  }
+  return treeResult(p, tally, "bigint", (performance.now() - started) / 1000);
+}
+
+/**
  * The inverse tree of N to depth K: level counts, extremes, nodes below N and X.
  * @example (await runTree(pool, { map: parseMap("3x+1"), n: 1n, depth: 5, steps: "T", below: null })).levels[5].nodes // 3n
  */
