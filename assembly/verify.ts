@@ -12,6 +12,8 @@
 //
 // Arithmetic is unsigned 128-bit (hi, lo) with the carry out of every product and sum checked; a
 // value at or above 2^limitBits (128 at most) hands n to the host, which finishes it in BigInt.
+// n itself is a 128-bit pair (nl, nh) below 2^127: blocks start anywhere below that, and every
+// list entry carries n's high word in its last word.
 // Path maxima are exact whenever they could matter: a table step adds a bound on the values inside
 // it (from the peak coefficient of its class, q^mp / 2^ip); when the bound could beat the block's
 // largest path so far, n is iterated again in single steps.
@@ -35,7 +37,7 @@ import {
   VERIFY_COUNTS,
   VERIFY_REGION_BYTES,
 } from "./layout";
-import { carry, ltU, mulAdd, rhi, rlo } from "./u128";
+import { carry, leU, ltU, mulAdd, rhi, rlo } from "./u128";
 import { dropDepth, useTables } from "./tree";
 
 const DONE_DESCENT: i32 = 0;
@@ -82,14 +84,14 @@ let exceededPath: bool = false; // the path bound could exceed the block's best 
   store<u64>(p, load<u64>(p) + 1);
 }
 
-function push(ch: i32, x0: u64, x1: u64, x2: u64): void {
+function push(ch: i32, x0: u64, x1: u64, x2: u64, x3: u64): void {
   const slot = ch - CHANNEL_GLIDE_RECORDS;
   const n = unchecked(chanN[slot]);
   const p = regions + <usize>slot * <usize>VERIFY_REGION_BYTES + (<usize>n << 5);
   store<u64>(p, x0);
   store<u64>(p, x1, 8);
   store<u64>(p, x2, 16);
-  store<u64>(p, 0, 24);
+  store<u64>(p, x3, 24);
   if (n + 1 == CHANNEL_CHUNK) {
     flush(ch, n + 1);
     unchecked((chanN[slot] = 0));
@@ -107,15 +109,19 @@ function push(ch: i32, x0: u64, x1: u64, x2: u64): void {
   return load<u64>(slackPtr + (<usize>d << 3));
 }
 
+@inline function bitlen(lo: u64, hi: u64): i32 {
+  return hi != 0 ? 128 - <i32>clz(hi) : 64 - <i32>clz(lo);
+}
+
 
 /**
  * n iterated one step at a time from step 0: the exact glide, odd steps and path, and the depth at
  * which its class's coefficient first drops (cutDepth, 0 when not within K).
  */
-function exact(n: u64): i32 {
-  let vl = n, vh: u64 = 0;
+function exact(nl: u64, nh: u64): i32 {
+  let vl = nl, vh = nh;
   let steps = 0, odd = 0;
-  let pl = n, ph: u64 = 0;
+  let pl = nl, ph = nh;
   cutDepth = 0;
   while (true) {
     if ((vl & 1) == 0) {
@@ -135,8 +141,8 @@ function exact(n: u64): i32 {
       pl = vl;
       ph = vh;
     }
-    if (vh == 0 && vl < n) break;
-    if (vh == 0 && vl == n) {
+    if (ltU(vl, vh, nl, nh)) break;
+    if (vl == nl && vh == nh) {
       glideT = steps;
       glideOdd = odd;
       return DONE_CYCLE;
@@ -167,7 +173,8 @@ function exact(n: u64): i32 {
   if (l < rlo) rhi++;
   rlo = l + 1;
   if (rlo == 0) rhi++;
-  carry = over || rhi == 0xffffffffffffffff;
+  // a slack of 2^64 - 1 is the host's clamp of a larger one: no bound then
+  carry = over || rhi == 0xffffffffffffffff || slack == 0xffffffffffffffff;
 }
 
 /**
@@ -175,19 +182,19 @@ function exact(n: u64): i32 {
  * (exceededPath says whether it could beat the block's best, in which case the caller iterates
  * n exactly).
  */
-function fast(n: u64, i: i32, h: u64): i32 {
+function fast(nl: u64, nh: u64, i: i32, hl: u64, hh: u64): i32 {
   const m = <i32>load<u8>(survM + <usize>i);
   // values inside the first K steps: at most q^mp (n + r) / 2^ip
   const pk = survPeak + (<usize>i << 1);
   const ip = <i32>load<u8>(pk), mp = <i32>load<u8>(pk, 1);
-  const nBits = 64 - <i32>clz(n);
-  let bl = n, bh: u64 = 0;
+  const nBits = bitlen(nl, nh);
+  let bl = nl, bh = nh;
   if (nBits + dropDepth(mp) - ip + 2 >= bestPathBits || 64 - <i32>clz(slackK) > nBits) {
-    peakBound(n, 0, ip, mp, slackK);
+    peakBound(nl, nh, ip, mp, slackK);
     bl = rlo;
     bh = carry ? <u64>-1 : rhi;
   }
-  mulAdd(h, 0, load<u64>(qpowPtr + (<usize>m << 3)), load<u64>(survB + (<usize>i << 3)));
+  mulAdd(hl, hh, load<u64>(qpowPtr + (<usize>m << 3)), load<u64>(survB + (<usize>i << 3)));
   if (carry || tooLarge(rlo, rhi)) return DONE_HANDOFF;
   let vl = rlo, vh = rhi;
   let steps = K, odd = m;
@@ -196,15 +203,15 @@ function fast(n: u64, i: i32, h: u64): i32 {
       bl = vl;
       bh = vh;
     }
-    if (vh == 0 && vl < n) break;
-    if (vh == 0 && vl == n) {
+    if (ltU(vl, vh, nl, nh)) break;
+    if (vl == nl && vh == nh) {
       glideT = steps;
       glideOdd = odd;
       return DONE_CYCLE;
     }
     if (steps >= maxSteps) return DONE_UNRESOLVED;
     // v >= n 2^d for d = bitlen(v) - bitlen(n) - 1: a table step of depth d cannot pass below n
-    const bits = vh != 0 ? 128 - <i32>clz(vh) : 64 - <i32>clz(vl);
+    const bits = bitlen(vl, vh);
     let d = bits - nBits - 1;
     if (d > KS) d = KS;
     if (d >= 2) {
@@ -250,43 +257,42 @@ function fast(n: u64, i: i32, h: u64): i32 {
 }
 
 /** Records of the block: a glide (standard steps) or a path above every smaller n's so far. */
-@inline function noteRecords(n: u64, glideStd: i32): void {
+@inline function noteRecords(nl: u64, nh: u64, glideStd: i32): void {
   if (glideStd > bestGlide) {
     bestGlide = glideStd;
-    push(CHANNEL_GLIDE_RECORDS, n, <u64>glideT, <u64>glideStd);
+    push(CHANNEL_GLIDE_RECORDS, nl, <u64>glideT, <u64>glideStd, nh);
   }
+  notePath(nl, nh);
+}
+
+@inline function notePath(nl: u64, nh: u64): void {
   if (ltU(bestPathLo, bestPathHi, pathLo, pathHi)) {
     bestPathLo = pathLo;
     bestPathHi = pathHi;
-    bestPathBits = pathHi != 0 ? 128 - <i32>clz(pathHi) : 64 - <i32>clz(pathLo);
-    push(CHANNEL_PATH_RECORDS, n, pathLo, pathHi);
+    bestPathBits = bitlen(pathLo, pathHi);
+    push(CHANNEL_PATH_RECORDS, nl, pathLo, pathHi, nh);
   }
 }
 
 /** Finishes n after `exact`: counts, records, and the lists of the other outcomes. */
-function settle(n: u64, done: i32, counted: i32): void {
+function settle(nl: u64, nh: u64, done: i32, counted: i32): void {
   if (done == DONE_DESCENT) {
     if (counted >= 0) bump(counted);
-    noteRecords(n, glideT + glideOdd);
+    noteRecords(nl, nh, glideT + glideOdd);
   } else if (done == DONE_CYCLE) {
     // a cycle member never goes below n; for the path records it counts as n itself
     bump(VERIFY_COUNT_CYCLES);
-    push(CHANNEL_CYCLE_MEMBERS, n, <u64>glideT, 0);
-    pathLo = n;
-    pathHi = 0;
-    if (ltU(bestPathLo, bestPathHi, pathLo, pathHi)) {
-      bestPathLo = pathLo;
-      bestPathHi = pathHi;
-      bestPathBits = pathHi != 0 ? 128 - <i32>clz(pathHi) : 64 - <i32>clz(pathLo);
-      push(CHANNEL_PATH_RECORDS, n, pathLo, pathHi);
-    }
+    push(CHANNEL_CYCLE_MEMBERS, nl, <u64>glideT, 0, nh);
+    pathLo = nl;
+    pathHi = nh;
+    notePath(nl, nh);
   } else if (done == DONE_UNRESOLVED) {
     bump(VERIFY_COUNT_UNRESOLVED);
-    push(CHANNEL_UNRESOLVED, n, 0, 0);
+    push(CHANNEL_UNRESOLVED, nl, 0, 0, nh);
   } else {
     // counted < 0: the host's arithmetic already counts n (a sieved n iterated as a possible record)
     bump(VERIFY_COUNT_HANDOFFS);
-    push(CHANNEL_HANDOFFS, n, counted < 0 ? 1 : 0, 0);
+    push(CHANNEL_HANDOFFS, nl, counted < 0 ? 1 : 0, 0, nh);
   }
 }
 
@@ -388,14 +394,14 @@ export function verifyPrepare(
 }
 
 /**
- * An aligned block: n = a + 2^K h for h0 <= h < h0 + periods, in increasing n. Survivors are
- * iterated; sieved n only where they could be records (or are in the sorted exception list
- * exc[0..excN)). Counts by outcome go to `counts`, lists to the channels. Returns the survivors
- * visited. The caller ensures n < 2^64 throughout and n > 0.
+ * An aligned block: n = a + 2^K h for h0 <= h < h0 + periods (h0 = (h0h, h0l)), in increasing n.
+ * Survivors are iterated; sieved n only where they could be records (or are in the sorted exception
+ * list exc[0..excN), all below 2^64). Counts by outcome go to `counts`, lists to the channels.
+ * Returns the survivors visited. The caller ensures 0 < n < 2^127 throughout.
  */
 export function verifyAligned(
   q: u32, r: u32, depth: i32, stepDepth: i32, steps: i32, limit: i32, tables: usize, survivors: i32,
-  h0: u64, periods: u64, exc: usize, excN: i32, sievedGlide: i32, sievedPeak: i32, sievedSlack: u64,
+  h0l: u64, h0h: u64, periods: u64, exc: usize, excN: i32, sievedGlide: i32, sievedPeak: i32, sievedSlack: u64,
   survivorSlack: u64, slacks: usize, counts: usize, scratch: usize,
 ): u64 {
   assert(r > 0 && survivors > 0 && depth >= 1 && depth <= VERIFY_MAX_DEPTH && stepDepth >= 1 && stepDepth <= VERIFY_MAX_STEP_DEPTH && limit >= 1 && limit <= 128);
@@ -403,116 +409,136 @@ export function verifyAligned(
   slackK = survivorSlack;
   slackPtr = slacks;
   const sievedPeakBits = dropDepth(sievedPeak) - sievedPeak; // bitlen(q^mp) - ip, the bound's extra bits
+  const K = <u64>depth;
   let e = 0; // next exception
   let visited: u64 = 0;
-  for (let h = h0; h < h0 + periods; h++) {
-    const base = h << <u64>depth;
-    let prev: u64 = base; // first n of the current gap
+  let hl = h0l, hh = h0h;
+  for (let p: u64 = 0; p < periods; p++) {
+    // base = h 2^K (below 2^127: no bit is lost)
+    const baseL = hl << K, baseH = (hh << K) | (hl >> (64 - K));
+    let prevL = baseL, prevH = baseH; // first n of the current gap
     for (let i = 0; i <= survivors; i++) {
-      const next: u64 = i < survivors ? base + <u64>load<u32>(survA + (<usize>i << 2)) : base + ((<u64>1) << <u64>depth);
+      const off: u64 = i < survivors ? <u64>load<u32>(survA + (<usize>i << 2)) : (<u64>1) << K;
+      const nextL = baseL + off, nextH = baseH + select<u64>(1, 0, baseL + off < baseL);
       // the gap [prev, next) of sieved n: records are possible only while the block's best glide
       // is below the deepest cut's, or its best path below a bound on theirs: a class cut by depth K
       // has m_i <= sievedPeak odd steps among its first i < j steps, so T^i(n) <= (q/2)^sievedPeak n + slack
-      if (prev < next) {
+      if (ltU(prevL, prevH, nextL, nextH)) {
         let candidate = bestGlide < sievedGlide;
         if (!candidate) {
-          const bits = 64 - <i32>clz(next);
+          const bits = bitlen(nextL, nextH);
           if (bits + sievedPeakBits + 2 >= bestPathBits || 64 - <i32>clz(sievedSlack) > bits) {
-            peakBound(next, 0, sievedPeak, sievedPeak, sievedSlack);
+            peakBound(nextL, nextH, sievedPeak, sievedPeak, sievedSlack);
             candidate = carry || ltU(bestPathLo, bestPathHi, rlo, rhi);
           }
         }
-        for (let n = prev; n < next; n++) {
-          const isException = e < excN && load<u64>(exc + (<usize>e << 3)) == n;
+        let nl = prevL, nh = prevH;
+        while (ltU(nl, nh, nextL, nextH)) {
+          const excAt: u64 = e < excN ? load<u64>(exc + (<usize>e << 3)) : 0;
+          const isException = e < excN && nh == 0 && excAt == nl;
           if (!candidate && !isException) {
-            // jump to the next exception in the gap, if any
-            if (e < excN && load<u64>(exc + (<usize>e << 3)) < next) {
-              n = load<u64>(exc + (<usize>e << 3)) - 1;
+            // on to the next exception in the gap, if any
+            if (e < excN && ltU(excAt, 0, nextL, nextH) && ltU(nl, nh, excAt, 0)) {
+              nl = excAt;
+              nh = 0;
               continue;
             }
             break;
           }
-          if (n == 0) continue;
-          const done = exact(n);
-          if (isException) {
-            e++;
-            settle(n, done, VERIFY_COUNT_EXCEPTIONS);
-          } else if (done == DONE_DESCENT) noteRecords(n, glideT + glideOdd); // counted by the host
-          else settle(n, done, -1);
+          if (nl != 0 || nh != 0) {
+            const done = exact(nl, nh);
+            if (isException) {
+              e++;
+              settle(nl, nh, done, VERIFY_COUNT_EXCEPTIONS);
+            } else if (done == DONE_DESCENT) noteRecords(nl, nh, glideT + glideOdd); // counted by the host
+            else settle(nl, nh, done, -1);
+          }
+          nl++;
+          if (nl == 0) nh++;
         }
       }
       if (i == survivors) break;
-      const n = next;
       visited++;
-      let done = fast(n, i, h);
+      let done = fast(nextL, nextH, i, hl, hh);
       if (done == DONE_DESCENT) {
         bump(VERIFY_COUNT_CHECKED);
         if (exceededPath || glideT + glideOdd > bestGlide) {
           // its path could be a record: the exact path, in single steps
-          const again = exact(n);
-          if (again == DONE_DESCENT) noteRecords(n, glideT + glideOdd);
+          const again = exact(nextL, nextH);
+          if (again == DONE_DESCENT) noteRecords(nextL, nextH, glideT + glideOdd);
           // a value past the limit on the way (inside the first K steps, which fast() only bounds): n is
           // counted as checked already; the host iterates it for its records
-          else settle(n, again, -1);
+          else settle(nextL, nextH, again, -1);
         }
-      } else if (done == DONE_CYCLE) settle(n, done, -1);
+      } else if (done == DONE_CYCLE) settle(nextL, nextH, done, -1);
       else {
         // past the cap, or too large for the kernel: single steps settle which (and find the cycle)
-        done = exact(n);
-        settle(n, done, VERIFY_COUNT_CHECKED);
+        done = exact(nextL, nextH);
+        settle(nextL, nextH, done, VERIFY_COUNT_CHECKED);
       }
-      prev = n + 1;
+      prevL = nextL + 1;
+      prevH = nextH + select<u64>(1, 0, prevL == 0);
     }
+    hl++;
+    if (hl == 0) hh++;
   }
   end();
   return visited;
 }
 
 /**
- * Any block first..last (inclusive, so that it may end at 2^64 - 1), every n iterated exactly (the
- * range's partial periods): sieved n are counted by their cut depth (counts[VERIFY_COUNT_SIEVED + j]),
- * survivors as checked, exceptions apart. Returns the numbers visited.
+ * Any block first..last (inclusive; each a (lo, hi) pair below 2^127), every n iterated exactly
+ * (the range's partial periods): sieved n are counted by their cut depth
+ * (counts[VERIFY_COUNT_SIEVED + j]), survivors as checked, exceptions apart. Returns the numbers visited.
  */
 export function verifyRange(
-  q: u32, r: u32, depth: i32, steps: i32, limit: i32, tables: usize, first: u64, last: u64, counts: usize, scratch: usize,
+  q: u32, r: u32, depth: i32, steps: i32, limit: i32, tables: usize, firstL: u64, firstH: u64, lastL: u64, lastH: u64,
+  counts: usize, scratch: usize,
 ): u64 {
-  assert(r > 0 && depth >= 1 && depth <= VERIFY_MAX_DEPTH && first >= 1 && first <= last && limit >= 1 && limit <= 128);
+  assert(r > 0 && depth >= 1 && depth <= VERIFY_MAX_DEPTH && (firstL | firstH) != 0 && leU(firstL, firstH, lastL, lastH) && limit >= 1 && limit <= 128);
   begin(q, r, depth, 1, steps, limit, tables, counts, scratch);
-  for (let n = first; ; n++) {
-    const done = exact(n);
+  let nl = firstL, nh = firstH;
+  let visited: u64 = 0;
+  while (true) {
+    const done = exact(nl, nh);
     if (done == DONE_DESCENT && cutDepth > 0) {
       if (glideT == cutDepth) {
         bump(VERIFY_COUNT_SIEVED + cutDepth);
-        noteRecords(n, glideT + glideOdd);
-      } else settle(n, done, VERIFY_COUNT_EXCEPTIONS);
-    } else if (cutDepth > 0) settle(n, done, VERIFY_COUNT_EXCEPTIONS);
-    else settle(n, done, VERIFY_COUNT_CHECKED);
-    if (n == last) break;
+        noteRecords(nl, nh, glideT + glideOdd);
+      } else settle(nl, nh, done, VERIFY_COUNT_EXCEPTIONS);
+    } else if (cutDepth > 0) settle(nl, nh, done, VERIFY_COUNT_EXCEPTIONS);
+    else settle(nl, nh, done, VERIFY_COUNT_CHECKED);
+    visited++;
+    if (nl == lastL && nh == lastH) break;
+    nl++;
+    if (nl == 0) nh++;
   }
   end();
-  return last - first + 1;
+  return visited;
 }
 
 /**
- * Delays (total stopping times) of first..last: the steps each n takes to reach 1, with the step
- * tables where a table step cannot pass over 1 (v >= 2^(d+1)), single steps below. Records go to
- * CHANNEL_GLIDE_RECORDS as (n, steps of T, standard steps); n that do not reach 1 within the step
- * cap to CHANNEL_UNRESOLVED; values past 2^limitBits to CHANNEL_HANDOFFS. Needs verifyPrepare.
+ * Delays (total stopping times) of first..last (as verifyRange): the steps each n takes to reach 1,
+ * with the step tables where a table step cannot pass over 1 (v >= 2^(d+1)), single steps below.
+ * Records go to CHANNEL_GLIDE_RECORDS as (n, steps of T, standard steps); n that do not reach 1
+ * within the step cap to CHANNEL_UNRESOLVED; values past 2^limitBits to CHANNEL_HANDOFFS. Needs verifyPrepare.
  */
 export function verifyDelays(
-  q: u32, r: u32, stepDepth: i32, steps: i32, limit: i32, tables: usize, first: u64, last: u64, counts: usize, scratch: usize,
+  q: u32, r: u32, stepDepth: i32, steps: i32, limit: i32, tables: usize, firstL: u64, firstH: u64, lastL: u64, lastH: u64,
+  counts: usize, scratch: usize,
 ): u64 {
-  assert(r > 0 && stepDepth >= 1 && stepDepth <= VERIFY_MAX_STEP_DEPTH && first >= 1 && first <= last && limit >= 1 && limit <= 128);
+  assert(r > 0 && stepDepth >= 1 && stepDepth <= VERIFY_MAX_STEP_DEPTH && (firstL | firstH) != 0 && leU(firstL, firstH, lastL, lastH) && limit >= 1 && limit <= 128);
   begin(q, r, 1, stepDepth, steps, limit, tables, counts, scratch);
-  for (let n = first; ; n++) {
-    let vl = n, vh: u64 = 0, t = 0, odd = 0, done = DONE_DESCENT;
+  let nl = firstL, nh = firstH;
+  let visited: u64 = 0;
+  while (true) {
+    let vl = nl, vh = nh, t = 0, odd = 0, done = DONE_DESCENT;
     while (vh != 0 || vl != 1) {
       if (t >= maxSteps) {
         done = DONE_UNRESOLVED;
         break;
       }
-      const bits = vh != 0 ? 128 - <i32>clz(vh) : 64 - <i32>clz(vl);
-      let d = bits - 2;
+      let d = bitlen(vl, vh) - 2;
       if (d > KS) d = KS;
       if (d >= 2) {
         const c = <usize>(vl & (((<u64>1) << <u64>d) - 1)) + (((<usize>1) << <usize>d) - 2);
@@ -541,17 +567,20 @@ export function verifyDelays(
       bump(VERIFY_COUNT_CHECKED);
       if (t + odd > bestGlide) {
         bestGlide = t + odd;
-        push(CHANNEL_GLIDE_RECORDS, n, <u64>t, <u64>(t + odd));
+        push(CHANNEL_GLIDE_RECORDS, nl, <u64>t, <u64>(t + odd), nh);
       }
     } else if (done == DONE_UNRESOLVED) {
       bump(VERIFY_COUNT_UNRESOLVED);
-      push(CHANNEL_UNRESOLVED, n, 0, 0);
+      push(CHANNEL_UNRESOLVED, nl, 0, 0, nh);
     } else {
       bump(VERIFY_COUNT_HANDOFFS);
-      push(CHANNEL_HANDOFFS, n, 0, 0);
+      push(CHANNEL_HANDOFFS, nl, 0, 0, nh);
     }
-    if (n == last) break;
+    visited++;
+    if (nl == lastL && nh == lastH) break;
+    nl++;
+    if (nl == 0) nh++;
   }
   end();
-  return last - first + 1;
+  return visited;
 }

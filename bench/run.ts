@@ -90,12 +90,12 @@ await structureRun("cycles 5x+1 to period 30 (128-bit)", cores, (pool) => search
 
 // Verification: numbers per second over [2^50, 2^50 + 2^32), with the step tables and (baseline) with
 // single steps only after the survivors' start at step K (step depth 1: no table steps).
-async function verifyRun(what: string, workers: number, req: Omit<VerifyRequest, "map">): Promise<number> {
+async function verifyRun(what: string, workers: number, req: Omit<VerifyRequest, "map">, m = map): Promise<number> {
   const pool = await nodePool(workers);
   try {
-    await runVerify(pool, { map, ...req, to: req.from + (1n << 24n) }); // warm the workers and the JIT
+    await runVerify(pool, { map: m, ...req, to: req.from + (1n << 24n) }); // warm the workers and the JIT
     const t0 = performance.now();
-    const r = await runVerify(pool, { map, ...req });
+    const r = await runVerify(pool, { map: m, ...req });
     const sec = (performance.now() - t0) / 1000;
     const numbers = Number(req.to - req.from);
     rows.push([what, String(workers), `${numbers.toLocaleString("en-US")} n`, sec.toFixed(3), `${(numbers / sec / 1e6).toFixed(0)} M n/s`]);
@@ -110,6 +110,8 @@ const verifyRates: number[] = [];
 for (const w of cores > 1 ? [1, cores] : [1])
   verifyRates.push(await verifyRun("verify [2^50, 2^50 + 2^32), K 26, step tables to 16", w, v50));
 await verifyRun("verify baseline: same survivors, single steps", cores, { ...v50, stepDepth: 1 });
+// the published frontier: a slice at 2^71 (n as a 128-bit pair in the kernel)
+await verifyRun("verify [2^71, 2^71 + 2^32), K 26, step tables to 16", cores, { ...v50, from: 1n << 71n, to: (1n << 71n) + (1n << 32n) });
 const v40 = { from: 1n << 40n, to: (1n << 40n) + (1n << 24n), sieveDepth: 20, stepDepth: 16 };
 await verifyRun("verify [2^40, 2^40 + 2^24)", cores, v40);
 await verifyRun("verify [2^40, 2^40 + 2^24) with --delay", cores, { ...v40, delay: true });

@@ -210,13 +210,21 @@ describe("verify: far ranges and other maps, against the brute force", () => {
     ["3x+1", 1n << 40n, (1n << 40n) + (1n << 20n), 20],
     ["3x+1", 1n << 60n, (1n << 60n) + (1n << 16n), 12],
     ["3x+1", (1n << 64n) - (1n << 16n), 1n << 64n, 16],
+    // the kernel takes n as a 128-bit pair: across 2^64, at the published frontier 2^71, past 2^100,
+    // and just below 2^127, where values pass 128 bits and go to BigInt (handoffs)
+    ["3x+1", (1n << 64n) - (1n << 12n) + 3n, (1n << 64n) + (1n << 13n) + 5n, 10],
+    ["3x+1", 1n << 71n, (1n << 71n) + (1n << 16n), 12],
+    ["5x+3", (1n << 100n) + 7n, (1n << 100n) + (1n << 12n), 8],
+    ["3x+1", (1n << 127n) - (1n << 13n), 1n << 127n, 10],
   ];
   for (const [text, from, to, sieveDepth] of cases) {
     it(`${text} over [${from}, ${to}): every n's glide and path summarised identically`, async () => {
       const map = parseMap(text);
-      const r = await runVerify(pool, { map, from, to, sieveDepth, stepDepth: 16 });
+      const cap = text.startsWith("5x") ? 3000 : 100_000;
+      const r = await runVerify(pool, { map, from, to, sieveDepth, stepDepth: 16, maxSteps: cap });
       expect(r.engine).toBe("kernel");
-      expectAgrees(r, brute(map, from, to, 100_000, sieveDepth));
+      if (from >> 126n !== 0n) expect(r.handoffs).toBeGreaterThan(0n);
+      expectAgrees(r, brute(map, from, to, cap, sieveDepth));
     });
   }
   it("3x+5: its cycle members are reported as such (minima 1, 5, 19, 23, 187, 347; Lagarias 1990, from memory)", async () => {
@@ -409,6 +417,7 @@ describe("verify: bad requests", () => {
     expect(() => planVerify({ map, from: 1n, to: 10n, sieveDepth: 31 })).toThrow(LimitError);
     expect(() => planVerify({ map, from: 1n, to: 10n, stepDepth: 21 })).toThrow(LimitError);
     expect(() => planVerify({ map: parseMap("3x-1"), from: 1n, to: 1n << 30n })).toThrow(/verified in BigInt/);
-    expect(() => planVerify({ map, from: 1n << 64n, to: (1n << 64n) + (1n << 30n) })).toThrow(/at or above 2\^64/);
+    expect(planVerify({ map, from: 1n << 71n, to: (1n << 71n) + (1n << 30n) }).engine).toBe("kernel");
+    expect(() => planVerify({ map, from: 1n << 127n, to: (1n << 127n) + (1n << 30n) })).toThrow(/at or above 2\^127/);
   });
 });

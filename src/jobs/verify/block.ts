@@ -102,10 +102,13 @@ export function smallestBy<T>(xs: Iterable<T>, key: (x: T) => bigint): T[] {
 
 const itself = (x: bigint) => x;
 
-/** The kernel's glide entries (n, glide in steps of T, in standard steps, -) as records. */
+/** n of the kernel's list entry at i: its low word first, its high word last (x0, x1, x2, n high). */
+const entryN = (raw: BigUint64Array, i: number) => (raw[i + 3]! << 64n) | raw[i]!;
+
+/** The kernel's glide entries (n, glide in steps of T, in standard steps, n high) as records. */
 function glidesOf(raw: BigUint64Array): GlideRecord[] {
   const out: GlideRecord[] = [];
-  for (let i = 0; i < raw.length; i += 4) out.push({ n: raw[i]!, steps: Number(raw[i + 1]!), standardSteps: Number(raw[i + 2]!) });
+  for (let i = 0; i < raw.length; i += 4) out.push({ n: entryN(raw, i), steps: Number(raw[i + 1]!), standardSteps: Number(raw[i + 2]!) });
   return out;
 }
 
@@ -216,12 +219,13 @@ export function finishKernelBlock(ctx: BlockContext, block: VerifyBlock, raw: Ve
   } else for (let j = 1; j <= K; j++) f.sievedByDepth[j] = c[counters.sieved + j]!;
   f.glides.push(...glidesOf(raw.glideRecords));
   for (let i = 0; i < raw.pathRecords.length; i += 4)
-    f.paths.push({ n: raw.pathRecords[i]!, peakT: (raw.pathRecords[i + 2]! << 64n) | raw.pathRecords[i + 1]! });
-  for (let i = 0; i < raw.cycleMembers.length; i += 4) f.cycles.push({ n: raw.cycleMembers[i]!, period: Number(raw.cycleMembers[i + 1]!) });
-  for (let i = 0; i < raw.unresolved.length; i += 4) f.unresolved.push(raw.unresolved[i]!);
+    f.paths.push({ n: entryN(raw.pathRecords, i), peakT: (raw.pathRecords[i + 2]! << 64n) | raw.pathRecords[i + 1]! });
+  for (let i = 0; i < raw.cycleMembers.length; i += 4)
+    f.cycles.push({ n: entryN(raw.cycleMembers, i), period: Number(raw.cycleMembers[i + 1]!) });
+  for (let i = 0; i < raw.unresolved.length; i += 4) f.unresolved.push(entryN(raw.unresolved, i));
   for (let i = 0; i < raw.handoffs.length; i += 4) {
     f.handoffs++;
-    tally(map, maxSteps, K, raw.handoffs[i]!, f, raw.handoffs[i + 1]! === 1n);
+    tally(map, maxSteps, K, entryN(raw.handoffs, i), f, raw.handoffs[i + 1]! === 1n);
   }
   return finish(map, maxSteps, block, f);
 }
@@ -237,11 +241,11 @@ export interface KernelCounters {
 function finishDelay(ctx: BlockContext, block: VerifyBlock, raw: VerifyBlockResult, counters: KernelCounters): BlockEntry {
   const found = glidesOf(raw.glideRecords);
   const unreachedList: bigint[] = [];
-  for (let i = 0; i < raw.unresolved.length; i += 4) unreachedList.push(raw.unresolved[i]!);
+  for (let i = 0; i < raw.unresolved.length; i += 4) unreachedList.push(entryN(raw.unresolved, i));
   let unreached = raw.counts[counters.unresolved]!;
   let handoffs = 0n;
   for (let i = 0; i < raw.handoffs.length; i += 4) {
-    const n = raw.handoffs[i]!;
+    const n = entryN(raw.handoffs, i);
     handoffs++;
     const d = delayBig(ctx.map, n, ctx.maxSteps);
     if (d === null) {
@@ -287,7 +291,7 @@ function delayEntry(
   };
 }
 
-/** A block walked n by n in BigInt (the BigInt engine: maps with r < 0, numbers at or above 2^64). */
+/** A block walked n by n in BigInt (the BigInt engine: maps with r < 0, numbers at or above 2^127). */
 export function bigintBlock(ctx: BlockContext, block: Pick<VerifyBlock, "index" | "kind" | "first" | "last">): BlockEntry {
   const { map, sieveDepth: K, maxSteps } = ctx;
   if (block.kind === "delay") {

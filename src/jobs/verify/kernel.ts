@@ -59,6 +59,12 @@ export function verifyBlockEntry(kernel: Kernel, tables: VerifyTables | null, bl
   );
 }
 
+/** A number below 2^128 as the kernel takes it: its low and high 64-bit words. */
+function words(x: bigint): [bigint, bigint] {
+  if (x < 0n || x >> 128n !== 0n) throw new Error(`internal error: ${x} is not a 128-bit word pair`);
+  return [BigInt.asUintN(64, x), x >> 64n];
+}
+
 /** Runs one block on tables already prepared: the kernel's raw counters and lists. */
 function verifyBlock(kernel: Kernel, t: VerifyTables, block: VerifyBlock): VerifyBlockResult {
   const L = (name: string) => kernel.layout(name);
@@ -97,7 +103,7 @@ function verifyBlock(kernel: Kernel, t: VerifyTables, block: VerifyBlock): Verif
         block.limitBits,
         tables,
         t.residues.length,
-        block.h0,
+        ...words(block.h0),
         block.periods,
         exc,
         block.exceptions.length,
@@ -114,13 +120,13 @@ function verifyBlock(kernel: Kernel, t: VerifyTables, block: VerifyBlock): Verif
   } else if (block.kind === "delay") {
     visited = kernel.call(
       "verifyDelays",
-      [t.q, t.r, t.stepDepth, block.maxSteps, block.limitBits, tables, block.first, block.last, counts, scratch],
+      [t.q, t.r, t.stepDepth, block.maxSteps, block.limitBits, tables, ...words(block.first), ...words(block.last), counts, scratch],
       sink,
     );
   } else {
     visited = kernel.call(
       "verifyRange",
-      [t.q, t.r, t.depth, block.maxSteps, block.limitBits, tables, block.first, block.last, counts, scratch],
+      [t.q, t.r, t.depth, block.maxSteps, block.limitBits, tables, ...words(block.first), ...words(block.last), counts, scratch],
       sink,
     );
   }

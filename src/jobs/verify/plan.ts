@@ -11,13 +11,14 @@ export const MAX_VERIFY_SIEVE_DEPTH = 30;
 export const MAX_VERIFY_STEP_DEPTH = 20;
 export const DEFAULT_MAX_STEPS = 100_000;
 export const MAX_MAX_STEPS = 100_000_000;
-/** Numbers a run may take through BigInt alone (maps with r < 0, n >= 2^64): it is slow. */
+/** Numbers a run may take through BigInt alone (maps with r < 0, n >= 2^127): it is slow. */
 export const MAX_BIGINT_NUMBERS = 1n << 22n;
 /** Numbers per ranged block (partial periods, iterated one by one). */
 const RANGE_BLOCK = 1n << 20n;
 /** Numbers per block on the BigInt engine (about a tenth of a second each). */
 const BIGINT_BLOCK = 1n << 12n;
-const TWO64 = 1n << 64n;
+/** The kernel takes n below 2^127 (a 128-bit pair; values past 128 bits go to BigInt). */
+const KERNEL_LIMIT = 1n << 127n;
 
 export interface VerifyRequest {
   readonly map: CollatzMap;
@@ -92,9 +93,9 @@ export function planVerify(req: VerifyRequest): VerifyPlan {
       `max steps ${maxSteps} is below the sieve depth ${sieveDepth}: give a sieve depth of at most ${maxSteps}, or more steps`,
     );
   if (!Number.isInteger(limitBits) || limitBits < 8 || limitBits > 128) throw new UsageError("limitBits must be from 8 to 128");
-  const engine = map.r > 0 && to <= TWO64 ? "kernel" : "bigint";
+  const engine = map.r > 0 && to <= KERNEL_LIMIT ? "kernel" : "bigint";
   if (engine === "bigint" && to - from > MAX_BIGINT_NUMBERS) {
-    const why = map.r < 0 ? `maps with r < 0 (${map.name})` : "numbers at or above 2^64";
+    const why = map.r < 0 ? `maps with r < 0 (${map.name})` : "numbers at or above 2^127";
     throw new LimitError(`${why} are verified in BigInt, one by one: at most ${MAX_BIGINT_NUMBERS} numbers a run, got ${to - from}`);
   }
   const delay = req.delay === true;
@@ -114,11 +115,9 @@ export function planVerify(req: VerifyRequest): VerifyPlan {
     return { map, from, to, sieveDepth, stepDepth, maxSteps, limitBits, engine, delay, blockTarget, key, blocks };
   }
   const period = 1n << BigInt(sieveDepth);
-  // aligned periods: [hA 2^K, hB 2^K), below 2^64 - 2^K so that no period's end wraps
+  // aligned periods: [hA 2^K, hB 2^K), all below 2^127
   const hA = (from + period - 1n) / period;
-  let hB = to / period;
-  const hMax = TWO64 / period - 1n;
-  if (hB > hMax) hB = hMax;
+  const hB = to / period;
   if (hB <= hA) chunks("range", from, to, RANGE_BLOCK);
   else {
     if (from < hA * period) chunks("range", from, hA * period, RANGE_BLOCK);

@@ -16,7 +16,7 @@ import type { VerifyPlan } from "./plan.js";
 const MAX_EXCEPTIONS = 1n << 24n;
 const TWO64 = 1n << 64n;
 
-/** ceil(r (q/2)^L), at most 2^64 - 1. */
+/** ceil(r (q/2)^L), at most 2^64 - 1 (the kernel reads 2^64 - 1 as no bound). */
 function slack(map: CollatzMap, L: number): bigint {
   const v = (BigInt(map.r) * BigInt(map.q) ** BigInt(L) + (1n << BigInt(L)) - 1n) >> BigInt(L);
   return v >= TWO64 ? TWO64 - 1n : v;
