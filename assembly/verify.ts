@@ -1,4 +1,4 @@
-// Convergence verification of a block of consecutive n (r > 0): every n is shown to reach a value
+// Convergence verification of a block of consecutive n (any odd r): every n is shown to reach a value
 // below n (its glide), or found on a cycle (it returns to n), or left unresolved past a step cap.
 //
 // Aligned blocks (whole periods n = a + 2^K h, h0 <= h < h0 + periods) visit only the survivors of
@@ -14,6 +14,9 @@
 // value at or above 2^limitBits (128 at most) hands n to the host, which finishes it in BigInt.
 // n itself is a 128-bit pair (nl, nh) below 2^127: blocks start anywhere below that, and every
 // list entry carries n's high word in its last word.
+// With r < 0 the images b of the tables are signed (i64) and an odd step subtracts; a value that
+// would be zero or below is handed to the host too (only n below |r| can get there, common practice:
+// from v >= n > |r| / q an odd step stays positive).
 // Path maxima are exact whenever they could matter: a table step adds a bound on the values inside
 // it (from the peak coefficient of its class, q^mp / 2^ip); when the bound could beat the block's
 // largest path so far, n is iterated again in single steps.
@@ -48,7 +51,9 @@ const DONE_HANDOFF: i32 = 3;
 let Q: u64 = 0;
 let slackK: u64 = 0; // r (q/2)^K, rounded up (the first K steps of a survivor)
 let slackPtr: usize = 0; // u64 r (q/2)^d rounded up, d = 0..KS (host)
-let HQ: u64 = 0; // (q + r) / 2: the odd step is q (v >> 1) + HQ
+let HQ: u64 = 0; // (q + r) / 2, two's complement: the odd step is q (v >> 1) + HQ
+let NEG: bool = false; // r < 0: the images b (and HQ) are signed
+let SIGN: u64 = 0; // all ones when r < 0: b & SIGN is negative exactly when a signed b is
 let K: i32 = 0; // sieve depth
 let KS: i32 = 0; // table step depth
 let maxSteps: i32 = 0;
@@ -109,6 +114,32 @@ function push(ch: i32, x0: u64, x1: u64, x2: u64, x3: u64): void {
   return load<u64>(slackPtr + (<usize>d << 3));
 }
 
+/**
+ * (hi, lo) y + b into (rhi, rlo), b read as signed when r < 0; carry when the result needs more than
+ * 128 bits or is zero or below (the host finishes n in BigInt).
+ */
+@inline function affine(lo: u64, hi: u64, y: u64, b: u64): void {
+  if (<i64>(b & SIGN) >= 0) {
+    mulAdd(lo, hi, y, b);
+    return;
+  }
+  mulAdd(lo, hi, y, 0);
+  const d = <u64>-(<i64>b);
+  const l = rlo - d;
+  if (l > rlo) {
+    if (rhi == 0) carry = true;
+    rhi--;
+  }
+  rlo = l;
+  if (rlo == 0 && rhi == 0) carry = true;
+}
+
+/** One step of T on a value within the host-proven width (signed when r < 0), for the class tables. */
+@inline function step64(v: u64): u64 {
+  const half = NEG ? <u64>(<i64>v >> 1) : v >> 1;
+  return (v & 1) == 0 ? half : Q * half + HQ;
+}
+
 @inline function bitlen(lo: u64, hi: u64): i32 {
   return hi != 0 ? 128 - <i32>clz(hi) : 64 - <i32>clz(lo);
 }
@@ -129,7 +160,7 @@ function exact(nl: u64, nh: u64): i32 {
       vh >>= 1;
     } else {
       // q (v >> 1) + (q + r) / 2
-      mulAdd((vl >> 1) | (vh << 63), vh >> 1, Q, HQ);
+      affine((vl >> 1) | (vh << 63), vh >> 1, Q, HQ);
       if (carry || tooLarge(rlo, rhi)) return DONE_HANDOFF;
       vl = rlo;
       vh = rhi;
@@ -194,7 +225,7 @@ function fast(nl: u64, nh: u64, i: i32, hl: u64, hh: u64): i32 {
     bl = rlo;
     bh = carry ? <u64>-1 : rhi;
   }
-  mulAdd(hl, hh, load<u64>(qpowPtr + (<usize>m << 3)), load<u64>(survB + (<usize>i << 3)));
+  affine(hl, hh, load<u64>(qpowPtr + (<usize>m << 3)), load<u64>(survB + (<usize>i << 3)));
   if (carry || tooLarge(rlo, rhi)) return DONE_HANDOFF;
   let vl = rlo, vh = rhi;
   let steps = K, odd = m;
@@ -231,7 +262,7 @@ function fast(nl: u64, nh: u64, i: i32, hl: u64, hh: u64): i32 {
       }
       const sm = <i32>load<u8>(stepM + c);
       const xl = (vl >> <u64>d) | (vh << <u64>(64 - d)), xh = vh >> <u64>d;
-      mulAdd(xl, xh, load<u64>(qpowPtr + (<usize>sm << 3)), load<u64>(stepB + (c << 3)));
+      affine(xl, xh, load<u64>(qpowPtr + (<usize>sm << 3)), load<u64>(stepB + (c << 3)));
       if (carry || tooLarge(rlo, rhi)) return DONE_HANDOFF;
       vl = rlo;
       vh = rhi;
@@ -242,7 +273,7 @@ function fast(nl: u64, nh: u64, i: i32, hl: u64, hh: u64): i32 {
       vh >>= 1;
       steps++;
     } else {
-      mulAdd((vl >> 1) | (vh << 63), vh >> 1, Q, HQ);
+      affine((vl >> 1) | (vh << 63), vh >> 1, Q, HQ);
       if (carry || tooLarge(rlo, rhi)) return DONE_HANDOFF;
       vl = rlo;
       vh = rhi;
@@ -296,9 +327,16 @@ function settle(nl: u64, nh: u64, done: i32, counted: i32): void {
   }
 }
 
-function begin(q: u32, r: u32, depth: i32, stepDepth: i32, steps: i32, limit: i32, tables: usize, counts: usize, scratch: usize): void {
+/** The map's constants: q, (q + r) / 2 in two's complement, and whether r < 0. */
+function setMap(q: u32, r: i32): void {
   Q = <u64>q;
-  HQ = (<u64>q + <u64>r) >> 1;
+  HQ = <u64>((<i64>q + <i64>r) >> 1);
+  NEG = r < 0;
+  SIGN = NEG ? <u64>-1 : 0;
+}
+
+function begin(q: u32, r: i32, depth: i32, stepDepth: i32, steps: i32, limit: i32, tables: usize, counts: usize, scratch: usize): void {
+  setMap(q, r);
   K = depth;
   KS = stepDepth;
   maxSteps = steps;
@@ -327,11 +365,8 @@ function end(): void {
 function peakOf(a: u64, len: i32, out: usize): void {
   let v = a, m = 0, ip = 0, mp = 0;
   for (let i = 1; i < len; i++) {
-    if ((v & 1) == 0) v >>= 1;
-    else {
-      v = Q * (v >> 1) + HQ; // within the host-proven width for i < len <= the sieve's limit
-      m++;
-    }
+    if ((v & 1) != 0) m++;
+    v = step64(v); // within the host-proven width for i < len <= the sieve's limit
     // q^m / 2^i > q^mp / 2^ip iff q^(m - mp) > 2^(i - ip) iff i - ip < bitlen(q^(m - mp))
     if (m > mp && i - ip < dropDepth(m - mp)) {
       ip = i;
@@ -346,11 +381,8 @@ function peakOf(a: u64, len: i32, out: usize): void {
 function classOf(a: u64, len: i32, mOut: usize, bOut: usize): void {
   let v = a, odd = 0;
   for (let j = 0; j < len; j++) {
-    if ((v & 1) == 0) v >>= 1;
-    else {
-      v = Q * (v >> 1) + HQ;
-      odd++;
-    }
+    if ((v & 1) != 0) odd++;
+    v = step64(v);
   }
   store<u8>(mOut, <u8>odd);
   store<u64>(bOut, v);
@@ -363,12 +395,11 @@ function classOf(a: u64, len: i32, mOut: usize, bOut: usize): void {
  * steps). tables: the per-m tables (TABLE_*). Every other address is an output.
  */
 export function verifyPrepare(
-  q: u32, r: u32, depth: i32, stepDepth: i32, tables: usize, survivors: i32,
+  q: u32, r: i32, depth: i32, stepDepth: i32, tables: usize, survivors: i32,
   a: usize, m: usize, b: usize, peak: usize, sm: usize, sb: usize, speak: usize,
 ): void {
-  assert(r > 0 && depth >= 1 && depth <= VERIFY_MAX_DEPTH && stepDepth >= 1 && stepDepth <= VERIFY_MAX_STEP_DEPTH && survivors >= 0);
-  Q = <u64>q;
-  HQ = (<u64>q + <u64>r) >> 1;
+  assert(r != 0 && depth >= 1 && depth <= VERIFY_MAX_DEPTH && stepDepth >= 1 && stepDepth <= VERIFY_MAX_STEP_DEPTH && survivors >= 0);
+  setMap(q, r);
   useTables(tables);
   survA = a;
   survM = m;
@@ -397,14 +428,17 @@ export function verifyPrepare(
  * An aligned block: n = a + 2^K h for h0 <= h < h0 + periods (h0 = (h0h, h0l)), in increasing n.
  * Survivors are iterated; sieved n only where they could be records (or are in the sorted exception
  * list exc[0..excN), all below 2^64). Counts by outcome go to `counts`, lists to the channels.
+ * (r < 0: a small survivor may go below itself before step K, where fast() starts; fast() then only
+ * overstates its glide and path, and every n whose glide or path could be a record is iterated again
+ * exactly, so the records and counts stay exact.)
  * Returns the survivors visited. The caller ensures 0 < n < 2^127 throughout.
  */
 export function verifyAligned(
-  q: u32, r: u32, depth: i32, stepDepth: i32, steps: i32, limit: i32, tables: usize, survivors: i32,
+  q: u32, r: i32, depth: i32, stepDepth: i32, steps: i32, limit: i32, tables: usize, survivors: i32,
   h0l: u64, h0h: u64, periods: u64, exc: usize, excN: i32, sievedGlide: i32, sievedPeak: i32, sievedSlack: u64,
   survivorSlack: u64, slacks: usize, counts: usize, scratch: usize,
 ): u64 {
-  assert(r > 0 && survivors > 0 && depth >= 1 && depth <= VERIFY_MAX_DEPTH && stepDepth >= 1 && stepDepth <= VERIFY_MAX_STEP_DEPTH && limit >= 1 && limit <= 128);
+  assert(r != 0 && survivors > 0 && depth >= 1 && depth <= VERIFY_MAX_DEPTH && stepDepth >= 1 && stepDepth <= VERIFY_MAX_STEP_DEPTH && limit >= 1 && limit <= 128);
   begin(q, r, depth, stepDepth, steps, limit, tables, counts, scratch);
   slackK = survivorSlack;
   slackPtr = slacks;
@@ -449,7 +483,8 @@ export function verifyAligned(
             const done = exact(nl, nh);
             if (isException) {
               e++;
-              settle(nl, nh, done, VERIFY_COUNT_EXCEPTIONS);
+              // (r < 0) a listed n that goes below itself before its class's cut is checked, not an exception
+              settle(nl, nh, done, done == DONE_DESCENT && cutDepth == 0 ? VERIFY_COUNT_CHECKED : VERIFY_COUNT_EXCEPTIONS);
             } else if (done == DONE_DESCENT) noteRecords(nl, nh, glideT + glideOdd); // counted by the host
             else settle(nl, nh, done, -1);
           }
@@ -492,10 +527,10 @@ export function verifyAligned(
  * (counts[VERIFY_COUNT_SIEVED + j]), survivors as checked, exceptions apart. Returns the numbers visited.
  */
 export function verifyRange(
-  q: u32, r: u32, depth: i32, steps: i32, limit: i32, tables: usize, firstL: u64, firstH: u64, lastL: u64, lastH: u64,
+  q: u32, r: i32, depth: i32, steps: i32, limit: i32, tables: usize, firstL: u64, firstH: u64, lastL: u64, lastH: u64,
   counts: usize, scratch: usize,
 ): u64 {
-  assert(r > 0 && depth >= 1 && depth <= VERIFY_MAX_DEPTH && (firstL | firstH) != 0 && leU(firstL, firstH, lastL, lastH) && limit >= 1 && limit <= 128);
+  assert(r != 0 && depth >= 1 && depth <= VERIFY_MAX_DEPTH && (firstL | firstH) != 0 && leU(firstL, firstH, lastL, lastH) && limit >= 1 && limit <= 128);
   begin(q, r, depth, 1, steps, limit, tables, counts, scratch);
   let nl = firstL, nh = firstH;
   let visited: u64 = 0;
@@ -524,10 +559,10 @@ export function verifyRange(
  * within the step cap to CHANNEL_UNRESOLVED; values past 2^limitBits to CHANNEL_HANDOFFS. Needs verifyPrepare.
  */
 export function verifyDelays(
-  q: u32, r: u32, stepDepth: i32, steps: i32, limit: i32, tables: usize, firstL: u64, firstH: u64, lastL: u64, lastH: u64,
+  q: u32, r: i32, stepDepth: i32, steps: i32, limit: i32, tables: usize, firstL: u64, firstH: u64, lastL: u64, lastH: u64,
   counts: usize, scratch: usize,
 ): u64 {
-  assert(r > 0 && stepDepth >= 1 && stepDepth <= VERIFY_MAX_STEP_DEPTH && (firstL | firstH) != 0 && leU(firstL, firstH, lastL, lastH) && limit >= 1 && limit <= 128);
+  assert(r != 0 && stepDepth >= 1 && stepDepth <= VERIFY_MAX_STEP_DEPTH && (firstL | firstH) != 0 && leU(firstL, firstH, lastL, lastH) && limit >= 1 && limit <= 128);
   begin(q, r, 1, stepDepth, steps, limit, tables, counts, scratch);
   let nl = firstL, nh = firstH;
   let visited: u64 = 0;
@@ -543,7 +578,7 @@ export function verifyDelays(
       if (d >= 2) {
         const c = <usize>(vl & (((<u64>1) << <u64>d) - 1)) + (((<usize>1) << <usize>d) - 2);
         const sm = <i32>load<u8>(stepM + c);
-        mulAdd((vl >> <u64>d) | (vh << <u64>(64 - d)), vh >> <u64>d, load<u64>(qpowPtr + (<usize>sm << 3)), load<u64>(stepB + (c << 3)));
+        affine((vl >> <u64>d) | (vh << <u64>(64 - d)), vh >> <u64>d, load<u64>(qpowPtr + (<usize>sm << 3)), load<u64>(stepB + (c << 3)));
         t += d;
         odd += sm;
       } else if ((vl & 1) == 0) {
@@ -552,7 +587,7 @@ export function verifyDelays(
         carry = false;
         t++;
       } else {
-        mulAdd((vl >> 1) | (vh << 63), vh >> 1, Q, HQ);
+        affine((vl >> 1) | (vh << 63), vh >> 1, Q, HQ);
         t++;
         odd++;
       }

@@ -110,6 +110,7 @@ const verifyRates: number[] = [];
 for (const w of cores > 1 ? [1, cores] : [1])
   verifyRates.push(await verifyRun("verify [2^50, 2^50 + 2^32), K 26, step tables to 16", w, v50));
 await verifyRun("verify baseline: same survivors, single steps", cores, { ...v50, stepDepth: 1 });
+await verifyRun("verify 3x-1 (r < 0) [2^50, 2^50 + 2^32)", cores, v50, parseMap("3x-1"));
 // the published frontier: a slice at 2^71 (n as a 128-bit pair in the kernel)
 await verifyRun("verify [2^71, 2^71 + 2^32), K 26, step tables to 16", cores, { ...v50, from: 1n << 71n, to: (1n << 71n) + (1n << 32n) });
 const v40 = { from: 1n << 40n, to: (1n << 40n) + (1n << 24n), sieveDepth: 20, stepDepth: 16 };

@@ -4,6 +4,7 @@ import { parseMap } from "../src/core/map.js";
 import type { CollatzMap } from "../src/core/map.js";
 import { runVerify } from "../src/jobs/verify/verify.js";
 import { traceBig } from "../src/jobs/verify/trace.js";
+import { earlyDescentBound } from "../src/jobs/verify/tables.js";
 import { planVerify } from "../src/jobs/verify/plan.js";
 import type { BlockEntry } from "../src/jobs/verify/block.js";
 import type { VerifyResult } from "../src/jobs/verify/merge.js";
@@ -248,12 +249,61 @@ describe("verify: far ranges and other maps, against the brute force", () => {
       [17n, 7],
     ]);
   });
-  it("3x-1 (r < 0) goes through BigInt and agrees too (cycles of 1, 5, 17: common practice)", async () => {
+  it("3x-1 (r < 0) runs in the kernel and agrees too (cycles of 1, 5, 17: common practice)", async () => {
     const map = parseMap("3x-1");
-    const r = await runVerify(pool, { map, from: 1n, to: 5000n, sieveDepth: 10 });
-    expect(r.engine).toBe("bigint");
-    expectAgrees(r, brute(map, 1n, 5000n, 100_000, 10));
-    expect(r.cycleMembers.map((c) => c.n)).toEqual([1n, 5n, 17n]);
+    for (const K of [10, 16]) {
+      const r = await runVerify(pool, { map, from: 1n, to: 1n << 17n, sieveDepth: K });
+      expect(r.engine).toBe("kernel");
+      expectAgrees(r, brute(map, 1n, 1n << 17n, 100_000, K));
+      expect(r.cycleMembers.map((c) => c.n)).toEqual([1n, 5n, 17n]);
+    }
+  });
+  it("other maps with r < 0 in the kernel (an odd step that subtracts more than q: 3x-7, 5x-3, 7x-9)", async () => {
+    for (const [text, to, K, cap] of [
+      ["3x-7", 20_000n, 12, 100_000],
+      ["5x-3", 4000n, 8, 3000],
+      ["7x-9", 3000n, 6, 3000],
+      // survivors that go below themselves before step K with every value positive (3x-4097: 1369;
+      // 3x-65: 33): iterated from step 0, below the early-descent bound
+      ["3x-4097", 20_000n, 12, 100_000],
+      ["3x-65", 20_000n, 8, 100_000],
+    ] as const) {
+      const map = parseMap(text);
+      const r = await runVerify(pool, { map, from: 1n, to, sieveDepth: K, stepDepth: 6, maxSteps: cap });
+      expect(r.engine).toBe("kernel");
+      expectAgrees(r, brute(map, 1n, to, cap, K));
+    }
+  });
+  it("r < 0: each block's own records, one period a block, equal the brute force's (survivors that descend before step K)", async () => {
+    // 3x-65 at depth 6: survivors 69, 81, 89, 101 and 133 go below themselves before step 6 with every value positive
+    const map = parseMap("3x-65");
+    const from = 64n;
+    const r = await runVerify(pool, { map, from, to: from + 64n * 64n, sieveDepth: 6, stepDepth: 4, blocks: 64 });
+    expect(r.entries.length).toBe(64);
+    for (const e of r.entries) {
+      const b = brute(map, e.first, e.last + 1n, 100_000, 6);
+      expect(
+        e.glideRecords.map((g) => g.n),
+        `block from ${e.first}`,
+      ).toEqual(b.glideRecords);
+      expect(e.glideRecords.at(-1)?.standardSteps, `block from ${e.first}`).toBe(b.bestGlide);
+    }
+  });
+  it("the early-descent bound of r < 0 holds: no n at or above it goes below itself before its class is cut", () => {
+    // checked here by plain iteration well past the bound, for maps and depths of the tests above
+    for (const [text, K] of [
+      ["3x-1", 16],
+      ["3x-7", 12],
+      ["5x-3", 8],
+    ] as const) {
+      const map = parseMap(text);
+      const B = earlyDescentBound(map, K);
+      for (let n = B; n < B + 20_000n; n++) {
+        const t = traceBig(map, n, 3000, K);
+        if (t.outcome === "descent" && t.cutDepth !== null) expect(t.steps, `${text}: n = ${n}`).toBe(t.cutDepth);
+        if (t.outcome === "descent" && t.cutDepth === null) expect(t.steps, `${text}: n = ${n}`).toBeGreaterThanOrEqual(K);
+      }
+    }
   });
 });
 
@@ -416,7 +466,7 @@ describe("verify: bad requests", () => {
     expect(() => planVerify({ map, from: 0n, to: 10n })).toThrow(/at least 1/);
     expect(() => planVerify({ map, from: 1n, to: 10n, sieveDepth: 31 })).toThrow(LimitError);
     expect(() => planVerify({ map, from: 1n, to: 10n, stepDepth: 21 })).toThrow(LimitError);
-    expect(() => planVerify({ map: parseMap("3x-1"), from: 1n, to: 1n << 30n })).toThrow(/verified in BigInt/);
+    expect(planVerify({ map: parseMap("3x-1"), from: 1n, to: 1n << 30n }).engine).toBe("kernel");
     expect(planVerify({ map, from: 1n << 71n, to: (1n << 71n) + (1n << 30n) }).engine).toBe("kernel");
     expect(() => planVerify({ map, from: 1n << 127n, to: (1n << 127n) + (1n << 30n) })).toThrow(/at or above 2\^127/);
   });

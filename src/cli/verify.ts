@@ -240,7 +240,7 @@ async function verify(o: VerifyOptions): Promise<void> {
     o.sieveTable === undefined ? null : readTableFile("--sieve-table", o.sieveTable, "glidepath class table", req.map, plan.sieveDepth);
   const stepFile =
     o.stepTable === undefined ? null : readTableFile("--step-table", o.stepTable, "glidepath step table", req.map, plan.stepDepth);
-  if ((sieveFile || stepFile) && plan.engine !== "kernel") throw new UsageError("table files are for the kernel path (r > 0, n < 2^127)");
+  if ((sieveFile || stepFile) && plan.engine !== "kernel") throw new UsageError("table files are for the kernel path (n < 2^127)");
   const workers = workersOption(o.workers);
   const stamp = await toolStamp();
   const started = new Date().toISOString();

@@ -11,7 +11,7 @@ export const MAX_VERIFY_SIEVE_DEPTH = 30;
 export const MAX_VERIFY_STEP_DEPTH = 20;
 export const DEFAULT_MAX_STEPS = 100_000;
 export const MAX_MAX_STEPS = 100_000_000;
-/** Numbers a run may take through BigInt alone (maps with r < 0, n >= 2^127): it is slow. */
+/** Numbers a run may take through BigInt alone (n >= 2^127): it is slow. */
 export const MAX_BIGINT_NUMBERS = 1n << 22n;
 /** Numbers per ranged block (partial periods, iterated one by one). */
 const RANGE_BLOCK = 1n << 20n;
@@ -93,11 +93,11 @@ export function planVerify(req: VerifyRequest): VerifyPlan {
       `max steps ${maxSteps} is below the sieve depth ${sieveDepth}: give a sieve depth of at most ${maxSteps}, or more steps`,
     );
   if (!Number.isInteger(limitBits) || limitBits < 8 || limitBits > 128) throw new UsageError("limitBits must be from 8 to 128");
-  const engine = map.r > 0 && to <= KERNEL_LIMIT ? "kernel" : "bigint";
-  if (engine === "bigint" && to - from > MAX_BIGINT_NUMBERS) {
-    const why = map.r < 0 ? `maps with r < 0 (${map.name})` : "numbers at or above 2^127";
-    throw new LimitError(`${why} are verified in BigInt, one by one: at most ${MAX_BIGINT_NUMBERS} numbers a run, got ${to - from}`);
-  }
+  const engine = to <= KERNEL_LIMIT ? "kernel" : "bigint";
+  if (engine === "bigint" && to - from > MAX_BIGINT_NUMBERS)
+    throw new LimitError(
+      `numbers at or above 2^127 are verified in BigInt, one by one: at most ${MAX_BIGINT_NUMBERS} numbers a run, got ${to - from}`,
+    );
   const delay = req.delay === true;
   const blockTarget = req.blocks ?? null;
   if (blockTarget !== null && (!Number.isInteger(blockTarget) || blockTarget < 1))

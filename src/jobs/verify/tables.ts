@@ -11,13 +11,18 @@ import { expandExceptions } from "../sieve/exceptions.js";
 import { runSieve } from "../sieve/sieve.js";
 import { stepTable, stepTableRaw } from "../steps.js";
 import type { VerifyPlan } from "./plan.js";
+import { traceBig } from "./trace.js";
 
 /** Exceptions a run may carry (they are listed and iterated one by one). */
 const MAX_EXCEPTIONS = 1n << 24n;
 const TWO64 = 1n << 64n;
 
-/** ceil(r (q/2)^L), at most 2^64 - 1 (the kernel reads 2^64 - 1 as no bound). */
+/**
+ * ceil(r (q/2)^L), at most 2^64 - 1 (the kernel reads 2^64 - 1 as no bound); 0 when r < 0, where
+ * every c_i of T^i(v) = (q^(m_i) v + c_i) / 2^i is at most 0.
+ */
 function slack(map: CollatzMap, L: number): bigint {
+  if (map.r < 0) return 0n;
   const v = (BigInt(map.r) * BigInt(map.q) ** BigInt(L) + (1n << BigInt(L)) - 1n) >> BigInt(L);
   return v >= TWO64 ? TWO64 - 1n : v;
 }
@@ -57,6 +62,8 @@ export async function verifyTables(pool: KernelPool, plan: VerifyPlan, options: 
     n: e.n,
     classDepth: e.classDepth,
   }));
+  const early = earlyDescentBound(map, K);
+  if (early > 0n) addEarlyDescents(plan, early, exceptions);
   const residues = new Uint32Array(Number(rows));
   let at = 0;
   for (const part of sorter.sorted()) {
@@ -94,6 +101,70 @@ export async function verifyTables(pool: KernelPool, plan: VerifyPlan, options: 
     stoppedClasses: BigUint64Array.from(levels, (l) => l.stopped),
   };
   return { tables, sieveBytes: new Uint8Array(residues.buffer), stepBytes, exceptions, stoppedClasses: levels.map((l) => l.stopped) };
+}
+
+/** Most numbers below the early-descent bound that a run iterates here to list them. */
+const MAX_EARLY = 1n << 22n;
+
+/**
+ * With r = -s < 0 a member of a class can go below n before the class's coefficient drops (for
+ * r > 0 it cannot: every c_i is positive). Below this bound only: with C_u = q^(m_u) / 2^u > 1 for
+ * every u <= i (the class not yet cut), T^i(n) = C_i (n - (s/2) sum over odd steps t of 1/C_(t+1))
+ * > C_i (n - s m / 2), which is at least n once n >= C_i s m / (2 (C_i - 1)) = q^m s m / (2 (q^m - 2^i)).
+ * The bound is the largest of these over 1 <= i < K, m <= i with q^m > 2^i, and at least s / (q - 1)
+ * (from there on no step more than halves, which the table steps rely on). 0 when r > 0.
+ * @example earlyDescentBound(parseMap("3x-1"), 26) // 447n
+ */
+export function earlyDescentBound(map: CollatzMap, K: number): bigint {
+  if (map.r > 0) return 0n;
+  const q = BigInt(map.q);
+  const s = BigInt(-map.r);
+  let bound = s / (q - 1n) + 1n;
+  let qm = 1n;
+  for (let m = 1; m < K; m++) {
+    qm *= q;
+    for (let i = m; i < K; i++) {
+      const gap = qm - (1n << BigInt(i));
+      if (gap <= 0n) break;
+      const den = 2n * gap;
+      const b = (qm * s * BigInt(m) + den - 1n) / den + 1n;
+      if (b > bound) bound = b;
+    }
+  }
+  return bound;
+}
+
+/**
+ * Adds to the exceptions every n below the bound that is in a class cut within K but does not go
+ * below itself exactly at the cut (it goes below earlier): a run iterates them one by one and counts
+ * them as checked (their own trajectory never reaches the cut).
+ */
+function addEarlyDescents(plan: VerifyPlan, bound: bigint, exceptions: { n: bigint; classDepth: number }[]): void {
+  const { map, sieveDepth: K, maxSteps } = plan;
+  if (bound > MAX_EARLY)
+    throw new LimitError(
+      `${map.name} at sieve depth ${K}: members below ${bound} may go below themselves before their class is cut, over the ${MAX_EARLY} a run lists: use a smaller depth`,
+    );
+  const listed = new Set(exceptions.map((e) => e.n));
+  const q = BigInt(map.q);
+  const r = BigInt(map.r);
+  for (let n = 1n; n < bound; n++) {
+    // the depth at which n's class (its first K parities) is cut, whatever its trajectory does
+    let v = n;
+    let qm = 1n;
+    let cut = 0;
+    for (let j = 1; j <= K && cut === 0; j++) {
+      if ((v & 1n) === 1n) {
+        v = (q * v + r) >> 1n;
+        qm *= q;
+      } else v >>= 1n;
+      if (qm >> BigInt(j) === 0n) cut = j;
+    }
+    if (cut === 0 || listed.has(n)) continue;
+    const t = traceBig(map, n, maxSteps, K);
+    if (t.outcome !== "descent" || t.steps !== cut) exceptions.push({ n, classDepth: cut });
+  }
+  exceptions.sort((u, v) => (u.n < v.n ? -1 : u.n > v.n ? 1 : 0));
 }
 
 /** Per block: what the BigInt side needs beyond the kernel (the exceptions in it and their depths). */
