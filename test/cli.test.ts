@@ -433,7 +433,7 @@ describe("cli: verify", () => {
     [["verify", "--from", "0", "--to", "10"], 2, /--from must be at least 1/],
     [["verify", "--map", "3y+1", "--from", "1", "--to", "10"], 2, /not of the form/],
     [["verify", "--from", "1", "--to", "10", "--sieve-depth", "31"], 2, /--sieve-depth must be from 1 to 30/],
-    [["verify", "--from", "1", "--to", "2^70"], 2, /numbers at or above 2\^64 are verified in BigInt/],
+    [["verify", "--from", "2^127", "--to", "2^127+2^30"], 2, /numbers at or above 2\^127 are verified in BigInt/],
     [["verify", "--check", "/nonexistent.json"], 2, /cannot read/],
     [["verify", "--resume", "/nonexistent.json"], 2, /cannot read/],
     [["verify", "--resume", "/tmp"], 2, /cannot read \/tmp: it is a folder/],
