@@ -23,7 +23,8 @@ async function cli(...args: string[]): Promise<{ code: number; stdout: string; s
 
 async function cli2(bin: string, ...args: string[]): Promise<{ code: number; stdout: string; stderr: string }> {
   try {
-    const { stdout, stderr } = await run("node", [bin, ...args], { maxBuffer: 64 << 20 });
+    // killed before the test's own timeout, so that a command that runs on never outlives the test run
+    const { stdout, stderr } = await run("node", [bin, ...args], { maxBuffer: 64 << 20, timeout: 100_000, killSignal: "SIGKILL" });
     return { code: 0, stdout, stderr };
   } catch (e) {
     const x = e as { code: number; stdout: string; stderr: string };
