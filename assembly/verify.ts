@@ -53,6 +53,10 @@ let slackK: u64 = 0; // r (q/2)^K, rounded up (the first K steps of a survivor)
 let slackPtr: usize = 0; // u64 r (q/2)^d rounded up, d = 0..KS (host)
 let HQ: u64 = 0; // (q + r) / 2, two's complement: the odd step is q (v >> 1) + HQ
 let NEG: bool = false; // r < 0: the images b (and HQ) are signed
+// r > 0 and no lowered limit below 2^64: fast() may take its last single steps in one word, an odd
+// step from v while v >> 1 <= tightHalf = (2^64 - 1 - HQ) / q (then q (v >> 1) + HQ < 2^64)
+let tight: bool = false;
+let tightHalf: u64 = 0;
 let SIGN: u64 = 0; // all ones when r < 0: b & SIGN is negative exactly when a signed b is
 let K: i32 = 0; // sieve depth
 let KS: i32 = 0; // table step depth
@@ -68,6 +72,10 @@ let survPeak: usize = 0; // u8 ip, u8 mp per survivor: the peak of q^(m_i)/2^i o
 let stepM: usize = 0;
 let stepB: usize = 0;
 let stepPeak: usize = 0;
+// The trough (u8 it, u8 mt) of the depth-KS table per residue: the least q^(m_i) / 2^i over i <= KS
+// (i = 0 included). With r > 0, T^i(v) >= q^(m_i) v / 2^i, so q^mt v > n 2^it shows that no value
+// inside a full table step from v goes below n (or meets it).
+let stepTrough: usize = 0;
 let countsPtr: usize = 0;
 let regions: usize = 0; // one region per channel 7..11
 const chanN = new StaticArray<i32>(5);
@@ -241,10 +249,18 @@ function fast(nl: u64, nh: u64, i: i32, hl: u64, hh: u64): i32 {
       return DONE_CYCLE;
     }
     if (steps >= maxSteps) return DONE_UNRESOLVED;
-    // v >= n 2^d for d = bitlen(v) - bitlen(n) - 1: a table step of depth d cannot pass below n
+    // v >= n 2^d for d = bitlen(v) - bitlen(n) - 1: a table step of depth d cannot pass below n;
+    // nor can a full one when the trough of v's class keeps q^mt v above n 2^it (r > 0)
     const bits = bitlen(vl, vh);
     let d = bits - nBits - 1;
-    if (d > KS) d = KS;
+    if (d >= KS) d = KS;
+    else if (!NEG && nBits + KS < 127) {
+      const tp = stepTrough + (<usize>(vl & (((<u64>1) << <u64>KS) - 1)) << 1);
+      const it = <u64>load<u8>(tp), mt = <i32>load<u8>(tp, 1);
+      mulAdd(vl, vh, load<u64>(qpowPtr + (<usize>mt << 3)), 0);
+      const sl = nl << it, sh = it == 0 ? nh : (nh << it) | (nl >> (64 - it));
+      if (carry || ltU(sl, sh, rlo, rhi)) d = KS;
+    }
     if (d >= 2) {
       const c = <usize>(vl & (((<u64>1) << <u64>d) - 1)) + (((<usize>1) << <usize>d) - 2);
       const sp = stepPeak + (c << 1);
@@ -268,6 +284,22 @@ function fast(nl: u64, nh: u64, i: i32, hl: u64, hh: u64): i32 {
       vh = rhi;
       steps += d;
       odd += sm;
+    } else if (tight && vh == 0 && nh == 0 && ((vl & 1) == 0 || vl >> 1 <= tightHalf)) {
+      // the last steps, v below 2^(bitlen(n) + 2) and n, v in one word: single steps in 64 bits until
+      // v goes below n, meets it, passes the cap, grows back to where table steps resume, or could overflow
+      let v = vl;
+      const resume: u64 = nBits + 2 < 64 ? (<u64>1) << <u64>(nBits + 2) : <u64>-1;
+      while (true) {
+        if ((v & 1) == 0) v >>= 1;
+        else {
+          v = Q * (v >> 1) + HQ;
+          odd++;
+        }
+        steps++;
+        if (bh == 0 && v > bl) bl = v;
+        if (v <= nl || steps >= maxSteps || v >= resume || ((v & 1) != 0 && v >> 1 > tightHalf)) break;
+      }
+      vl = v;
     } else if ((vl & 1) == 0) {
       vl = (vl >> 1) | (vh << 63);
       vh >>= 1;
@@ -341,6 +373,8 @@ function begin(q: u32, r: i32, depth: i32, stepDepth: i32, steps: i32, limit: i3
   KS = stepDepth;
   maxSteps = steps;
   limitBits = limit;
+  tight = !NEG && limit >= 64;
+  tightHalf = (<u64>-1 - HQ) / Q;
   useTables(tables);
   qpowPtr = tables;
   countsPtr = counts;
@@ -377,6 +411,22 @@ function peakOf(a: u64, len: i32, out: usize): void {
   store<u8>(out, <u8>mp, 1);
 }
 
+/** The trough (it, mt) of q^(m_i) / 2^i over 0 <= i <= len along the parities of a (exact comparison). */
+function troughOf(a: u64, len: i32, out: usize): void {
+  let v = a, m = 0, it = 0, mt = 0;
+  for (let i = 1; i <= len; i++) {
+    if ((v & 1) != 0) m++;
+    v = step64(v);
+    // q^m / 2^i < q^mt / 2^it iff q^(m - mt) < 2^(i - it) iff bitlen(q^(m - mt)) <= i - it
+    if (dropDepth(m - mt) <= i - it) {
+      it = i;
+      mt = m;
+    }
+  }
+  store<u8>(out, <u8>it);
+  store<u8>(out, <u8>mt, 1);
+}
+
 /** The class of a mod 2^len: (m, b) with T^len(a + 2^len x) = q^m x + b, b = T^len(a) (within the proven width). */
 function classOf(a: u64, len: i32, mOut: usize, bOut: usize): void {
   let v = a, odd = 0;
@@ -396,7 +446,7 @@ function classOf(a: u64, len: i32, mOut: usize, bOut: usize): void {
  */
 export function verifyPrepare(
   q: u32, r: i32, depth: i32, stepDepth: i32, tables: usize, survivors: i32,
-  a: usize, m: usize, b: usize, peak: usize, sm: usize, sb: usize, speak: usize,
+  a: usize, m: usize, b: usize, peak: usize, sm: usize, sb: usize, speak: usize, trough: usize,
 ): void {
   assert(r != 0 && depth >= 1 && depth <= VERIFY_MAX_DEPTH && stepDepth >= 1 && stepDepth <= VERIFY_MAX_STEP_DEPTH && survivors >= 0);
   setMap(q, r);
@@ -408,6 +458,7 @@ export function verifyPrepare(
   stepM = sm;
   stepB = sb;
   stepPeak = speak;
+  stepTrough = trough;
   for (let i = 0; i < survivors; i++) {
     const at = <usize>i;
     const res = <u64>load<u32>(a + (at << 2));
@@ -419,6 +470,7 @@ export function verifyPrepare(
     for (let c: u64 = 0; c < (<u64>1) << <u64>d; c++) {
       const at = base + <usize>c;
       peakOf(c, d, speak + (at << 1));
+      if (d == stepDepth) troughOf(c, d, trough + (<usize>c << 1));
       classOf(c, d, sm + at, sb + (at << 3));
     }
   }

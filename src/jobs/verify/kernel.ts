@@ -25,6 +25,7 @@ export function verifyPrepare(kernel: Kernel, t: VerifyTables): void {
   const sm = kernel.region("verify.stepOdd", size);
   const sb = kernel.region("verify.stepImage", 8 * size);
   const speak = kernel.region("verify.stepPeak", 2 * size);
+  const trough = kernel.region("verify.stepTrough", 2 * 2 ** t.stepDepth);
   kernel.region("verify.counts", L("VERIFY_COUNTS") * 8);
   kernel.region("verify.scratch", L("VERIFY_SCRATCH_BYTES"));
   const slacks = kernel.region("verify.slacks", 8 * t.slacks.length);
@@ -32,7 +33,7 @@ export function verifyPrepare(kernel: Kernel, t: VerifyTables): void {
   const depth = Math.max(t.depth, t.stepDepth);
   kernel.tablesFor("tables", `drop ${t.q} ${depth}`, () => writeDropTables(kernel, tables, t.q, depth));
   new Uint32Array(kernel.memory, a, S).set(t.residues);
-  kernel.call("verifyPrepare", [t.q, t.r, t.depth, t.stepDepth, tables, S, a, m, b, peak, sm, sb, speak]);
+  kernel.call("verifyPrepare", [t.q, t.r, t.depth, t.stepDepth, tables, S, a, m, b, peak, sm, sb, speak, trough]);
 }
 
 /**
