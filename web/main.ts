@@ -10,19 +10,24 @@ import { resizeCharts } from "./views/charts.js";
 import { defaultWorkers } from "./engine.js";
 import { readWorkers } from "./workers.js";
 import { cancelTree, setupTree, startTree } from "./views/tree.js";
-import { $, fieldError } from "./dom.js";
+import { $, fieldError, panelOf } from "./dom.js";
 
 let current: View = "run";
+/** Set while Back or Forward restores an entry: what runs then replaces that entry, never adds one. */
+let restoring = false;
+const entry = () => (restoring ? "replace" : "push");
 
-function show(view: View): void {
+/** Shows a view; `record`: a new history entry (a tab chosen), else the current entry is rewritten. */
+function show(view: View, record = false): void {
   for (const tab of document.querySelectorAll<HTMLButtonElement>(".tabs button")) {
     const on = tab.dataset.view === view;
     tab.setAttribute("aria-selected", String(on));
     tab.tabIndex = on ? 0 : -1;
     $(`view-${tab.dataset.view}`).hidden = !on;
   }
+  const switched = view !== current;
   current = view;
-  saveState(view);
+  saveState(view, [], record && switched ? entry() : "replace");
   requestAnimationFrame(() => {
     resizeCharts();
     if (view === "table") refreshTable();
@@ -32,13 +37,15 @@ function show(view: View): void {
 function setupTabs(): void {
   const tabs = [...document.querySelectorAll<HTMLButtonElement>(".tabs button")];
   tabs.forEach((tab, i) => {
-    tab.addEventListener("click", () => show(tab.dataset.view as View));
+    tab.addEventListener("click", () => show(tab.dataset.view as View, true));
     tab.addEventListener("keydown", (e) => {
       const d = e.key === "ArrowRight" ? 1 : e.key === "ArrowLeft" ? -1 : 0;
-      if (!d) return;
-      const next = tabs[(i + d + tabs.length) % tabs.length]!;
+      const to = e.key === "Home" ? 0 : e.key === "End" ? tabs.length - 1 : d ? (i + d + tabs.length) % tabs.length : -1;
+      if (to < 0) return;
+      e.preventDefault();
+      const next = tabs[to]!;
       next.focus();
-      show(next.dataset.view as View);
+      show(next.dataset.view as View, true);
     });
   });
 }
@@ -47,65 +54,83 @@ function setupTabs(): void {
 function run(): void {
   const req = readRunForm();
   if (!req) return;
-  saveState(current, ["run"]);
+  saveState(current, ["run"], entry(), true);
   void startRun(req);
 }
 
 function inspectNow(): void {
   if (runInspect(($("inspect-input") as HTMLInputElement).value, ($("inspect-map") as HTMLInputElement).value))
-    saveState(current, ["inspect"]);
+    saveState(current, ["inspect"], entry(), true);
 }
 
 function cycles(): void {
   const workers = readWorkers("cycles-message");
   if (workers === null) return;
   void runCycles(($("cycles-map") as HTMLInputElement).value, ($("cycles-period") as HTMLInputElement).value, workers).then(
-    (ok) => ok && saveState(current, ["cycles"]),
+    (ok) => ok && saveState(current, ["cycles"], entry(), true),
   );
 }
 
 function verify(): void {
   const workers = readWorkers("verify-message");
   if (workers === null) return;
-  void startVerify(workers).then((ok) => ok && saveState(current, ["verify"]));
+  void startVerify(workers).then((ok) => ok && saveState(current, ["verify"], entry(), true));
 }
 
 function tree(): void {
   const workers = readWorkers("tree-message");
   if (workers === null) return;
-  void startTree(workers).then((ok) => ok && saveState(current, ["tree"]));
+  void startTree(workers).then((ok) => ok && saveState(current, ["tree"], entry(), true));
 }
 
 /** Each view's job, as its button and run=1 start it. */
 const JOBS: Record<View, () => void> = { run, table: run, inspect: inspectNow, cycles, verify, tree };
 
+/** The address bar's state applied: fields, view, refused select values; then its job when asked for. */
+function apply(run: boolean): void {
+  const state = loadState();
+  show(state.view);
+  for (const [id, value] of state.refused) fieldError(id, `the link asks for "${value}", which this field does not offer`);
+  for (const form of FORMS) panelOf(form[0])?.follow();
+  if ((run || state.view === "inspect") && state.refused.length === 0) JOBS[state.view]();
+}
+
+/** Each form: its id, its view, its job. */
+const FORMS = [
+  ["run-form", "run", run],
+  ["inspect-form", "inspect", inspectNow],
+  ["cycles-form", "cycles", cycles],
+  ["verify-form", "verify", verify],
+  ["tree-form", "tree", tree],
+] as const;
+
 function setup(): void {
   ($("run-workers") as HTMLInputElement).value = String(defaultWorkers());
-  const state = loadState();
   setupTabs();
   setupTable((t, row) => {
     ($("inspect-input") as HTMLInputElement).value = `${t.residues[row]} mod 2^${t.depth}`;
     ($("inspect-map") as HTMLInputElement).value = t.map.name;
-    show("inspect");
+    show("inspect", true);
     inspectNow();
+    $("inspect-heading").focus();
   });
   // each form: its job on submit; the address bar follows its fields as they change
-  for (const [form, view, job] of [
-    ["run-form", "run", run],
-    ["inspect-form", "inspect", inspectNow],
-    ["cycles-form", "cycles", cycles],
-    ["verify-form", "verify", verify],
-    ["tree-form", "tree", tree],
-  ] as const) {
+  for (const [form, view, job] of FORMS) {
     $(form).addEventListener("submit", (e) => {
       e.preventDefault();
       job();
     });
-    $(form).addEventListener("change", () => saveState(current, [view]));
-    // a field being corrected loses its old error (the next run checks it again)
+    $(form).addEventListener("change", () => {
+      // a run's entry keeps the fields that made its results: an edit after it is an entry of its own
+      saveState(current, [view], (history.state as { ran?: boolean } | null)?.ran === true ? "push" : "replace");
+      panelOf(form)?.follow();
+    });
+    // a field being corrected loses its old error (the next run checks it again); results made from
+    // other inputs are dimmed at once
     $(form).addEventListener("input", (e) => {
       const id = (e.target as HTMLElement).id;
       if (document.getElementById(`${id}-error`)) fieldError(id, "");
+      panelOf(form)?.follow();
     });
   }
   $("run-cancel").addEventListener("click", cancelRun);
@@ -115,12 +140,16 @@ function setup(): void {
   setupTree((n, map) => {
     ($("inspect-input") as HTMLInputElement).value = String(n);
     ($("inspect-map") as HTMLInputElement).value = map.name;
-    show("inspect");
+    show("inspect", true);
     inspectNow();
+    $("inspect-heading").focus();
   });
   $("verify-cancel").addEventListener("click", cancelVerify);
   $("verify-certificate").addEventListener("click", downloadCertificate);
-  $("verify-preset").addEventListener("change", () => applyPreset(($("verify-preset") as HTMLSelectElement).value));
+  $("verify-preset").addEventListener("change", () => {
+    applyPreset(($("verify-preset") as HTMLSelectElement).value);
+    panelOf("verify-form")?.follow();
+  });
   document.querySelector('a[href="#glossary"]')?.addEventListener("click", () => {
     ($("glossary") as HTMLDetailsElement).open = true;
   });
@@ -128,8 +157,16 @@ function setup(): void {
     resizeCharts();
     refreshTable();
   });
-  show(state.view);
-  if (state.run || state.view === "inspect") JOBS[state.view]();
+  // Back and Forward: the entry's view and fields, and a run's results made again
+  addEventListener("popstate", (e) => {
+    restoring = true;
+    try {
+      apply((e.state as { ran?: boolean } | null)?.ran === true);
+    } finally {
+      restoring = false;
+    }
+  });
+  apply(new URLSearchParams(location.search).get("run") === "1");
 }
 
 setup();

@@ -43,6 +43,8 @@ export interface PageState {
   readonly view: View;
   /** Run the view's job on load. */
   readonly run: boolean;
+  /** Select fields the address named a value they do not offer: (field id, the value), left as they were. */
+  readonly refused: readonly (readonly [id: string, value: string])[];
 }
 
 type Field = HTMLInputElement | HTMLSelectElement;
@@ -53,28 +55,37 @@ function readField(id: string): string {
   return el instanceof HTMLInputElement && el.type === "checkbox" ? (el.checked ? "1" : "0") : el.value.trim();
 }
 
-function writeField(id: string, value: string): void {
+/** Writes a field; false (and the field left as it was) for a value a select does not offer. */
+function writeField(id: string, value: string): boolean {
   const el = field(id);
+  if (el instanceof HTMLSelectElement && ![...el.options].some((o) => o.value === value)) return false;
   if (el instanceof HTMLInputElement && el.type === "checkbox") el.checked = value === "1";
   else el.value = value;
+  return true;
 }
 
-/** Reads the address bar: fills every view's fields from it and returns the view and run flag. */
+/** Reads the address bar: fills every view's fields from it and returns the view, the run flag and refused values. */
 export function loadState(search = location.search): PageState {
   const p = new URLSearchParams(search);
-  for (const [key, id] of [WORKERS, ...Object.values(FIELDS).flat()]) if (p.has(key)) writeField(id, p.get(key)!);
+  const refused: [string, string][] = [];
+  for (const [key, id] of [WORKERS, ...Object.values(FIELDS).flat()])
+    if (p.has(key) && !writeField(id, p.get(key)!)) refused.push([id, p.get(key)!]);
   const view = p.get("view");
-  return { view: VIEWS.includes(view as View) ? (view as View) : "run", run: p.get("run") === "1" };
+  return { view: VIEWS.includes(view as View) ? (view as View) : "run", run: p.get("run") === "1", refused };
 }
 
 /**
  * Writes the view and the fields of `fieldsOf` (as the form now holds them) into the address bar,
- * without a reload; run=1 is dropped (it applies to the load only).
+ * without a reload, keeping its #fragment; run=1 is dropped (it applies to the load only). `entry`:
+ * "replace" the current history entry, or "push" a new one (a view switched to, a run; `ran` marks a
+ * run's entry, whose results Back and Forward bring back by running it again).
  */
-export function saveState(view: View, fieldsOf: readonly View[] = []): void {
+export function saveState(view: View, fieldsOf: readonly View[] = [], entry: "replace" | "push" = "replace", ran = false): void {
   const p = new URLSearchParams(location.search);
   p.set("view", view);
   p.delete("run");
   for (const [key, id] of fieldsOf.length ? [WORKERS, ...fieldsOf.flatMap((v) => FIELDS[v])] : []) p.set(key, readField(id));
-  history.replaceState(null, "", `${location.pathname}?${p.toString()}`);
+  const url = `${location.pathname}?${p.toString()}${location.hash}`;
+  if (entry === "push" && url !== `${location.pathname}${location.search}${location.hash}`) history.pushState({ ran }, "", url);
+  else history.replaceState({ ran }, "", url);
 }

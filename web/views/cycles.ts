@@ -9,7 +9,7 @@ import { cyclesCsv } from "../../src/outputs/summary.js";
 import { pagePoolPending, withPagePool } from "../engine.js";
 import { parseCount } from "../../src/core/parse.js";
 
-const panel = new ResultsPanel("cycles-results", "cycles-stale");
+const panel = new ResultsPanel("cycles-results", "cycles-stale", "cycles-form");
 let last: CycleSearchResult | null = null;
 const controller = new RunController({
   results: panel,

@@ -7,7 +7,7 @@ import { cardText } from "../../src/outputs/card.js";
 import { drawTrajectory } from "./charts.js";
 import { $, fieldError, parseField, ResultsPanel } from "../dom.js";
 
-const panel = new ResultsPanel("inspect-results", "inspect-stale");
+const panel = new ResultsPanel("inspect-results", "inspect-stale", "inspect-form");
 
 /** Shows the card for `text`; returns false (with a message beside the field, the old card marked stale) on bad input. */
 export function runInspect(text: string, mapText: string): boolean {

@@ -118,7 +118,7 @@ function renderCensus(c: CensusResult): void {
     `reached by a = ${m.n} at step j = ${m.step} (T^${m.step}(${m.n}) = ${m.value}).</p>`;
 }
 
-const panel = new ResultsPanel("run-results", "run-stale");
+const panel = new ResultsPanel("run-results", "run-stale", "run-form");
 
 const controller = new RunController({
   start: "run-start",

@@ -20,8 +20,10 @@ const DRAW_NODES = 3000;
 const WIDTH = 1000;
 /** Okabe-Ito colours for residues 0, 1, 2 mod 3. */
 const BY_RESIDUE = ["#D55E00", "#0072B2", "#009E73"];
+/** The dark scheme's node colours: lighter, each at least 4.5:1 on the dark panel. */
+const BY_RESIDUE_DARK = ["#FF8C42", "#56B4E9", "#3FCF9F"];
 
-const panel = new ResultsPanel("tree-results", "tree-stale");
+const panel = new ResultsPanel("tree-results", "tree-stale", "tree-form");
 const controller = new RunController({
   start: "tree-go",
   cancel: "tree-cancel",
@@ -31,6 +33,8 @@ const controller = new RunController({
   results: panel,
 });
 let openNode: (n: bigint, map: CollatzMap) => void = () => {};
+/** The map of the tree on screen: a node opens under it, whatever the Map field holds now. */
+let drawnMap: CollatzMap | null = null;
 let view = { x: 0, y: 0, w: WIDTH, h: 400 };
 let whole = { ...view };
 
@@ -112,7 +116,17 @@ function renderDrawing(r: TreeResult): void {
       const [px, py] = at.get(p)!;
       edges.append(make("line", { class: "edge", x1: x, y1: y, x2: px, y2: py }));
     }
-    const c = make("circle", { class: "node", cx: x, cy: y, r: radius, fill: BY_RESIDUE[Number(n % 3n)]!, "data-n": String(n) });
+    const c = make("circle", {
+      class: "node",
+      cx: x,
+      cy: y,
+      r: radius,
+      fill: (matchMedia("(prefers-color-scheme: dark)").matches ? BY_RESIDUE_DARK : BY_RESIDUE)[Number(n % 3n)]!,
+      "data-n": String(n),
+      tabindex: 0,
+      role: "button",
+      "aria-label": `${n}, depth ${j}: open in the Inspector`,
+    });
     const title = document.createElementNS(ns, "title");
     title.textContent = `${n} (depth ${j}, ${n % 3n} mod 3)`;
     c.append(title);
@@ -124,6 +138,7 @@ function renderDrawing(r: TreeResult): void {
     }
   }
   svg.replaceChildren(edges, nodes);
+  drawnMap = r.map;
   whole = { x: -10, y: 0, w: WIDTH + 20, h: Math.max(height, depth * ROW + 40) };
   setView(whole);
   $("tree-drawing-caption").textContent =
@@ -203,10 +218,15 @@ export function setupTree(open: (n: bigint, map: CollatzMap) => void): void {
   svg.addEventListener("pointerup", () => {
     drag = null;
   });
-  svg.addEventListener("click", (e) => {
-    const n = (e.target as Element).getAttribute("data-n");
-    const map = parseMap(($("tree-map") as HTMLInputElement).value);
-    if (n !== null) openNode(BigInt(n), map);
+  const openAt = (target: EventTarget | null) => {
+    const n = (target as Element | null)?.getAttribute("data-n");
+    if (n !== null && n !== undefined && drawnMap) openNode(BigInt(n), drawnMap);
+  };
+  svg.addEventListener("click", (e) => openAt(e.target));
+  svg.addEventListener("keydown", (e) => {
+    if (e.key !== "Enter" && e.key !== " ") return;
+    e.preventDefault();
+    openAt(e.target);
   });
   $("tree-zoom-in").addEventListener("click", () => zoom(0.8));
   $("tree-zoom-out").addEventListener("click", () => zoom(1.25));

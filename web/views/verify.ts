@@ -17,7 +17,7 @@ import { RunController } from "../controller.js";
 import { $, download, fieldError, parseField, ResultsPanel } from "../dom.js";
 import { kernelBuildId, pagePoolPending, sha256, withPagePool } from "../engine.js";
 
-const panel = new ResultsPanel("verify-result", "verify-stale");
+const panel = new ResultsPanel("verify-result", "verify-stale", "verify-form");
 const controller = new RunController({
   results: panel,
   start: "verify-go",
@@ -110,7 +110,11 @@ export async function startVerify(workers: number): Promise<boolean> {
     waiting,
     "numbers",
   );
-  if (!out.ok) return true;
+  if (!out.ok) {
+    // the results on screen (dimmed) are still the last run's: so is its certificate
+    ($("verify-certificate") as HTMLButtonElement).disabled = lastCertificate === null;
+    return true;
+  }
   render(out.value);
   const stamp = { version: pkg.version, kernelBuild: await kernelBuildId() };
   lastCertificate = `${toExactJson(await certificate(out.value, hashes, stamp, { started, finished: new Date().toISOString(), workers }), 2)}\n`;

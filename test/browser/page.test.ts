@@ -1,0 +1,140 @@
+// The page a user keeps open: results dimmed as soon as an input differs from what produced them,
+// Back and Forward through views and runs, links with values a field does not offer, the tree's own
+// map, keyboard reach, headings, and contrast computed from the styles.
+import { describe, expect, it } from "vitest";
+import type { Page } from "playwright-core";
+import { summaryOf } from "./harness.js";
+import { browserSuite, hasChromium } from "./suite.js";
+
+const { open } = browserSuite();
+const stale = (page: Page, id: string) => page.$eval(`#${id}`, (e) => e.classList.contains("stale"));
+
+/** WCAG 2 contrast ratio of two computed colours "rgb(r, g, b)" (common practice: the WCAG 2.1 formula). */
+function contrast(a: string, b: string): number {
+  const lum = (c: string) => {
+    const [r, g, bl] = c
+      .match(/\d+(\.\d+)?/g)!
+      .slice(0, 3)
+      .map(Number)
+      .map((v) => {
+        const s = v / 255;
+        return s <= 0.04045 ? s / 12.92 : ((s + 0.055) / 1.055) ** 2.4;
+      });
+    return 0.2126 * r! + 0.7152 * g! + 0.0722 * bl!;
+  };
+  const [x, y] = [lum(a), lum(b)].sort((u, v) => v - u);
+  return (x! + 0.05) / (y! + 0.05);
+}
+
+describe.skipIf(!hasChromium)("web app: the page kept open", () => {
+  it("results are dimmed as soon as a field differs from what produced them, and current again when it is put back", async () => {
+    const page = await open("?view=cycles");
+    await page.fill("#cycles-map", "3x+5");
+    await page.fill("#cycles-period", "12");
+    await page.click("#cycles-go");
+    await page.waitForSelector("#cycles-table tbody tr");
+    expect(await stale(page, "cycles-results")).toBe(false);
+    await page.fill("#cycles-period", "13");
+    expect(await stale(page, "cycles-results")).toBe(true);
+    expect(await page.textContent("#cycles-stale")).toContain("the inputs above have changed");
+    await page.fill("#cycles-period", "12");
+    expect(await stale(page, "cycles-results")).toBe(false);
+    // the worker count does not change a result: no dimming
+    await page.click("#tab-run");
+    await page.fill("#run-depth", "12");
+    await page.click("#run-start");
+    await summaryOf(page);
+    await page.fill("#run-workers", "1");
+    expect(await stale(page, "run-results")).toBe(false);
+    await page.selectOption("#run-mode", "full");
+    expect(await stale(page, "run-results")).toBe(true);
+    await page.close();
+  });
+
+  it("each view chosen and each run is a history entry: Back and Forward bring back the view, its fields and its results", async () => {
+    const page = await open();
+    await page.click("#tab-cycles");
+    await page.click("#tab-verify");
+    await page.click("#tab-tree");
+    await page.goBack();
+    expect(await page.isVisible("#view-verify")).toBe(true);
+    await page.goBack();
+    expect(await page.isVisible("#view-cycles")).toBe(true);
+    await page.goForward();
+    expect(await page.isVisible("#view-verify")).toBe(true);
+    // two runs of the inspector, then Back: the first one's input and card
+    await page.click("#tab-inspect");
+    await page.fill("#inspect-input", "27");
+    await page.click("#inspect-go");
+    const first = await page.textContent("#inspect-card");
+    await page.fill("#inspect-input", "97");
+    await page.click("#inspect-go");
+    expect(await page.textContent("#inspect-card")).not.toBe(first);
+    await page.goBack();
+    await page.waitForFunction(() => (document.getElementById("inspect-input") as HTMLInputElement).value === "27");
+    await page.waitForFunction((t) => document.getElementById("inspect-card")!.textContent === t, first);
+    // the glossary's fragment stays on a reload
+    await page.click('a[href="#glossary"]');
+    await page.click("#tab-cycles");
+    expect(new URL(page.url()).hash).toBe("#glossary");
+    await page.close();
+  });
+
+  it("a link with a value a select does not offer is refused beside the field, and nothing runs", async () => {
+    const page = await open("?mode=bogus&depth=12&run=1");
+    expect(await page.textContent("#run-mode-error")).toContain('"bogus"');
+    expect(await page.inputValue("#run-mode")).toBe("survivors");
+    await page.waitForTimeout(500);
+    expect(await page.textContent("[data-run-summary]")).toBe("");
+    const tree = await open("?view=tree&tsteps=weird&run=1");
+    expect(await tree.textContent("#tree-steps-error")).toContain('"weird"');
+    expect(await tree.isVisible("#tree-results")).toBe(false);
+    await page.close();
+    await tree.close();
+  });
+
+  it("a tree node opens under the map that drew it, by click or by keyboard, and focus goes to the Inspector", async () => {
+    const page = await open("?view=tree&tn=1&tmap=3x%2B1&tdepth=8&run=1");
+    await page.waitForSelector('#tree-drawing circle[data-n="13"]');
+    await page.fill("#tree-map", "garbage");
+    await page.click('#tree-drawing circle[data-n="13"]');
+    expect(await page.inputValue("#inspect-input")).toBe("13");
+    expect(await page.inputValue("#inspect-map")).toBe("3x+1");
+    expect(await page.evaluate(() => document.activeElement?.id)).toBe("inspect-heading");
+    // by keyboard: the nodes are focusable, Enter opens one
+    await page.click("#tab-tree");
+    await page.focus('#tree-drawing circle[data-n="26"]');
+    await page.keyboard.press("Enter");
+    expect(await page.inputValue("#inspect-input")).toBe("26");
+    await page.close();
+  });
+
+  it("each view has its own heading; Home and End move along the tabs", async () => {
+    const page = await open();
+    for (const view of ["run", "table", "inspect", "cycles", "verify", "tree"]) {
+      await page.click(`#tab-${view}`);
+      expect((await page.textContent(`#view-${view} h2`))?.trim().length).toBeGreaterThan(0);
+    }
+    await page.focus("#tab-tree");
+    await page.keyboard.press("Home");
+    expect(await page.isVisible("#view-run")).toBe(true);
+    await page.keyboard.press("End");
+    expect(await page.isVisible("#view-tree")).toBe(true);
+    await page.close();
+  });
+
+  it("error text has at least 4.5:1 contrast on the page in both schemes", async () => {
+    for (const scheme of ["light", "dark"] as const) {
+      const page = await open("?view=verify");
+      await page.emulateMedia({ colorScheme: scheme });
+      await page.fill("#verify-from", "0");
+      await page.click("#verify-go");
+      const [fg, bg] = await page.evaluate(() => [
+        getComputedStyle(document.getElementById("verify-from-error")!).color,
+        getComputedStyle(document.body).backgroundColor,
+      ]);
+      expect(contrast(fg!, bg!), `${scheme}: ${fg} on ${bg}`).toBeGreaterThanOrEqual(4.5);
+      await page.close();
+    }
+  });
+});
