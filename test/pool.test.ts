@@ -57,6 +57,34 @@ describe("the worker pool", () => {
     owner.terminate();
   });
 
+  it("a job waiting behind another is cancelled at once, and never starts", async () => {
+    const { PoolOwner } = await import("../src/engine/pool.js");
+    const owner = new PoolOwner((n) => nodePool(n));
+    const map = parseMap("3x+1");
+    let longDone = false;
+    const long = owner.use(2, async (pool) => {
+      const r = await runSieve(pool, { map, depth: 33, mode: "survivors" });
+      longDone = true;
+      return r;
+    });
+    const abort = new AbortController();
+    let started = false;
+    const queued = owner.use(
+      2,
+      async () => {
+        started = true;
+      },
+      abort.signal,
+    );
+    abort.abort();
+    await expect(queued).rejects.toBeInstanceOf(CancelledError);
+    expect(longDone).toBe(false); // the wait ended before the running job did
+    await long;
+    await owner.use(2, async () => {}); // the queue has moved past it
+    expect(started).toBe(false);
+    owner.terminate();
+  });
+
   it("a worker that fails rejects the run with a real Error, and the pool recovers (debug build assertions)", async () => {
     const debugPool = await nodePool(2, "debug");
     try {

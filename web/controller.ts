@@ -62,7 +62,9 @@ export class RunController {
     const onProgress = (done: number, total: number) => {
       const elapsed = (performance.now() - started) / 1000;
       progress.value = done / total;
-      const remaining = done > 0 ? (elapsed * (total - done)) / done : Number.NaN;
+      // an estimate only where the units are equal work (numbers); shards differ in size, so their
+      // count would promise a finish it cannot keep
+      const remaining = unit !== "shards" && done > 0 && elapsed >= 2 ? (elapsed * (total - done)) / done : Number.NaN;
       const rate = unit === "shards" ? "" : `, ${group(Math.round(done / Math.max(elapsed, 1e-3)))} ${unit}/s`;
       status.textContent =
         `${group(done)} of ${group(total)} ${unit}${rate}, ${elapsed.toFixed(1)} s elapsed` +

@@ -44,8 +44,8 @@ const owner = new PoolOwner(async (size) => new KernelPool(spawn, await kernelMo
  * Runs `work` on the page's pool of `workers` workers, after any job already running there.
  * @example await withPagePool(2, (pool) => runSieve(pool, req, options));
  */
-export function withPagePool<T>(workers: number, work: (pool: KernelPool) => Promise<T>): Promise<T> {
-  return owner.use(workers, work);
+export function withPagePool<T>(workers: number, work: (pool: KernelPool) => Promise<T>, signal?: AbortSignal): Promise<T> {
+  return owner.use(workers, work, signal);
 }
 
 /** Jobs running or waiting on the page's pool. */

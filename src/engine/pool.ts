@@ -158,11 +158,16 @@ export class PoolOwner {
     return this.queued;
   }
 
-  /** Runs `work` on a pool of `size` workers once every earlier job has ended (however it ended). */
-  use<T>(size: number, work: (pool: KernelPool) => Promise<T>): Promise<T> {
+  /**
+   * Runs `work` on a pool of `size` workers once every earlier job has ended (however it ended). An
+   * abort of `signal` ends the wait at once (CancelledError), and a job whose turn comes after its
+   * abort does not start.
+   */
+  use<T>(size: number, work: (pool: KernelPool) => Promise<T>, signal?: AbortSignal): Promise<T> {
     this.queued++;
     const job = this.tail.then(async () => {
       try {
+        if (signal?.aborted) throw new CancelledError();
         if (!this.pool || this.pool.size !== size) {
           this.pool?.terminate();
           this.pool = null;
@@ -174,7 +179,12 @@ export class PoolOwner {
       }
     });
     this.tail = job.catch(() => {});
-    return job;
+    if (!signal) return job;
+    return new Promise<T>((resolve, reject) => {
+      const onAbort = () => reject(new CancelledError());
+      signal.addEventListener("abort", onAbort, { once: true });
+      job.then(resolve, reject).finally(() => signal.removeEventListener("abort", onAbort));
+    });
   }
 
   /** Stops the workers (between jobs: a running job fails with the pool). */

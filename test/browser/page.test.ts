@@ -123,6 +123,43 @@ describe.skipIf(!hasChromium)("web app: the page kept open", () => {
     await page.close();
   });
 
+  it("at 1400 px every column of the By-depth table shows, and the chart boxes keep their charts' height", async () => {
+    const page = await open("?depth=24&run=1");
+    await page.setViewportSize({ width: 1400, height: 900 });
+    await summaryOf(page);
+    const [table, box] = await page.$eval("#run-levels", (t) => [t.scrollWidth, t.parentElement!.clientWidth]);
+    expect(table).toBeLessThanOrEqual(box!);
+    const heights = await page.$$eval("#view-run figure:not([hidden])", (fs) => fs.map((f) => (f as HTMLElement).offsetHeight));
+    for (const h of heights) expect(h).toBeLessThan(340); // a 240 px chart with its caption
+    await page.close();
+  });
+
+  it("a job waiting behind another is cancelled at once; the running one goes on", async () => {
+    const page = await open("?mode=full&depth=30&workers=2");
+    await page.click("#run-start");
+    await page.click("#tab-cycles");
+    await page.fill("#cycles-period", "20");
+    await page.click("#cycles-go");
+    await page.waitForFunction(() => document.getElementById("cycles-status")!.textContent!.startsWith("Waiting"));
+    await page.click("#cycles-cancel");
+    await page.waitForFunction(() => document.getElementById("cycles-status")!.textContent === "Cancelled.", undefined, { timeout: 2_000 });
+    expect(await page.textContent("#run-status")).not.toMatch(/^Done|Cancelled/);
+    await page.close();
+  });
+
+  it("the range's errors stand beside their own field, in the form's words", async () => {
+    const page = await open("?view=verify");
+    await page.fill("#verify-from", "0");
+    await page.click("#verify-go");
+    expect(await page.textContent("#verify-from-error")).toContain("From must be at least 1");
+    expect(await page.textContent("#verify-to-error")).toBe("");
+    await page.fill("#verify-from", "100");
+    await page.fill("#verify-to", "50");
+    await page.click("#verify-go");
+    expect(await page.textContent("#verify-to-error")).toContain("To must be above From");
+    await page.close();
+  });
+
   it("error text has at least 4.5:1 contrast on the page in both schemes", async () => {
     for (const scheme of ["light", "dark"] as const) {
       const page = await open("?view=verify");

@@ -139,8 +139,9 @@ export function drawHeat(live: readonly bigint[][]): void {
       calculable: false,
       orient: "vertical",
       right: 4,
-      top: "middle",
-      itemHeight: 120,
+      // at the top, so that its lower label stays clear of the x axis's name at every size
+      top: 24,
+      itemHeight: 110,
       itemWidth: 12,
       text: [biggest.toLocaleString("en-US"), "1 class"],
       textStyle: { color: base().textStyle.color },

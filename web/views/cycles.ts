@@ -64,7 +64,10 @@ export async function runCycles(mapText: string, periodText: string, workers: nu
     return false;
   }
   const waiting = pagePoolPending() > 0 ? "Waiting for the job already running..." : "Starting workers...";
-  const out = await controller.run((options) => withPagePool(workers, (pool) => searchCycles(pool, req.map, req.period, options)), waiting);
+  const out = await controller.run(
+    (options) => withPagePool(workers, (pool) => searchCycles(pool, req.map, req.period, options), options.signal),
+    waiting,
+  );
   if (out.ok) renderCycles(out.value);
   return true;
 }

@@ -137,16 +137,20 @@ type RunResult =
 /** Runs the request's jobs on the page's pool (after any job already running there). */
 async function executeRun(req: RunRequest, rows: bigint, options: RunOptions): Promise<RunResult> {
   const { map, depth, mode } = req;
-  return withPagePool(req.workers, async (pool) => {
-    if (mode === "full") {
-      return { sieve: null, census: await runCensus(pool, map, depth, options), residues: null };
-    }
-    if (!req.withTable) return { sieve: await runSieve(pool, { map, depth, mode }, options), census: null, residues: null };
-    const plan = passPlan(depth, rows, TABLE_BUDGET);
-    const sorter = new ResidueSorter(depth, plan.bucketBits, 0, 1 << plan.bucketBits);
-    const sieve = await runSieve(pool, { map, depth, mode, onLeaves: (c) => sorter.add(c), residuesOnly: true }, options);
-    return { sieve, census: null, residues: await collectSorted(sorter, Number(rows)) };
-  });
+  return withPagePool(
+    req.workers,
+    async (pool) => {
+      if (mode === "full") {
+        return { sieve: null, census: await runCensus(pool, map, depth, options), residues: null };
+      }
+      if (!req.withTable) return { sieve: await runSieve(pool, { map, depth, mode }, options), census: null, residues: null };
+      const plan = passPlan(depth, rows, TABLE_BUDGET);
+      const sorter = new ResidueSorter(depth, plan.bucketBits, 0, 1 << plan.bucketBits);
+      const sieve = await runSieve(pool, { map, depth, mode, onLeaves: (c) => sorter.add(c), residuesOnly: true }, options);
+      return { sieve, census: null, residues: await collectSorted(sorter, Number(rows)) };
+    },
+    options.signal,
+  );
 }
 
 /** Starts a run; resolves when it has finished, failed or been cancelled. */

@@ -168,7 +168,7 @@ export async function startTree(workers: number): Promise<boolean> {
   }
   $("run-summary").textContent = "";
   const waiting = pagePoolPending() > 0 ? "Waiting for the job already running..." : "Starting workers...";
-  const out = await controller.run((options) => withPagePool(workers, (pool) => runTree(pool, params, options)), waiting);
+  const out = await controller.run((options) => withPagePool(workers, (pool) => runTree(pool, params, options), options.signal), waiting);
   if (!out.ok) return true;
   const r = out.value;
   panel.shown(`${r.n} under ${r.map.name}, depth ${r.depth}, ${r.steps === "T" ? "steps of T" : "standard steps"}`);

@@ -35,6 +35,15 @@ export function readVerifyForm(): VerifyRequest | null {
   const to = parseField("verify-to", (t) => parseWhole("to", t));
   const depth = parseField("verify-depth", (t) => parseCount("sieve depth", t, 1, MAX_VERIFY_SIEVE_DEPTH));
   if (!map || from === null || to === null || depth === null) return null;
+  // the range's own checks, in the fields' words
+  if (from < 1n) {
+    fieldError("verify-from", `From must be at least 1, got ${group(from)}`);
+    return null;
+  }
+  if (to <= from) {
+    fieldError("verify-to", `To must be above From (the range is From to To, To not included), got ${group(to)}`);
+    return null;
+  }
   const req: VerifyRequest = { map, from, to, sieveDepth: depth };
   try {
     planVerify(req);
@@ -98,15 +107,19 @@ export async function startVerify(workers: number): Promise<boolean> {
   let hashes: TableHashes | null = null;
   const out = await controller.run(
     (options) =>
-      withPagePool(workers, async (pool) => {
-        const plan = planVerify(req);
-        let tables: VerifyTableData | undefined;
-        if (plan.engine === "kernel") {
-          tables = await verifyTables(pool, plan, options);
-          hashes = await tableHashes(tables, sha256);
-        }
-        return runVerify(pool, req, { ...options, tables });
-      }),
+      withPagePool(
+        workers,
+        async (pool) => {
+          const plan = planVerify(req);
+          let tables: VerifyTableData | undefined;
+          if (plan.engine === "kernel") {
+            tables = await verifyTables(pool, plan, options);
+            hashes = await tableHashes(tables, sha256);
+          }
+          return runVerify(pool, req, { ...options, tables });
+        },
+        options.signal,
+      ),
     waiting,
     "numbers",
   );
