@@ -147,6 +147,21 @@ describe.skipIf(!hasChromium)("web app: the page kept open", () => {
     await page.close();
   });
 
+  it("Verify names each cycle member with its cycle and states the induction assumption of a range above 1", async () => {
+    // 3x+5: cycles of 1 (1 -> 4 -> 2 -> 1) and 5 (5 -> 10 -> 5) (common practice)
+    const page = await open("?view=verify&vmap=3x%2B5&from=1&to=1000&vdepth=8&run=1");
+    await summaryOf(page);
+    const items = await page.$$eval("#verify-cycles li", (li) => li.map((x) => x.textContent));
+    expect(items[0]).toBe("n = 1 on 1 → 4 → 2 → 1");
+    expect(items[1]).toBe("n = 5 on 5 → 10 → 5");
+    expect(await page.textContent("#verify-message")).toContain("By induction from 1");
+    const above = await open("?view=verify&vmap=3x%2B1&from=1000&to=5000&vdepth=8&run=1");
+    await summaryOf(above);
+    expect(await above.textContent("#verify-message")).toContain("given that no n below 1,000 does");
+    await page.close();
+    await above.close();
+  });
+
   it("the range's errors stand beside their own field, in the form's words", async () => {
     const page = await open("?view=verify");
     await page.fill("#verify-from", "0");

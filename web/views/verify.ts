@@ -67,6 +67,10 @@ function render(r: VerifyResult): void {
   controller.say(
     `Every n in [${r.from}, ${r.to}) of ${r.map.name} reaches a value below n` +
       `${c.cycleMembers + c.cycleEntrants + c.unresolved > 0n ? ", except the cycle members, cycle entrants and unresolved numbers counted below" : ""}. ` +
+      // by induction over n: no divergent start and no new cycle in the range, given the numbers below it
+      (r.from > 1n
+        ? `So no n in the range starts a divergent trajectory or lies on a cycle, other than the cycle members and unresolved numbers below, given that no n below ${group(r.from)} does (the induction assumption of a range that does not start at 1). `
+        : "By induction from 1, no n in the range starts a divergent trajectory or lies on a cycle, other than the cycle members and unresolved numbers below. ") +
       `${group(c.numbers)} numbers in ${r.seconds.toFixed(2)} s (${group(BigInt(Math.round(rate)))} a second).`,
   );
   const counts: [string, string][] = [
@@ -82,6 +86,20 @@ function render(r: VerifyResult): void {
   ];
   $("verify-counts").innerHTML =
     `<tbody>${counts.map(([k, v]) => `<tr><th scope="row" class="left">${k}</th><td>${v}</td></tr>`).join("")}</tbody>`;
+  // each cycle member named with its cycle: n = 1 on 1 → 2 → 1
+  const q = BigInt(r.map.q);
+  const rr = BigInt(r.map.r);
+  const step = (v: bigint) => ((v & 1n) === 1n ? (q * v + rr) >> 1n : v >> 1n);
+  $("verify-cycles").replaceChildren(
+    ...r.cycleMembers.map((m) => {
+      const cycle = [m.n];
+      for (let v = step(m.n), i = 0; v !== m.n && i < 12; v = step(v), i++) cycle.push(v);
+      const li = document.createElement("li");
+      const more = m.period > cycle.length ? ` → … (period ${m.period})` : "";
+      li.textContent = `n = ${group(m.n)} on ${cycle.map(group).join(" → ")}${more} → ${group(m.n)}`;
+      return li;
+    }),
+  );
   $("verify-glide").innerHTML = rows(
     ["glide record n", "standard steps", "steps of T"],
     r.glideRecords.map((g) => [String(g.n), String(g.standardSteps), String(g.steps)]),
