@@ -30,6 +30,7 @@ const FIELDS: Record<View, readonly (readonly [key: string, id: string])[]> = {
     ["from", "verify-from"],
     ["to", "verify-to"],
     ["vdepth", "verify-depth"],
+    ["vdelay", "verify-delay"],
   ],
   tree: [
     ["tn", "tree-n"],

@@ -175,6 +175,82 @@ describe.skipIf(!hasChromium)("web app: the page kept open", () => {
     await page.close();
   });
 
+  it("Verify's delay option lists the delay records: the first are OEIS A006877; large numbers are grouped", async () => {
+    const page = await open("?view=verify&from=1&to=2%5E15&vdepth=10&vdelay=1&run=1");
+    await summaryOf(page);
+    const delays = await page.$$eval("#verify-delays tbody tr", (rows) => rows.map((r) => r.children[0]!.textContent!.replace(/,/g, "")));
+    // OEIS A006877 (published entry): 1, 2, 3, 6, 7, 9, 18, 25, 27, 54, 73, 97, 129, 171, 231, 313, 327, 649, 703, 871
+    expect(delays.slice(0, 20)).toEqual([
+      "1",
+      "2",
+      "3",
+      "6",
+      "7",
+      "9",
+      "18",
+      "25",
+      "27",
+      "54",
+      "73",
+      "97",
+      "129",
+      "171",
+      "231",
+      "313",
+      "327",
+      "649",
+      "703",
+      "871",
+    ]);
+    expect(await page.$$eval("#verify-glide tbody tr", (rows) => rows.at(-1)!.children[0]!.textContent)).toMatch(/^\d{1,3}(,\d{3})*$/);
+    await page.close();
+  });
+
+  it("the Inspector gives the total stopping time: 27 reaches 1 after 70 steps of T, 111 standard steps (OEIS A006577)", async () => {
+    const page = await open("?view=inspect&inspect=27");
+    await page.waitForFunction(() => document.getElementById("inspect-card")!.textContent!.includes("total stopping time"));
+    expect(await page.textContent("#inspect-card")).toContain("total stopping time (first T^j(n) = 1): 70 (111 standard steps)");
+    await page.close();
+  });
+
+  it("the tree at 420 px: labels about 11 px on screen; at 1400 px its level table shows every column at depth 30", async () => {
+    const page = await open("?view=tree&tn=1&tdepth=8&run=1");
+    await page.setViewportSize({ width: 420, height: 900 });
+    await page.click("#tree-go");
+    await page.waitForSelector("#tree-drawing text");
+    const size = await page.$eval("#tree-drawing text", (t) => (t as SVGTextElement).getBoundingClientRect().height);
+    expect(size).toBeGreaterThan(8);
+    const wide = await open("?view=tree&tn=1&tdepth=30&run=1");
+    await wide.setViewportSize({ width: 1400, height: 900 });
+    await wide.waitForSelector("#tree-levels tbody tr");
+    const [table, box] = await wide.$eval("#tree-levels", (t) => [t.scrollWidth, t.parentElement!.clientWidth]);
+    expect(table).toBeLessThanOrEqual(box!);
+    await page.close();
+    await wide.close();
+  });
+
+  it("the page's memory stays flat over 20 runs of the depth-30 class table (12,771,274 rows, 51 MB each)", async () => {
+    const page = await open("?depth=30&workers=2");
+    const cdp = await page.context().newCDPSession(page);
+    const heap = async () => {
+      await cdp.send("HeapProfiler.collectGarbage");
+      const u = (await cdp.send("Runtime.getHeapUsage")) as { usedSize: number; backingStorageSize?: number };
+      return u.usedSize + (u.backingStorageSize ?? 0);
+    };
+    const sizes: number[] = [];
+    for (let i = 0; i < 20; i++) {
+      await page.evaluate(() => {
+        document.querySelector("[data-run-summary]")!.textContent = "";
+      });
+      await page.click("#run-start");
+      await summaryOf(page, 120_000);
+      if (i === 2 || i === 19) sizes.push(await heap());
+    }
+    // one table (51 MB of residues) is kept for the class table view; a second one kept would show
+    expect(sizes[1]! - sizes[0]!, `heap after run 3: ${sizes[0]} bytes, after run 20: ${sizes[1]}`).toBeLessThan(24 << 20);
+    await page.close();
+  }, 300_000);
+
   it("error text has at least 4.5:1 contrast on the page in both schemes", async () => {
     for (const scheme of ["light", "dark"] as const) {
       const page = await open("?view=verify");

@@ -62,12 +62,12 @@ function renderLevels(r: TreeResult): void {
     .map(
       (l, j) =>
         `<tr><td>${l.depth}</td><td>${group(l.nodes)}</td><td>${j === 0 ? "" : (growth(l.nodes, r.levels[j - 1]!.nodes)?.toFixed(4) ?? "")}</td>` +
-        `<td>${group(l.withOdd)}</td><td>${group(l.zeroModQ)}</td><td>${l.min ?? ""}</td><td>${l.max ?? ""}</td><td>${group(l.belowN)}</td></tr>`,
+        `<td>${group(l.withOdd)}</td><td>${group(l.zeroModQ)}</td><td>${l.min === null ? "" : group(l.min)}</td><td>${l.max === null ? "" : group(l.max)}</td><td>${group(l.belowN)}</td></tr>`,
     )
     .join("");
-  $("tree-levels").innerHTML =
-    `<caption>heuristic growth ${g.toFixed(4)} a level; ${group(r.total)} predecessors within depth ${r.depth}</caption>` +
-    `<thead><tr>${head.map((h) => `<th>${h}</th>`).join("")}</tr></thead><tbody>${body}</tbody>`;
+  // the note above the table's box, where it wraps at any width (a caption is as wide as its table)
+  $("tree-levels-note").textContent = `Heuristic growth ${g.toFixed(4)} a level; ${group(r.total)} predecessors within depth ${r.depth}.`;
+  $("tree-levels").innerHTML = `<thead><tr>${head.map((h) => `<th>${h}</th>`).join("")}</tr></thead><tbody>${body}</tbody>`;
   drawTreeLevels(
     r.levels.map((l) => l.nodes),
     g,
@@ -94,6 +94,7 @@ function renderDrawing(r: TreeResult): void {
   // rows spread over the drawing's own shape (in units where its width is WIDTH); node size from the widest row
   const box = svg.getBoundingClientRect();
   const height = box.width > 0 ? (WIDTH * box.height) / box.width : WIDTH / 2;
+  const unit = box.width > 0 ? WIDTH / box.width : 1; // user units per screen pixel
   const ROW = Math.min(60, (height - 40) / Math.max(1, depth));
   const radius = Math.max(1.2, Math.min(5, (0.35 * WIDTH) / Math.max(...rows.map((row) => row.length))));
   const at = new Map<bigint, [x: number, y: number, depth: number]>();
@@ -132,7 +133,8 @@ function renderDrawing(r: TreeResult): void {
     c.append(title);
     nodes.append(c);
     if (rows[j]!.length <= 16) {
-      const t = make("text", { x: x + 7, y: y + 4 });
+      // labels of about 11 px on screen whatever the drawing's width (the viewBox scales user units)
+      const t = make("text", { x: x + 7 * unit, y: y + 4 * unit, "font-size": 11 * unit });
       t.textContent = String(n);
       nodes.append(t);
     }

@@ -44,7 +44,8 @@ export function readVerifyForm(): VerifyRequest | null {
     fieldError("verify-to", `To must be above From (the range is From to To, To not included), got ${group(to)}`);
     return null;
   }
-  const req: VerifyRequest = { map, from, to, sieveDepth: depth };
+  const delay = ($("verify-delay") as HTMLInputElement).checked;
+  const req: VerifyRequest = { map, from, to, sieveDepth: depth, delay };
   try {
     planVerify(req);
   } catch (e) {
@@ -81,7 +82,7 @@ function render(r: VerifyResult): void {
     ["cycle members", group(c.cycleMembers)],
     ["enter a cycle of larger numbers", group(c.cycleEntrants)],
     [`unresolved after ${group(r.maxSteps)} step${r.maxSteps === 1 ? "" : "s"}`, group(c.unresolved)],
-    ["largest glide (standard steps)", r.maxGlide ? `${r.maxGlide.standardSteps} at n = ${r.maxGlide.n}` : "–"],
+    ["largest glide (standard steps)", r.maxGlide ? `${r.maxGlide.standardSteps} at n = ${group(r.maxGlide.n)}` : "–"],
     ["largest path (highest value under T)", r.maxPath ? `${group(r.maxPath.peakT)} at n = ${group(r.maxPath.n)}` : "–"],
   ];
   $("verify-counts").innerHTML =
@@ -102,12 +103,20 @@ function render(r: VerifyResult): void {
   );
   $("verify-glide").innerHTML = rows(
     ["glide record n", "standard steps", "steps of T"],
-    r.glideRecords.map((g) => [String(g.n), String(g.standardSteps), String(g.steps)]),
+    r.glideRecords.map((g) => [group(g.n), String(g.standardSteps), String(g.steps)]),
   );
   $("verify-path").innerHTML = rows(
     ["path record n", "highest value under T"],
-    r.pathRecords.map((p) => [String(p.n), String(p.peakT)]),
+    r.pathRecords.map((p) => [group(p.n), group(p.peakT)]),
   );
+  // the delays (steps to reach 1) when asked for: their records, and the n that do not reach 1
+  $("verify-delay-box").hidden = r.delay === null;
+  if (r.delay)
+    $("verify-delays").innerHTML =
+      rows(
+        ["delay record n", "standard steps to 1", "steps of T"],
+        r.delay.records.map((g) => [group(g.n), String(g.standardSteps), String(g.steps)]),
+      ) + (r.delay.unreached > 0n ? `<caption>${group(r.delay.unreached)} n do not reach 1 within the step cap</caption>` : "");
   $("run-summary").textContent = toExactJson({ verify: verifyJson(r) });
 }
 
