@@ -251,6 +251,25 @@ describe.skipIf(!hasChromium)("web app: the page kept open", () => {
     await page.close();
   }, 300_000);
 
+  it("no remaining time is promised from shard counts: a depth-32 sieve shows shards and elapsed time only", async () => {
+    const page = await open("?depth=32&workers=2");
+    const seen: string[] = [];
+    await page.exposeFunction("__status", (t: string) => seen.push(t));
+    await page.evaluate(() => {
+      const s = document.getElementById("run-status")!;
+      new MutationObserver(() => (window as unknown as { __status: (t: string) => void }).__status(s.textContent ?? "")).observe(s, {
+        childList: true,
+        characterData: true,
+        subtree: true,
+      });
+    });
+    await page.click("#run-start");
+    await summaryOf(page, 120_000);
+    expect(seen.some((t) => /shards/.test(t))).toBe(true);
+    expect(seen.filter((t) => /left/.test(t))).toEqual([]);
+    await page.close();
+  });
+
   it("error text has at least 4.5:1 contrast on the page in both schemes", async () => {
     for (const scheme of ["light", "dark"] as const) {
       const page = await open("?view=verify");

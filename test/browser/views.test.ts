@@ -74,9 +74,12 @@ describe.skipIf(!hasChromium)("web app: links, table, stale results, schemes, wi
     const rows = Number(A076227[30]); // 12,771,274 survivors mod 2^30 (OEIS A076227)
     const cursor = async () => {
       const row = page.locator(".vlist-row.cursor");
-      return { n: Number(await row.locator("span").nth(0).textContent()), a: await row.locator("span").nth(1).textContent() };
+      return {
+        n: Number((await row.locator("span").nth(0).textContent())!.replace(/,/g, "")),
+        a: (await row.locator("span").nth(1).textContent())!.replace(/,/g, ""),
+      };
     };
-    const first = async () => Number(await page.locator(".vlist-row span").first().textContent());
+    const first = async () => Number((await page.locator(".vlist-row span").first().textContent())!.replace(/,/g, ""));
     // the two least survivors mod 2^30, by a BigInt brute force: no coefficient stopping time within 30 steps
     const least: string[] = [];
     for (let a = 1n; least.length < 2; a++) if (coefficientStop(parseMap("3x+1"), a, 30) === null) least.push(String(a));

@@ -1,6 +1,7 @@
 // The class table: every survivor in a virtualised list (tens of millions of rows: the scroll
 // range is scaled so that it stays within what browsers can lay out), search by residue, jump to a
 // row, and exports made off the page's thread.
+import { group } from "../../src/outputs/format.js";
 import type { CollatzMap } from "../../src/core/map.js";
 import { classFromResidue, firstDescent, MAX_INSPECT_STEPS } from "../../src/core/padic.js";
 import { CSV_ROW_GUARD } from "../../src/outputs/tables.js";
@@ -99,11 +100,11 @@ function render(): void {
     div.setAttribute("aria-rowindex", String(i + 2)); // the header is row 1
     if (i === cursor) div.setAttribute("aria-selected", "true");
     const cells = [
-      String(i + 1),
-      String(c.residue),
+      group(i + 1),
+      group(c.residue),
       c.word,
       String(c.odd),
-      String(c.image),
+      group(c.image),
       descent === null ? "–" : String(descent),
       affineText(map.q, c.odd, c.image),
     ];
