@@ -105,14 +105,14 @@ async function verifyRun(what: string, workers: number, req: Omit<VerifyRequest,
     pool.terminate();
   }
 }
-const v50 = { from: 1n << 50n, to: (1n << 50n) + (1n << 32n), sieveDepth: 26, stepDepth: 16 };
+const v50 = { from: 1n << 50n, to: (1n << 50n) + (1n << 32n), sieveDepth: 26, stepDepth: 12 };
 const verifyRates: number[] = [];
 for (const w of cores > 1 ? [1, cores] : [1])
-  verifyRates.push(await verifyRun("verify [2^50, 2^50 + 2^32), K 26, step tables to 16", w, v50));
+  verifyRates.push(await verifyRun("verify [2^50, 2^50 + 2^32), K 26, step tables to 12", w, v50));
 await verifyRun("verify baseline: same survivors, single steps", cores, { ...v50, stepDepth: 1 });
 await verifyRun("verify 3x-1 (r < 0) [2^50, 2^50 + 2^32)", cores, v50, parseMap("3x-1"));
 // the published frontier: a slice at 2^71 (n as a 128-bit pair in the kernel)
-await verifyRun("verify [2^71, 2^71 + 2^32), K 26, step tables to 16", cores, { ...v50, from: 1n << 71n, to: (1n << 71n) + (1n << 32n) });
+await verifyRun("verify [2^71, 2^71 + 2^32), K 26, step tables to 12", cores, { ...v50, from: 1n << 71n, to: (1n << 71n) + (1n << 32n) });
 const v40 = { from: 1n << 40n, to: (1n << 40n) + (1n << 24n), sieveDepth: 20, stepDepth: 16 };
 await verifyRun("verify [2^40, 2^40 + 2^24)", cores, v40);
 await verifyRun("verify [2^40, 2^40 + 2^24) with --delay", cores, { ...v40, delay: true });

@@ -6,7 +6,7 @@ import type { CollatzMap } from "../../core/map.js";
 import { kernelDepthLimit } from "../../core/map.js";
 
 export const DEFAULT_SIEVE_DEPTH = 26;
-export const DEFAULT_STEP_DEPTH = 16;
+export const DEFAULT_STEP_DEPTH = 12;
 export const MAX_VERIFY_SIEVE_DEPTH = 30;
 export const MAX_VERIFY_STEP_DEPTH = 20;
 export const DEFAULT_MAX_STEPS = 100_000;
