@@ -1,6 +1,7 @@
 // The page a user keeps open: results dimmed as soon as an input differs from what produced them,
 // Back and Forward through views and runs, links with values a field does not offer, the tree's own
 // map, keyboard reach, headings, and contrast computed from the styles.
+import { readFile } from "node:fs/promises";
 import { describe, expect, it } from "vitest";
 import type { Page } from "playwright-core";
 import { summaryOf } from "./harness.js";
@@ -160,6 +161,24 @@ describe.skipIf(!hasChromium)("web app: the page kept open", () => {
     expect(await above.textContent("#verify-message")).toContain("given that no n below 1,000 does");
     await page.close();
     await above.close();
+  });
+
+  it("after a cancel the previous run's certificate, still shown dimmed, can be downloaded", async () => {
+    const page = await open("?view=verify&from=1&to=2%5E16&vdepth=10&run=1");
+    await summaryOf(page);
+    await page.fill("#verify-from", "2^50");
+    await page.fill("#verify-to", "2^50+2^36");
+    await page.click("#verify-go");
+    await page.waitForFunction(() => (document.getElementById("verify-progress") as HTMLProgressElement).value > 0, undefined, {
+      timeout: 30_000,
+    });
+    await page.click("#verify-cancel");
+    await page.waitForFunction(() => document.getElementById("verify-status")!.textContent === "Cancelled.");
+    expect(await stale(page, "verify-result")).toBe(true);
+    const [download] = await Promise.all([page.waitForEvent("download"), page.click("#verify-certificate")]);
+    const cert = JSON.parse(await readFile((await download.path())!, "utf8")) as { to: string | number };
+    expect(String(cert.to)).toBe(String(2 ** 16));
+    await page.close();
   });
 
   it("the range's errors stand beside their own field, in the form's words", async () => {

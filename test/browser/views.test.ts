@@ -119,6 +119,12 @@ describe.skipIf(!hasChromium)("web app: links, table, stale results, schemes, wi
     expect(await page.getAttribute("#tab-inspect", "aria-selected")).toBe("true");
     expect(await page.inputValue("#inspect-input")).toMatch(/ mod 2\^30$/);
     expect(await text(page, "#inspect-card")).toContain("3x+1");
+    // Enter on a row: the Inspector opens and the focus goes to its heading, not to the page body
+    await page.click("#tab-table");
+    await page.focus("#table-list");
+    await page.keyboard.press("Enter");
+    expect(await page.getAttribute("#tab-inspect", "aria-selected")).toBe("true");
+    expect(await page.evaluate(() => document.activeElement?.id)).toBe("inspect-heading");
     await page.close();
   });
 
