@@ -232,7 +232,7 @@ describe.skipIf(!hasChromium)("web app: the page kept open", () => {
     await page.close();
   });
 
-  it("the tree at 420 px: labels about 11 px on screen; at 1400 px its level table shows every column at depth 30", async () => {
+  it("the tree at 420 px: labels about 12 px on screen; at 1400 px its level table shows every column at depth 30", async () => {
     const page = await open("?view=tree&tn=1&tdepth=8&run=1");
     await page.setViewportSize({ width: 420, height: 900 });
     await page.click("#tree-go");

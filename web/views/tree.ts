@@ -133,8 +133,8 @@ function renderDrawing(r: TreeResult): void {
     c.append(title);
     nodes.append(c);
     if (rows[j]!.length <= 16) {
-      // labels of about 11 px on screen whatever the drawing's width (the viewBox scales user units)
-      const t = make("text", { x: x + 7 * unit, y: y + 4 * unit, "font-size": 11 * unit });
+      // labels of about 12 px on screen whatever the drawing's width (the viewBox scales user units)
+      const t = make("text", { x: x + 8 * unit, y: y + 4 * unit, "font-size": 13 * unit });
       t.textContent = String(n);
       nodes.append(t);
     }
