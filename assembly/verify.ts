@@ -609,6 +609,9 @@ export function verifyRange(
  * with the step tables where a table step cannot pass over 1 (v >= 2^(d+1)), single steps below.
  * Records go to CHANNEL_GLIDE_RECORDS as (n, steps of T, standard steps); n that do not reach 1
  * within the step cap to CHANNEL_UNRESOLVED; values past 2^limitBits to CHANNEL_HANDOFFS. Needs verifyPrepare.
+ * With r = -s < 0 a table step still cannot pass over 1 unseen: if s < q every step from v >= 1 at
+ * least halves ((q - 1) v >= s), and if s >= q the step after 1 is (q - s) / 2 <= 0, from where
+ * values stay at or below 0, so the step lands at or below 0 and goes to the host (affine).
  */
 export function verifyDelays(
   q: u32, r: i32, stepDepth: i32, steps: i32, limit: i32, tables: usize, firstL: u64, firstH: u64, lastL: u64, lastH: u64,

@@ -396,6 +396,36 @@ describe("verify: ends that are not aligned, shallow sieves, and numbers past 2^
     expect(r.delay!.records.map((d) => d.n)).toEqual(records);
     expect(r.delay!.max!.standardSteps).toBe(best);
   });
+  it("delays of maps with r < 0 (an odd step may more than halve a small value) by plain iteration here", async () => {
+    for (const text of ["3x-1", "3x-7", "3x-65", "5x-33"]) {
+      const map = parseMap(text);
+      const [q, r] = [BigInt(map.q), BigInt(map.r)];
+      const cap = 2000;
+      const res = await runVerify(pool, { map, from: 1n, to: 6000n, sieveDepth: 8, stepDepth: 8, delay: true, maxSteps: cap });
+      let best = -1;
+      let unreached = 0n;
+      const records: bigint[] = [];
+      for (let n = 1n; n < 6000n; n++) {
+        let v = n;
+        let t = 0;
+        let std = 0;
+        for (; v !== 1n && t < cap; t++) {
+          std += (v & 1n) === 0n ? 1 : 2;
+          v = (v & 1n) === 0n ? v >> 1n : (q * v + r) >> 1n;
+        }
+        if (v !== 1n) unreached++;
+        else if (std > best) {
+          best = std;
+          records.push(n);
+        }
+      }
+      expect(
+        res.delay!.records.map((d) => d.n),
+        text,
+      ).toEqual(records);
+      expect(res.delay!.unreached, text).toBe(unreached);
+    }
+  });
   it("a cycle member is one whatever the step cap (1 with a cap of 1; 19 of 3x+5 with a cap of 3)", async () => {
     // a cap below the sieve depth is refused: the sieve's classes descend at their cut depth
     expect(() => planVerify({ map: parseMap("3x+1"), from: 1n, to: 3n, maxSteps: 1, sieveDepth: 4 })).toThrow(/below the sieve depth/);

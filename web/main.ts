@@ -63,24 +63,41 @@ function inspectNow(): void {
     saveState(current, ["inspect"], entry(), true);
 }
 
+/**
+ * Records a job of `fields`'s form in the history once it has succeeded: the view and the kind of
+ * entry are those of its start (a tab chosen meanwhile, or a Back that has ended, changes neither).
+ */
+function recordRun(fields: View, done: Promise<boolean>): void {
+  const view = current;
+  const how = entry();
+  void done.then((ok) => ok && saveState(view, [fields], how, true));
+}
+
 function cycles(): void {
   const workers = readWorkers("cycles-message");
   if (workers === null) return;
-  void runCycles(($("cycles-map") as HTMLInputElement).value, ($("cycles-period") as HTMLInputElement).value, workers).then(
-    (ok) => ok && saveState(current, ["cycles"], entry(), true),
-  );
+  recordRun("cycles", runCycles(($("cycles-map") as HTMLInputElement).value, ($("cycles-period") as HTMLInputElement).value, workers));
 }
 
 function verify(): void {
   const workers = readWorkers("verify-message");
   if (workers === null) return;
-  void startVerify(workers).then((ok) => ok && saveState(current, ["verify"], entry(), true));
+  recordRun("verify", startVerify(workers));
 }
 
 function tree(): void {
   const workers = readWorkers("tree-message");
   if (workers === null) return;
-  void startTree(workers).then((ok) => ok && saveState(current, ["tree"], entry(), true));
+  recordRun("tree", startTree(workers));
+}
+
+/** Opens a number or class in the Inspector under its own map, the focus on the Inspector's heading. */
+function openInInspector(input: string, mapName: string): void {
+  ($("inspect-input") as HTMLInputElement).value = input;
+  ($("inspect-map") as HTMLInputElement).value = mapName;
+  show("inspect", true);
+  inspectNow();
+  $("inspect-heading").focus();
 }
 
 /** Each view's job, as its button and run=1 start it. */
@@ -107,13 +124,7 @@ const FORMS = [
 function setup(): void {
   ($("run-workers") as HTMLInputElement).value = String(defaultWorkers());
   setupTabs();
-  setupTable((t, row) => {
-    ($("inspect-input") as HTMLInputElement).value = `${t.residues[row]} mod 2^${t.depth}`;
-    ($("inspect-map") as HTMLInputElement).value = t.map.name;
-    show("inspect", true);
-    inspectNow();
-    $("inspect-heading").focus();
-  });
+  setupTable((t, row) => openInInspector(`${t.residues[row]} mod 2^${t.depth}`, t.map.name));
   // each form: its job on submit; the address bar follows its fields as they change
   for (const [form, view, job] of FORMS) {
     $(form).addEventListener("submit", (e) => {
@@ -137,13 +148,7 @@ function setup(): void {
   $("cycles-cancel").addEventListener("click", cancelCycles);
   $("cycles-export").addEventListener("click", exportCycles);
   $("tree-cancel").addEventListener("click", cancelTree);
-  setupTree((n, map) => {
-    ($("inspect-input") as HTMLInputElement).value = String(n);
-    ($("inspect-map") as HTMLInputElement).value = map.name;
-    show("inspect", true);
-    inspectNow();
-    $("inspect-heading").focus();
-  });
+  setupTree((n, map) => openInInspector(String(n), map.name));
   $("verify-cancel").addEventListener("click", cancelVerify);
   $("verify-certificate").addEventListener("click", downloadCertificate);
   $("verify-preset").addEventListener("change", () => {

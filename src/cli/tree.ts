@@ -56,10 +56,11 @@ function treeParams(nText: string | undefined, o: TreeOptions): TreeParams {
   };
 }
 
-/** Writes edges into an open file as they come (CSV) or at the end (Arrow, one record batch). */
-function edgeWriter(file: AtomicFile, format: FileFormat, force: boolean | undefined) {
+/** Writes edges into an open file as they come (CSV, after its header) or at the end (Arrow, one record batch). */
+async function edgeWriter(file: AtomicFile, format: FileFormat, force: boolean | undefined) {
   const held: TreeEdge[] = [];
   let rows = 0;
+  if (format === "csv") await file.write("node,parent,depth,kind\n");
   return {
     async edge(e: TreeEdge): Promise<void> {
       if (++rows > CSV_ROW_GUARD && !force)
@@ -67,11 +68,10 @@ function edgeWriter(file: AtomicFile, format: FileFormat, force: boolean | undef
           `the tree has more edges than rows allowed, over the ${group(CSV_ROW_GUARD)}-row guard: choose a smaller --depth, or --force`,
         );
       if (format === "arrow") held.push(e);
-      else await file.write(`${rows === 1 ? "node,parent,depth,kind\n" : ""}${edgeLine(e)}`);
+      else await file.write(edgeLine(e));
     },
     async end(): Promise<void> {
       if (format === "arrow") await file.write(treeEdgesArrow(held));
-      else if (rows === 0) await file.write("node,parent,depth,kind\n");
     },
   };
 }
@@ -99,7 +99,7 @@ export const treeBatch: BatchJob<TreeParams, TreeResult> = {
         // a cluster's tree is large by intent, and merge has no --force: the row guard is for interactive runs
         async (file) => {
           // the cluster's parts hold tallies, not edges: the edges come from a walk here
-          const w = edgeWriter(file!, out.format, true);
+          const w = await edgeWriter(file!, out.format, true);
           for (const e of treeEdges(result.map, result.steps, result.n, result.depth)) await w.edge(e);
           await w.end();
         },
@@ -120,7 +120,7 @@ async function tree(nText: string, o: TreeOptions): Promise<void> {
       async (file) => {
         if (!file || !out) return runTree(pool, params, { onProgress });
         // one walk makes the tallies and the edges
-        const w = edgeWriter(file, out.format, o.force);
+        const w = await edgeWriter(file, out.format, o.force);
         const result = await walkWithEdges(params, (e) => w.edge(e), { onProgress });
         await w.end();
         return result;

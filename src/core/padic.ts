@@ -128,6 +128,26 @@ export function coefficientStoppingTime(map: CollatzMap, n: bigint, steps: numbe
   return null;
 }
 
+/**
+ * n's delay (total stopping time) in BigInt: steps of T to reach 1 and the odd steps among them, or
+ * null past maxSteps.
+ * @example delayBig(parseMap("3x+1"), 27n, 1000) // { steps: 70, odd: 41 }
+ */
+export function delayBig(map: CollatzMap, n: bigint, maxSteps: number): { steps: number; odd: number } | null {
+  const q = BigInt(map.q);
+  const r = BigInt(map.r);
+  let v = n;
+  let odd = 0;
+  for (let steps = 0; steps <= maxSteps; steps++) {
+    if (v === 1n) return { steps, odd };
+    if ((v & 1n) === 1n) {
+      v = (q * v + r) >> 1n;
+      odd++;
+    } else v >>= 1n;
+  }
+  return null;
+}
+
 /** Binary digits of a mod 2^k, least significant first (the 2-adic expansion). */
 export function digitsOf(a: bigint, k: number): string {
   let s = "";

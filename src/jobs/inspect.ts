@@ -2,6 +2,7 @@
 import type { CollatzMap } from "../core/map.js";
 import { UsageError } from "../core/errors.js";
 import {
+  delayBig,
   classFromResidue,
   classFromWord,
   coefficientStoppingTime,
@@ -67,6 +68,8 @@ export interface NumberCard {
   readonly trajectory: Trajectory;
   /** The class given by the first min(steps, 64+) parities: its coefficient stopping time. */
   readonly form: ClassForm | null;
+  /** n's total stopping time (steps of T to reach 1, and the odd steps among them) within the trajectory's steps; null when 1 is not reached there or n < 1. */
+  readonly delay: { readonly steps: number; readonly odd: number } | null;
 }
 
 export type Card = { readonly kind: "class"; readonly card: ClassCard } | { readonly kind: "number"; readonly card: NumberCard };
@@ -97,7 +100,8 @@ export function inspect(map: CollatzMap, input: InspectInput, steps = MAX_INSPEC
       const stop = coefficientStoppingTime(map, input.n, steps);
       const length = Math.max(t.steps, stop ?? 0);
       const form = length > 0 ? classFromWord(map, parityWord(map, input.n, length)) : null;
-      return { kind: "number", card: { n: input.n, trajectory: t, form } };
+      const delay = input.n > 0n ? delayBig(map, input.n, t.steps) : null;
+      return { kind: "number", card: { n: input.n, trajectory: t, form, delay } };
     }
   }
 }

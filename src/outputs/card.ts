@@ -52,22 +52,6 @@ function classText(c: ClassCard): string {
   ].join("\n");
 }
 
-/** Steps of T from n to 1 (and standard steps), within the trajectory's `steps`, exactly in BigInt. */
-function totalStop(map: CollatzMap, n: bigint, steps: number, word: string): string {
-  const q = BigInt(map.q);
-  const r = BigInt(map.r);
-  let v = n;
-  let odd = 0;
-  for (let j = 0; j <= steps; j++) {
-    if (v === 1n) return `${j} (${j + odd} standard steps)`;
-    if ((v & 1n) === 1n) {
-      v = (q * v + r) >> 1n;
-      odd++;
-    } else v >>= 1n;
-  }
-  return `1 not reached within ${word.length} steps`;
-}
-
 function numberText(map: CollatzMap, c: NumberCard): string {
   const t = c.trajectory;
   const lines = [`n = ${abbreviate(String(c.n), 80)} under ${map.name}`];
@@ -75,7 +59,10 @@ function numberText(map: CollatzMap, c: NumberCard): string {
   const oddBefore = (j: number) => [...t.word.slice(0, j)].filter((x) => x === "1").length;
   const descent = t.descent === null ? `none within ${t.steps} steps` : `${t.descent} (${t.descent + oddBefore(t.descent)} standard steps)`;
   lines.push(`  stopping time (first T^j(n) < n): ${descent}`);
-  if (c.n > 0n) lines.push(`  total stopping time (first T^j(n) = 1): ${totalStop(map, c.n, t.steps, t.word)}`);
+  if (c.n > 0n)
+    lines.push(
+      `  total stopping time (first T^j(n) = 1): ${c.delay ? `${c.delay.steps} (${c.delay.steps + c.delay.odd} standard steps)` : `1 not reached within ${t.steps} steps`}`,
+    );
   if (c.form) lines.push(`  ${stopLine(c.form)}`);
   lines.push(`  largest value ${abbreviate(String(t.max), 80)} at step ${t.maxAt}`);
   lines.push(

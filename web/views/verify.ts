@@ -1,6 +1,6 @@
 // The Verify view: a range of n checked in the page's workers, with its counts, maxima, record
 // lists and a certificate to download (the same library and certificate format as the CLI).
-import { parseMap } from "../../src/core/map.js";
+import { parseMap, step } from "../../src/core/map.js";
 import { parseCount, parseWhole } from "../../src/core/parse.js";
 import { certificate, tableHashes, verifyJson } from "../../src/jobs/verify/certificate.js";
 import type { TableHashes } from "../../src/jobs/verify/certificate.js";
@@ -88,13 +88,10 @@ function render(r: VerifyResult): void {
   $("verify-counts").innerHTML =
     `<tbody>${counts.map(([k, v]) => `<tr><th scope="row" class="left">${k}</th><td>${v}</td></tr>`).join("")}</tbody>`;
   // each cycle member named with its cycle: n = 1 on 1 → 2 → 1
-  const q = BigInt(r.map.q);
-  const rr = BigInt(r.map.r);
-  const step = (v: bigint) => ((v & 1n) === 1n ? (q * v + rr) >> 1n : v >> 1n);
   $("verify-cycles").replaceChildren(
     ...r.cycleMembers.map((m) => {
       const cycle = [m.n];
-      for (let v = step(m.n), i = 0; v !== m.n && i < 12; v = step(v), i++) cycle.push(v);
+      for (let v = step(r.map, m.n), i = 0; v !== m.n && i < 12; v = step(r.map, v), i++) cycle.push(v);
       const li = document.createElement("li");
       const more = m.period > cycle.length ? ` → … (period ${m.period})` : "";
       li.textContent = `n = ${group(m.n)} on ${cycle.map(group).join(" → ")}${more} → ${group(m.n)}`;

@@ -6,7 +6,8 @@ import type { CollatzMap } from "../../core/map.js";
 import type { VerifyBlock, VerifyBlockResult } from "./messages.js";
 import { Smallest } from "../../core/smallest.js";
 import { EXCEPTION_LIMIT } from "../sieve/exceptions.js";
-import { cycleBudget, cycleEntry, delayBig, traceBig } from "./trace.js";
+import { cycleBudget, cycleEntry, traceBig } from "./trace.js";
+import { delayBig } from "../../core/padic.js";
 
 export interface GlideRecord {
   readonly n: bigint;

@@ -14,7 +14,8 @@ import { entryMismatch, mergeVerify } from "./merge.js";
 import { planVerify } from "./plan.js";
 import type { VerifyPlan } from "./plan.js";
 import { verifyTables } from "./tables.js";
-import { cycleBudget, cycleEntry, delayBig, traceBig } from "./trace.js";
+import { cycleBudget, cycleEntry, traceBig } from "./trace.js";
+import { delayBig } from "../../core/padic.js";
 import { runBlocks } from "./verify.js";
 
 /** What a check did, line by line, and the first difference found (null: the certificate holds). */

@@ -12,6 +12,7 @@ import { runSieve } from "../sieve/sieve.js";
 import { stepTable, stepTableRaw } from "../steps.js";
 import type { VerifyPlan } from "./plan.js";
 import { traceBig } from "./trace.js";
+import { coefficientStoppingTime } from "../../core/padic.js";
 
 /** Exceptions a run may carry (they are listed and iterated one by one). */
 const MAX_EXCEPTIONS = 1n << 24n;
@@ -146,21 +147,10 @@ function addEarlyDescents(plan: VerifyPlan, bound: bigint, exceptions: { n: bigi
       `${map.name} at sieve depth ${K}: members below ${bound} may go below themselves before their class is cut, over the ${MAX_EARLY} a run lists: use a smaller depth`,
     );
   const listed = new Set(exceptions.map((e) => e.n));
-  const q = BigInt(map.q);
-  const r = BigInt(map.r);
   for (let n = 1n; n < bound; n++) {
     // the depth at which n's class (its first K parities) is cut, whatever its trajectory does
-    let v = n;
-    let qm = 1n;
-    let cut = 0;
-    for (let j = 1; j <= K && cut === 0; j++) {
-      if ((v & 1n) === 1n) {
-        v = (q * v + r) >> 1n;
-        qm *= q;
-      } else v >>= 1n;
-      if (qm >> BigInt(j) === 0n) cut = j;
-    }
-    if (cut === 0 || listed.has(n)) continue;
+    const cut = coefficientStoppingTime(map, n, K);
+    if (cut === null || listed.has(n)) continue;
     const t = traceBig(map, n, maxSteps, K);
     if (t.outcome !== "descent" || t.steps !== cut) exceptions.push({ n, classDepth: cut });
   }

@@ -45,22 +45,6 @@ export function traceBig(map: CollatzMap, n: bigint, maxSteps: number, depth: nu
   return { outcome: "unresolved", steps: maxSteps, odd, path, cutDepth };
 }
 
-/** n's delay in BigInt: steps of T to reach 1 and the odd steps among them, or null past maxSteps. */
-export function delayBig(map: CollatzMap, n: bigint, maxSteps: number): { steps: number; odd: number } | null {
-  const q = BigInt(map.q);
-  const r = BigInt(map.r);
-  let v = n;
-  let odd = 0;
-  for (let steps = 0; steps <= maxSteps; steps++) {
-    if (v === 1n) return { steps, odd };
-    if ((v & 1n) === 1n) {
-      v = (q * v + r) >> 1n;
-      odd++;
-    } else v >>= 1n;
-  }
-  return null;
-}
-
 /** Brent's budget for an n past the step cap: twice the cap, and at least 100,000 steps whatever the cap. */
 export const cycleBudget = (maxSteps: number): number => Math.max(2 * maxSteps, 100_000);
 
