@@ -6,5 +6,5 @@ export { enumerate, MODE_SURVIVORS, MODE_FULL } from "./enumerate";
 export { cycleSearch } from "./cycles";
 export { census } from "./census";
 export { inverseTree } from "./inverse";
-export { verifyPrepare, verifyAligned, verifyRange, verifyDelays } from "./verify";
+export { verifyPrepare, verifyAligned, verifyRange, verifyDelays, verifyClasses, verifyPreimage } from "./verify";
 export { probe128 } from "./u128";

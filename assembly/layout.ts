@@ -96,6 +96,8 @@ export const VERIFY_COUNT_EXCEPTIONS: i32 = 1;
 export const VERIFY_COUNT_CYCLES: i32 = 2;
 export const VERIFY_COUNT_UNRESOLVED: i32 = 3;
 export const VERIFY_COUNT_HANDOFFS: i32 = 4;
+/** Leaves of a range from 1 skipped because a smaller number's trajectory reaches them (verifyClasses). */
+export const VERIFY_COUNT_PREIMAGE: i32 = 5;
 export const VERIFY_COUNT_SIEVED: i32 = 8;
 export const VERIFY_COUNTS: i32 = VERIFY_COUNT_SIEVED + 64;
 

@@ -35,13 +35,14 @@ import {
   VERIFY_COUNT_CYCLES,
   VERIFY_COUNT_EXCEPTIONS,
   VERIFY_COUNT_HANDOFFS,
+  VERIFY_COUNT_PREIMAGE,
   VERIFY_COUNT_SIEVED,
   VERIFY_COUNT_UNRESOLVED,
   VERIFY_COUNTS,
   VERIFY_REGION_BYTES,
 } from "./layout";
 import { carry, leU, ltU, mulAdd, rhi, rlo } from "./u128";
-import { dropDepth, useTables } from "./tree";
+import { dropDepth, evenBit, evenImage, evenResidue, oddImage, stepImage, stepValue, useTables } from "./tree";
 
 const DONE_DESCENT: i32 = 0;
 const DONE_CYCLE: i32 = 1;
@@ -235,8 +236,15 @@ function fast(nl: u64, nh: u64, i: i32, hl: u64, hh: u64): i32 {
   }
   affine(hl, hh, load<u64>(qpowPtr + (<usize>m << 3)), load<u64>(survB + (<usize>i << 3)));
   if (carry || tooLarge(rlo, rhi)) return DONE_HANDOFF;
-  let vl = rlo, vh = rhi;
-  let steps = K, odd = m;
+  return descend(nl, nh, nBits, rlo, rhi, K, m, bl, bh);
+}
+
+/**
+ * n's trajectory on from v = T^steps(n) (odd of the steps odd) to its first value below n: table
+ * steps where they cannot pass it, single steps near it. (bl, bh) is a bound on the values so far;
+ * exceededPath says at the end whether the path could beat (bestPathLo, bestPathHi).
+ */
+function descend(nl: u64, nh: u64, nBits: i32, vl: u64, vh: u64, steps: i32, odd: i32, bl: u64, bh: u64): i32 {
   while (true) {
     if (ltU(bl, bh, vl, vh)) {
       bl = vl;
@@ -329,6 +337,10 @@ function fast(nl: u64, nh: u64, i: i32, hl: u64, hh: u64): i32 {
 }
 
 @inline function notePath(nl: u64, nh: u64): void {
+  if (classMode) {
+    notePathCandidate(nl);
+    return;
+  }
   if (ltU(bestPathLo, bestPathHi, pathLo, pathHi)) {
     bestPathLo = pathLo;
     bestPathHi = pathHi;
@@ -385,6 +397,7 @@ function begin(q: u32, r: i32, depth: i32, stepDepth: i32, steps: i32, limit: i3
   bestPathLo = 0;
   bestPathHi = 0;
   bestPathBits = 0;
+  classMode = false;
 }
 
 function end(): void {
@@ -673,4 +686,301 @@ export function verifyDelays(
   }
   end();
   return visited;
+}
+
+// ---- a range [1, 2^N) settled class by class ----
+// Classes a mod 2^j are extended one bit at a time from a root mod 2^D (D <= N). A class is settled
+// at the first depth j where its coefficient q^m / 2^j drops below 1: its members n = a + 2^D x below
+// 2^N (x < 2^(N - D)) descend at step j exactly (r > 0: before j every coefficient is above 1, so
+// every value is above n), except the few small ones where q^m (n >> j) + b >= n, which are iterated.
+// A class not settled by depth N has one member, n = a: a leaf, iterated on from T^N(n) = b. A leaf
+// with a smaller number u whose trajectory reaches n (a preimage chain, below) is skipped: n's
+// convergence follows from u's, u < n, in the same run.
+// Records are kept as candidates: per glide (standard steps) the least n of the block with it, swept
+// at the end; a path only when it beats the host's lower bound lb(k) on the largest path of any
+// number below 2^k (n in [2^k, 2^(k+1))), computed exactly.
+
+let lbPtr: usize = 0; // u64 pairs (lo, hi) per k = 0..N - 1
+let classSlack: usize = 0; // u64 r (q/2)^j rounded up, j = 0..N
+let glideMinPtr: usize = 0; // per standard glide g < glideCap: u64 least n, u64 its glide in steps of T
+let glideCap: i32 = 0;
+let glideTop: i32 = -1; // the largest g written
+let nTop: i32 = 0; // N
+let usePreimage: bool = false;
+let classMode: bool = false;
+// the DFS stack: per depth, a node (a, m, b, peak ip, mp) and which children are done
+const stA = new StaticArray<u64>(72);
+const stB = new StaticArray<u64>(72);
+const stM = new StaticArray<i32>(72);
+const stIp = new StaticArray<i32>(72);
+const stMp = new StaticArray<i32>(72);
+const stState = new StaticArray<i32>(72);
+
+/** The least n of the block with standard glide g (and its glide in steps of T t). */
+function noteGlideMin(n: u64, g: i32, t: i32): void {
+  if (g >= glideCap) {
+    push(CHANNEL_GLIDE_RECORDS, n, <u64>t, <u64>g, 0);
+    return;
+  }
+  const p = glideMinPtr + (<usize>g << 4);
+  const had = load<u64>(p);
+  if (had == 0 || n < had) {
+    store<u64>(p, n);
+    store<u64>(p, <u64>t, 8);
+  }
+  if (g > glideTop) glideTop = g;
+}
+
+/** The lower bound of the band of n (n >= 1) as the block's "best path", for the shortcuts of descend. */
+@inline function bandBound(n: u64): void {
+  const k = 63 - <i32>clz(n);
+  const p = lbPtr + (<usize>k << 4);
+  bestPathLo = load<u64>(p);
+  bestPathHi = load<u64>(p, 8);
+  bestPathBits = bitlen(bestPathLo, bestPathHi);
+}
+
+/** A path from `exact` (pathLo, pathHi): a candidate when above the band's bound. */
+@inline function notePathCandidate(n: u64): void {
+  bandBound(n);
+  if (ltU(bestPathLo, bestPathHi, pathLo, pathHi)) push(CHANNEL_PATH_RECORDS, n, pathLo, pathHi, 0);
+}
+
+/**
+ * A number u < n whose trajectory reaches n within three steps while every value before n stays
+ * above u (r > 0; n below 2^60), or 0. Then n's convergence follows from u's, and n is no record:
+ * u's glide is longer (it passes through all of n's) and u's path holds n's.
+ * The shapes, with the last step into n: odd, u = (2n - r) / q; even from 2n, whose odd predecessor
+ * is w = (4n - r) / q, with u = w or u = (2w - r) / q (odd, odd, even); even from 2n and 4n, u = (8n - r) / q.
+ */
+export function preimageBelow(n: u64): u64 {
+  const r = <u64>(HQ * 2 - Q); // r > 0 here
+  // (each difference below is taken only when positive: r may be larger than 2n, 4n or 8n)
+  const t1 = 2 * n - r;
+  if (2 * n > r && t1 % Q == 0) {
+    const u = t1 / Q;
+    if (u >= 1 && u < n) return u;
+  }
+  const t2 = 4 * n - r;
+  if (4 * n > r && t2 % Q == 0) {
+    const w = t2 / Q;
+    if (w < n) return w;
+    if (2 * w > r) {
+      const t3 = 2 * w - r;
+      if (t3 % Q == 0) {
+        const u = t3 / Q;
+        if (u >= 1 && u < n && u < w) return u;
+      }
+    }
+  }
+  const t4 = 8 * n - r;
+  if (8 * n > r && t4 % Q == 0) {
+    const u = t4 / Q;
+    if (u >= 1 && u < n) return u;
+  }
+  return 0;
+}
+
+/** The preimage skip of verifyClasses for one n (the tests compare it with a search in BigInt). */
+export function verifyPreimage(q: u32, r: i32, n: u64): u64 {
+  assert(r > 0 && n >= 1 && n < (<u64>1) << 60);
+  setMap(q, r);
+  return preimageBelow(n);
+}
+
+/** Iterates n exactly and books it (class mode): counted under `counted` when it descends. */
+function classExact(n: u64, counted: i32): void {
+  const done = exact(n, 0);
+  if (done == DONE_DESCENT) {
+    bump(counted);
+    noteGlideMin(n, glideT + glideOdd, glideT);
+    notePathCandidate(n);
+  } else settle(n, 0, done, counted);
+}
+
+/**
+ * The members n = a + 2^D x (x < 2^(N - D), n >= 1) of a class whose coefficient first dropped at
+ * depth j: T^j(n) = q^m (n >> j) + b. The small members that do not descend at j are iterated; the
+ * rest are counted at depth j, the least of them is the glide candidate (j + m standard steps), and
+ * those whose path bound (peak ip, mp) could beat their band's bound are iterated for their path.
+ */
+function settleClass(a: u64, D: i32, j: i32, m: i32, b: u64, ip: i32, mp: i32): void {
+  const X: u64 = (<u64>1) << <u64>(nTop - D);
+  const stride: u64 = (<u64>1) << <u64>D;
+  const qm = load<u64>(qpowPtr + (<usize>m << 3));
+  let x: u64 = a == 0 ? 1 : 0;
+  while (x < X) {
+    const n = a + (x << <u64>D);
+    mulAdd(n >> <u64>j, 0, qm, b);
+    if (rhi == 0 && rlo < n) break;
+    classExact(n, VERIFY_COUNT_EXCEPTIONS);
+    x++;
+  }
+  if (x >= X) return;
+  const first = a + (x << <u64>D);
+  const p = countsPtr + (<usize>(VERIFY_COUNT_SIEVED + j) << 3);
+  store<u64>(p, load<u64>(p) + (X - x));
+  noteGlideMin(first, j + m, j);
+  // paths, band by band: members in [2^k, 2^(k+1)) with a bound above lb(k), from the top down
+  const slack = load<u64>(classSlack + (<usize>j << 3));
+  const extra = dropDepth(mp) - ip + 1; // bound < 2^(k + 1 + extra) when the slack is below 2^(k + 1)
+  const top: u64 = a + ((X - 1) << <u64>D);
+  for (let k = 63 - <i32>clz(first); k < nTop; k++) {
+    const lp = lbPtr + (<usize>k << 4);
+    const lbl = load<u64>(lp), lbh = load<u64>(lp, 8);
+    if (k + 1 + extra < bitlen(lbl, lbh) && 64 - <i32>clz(slack) <= k + 1) continue;
+    const hiN: u64 = k + 1 >= 64 ? <u64>-1 : ((<u64>1) << <u64>(k + 1)) - 1;
+    const bandTop = hiN < top ? hiN : top;
+    const lo: u64 = (<u64>1) << <u64>k;
+    if (bandTop < first || bandTop < lo) continue;
+    // the last member at or below bandTop, then down while the bound can beat lb(k)
+    let n = bandTop - ((bandTop - a) & (stride - 1));
+    while (n >= first && n >= lo) {
+      peakBound(n, 0, ip, mp, slack);
+      if (!carry && leU(rlo, rhi, lbl, lbh)) break;
+      if (exact(n, 0) == DONE_DESCENT && ltU(lbl, lbh, pathLo, pathHi)) push(CHANNEL_PATH_RECORDS, n, pathLo, pathHi, 0);
+      if (n < stride) break;
+      n -= stride;
+    }
+  }
+}
+
+/** A leaf: n = a survived N steps with T^N(n) = b (m odd, peak ip, mp); iterated on to its descent. */
+function leaf(n: u64, m: i32, b: u64, ip: i32, mp: i32): void {
+  if (usePreimage && preimageBelow(n) != 0) {
+    bump(VERIFY_COUNT_PREIMAGE);
+    return;
+  }
+  bandBound(n);
+  peakBound(n, 0, ip, mp, load<u64>(classSlack + (<usize>nTop << 3)));
+  const bh0 = carry ? <u64>-1 : rhi;
+  const done = descend(n, 0, 64 - <i32>clz(n), b, 0, nTop, m, rlo, bh0);
+  if (done == DONE_DESCENT) {
+    bump(VERIFY_COUNT_CHECKED);
+    noteGlideMin(n, glideT + glideOdd, glideT);
+    if (exceededPath) {
+      const again = exact(n, 0);
+      if (again == DONE_DESCENT) notePathCandidate(n);
+      else settle(n, 0, again, -1);
+    }
+  } else if (done == DONE_CYCLE) {
+    bump(VERIFY_COUNT_CYCLES);
+    push(CHANNEL_CYCLE_MEMBERS, n, <u64>glideT, 0, 0);
+    pathLo = n;
+    pathHi = 0;
+    notePathCandidate(n);
+  } else classExact(n, VERIFY_COUNT_CHECKED);
+}
+
+/**
+ * The classes of the roots c mod 2^D, first <= c <= last, settled down to depth N (members below
+ * 2^N, 0 left out), with the preimage skip of leaves when `preimage`. Records go out as candidates
+ * (glides: the block's own records; paths: those above lb). Needs verifyPrepare (the step tables,
+ * any sieve). The host proves every class image below 2^64 (N within the map's 64-bit depth).
+ * Returns the leaves visited.
+ */
+export function verifyClasses(
+  q: u32, r: i32, N: i32, D: i32, first: u64, last: u64, preimage: i32, stepDepth: i32, steps: i32, limit: i32,
+  tables: usize, lb: usize, cslack: usize, slacks: usize, glideMin: usize, cap: i32, counts: usize, scratch: usize,
+): u64 {
+  assert(r > 0 && N >= 1 && N <= 62 && D >= 0 && D <= N && first <= last && stepDepth >= 1 && stepDepth <= VERIFY_MAX_STEP_DEPTH && cap >= 1);
+  begin(q, r, N, stepDepth, steps, limit, tables, counts, scratch);
+  slackPtr = slacks;
+  lbPtr = lb;
+  classSlack = cslack;
+  glideMinPtr = glideMin;
+  glideCap = cap;
+  glideTop = -1;
+  nTop = N;
+  usePreimage = preimage != 0;
+  classMode = true;
+  memory.fill(glideMin, 0, <usize>cap << 4);
+  let leaves: u64 = 0;
+  for (let c = first; c <= last; c++) {
+    // the root: c's first D parities
+    let m = 0, b: u64 = 0, ip = 0, mp = 0, j = 0;
+    let cut = false;
+    while (j < D) {
+      const qm = load<u64>(qpowPtr + (<usize>m << 3));
+      const v = stepValue<u64>(b, qm, (c >> <u64>j) & 1);
+      if ((v & 1) != 0) m++;
+      b = stepImage<u64>(v, Q, HQ);
+      j++;
+      if (j - ip < dropDepth(m - mp)) {
+        ip = j;
+        mp = m;
+      }
+      if (j >= dropDepth(m)) {
+        cut = true;
+        break;
+      }
+    }
+    if (cut) {
+      settleClass(c, D, j, m, b, ip, mp);
+      if (c == last) break;
+      continue;
+    }
+    if (D == N) {
+      leaves++;
+      leaf(c, m, b, ip, mp);
+      if (c == last) break;
+      continue;
+    }
+    // depth-first below the root: stack level s holds the node at depth D + s
+    let s = 0;
+    unchecked((stA[0] = c));
+    unchecked((stB[0] = b));
+    unchecked((stM[0] = m));
+    unchecked((stIp[0] = ip));
+    unchecked((stMp[0] = mp));
+    unchecked((stState[0] = 0));
+    while (s >= 0) {
+      const st = unchecked(stState[s]);
+      if (st == 2) {
+        s--;
+        continue;
+      }
+      unchecked((stState[s] = st + 1));
+      const d = D + s; // the node's depth
+      const na = unchecked(stA[s]), nb = unchecked(stB[s]), nm = unchecked(stM[s]);
+      const qm = load<u64>(qpowPtr + (<usize>nm << 3));
+      const e0 = evenBit<u64>(nb);
+      // st 0: the even child (bit e0), st 1: the odd child
+      const ca = st == 0 ? evenResidue<u64>(na, e0, d) : na | ((<u64>(1 - <i32>e0)) << <u64>d);
+      const cm = st == 0 ? nm : nm + 1;
+      const cb = st == 0 ? evenImage<u64>(nb, qm, e0) : oddImage<u64>(nb, qm, e0, Q, HQ);
+      const cj = d + 1;
+      let cip = unchecked(stIp[s]), cmp = unchecked(stMp[s]);
+      if (cj - cip < dropDepth(cm - cmp)) {
+        cip = cj;
+        cmp = cm;
+      }
+      if (cj >= dropDepth(cm)) settleClass(ca, cj, cj, cm, cb, cip, cmp);
+      else if (cj == N) {
+        leaves++;
+        leaf(ca, cm, cb, cip, cmp);
+      } else {
+        s++;
+        unchecked((stA[s] = ca));
+        unchecked((stB[s] = cb));
+        unchecked((stM[s] = cm));
+        unchecked((stIp[s] = cip));
+        unchecked((stMp[s] = cmp));
+        unchecked((stState[s] = 0));
+      }
+    }
+    if (c == last) break;
+  }
+  // the block's own glide records: per g from the top, the least n so far
+  let least: u64 = <u64>-1;
+  for (let g = glideTop; g >= 0; g--) {
+    const p = glideMinPtr + (<usize>g << 4);
+    const n = load<u64>(p);
+    if (n != 0 && n < least) {
+      least = n;
+      push(CHANNEL_GLIDE_RECORDS, n, load<u64>(p, 8), <u64>g, 0);
+    }
+  }
+  end();
+  return leaves;
 }

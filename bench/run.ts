@@ -113,6 +113,42 @@ await verifyRun("verify baseline: same survivors, single steps", cores, { ...v50
 await verifyRun("verify 3x-1 (r < 0) [2^50, 2^50 + 2^32)", cores, v50, parseMap("3x-1"));
 // the published frontier: a slice at 2^71 (n as a 128-bit pair in the kernel)
 await verifyRun("verify [2^71, 2^71 + 2^32), K 26, step tables to 12", cores, { ...v50, from: 1n << 71n, to: (1n << 71n) + (1n << 32n) });
+// A range from 1 by classes (settled bit by bit, the preimage skip on): the time per added bit, and
+// the records up to 2^36 against the published lists (OEIS A060412 and A006884, from memory)
+const fromOne: number[] = [];
+for (const N of [30, 32, 34, 36]) {
+  const pool = await nodePool(cores);
+  try {
+    const t0 = performance.now();
+    const r = await runVerify(pool, { map, from: 1n, to: 1n << BigInt(N) });
+    const sec = (performance.now() - t0) / 1000;
+    fromOne.push(sec);
+    const leaves = r.counts.checked + r.counts.preimage;
+    rows.push([
+      `verify [1, 2^${N}) by classes (${leaves.toLocaleString("en-US")} leaves)`,
+      String(cores),
+      `2^${N} n`,
+      sec.toFixed(3),
+      `${(2 ** N / sec / 1e6).toFixed(0)} M n/s`,
+    ]);
+    if (N === 36) {
+      const a060412 = [217740015n, 1200991791n, 1827397567n, 2788008987n, 12235060455n];
+      const a006884 = [1410123943n, 8528817511n, 12327829503n, 23035537407n, 45871962271n, 51739336447n, 59152641055n, 59436135663n];
+      const tail = (xs: { n: bigint }[], k: number) =>
+        xs
+          .slice(-k)
+          .map((x) => x.n)
+          .join(",");
+      const glideOk = tail(r.glideRecords, a060412.length) === a060412.join(",");
+      const pathOk = tail(r.pathRecords, a006884.length) === a006884.join(",");
+      console.log(
+        `[1, 2^36): glide records end ${glideOk ? "as" : "NOT as"} A060412, path records end ${pathOk ? "as" : "NOT as"} A006884`,
+      );
+    }
+  } finally {
+    pool.terminate();
+  }
+}
 const v40 = { from: 1n << 40n, to: (1n << 40n) + (1n << 24n), sieveDepth: 20, stepDepth: 16 };
 await verifyRun("verify [2^40, 2^40 + 2^24)", cores, v40);
 await verifyRun("verify [2^40, 2^40 + 2^24) with --delay", cores, { ...v40, delay: true });
@@ -135,6 +171,9 @@ for (const r of rows) console.log(r.map((c, i) => (i === 0 ? c.padEnd(widths[i]!
 const best = Math.max(...perWorker);
 console.log(`kernel / plain TypeScript (survivors, 1 worker): ${(best / plainRate).toFixed(1)}x`);
 if (verifyRates.length > 1) console.log(`verify: ${cores} workers / 1 worker: ${(verifyRates[1]! / verifyRates[0]!).toFixed(2)}x`);
+console.log(
+  `verify from 1 by classes: t(2^36) / t(2^32) = ${(fromOne[3]! / fromOne[1]!).toFixed(2)} (goal 8; per added bit ${((fromOne[3]! / fromOne[0]!) ** (1 / 6)).toFixed(2)} from 2^30)`,
+);
 
 // Peak memory of a depth-34 raw export (the child reports its own max RSS, worker threads included).
 const dir = mkdtempSync(join(tmpdir(), "glidepath-bench-"));

@@ -1,7 +1,6 @@
 // Verification runs against published record lists and a plain BigInt brute force written here.
 import { afterAll, describe, expect, it } from "vitest";
 import { parseMap } from "../src/core/map.js";
-import type { CollatzMap } from "../src/core/map.js";
 import { runVerify } from "../src/jobs/verify/verify.js";
 import { traceBig } from "../src/jobs/verify/trace.js";
 import { earlyDescentBound } from "../src/jobs/verify/tables.js";
@@ -12,6 +11,7 @@ import { LimitError, UsageError } from "../src/core/errors.js";
 import { toExactJson } from "../src/core/json.js";
 import { verifyJson } from "../src/jobs/verify/certificate.js";
 import { nodePool } from "../src/node/kernel.js";
+import { bruteVerify as brute, expectAgrees } from "./brute.js";
 
 const pool = await nodePool(2);
 const pool1 = await nodePool(1);
@@ -19,111 +19,6 @@ afterAll(() => {
   pool.terminate();
   pool1.terminate();
 });
-
-/**
- * Every n of [from, to) iterated here in BigInt: its glide, path, cycle, or none within `cap` steps,
- * and (given the sieve depth K) its outcome as a verification counts it: sieved at depth j when its
- * class's coefficient q^m/2^j first drops below 1 at j <= K and n descends at that step, an exception
- * when it drops but n does not descend there, checked when it does not drop within K.
- */
-function brute(map: CollatzMap, from: bigint, to: bigint, cap: number, K = 0) {
-  const counts = { checked: 0n, exceptions: 0n, sievedByDepth: new Array<bigint>(K + 1).fill(0n) };
-  const q = BigInt(map.q),
-    r = BigInt(map.r);
-  const glideRecords: bigint[] = [];
-  const pathRecords: bigint[] = [];
-  const cycles: bigint[] = [];
-  const unresolved: bigint[] = [];
-  const entrants: [bigint, bigint][] = [];
-  let bestGlide = -1,
-    bestPath = -1n,
-    maxGlideN = -1n,
-    maxPathN = -1n;
-  for (let n = from; n < to; n++) {
-    let v = n,
-      steps = 0,
-      odd = 0,
-      path = n,
-      outcome = "unresolved",
-      cut = 0;
-    while (steps < cap) {
-      if (v % 2n === 0n) v /= 2n;
-      else {
-        v = (q * v + r) / 2n;
-        odd++;
-      }
-      steps++;
-      if (cut === 0 && steps <= K && q ** BigInt(odd) < 1n << BigInt(steps)) cut = steps;
-      if (v > path) path = v;
-      if (v < n) {
-        outcome = "descent";
-        break;
-      }
-      if (v === n) {
-        outcome = "cycle";
-        break;
-      }
-    }
-    if (outcome === "unresolved") {
-      // does it enter a cycle (of larger numbers)? every value seen, within twice the cap and 2^256
-      const seen = new Set<bigint>();
-      let u = n;
-      for (let i = 0; i <= 2 * cap && !seen.has(u) && u < 1n << 256n; i++) {
-        seen.add(u);
-        u = u % 2n === 0n ? u / 2n : (q * u + r) / 2n;
-      }
-      if (seen.has(u)) {
-        let min = u;
-        for (let w = u % 2n === 0n ? u / 2n : (q * u + r) / 2n; w !== u; w = w % 2n === 0n ? w / 2n : (q * w + r) / 2n)
-          if (w < min) min = w;
-        entrants.push([n, min]);
-      } else unresolved.push(n);
-      continue;
-    }
-    if (outcome === "descent") {
-      if (cut > 0 && steps === cut) counts.sievedByDepth[cut]!++;
-      else if (cut > 0) counts.exceptions++;
-      else counts.checked++;
-    }
-    if (outcome === "cycle") {
-      cycles.push(n);
-      path = n;
-    } else if (steps + odd > bestGlide) {
-      bestGlide = steps + odd;
-      glideRecords.push(n);
-      maxGlideN = n;
-    }
-    if (path > bestPath) {
-      bestPath = path;
-      pathRecords.push(n);
-      maxPathN = n;
-    }
-  }
-  return { glideRecords, pathRecords, cycles, unresolved, entrants, bestGlide, bestPath, maxGlideN, maxPathN, counts, K };
-}
-
-function expectAgrees(r: VerifyResult, b: ReturnType<typeof brute>) {
-  expect(r.glideRecords.map((g) => g.n)).toEqual(b.glideRecords);
-  expect(r.pathRecords.map((p) => p.n)).toEqual(b.pathRecords);
-  expect(r.cycleMembers.map((c) => c.n)).toEqual(b.cycles);
-  expect(r.unresolvedList).toEqual(b.unresolved);
-  expect(r.cycleEntrants.map((e) => [e.n, e.cycleMin])).toEqual(b.entrants);
-  expect(r.maxGlide?.standardSteps ?? -1).toBe(b.bestGlide);
-  expect(r.maxPath?.peakT ?? -1n).toBe(b.bestPath);
-  expect(r.maxGlide?.n ?? -1n).toBe(b.maxGlideN);
-  expect(r.maxPath?.n ?? -1n).toBe(b.maxPathN);
-  const c = r.counts;
-  if (b.K > 0) {
-    // counts by outcome and by cut depth, each n classified here
-    expect(r.sieveDepth).toBe(b.K);
-    expect(c.sievedByDepth).toEqual(b.counts.sievedByDepth);
-    expect(c.checked).toBe(b.counts.checked);
-    expect(c.exceptions).toBe(b.counts.exceptions);
-  }
-  expect(c.cycleEntrants).toBe(BigInt(b.entrants.length));
-  expect(c.cycleMembers).toBe(BigInt(b.cycles.length));
-  expect(c.unresolved).toBe(BigInt(b.unresolved.length));
-}
 
 const stable = (r: VerifyResult) => toExactJson({ ...verifyJson(r), seconds: 0, blockCount: 0, blockTarget: null });
 

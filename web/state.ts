@@ -31,6 +31,7 @@ const FIELDS: Record<View, readonly (readonly [key: string, id: string])[]> = {
     ["to", "verify-to"],
     ["vdepth", "verify-depth"],
     ["vdelay", "verify-delay"],
+    ["vmethod", "verify-method"],
   ],
   tree: [
     ["tn", "tree-n"],

@@ -20,7 +20,7 @@ import {
   MAX_VERIFY_STEP_DEPTH,
   planVerify,
 } from "../jobs/verify/plan.js";
-import type { VerifyRequest } from "../jobs/verify/plan.js";
+import type { VerifyPlan, VerifyRequest } from "../jobs/verify/plan.js";
 import { verifyTables } from "../jobs/verify/tables.js";
 import { runVerify, verifyJob } from "../jobs/verify/verify.js";
 import type { VerifyParams } from "../jobs/verify/verify.js";
@@ -49,6 +49,8 @@ interface VerifyOptions extends RawOptions {
   readonly stringIntegers?: boolean;
   readonly sieveTable?: string;
   readonly stepTable?: string;
+  readonly periods?: boolean;
+  readonly preimage?: boolean;
 }
 
 /** A table file named on the command line, read with its manifest (FILE.json) and checked against it. */
@@ -86,7 +88,12 @@ function rangeOptions(cmd: Command): Command {
   return cmd
     .option("--from <FROM>", "first number (decimal, or a sum of powers such as 2^50+2^32)")
     .option("--to <TO>", "the end of the range, not included")
-    .option("--sieve-depth <K>", `sieve depth: 1 to ${MAX_VERIFY_SIEVE_DEPTH} (default ${DEFAULT_SIEVE_DEPTH})`)
+    .option(
+      "--sieve-depth <K>",
+      `sieve depth: 1 to ${MAX_VERIFY_SIEVE_DEPTH} (default ${DEFAULT_SIEVE_DEPTH}; a range [1, 2^N) goes class by class to depth N unless given)`,
+    )
+    .option("--periods", "run a range [1, 2^N) by the sieve's periods too, not class by class")
+    .option("--no-preimage", "by classes: iterate every leaf, also those a smaller number's trajectory reaches")
     .option("--step-depth <k>", `table step depth: 1 to ${MAX_VERIFY_STEP_DEPTH} (default ${DEFAULT_STEP_DEPTH})`)
     .option("--delay", "also the delay of every n (steps to reach 1) and its records: each n iterated to the end, slower")
     .option(
@@ -110,8 +117,12 @@ export const verifyBatch: BatchJob<VerifyParams, VerifyResult> = {
     what: "the certificate",
     writes: "the certificate, JSON: name it .json",
     async write(pool, result, out, stamp, _tables, span) {
-      const { map, from, to, sieveDepth, stepDepth, maxSteps } = result;
-      const plan = planVerify({ map, from, to, sieveDepth, stepDepth, maxSteps });
+      const { map, from, to, sieveDepth, stepDepth, maxSteps, method, preimage } = result;
+      const plan = planVerify(
+        method === "classes"
+          ? { map, from, to, stepDepth, maxSteps, preimage }
+          : { map, from, to, sieveDepth, stepDepth, maxSteps, classes: false },
+      );
       const hashes = plan.engine === "kernel" ? await tableHashes(await verifyTables(pool, plan), sha256) : null;
       const cert = await certificate(result, hashes, stamp, { ...span, workers: pool.size });
       await writeFileAtomic(out.path, `${toExactJson(cert, 2)}\n`);
@@ -149,10 +160,14 @@ function request(o: VerifyOptions, map: CollatzMap): VerifyRequest {
     map,
     from,
     to,
-    sieveDepth: intOption("sieve-depth", o.sieveDepth, 1, MAX_VERIFY_SIEVE_DEPTH, DEFAULT_SIEVE_DEPTH),
+    // no depth given: the plan chooses (by classes for [1, 2^N), else the default depth)
+    sieveDepth:
+      o.sieveDepth === undefined ? undefined : intOption("sieve-depth", o.sieveDepth, 1, MAX_VERIFY_SIEVE_DEPTH, DEFAULT_SIEVE_DEPTH),
     stepDepth: intOption("step-depth", o.stepDepth, 1, MAX_VERIFY_STEP_DEPTH, DEFAULT_STEP_DEPTH),
     maxSteps: intOption("max-steps", o.maxSteps, 1, MAX_MAX_STEPS, DEFAULT_MAX_STEPS),
     delay: o.delay === true,
+    ...(o.periods === true ? { classes: false } : {}),
+    ...(o.preimage === false ? { preimage: false } : {}),
   };
 }
 
@@ -213,6 +228,8 @@ function startOrResume(o: VerifyOptions) {
     o.stepDepth !== undefined ||
     o.maxSteps !== undefined ||
     o.delay === true ||
+    o.periods === true ||
+    o.preimage === false ||
     o.map !== "3x+1"
   )
     throw new UsageError("--resume takes the run's options from the checkpoint: give no --map, --from, --to or depths");
@@ -293,8 +310,12 @@ async function verify(o: VerifyOptions): Promise<void> {
 }
 
 /** The report's first line, printed before the run starts. */
-function verifyHeader(p: { map: CollatzMap; from: bigint; to: bigint; sieveDepth: number; stepDepth: number }): string {
-  return `verification of ${p.map.name} over [${p.from}, ${p.to}): ${group(p.to - p.from)} numbers, sieve depth ${p.sieveDepth}, table steps of ${p.stepDepth}`;
+function verifyHeader(p: Pick<VerifyPlan, "map" | "from" | "to" | "sieveDepth" | "stepDepth" | "method" | "preimage">): string {
+  const how =
+    p.method === "classes"
+      ? `classes settled bit by bit to depth ${p.sieveDepth}${p.preimage ? ", leaves with a smaller preimage skipped" : ""}`
+      : `sieve depth ${p.sieveDepth}`;
+  return `verification of ${p.map.name} over [${p.from}, ${p.to}): ${group(p.to - p.from)} numbers, ${how}, table steps of ${p.stepDepth}`;
 }
 
 /** The report after its first line. */
@@ -307,6 +328,7 @@ function verifyText(r: VerifyResult, workers: number): string {
     `  sieved (descend at their class's depth)  ${group(c.sieved).padStart(22)}`,
     `  checked (survivors iterated)             ${group(c.checked).padStart(22)}`,
     `  exceptions of the sieve (iterated)       ${group(c.exceptions).padStart(22)}`,
+    ...(r.method === "classes" ? [`  reached from a smaller n (skipped)       ${group(c.preimage).padStart(22)}`] : []),
     `  cycle members                            ${group(c.cycleMembers).padStart(22)}`,
     `  enter a cycle of larger numbers          ${group(c.cycleEntrants).padStart(22)}`,
     `  ${`unresolved after ${plural(r.maxSteps, "step")}`.padEnd(39)}  ${group(c.unresolved).padStart(22)}`,

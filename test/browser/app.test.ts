@@ -108,10 +108,19 @@ describe.skipIf(!hasChromium)("web app", () => {
     const cert = parseExactJson(readFileSync((await download.path())!, "utf8")) as {
       kind: string;
       from: bigint;
+      method: string;
       tables: { sieve: { rows: bigint } };
     };
     expect(cert.kind).toBe("glidepath verification certificate");
-    expect(cert.tables.sieve.rows).toBe(A076227[12]);
+    // 1 to 2^20 goes class by class to depth 20, no sieve table; by the sieve's periods, the depth-12 table
+    expect([cert.method, cert.tables.sieve.rows]).toEqual(["classes", 0n]);
+    await page.selectOption("#verify-method", "periods");
+    await page.click("#verify-go");
+    const s2 = parseExactJson(await summaryOf(page)) as { verify: { glideRecords: { n: bigint }[] } };
+    expect(s2.verify.glideRecords).toEqual(s.verify.glideRecords);
+    const [download2] = await Promise.all([page.waitForEvent("download"), page.click("#verify-certificate")]);
+    const cert2 = parseExactJson(readFileSync((await download2.path())!, "utf8")) as typeof cert;
+    expect([cert2.method, cert2.tables.sieve.rows]).toEqual(["periods", A076227[12]]);
     await page.fill("#verify-to", "0");
     await page.click("#verify-go");
     expect(await page.textContent("#verify-to-error")).toMatch(/must be above/);

@@ -5,7 +5,7 @@ import { parseCount, parseWhole } from "../../src/core/parse.js";
 import { certificate, tableHashes, verifyJson } from "../../src/jobs/verify/certificate.js";
 import type { TableHashes } from "../../src/jobs/verify/certificate.js";
 import type { VerifyResult } from "../../src/jobs/verify/merge.js";
-import { MAX_VERIFY_SIEVE_DEPTH, planVerify } from "../../src/jobs/verify/plan.js";
+import { classDepthOf, MAX_VERIFY_SIEVE_DEPTH, planVerify } from "../../src/jobs/verify/plan.js";
 import type { VerifyRequest } from "../../src/jobs/verify/plan.js";
 import { verifyTables } from "../../src/jobs/verify/tables.js";
 import type { VerifyTableData } from "../../src/jobs/verify/tables.js";
@@ -45,7 +45,9 @@ export function readVerifyForm(): VerifyRequest | null {
     return null;
   }
   const delay = ($("verify-delay") as HTMLInputElement).checked;
-  const req: VerifyRequest = { map, from, to, sieveDepth: depth, delay };
+  // a range [1, 2^N) by classes (no sieve depth: the classes go to depth N), unless the periods are chosen
+  const byClasses = ($("verify-method") as HTMLSelectElement).value === "classes" && classDepthOf(map, from, to) !== null;
+  const req: VerifyRequest = byClasses ? { map, from, to, delay } : { map, from, to, sieveDepth: depth, delay, classes: false };
   try {
     planVerify(req);
   } catch (e) {
@@ -76,9 +78,16 @@ function render(r: VerifyResult): void {
   );
   const counts: [string, string][] = [
     ["numbers in the range", group(c.numbers)],
+    [
+      "method",
+      r.method === "classes"
+        ? `classes settled bit by bit to depth ${r.sieveDepth}${r.preimage ? ", leaves with a smaller preimage skipped" : ""}`
+        : `the depth-${r.sieveDepth} sieve's periods`,
+    ],
     ["sieved (descend at their class's depth)", group(c.sieved)],
     ["checked (survivors iterated)", group(c.checked)],
     ["exceptions of the sieve", group(c.exceptions)],
+    ...(r.method === "classes" ? ([["reached from a smaller n (skipped)", group(c.preimage)]] as [string, string][]) : []),
     ["cycle members", group(c.cycleMembers)],
     ["enter a cycle of larger numbers", group(c.cycleEntrants)],
     [`unresolved after ${group(r.maxSteps)} step${r.maxSteps === 1 ? "" : "s"}`, group(c.unresolved)],

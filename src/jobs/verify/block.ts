@@ -41,6 +41,8 @@ export interface BlockCounts {
   readonly cycleMembers: bigint;
   readonly cycleEntrants: bigint;
   readonly unresolved: bigint;
+  /** Runs by classes: leaves skipped because a smaller number's trajectory reaches them. */
+  readonly preimage: bigint;
 }
 
 export interface DelayPart {
@@ -53,7 +55,7 @@ export interface DelayPart {
 /** A finished block: its range, counts, its own records (the last of each list is its maximum) and lists. */
 export interface BlockEntry {
   readonly index: number;
-  readonly kind: "aligned" | "range" | "delay";
+  readonly kind: "aligned" | "range" | "delay" | "classes";
   readonly first: bigint;
   readonly last: bigint;
   readonly counts: BlockCounts;
@@ -137,6 +139,7 @@ interface Found {
   cycles: CycleMember[];
   unresolved: bigint[];
   handoffs: bigint;
+  preimage: bigint;
 }
 
 function finish(map: CollatzMap, maxSteps: number, block: Pick<VerifyBlock, "index" | "kind" | "first" | "last">, f: Found): BlockEntry {
@@ -154,6 +157,7 @@ function finish(map: CollatzMap, maxSteps: number, block: Pick<VerifyBlock, "ind
       cycleMembers: BigInt(cycleMembers.length),
       cycleEntrants: BigInt(s.entrants.length),
       unresolved: BigInt(s.still.length),
+      preimage: f.preimage,
     },
     glideRecords: sweepRecords(f.glides, (g) => g.standardSteps, -1).records,
     pathRecords: sweepRecords(f.paths, (p) => p.peakT, -1n).records,
@@ -191,6 +195,7 @@ const emptyFound = (K: number): Found => ({
   cycles: [],
   unresolved: [],
   handoffs: 0n,
+  preimage: 0n,
 });
 
 /** The run-level facts a block is finished with. */
@@ -214,6 +219,7 @@ export function finishKernelBlock(ctx: BlockContext, block: VerifyBlock, raw: Ve
   const f = emptyFound(K);
   f.checked = c[counters.checked]!;
   f.exceptions = c[counters.exceptions]!;
+  f.preimage = c[counters.preimage]!;
   if (block.kind === "aligned") {
     for (let j = 1; j <= K; j++) f.sievedByDepth[j]! += block.periods * ctx.stoppedClasses[j]! * (1n << BigInt(K - j));
     for (const d of block.exceptionDepths) f.sievedByDepth[d]!--;
@@ -237,6 +243,7 @@ export interface KernelCounters {
   readonly exceptions: number;
   readonly unresolved: number;
   readonly sieved: number;
+  readonly preimage: number;
 }
 
 function finishDelay(ctx: BlockContext, block: VerifyBlock, raw: VerifyBlockResult, counters: KernelCounters): BlockEntry {
@@ -277,6 +284,7 @@ function delayEntry(
       cycleMembers: 0n,
       cycleEntrants: 0n,
       unresolved: 0n,
+      preimage: 0n,
     },
     glideRecords: [],
     pathRecords: [],
@@ -316,5 +324,7 @@ export function bigintBlock(ctx: BlockContext, block: Pick<VerifyBlock, "index" 
 
 /** The numbers a block accounts for: its counts by outcome, added. */
 export function blockTotal(c: BlockCounts): bigint {
-  return c.checked + c.sievedByDepth.reduce((s, x) => s + x, 0n) + c.exceptions + c.cycleMembers + c.cycleEntrants + c.unresolved;
+  return (
+    c.checked + c.sievedByDepth.reduce((s, x) => s + x, 0n) + c.exceptions + c.cycleMembers + c.cycleEntrants + c.unresolved + c.preimage
+  );
 }

@@ -54,6 +54,8 @@ export function entryJson(e: BlockEntry) {
       cycleMembers: e.counts.cycleMembers,
       cycleEntrants: e.counts.cycleEntrants,
       unresolved: e.counts.unresolved,
+      // (runs by classes only: entries of other runs keep their digests)
+      ...(e.kind === "classes" ? { preimage: e.counts.preimage } : {}),
     },
     glideRecords: e.glideRecords.map(glideJson),
     pathRecords: e.pathRecords.map(pathJson),
@@ -82,6 +84,7 @@ export function verifyCountsJson(r: VerifyResult) {
     cycleMembers: c.cycleMembers,
     cycleEntrants: c.cycleEntrants,
     unresolved: c.unresolved,
+    ...(r.method === "classes" ? { preimage: c.preimage } : {}),
   };
 }
 
@@ -124,6 +127,9 @@ function paramsJson(r: VerifyResult) {
     stepDepth: r.stepDepth,
     maxSteps: r.maxSteps,
     blockTarget: r.blockTarget,
+    // which sieves ran: the depth-K sieve by periods, or classes settled bit by bit to depth N (and the preimage skip)
+    method: r.method,
+    preimage: r.preimage,
   };
 }
 
@@ -172,11 +178,13 @@ export function checkpoint(req: VerifyRequest, key: string, blocks: number, done
       map: req.map.name,
       from: req.from,
       to: req.to,
-      sieveDepth: req.sieveDepth,
+      sieveDepth: req.sieveDepth ?? null,
       stepDepth: req.stepDepth,
       maxSteps: req.maxSteps,
       delay: req.delay === true,
       blockTarget: req.blocks ?? null,
+      classes: req.classes ?? null,
+      preimage: req.preimage ?? null,
     },
     blocks,
     done: [...done.values()].sort((u, v) => u.index - v.index).map(entryJson),
@@ -255,16 +263,16 @@ function readList<T>(o: unknown, key: string, path: string, read: (x: unknown, p
 /** A block entry read back strictly. */
 export function readEntry(x: unknown, path: string): BlockEntry {
   const kind = text(x, "kind", path);
-  if (kind !== "aligned" && kind !== "range" && kind !== "delay")
-    throw new UsageError(`${path}.kind must be aligned, range or delay, got "${kind}"`);
+  if (kind !== "aligned" && kind !== "range" && kind !== "delay" && kind !== "classes")
+    throw new UsageError(`${path}.kind must be aligned, range, delay or classes, got "${kind}"`);
   const c = field(x, "counts", path);
   const cp = `${path}.counts`;
   const d = field(x, "delay", path);
   return {
     index: int(x, "index", path),
     kind,
-    first: big(x, "first", path, 1n),
-    last: big(x, "last", path, 1n),
+    first: big(x, "first", path, kind === "classes" ? 0n : 1n),
+    last: big(x, "last", path, kind === "classes" ? 0n : 1n),
     counts: {
       checked: big(c, "checked", cp),
       sievedByDepth: bigList(c, "sievedByDepth", cp),
@@ -272,6 +280,7 @@ export function readEntry(x: unknown, path: string): BlockEntry {
       cycleMembers: big(c, "cycleMembers", cp),
       cycleEntrants: big(c, "cycleEntrants", cp),
       unresolved: big(c, "unresolved", cp),
+      preimage: kind === "classes" ? big(c, "preimage", cp) : 0n,
     },
     glideRecords: readList(x, "glideRecords", path, readGlide),
     pathRecords: readList(x, "pathRecords", path, readPath),
@@ -313,11 +322,27 @@ function readRequest(j: unknown, path: string, delaySection = false): VerifyRequ
   // a checkpoint's request says delay: true or false; a certificate has a delay section or null
   const delay = delaySection ? field(j, "delay", path) !== null : field(j, "delay", path);
   if (typeof delay !== "boolean") throw new UsageError(`${where(path, "delay")} must be true or false`);
+  // the method: a certificate names it; a checkpoint keeps the request's choice (null: the default)
+  const o = j as Json;
+  const bool = (key: string) => {
+    const v = o[key] ?? null;
+    if (v !== null && typeof v !== "boolean") throw new UsageError(`${where(path, key)} must be true, false or null`);
+    return v === null ? undefined : v;
+  };
+  let classes = bool("classes");
+  if ("method" in o) {
+    const method = text(j, "method", path);
+    if (method !== "classes" && method !== "periods")
+      throw new UsageError(`${where(path, "method")} must be classes or periods, got "${method}"`);
+    classes = method === "classes";
+  }
   return {
     map,
     from: big(j, "from", path, 1n),
     to: big(j, "to", path, 1n),
-    sieveDepth: int(j, "sieveDepth", path, 1),
+    classes,
+    preimage: bool("preimage"),
+    sieveDepth: classes === true || o.sieveDepth === null ? undefined : int(j, "sieveDepth", path, 1),
     stepDepth: int(j, "stepDepth", path, 1),
     maxSteps: int(j, "maxSteps", path, 1),
     delay,

@@ -11,6 +11,7 @@ import { toExactJson } from "../../core/json.js";
 import { digestOf, entryJson, tableHashes, verifyFindings } from "./certificate.js";
 import type { ReadCertificate } from "./certificate.js";
 import { entryMismatch, mergeVerify } from "./merge.js";
+import type { VerifyCounts } from "./merge.js";
 import { planVerify } from "./plan.js";
 import type { VerifyPlan } from "./plan.js";
 import { verifyTables } from "./tables.js";
@@ -117,6 +118,33 @@ export function sievedInRange(
   return out;
 }
 
+/**
+ * A run by classes against the exact counter: at each depth j at most the members below 2^N of the
+ * classes cut at j (each 2^(N - j) numbers, 0 among them at depth 1); the members not counted there
+ * were iterated one by one (exceptions, cycle members and the like), and the leaves (checked and
+ * skipped) are at most the depth-N survivors, the missing ones also iterated one by one.
+ */
+function classCounts(plan: VerifyPlan, c: VerifyCounts): void {
+  const N = plan.sieveDepth;
+  const levels = exactCounts(plan.map, N).levels;
+  let cut = 0n;
+  for (let j = 1; j <= N; j++) {
+    const members = levels[j]!.stopped * (1n << BigInt(N - j)) - (j === 1 ? 1n : 0n);
+    if (c.sievedByDepth[j]! > members)
+      throw new Differs(
+        `counts.sievedByDepth at depth ${j}: ${c.sievedByDepth[j]} in the certificate; the exact counter's classes hold ${members}`,
+      );
+    cut += members;
+  }
+  const others = c.exceptions + c.cycleMembers + c.cycleEntrants + c.unresolved;
+  const leaves = levels[N]!.survivors;
+  const missing = cut - c.sieved + (leaves - c.checked - c.preimage);
+  if (c.checked + c.preimage > leaves || missing !== others)
+    throw new Differs(
+      `counts: ${c.checked} checked and ${c.preimage} skipped of ${leaves} survivors at depth ${N}, ${others} iterated one by one; the exact counter leaves ${missing} for those`,
+    );
+}
+
 /** Every number the certificate lists, iterated again in BigInt: how many. */
 function iterateListed(plan: VerifyPlan, doc: ReturnType<typeof verifyFindings>): number {
   const { map, maxSteps } = plan;
@@ -218,11 +246,27 @@ export async function checkCertificate(c: ReadCertificate, o: CheckOptions): Pro
       const hashes = await tableHashes(data, o.sha256);
       expectSame(c.tables, hashes, "tables", "the rebuilt tables");
       checked.push(
-        `the sieve table (${hashes.sieve.rows} rows) and the step table (${hashes.steps.rows} rows) rebuilt: hashes and rows equal`,
+        plan.method === "classes"
+          ? `the step table (${hashes.steps.rows} rows) rebuilt: hash and rows equal (a run by classes has no sieve table)`
+          : `the sieve table (${hashes.sieve.rows} rows) and the step table (${hashes.steps.rows} rows) rebuilt: hashes and rows equal`,
       );
-      const sieved = sievedInRange(plan.map, plan.sieveDepth, plan.from, plan.to, data.exceptions);
-      expectSame(merged.counts.sievedByDepth, sieved, "counts.sievedByDepth", `the depth-${plan.sieveDepth} sieve restricted to the range`);
-      checked.push(`the sieved counts by depth: equal to the depth-${plan.sieveDepth} sieve restricted to the range, less its exceptions`);
+      if (plan.method === "classes") {
+        classCounts(plan, merged.counts);
+        checked.push(
+          `the counts by depth: within the exact counter's classes cut at each depth (times their members below 2^${plan.sieveDepth}), the rest iterated one by one; the leaves within its depth-${plan.sieveDepth} survivors`,
+        );
+      } else {
+        const sieved = sievedInRange(plan.map, plan.sieveDepth, plan.from, plan.to, data.exceptions);
+        expectSame(
+          merged.counts.sievedByDepth,
+          sieved,
+          "counts.sievedByDepth",
+          `the depth-${plan.sieveDepth} sieve restricted to the range`,
+        );
+        checked.push(
+          `the sieved counts by depth: equal to the depth-${plan.sieveDepth} sieve restricted to the range, less its exceptions`,
+        );
+      }
     }
     const listed = iterateListed(plan, derived);
     checked.push(

@@ -33,7 +33,15 @@ export function verifyPrepare(kernel: Kernel, t: VerifyTables): void {
   const depth = Math.max(t.depth, t.stepDepth);
   kernel.tablesFor("tables", `drop ${t.q} ${depth}`, () => writeDropTables(kernel, tables, t.q, depth));
   new Uint32Array(kernel.memory, a, S).set(t.residues);
-  kernel.call("verifyPrepare", [t.q, t.r, t.depth, t.stepDepth, tables, S, a, m, b, peak, sm, sb, speak, trough]);
+  if (t.classes) {
+    const c = t.classes;
+    new BigUint64Array(kernel.memory, kernel.region("verify.classBounds", 8 * c.bounds.length), c.bounds.length).set(c.bounds);
+    new BigUint64Array(kernel.memory, kernel.region("verify.classSlacks", 8 * c.slacks.length), c.slacks.length).set(c.slacks);
+    kernel.region("verify.glideMin", 16 * c.glideCap);
+  }
+  // (a run by classes has no sieve table: its depth N only sizes the per-m tables above)
+  const sieveDepth = Math.min(t.depth, MAX_VERIFY_SIEVE_DEPTH);
+  kernel.call("verifyPrepare", [t.q, t.r, sieveDepth, t.stepDepth, tables, S, a, m, b, peak, sm, sb, speak, trough]);
 }
 
 /**
@@ -56,6 +64,7 @@ export function verifyBlockEntry(kernel: Kernel, tables: VerifyTables | null, bl
       exceptions: L("VERIFY_COUNT_EXCEPTIONS"),
       unresolved: L("VERIFY_COUNT_UNRESOLVED"),
       sieved: L("VERIFY_COUNT_SIEVED"),
+      preimage: L("VERIFY_COUNT_PREIMAGE"),
     },
   );
 }
@@ -113,6 +122,33 @@ function verifyBlock(kernel: Kernel, t: VerifyTables, block: VerifyBlock): Verif
         t.sievedSlack,
         t.survivorSlack,
         slacks,
+        counts,
+        scratch,
+      ],
+      sink,
+    );
+  } else if (block.kind === "classes") {
+    const c = t.classes;
+    if (!c) throw new Error("internal error: a block of classes before its run's class tables");
+    visited = kernel.call(
+      "verifyClasses",
+      [
+        t.q,
+        t.r,
+        t.depth,
+        Number(block.h0),
+        block.first,
+        block.last,
+        c.preimage ? 1 : 0,
+        t.stepDepth,
+        block.maxSteps,
+        block.limitBits,
+        tables,
+        kernel.region("verify.classBounds", 8 * c.bounds.length),
+        kernel.region("verify.classSlacks", 8 * c.slacks.length),
+        slacks,
+        kernel.region("verify.glideMin", 16 * c.glideCap),
+        c.glideCap,
         counts,
         scratch,
       ],

@@ -7,6 +7,13 @@ import { blockTotal, byN, smallestBy, sweepRecords } from "./block.js";
 import { blockSize } from "./plan.js";
 import type { BlockEntry, CycleEntrant, CycleMember, GlideRecord, PathRecord } from "./block.js";
 import type { BlockSpec, VerifyPlan } from "./plan.js";
+import { UsageError } from "../../core/errors.js";
+
+/**
+ * A run by classes with the preimage skip met a number that neither descends nor returns: a skipped
+ * leaf could share its trajectory, so the lists would not be whole. runVerify runs again without the skip.
+ */
+export class PreimageSkipError extends UsageError {}
 
 /** Delays of a run: the records (steps to reach 1, in standard steps and steps of T) and the n that do not reach 1. */
 export interface DelayResult {
@@ -30,11 +37,16 @@ export interface VerifyCounts {
   /** n whose trajectory enters a cycle of larger numbers (shown by Brent's method) instead of descending. */
   readonly cycleEntrants: bigint;
   readonly unresolved: bigint;
+  /** Runs by classes: leaves skipped because a smaller number's trajectory reaches them. */
+  readonly preimage: bigint;
 }
 
 /** A run's result: its plan's parameters (engine: "kernel", u128 in wasm and BigInt past 128 bits, or "bigint"), and what it found. */
 export interface VerifyResult
-  extends Pick<VerifyPlan, "map" | "from" | "to" | "sieveDepth" | "stepDepth" | "maxSteps" | "blockTarget" | "engine"> {
+  extends Pick<
+    VerifyPlan,
+    "map" | "from" | "to" | "sieveDepth" | "stepDepth" | "maxSteps" | "blockTarget" | "engine" | "method" | "preimage"
+  > {
   readonly counts: VerifyCounts;
   /** Each n whose glide (standard steps), or path, beats every smaller n of the range. */
   readonly glideRecords: GlideRecord[];
@@ -73,8 +85,8 @@ export function entryMismatch(blocks: readonly BlockSpec[], entries: readonly Bl
 
 /** The plan's parameters a result repeats. */
 function pickParams(p: VerifyPlan) {
-  const { map, from, to, sieveDepth, stepDepth, maxSteps, blockTarget, engine } = p;
-  return { map, from, to, sieveDepth, stepDepth, maxSteps, blockTarget, engine };
+  const { map, from, to, sieveDepth, stepDepth, maxSteps, blockTarget, engine, method, preimage } = p;
+  return { map, from, to, sieveDepth, stepDepth, maxSteps, blockTarget, engine, method, preimage };
 }
 
 /** Records of consecutive candidate lists: each list swept against the best of all before it. */
@@ -100,7 +112,7 @@ export function mergeVerify(plan: VerifyPlan, entries: readonly BlockEntry[], se
   if (bad) throw new Error(`internal error: ${bad}`);
   const K = plan.sieveDepth;
   const sievedByDepth = new Array<bigint>(K + 1).fill(0n);
-  const t = { checked: 0n, exceptions: 0n, cycles: 0n, entrants: 0n, unresolved: 0n, handoffs: 0n, unreached: 0n };
+  const t = { checked: 0n, exceptions: 0n, cycles: 0n, entrants: 0n, unresolved: 0n, handoffs: 0n, unreached: 0n, preimage: 0n };
   const cycleMembers: CycleMember[] = [];
   const cycleEntrants: CycleEntrant[] = [];
   const unresolvedList: bigint[] = [];
@@ -116,6 +128,7 @@ export function mergeVerify(plan: VerifyPlan, entries: readonly BlockEntry[], se
     t.cycles += c.cycleMembers;
     t.entrants += c.cycleEntrants;
     t.unresolved += c.unresolved;
+    t.preimage += c.preimage;
     t.handoffs += e.handoffs;
     c.sievedByDepth.forEach((x, j) => {
       sievedByDepth[j]! += x;
@@ -123,15 +136,25 @@ export function mergeVerify(plan: VerifyPlan, entries: readonly BlockEntry[], se
     cycleMembers.push(...e.cycleMembers);
     cycleEntrants.push(...e.cycleEntrants);
     unresolvedList.push(...e.unresolved);
-    glides.add(e.glideRecords);
-    paths.add(e.pathRecords);
+    // blocks of classes interleave in n: their candidates are swept once, together, below
+    if (e.kind !== "classes") {
+      glides.add(e.glideRecords);
+      paths.add(e.pathRecords);
+    }
     if (e.delay) {
       t.unreached += e.delay.unreached;
       unreachedList.push(...e.delay.unreachedList);
       delays.add(e.delay.records);
     }
   }
-  const { checked, exceptions, cycles, entrants, unresolved, handoffs, unreached } = t;
+  const classes = entries.filter((e) => e.kind === "classes");
+  glides.add(classes.flatMap((e) => e.glideRecords));
+  paths.add(classes.flatMap((e) => e.pathRecords));
+  const { checked, exceptions, cycles, entrants, unresolved, handoffs, unreached, preimage } = t;
+  if (plan.preimage && (unresolved > 0n || entrants > 0n))
+    throw new PreimageSkipError(
+      `the run met ${unresolved} unresolved numbers and ${entrants} cycle entrants with the preimage sieve on, which may have skipped more of them: run it again without (--no-preimage)`,
+    );
   const glideRecords = glides.records;
   const pathRecords = paths.records;
   const delayRecords = delays.records;
@@ -147,6 +170,7 @@ export function mergeVerify(plan: VerifyPlan, entries: readonly BlockEntry[], se
       cycleMembers: cycles,
       cycleEntrants: entrants,
       unresolved,
+      preimage,
     },
     glideRecords,
     pathRecords,

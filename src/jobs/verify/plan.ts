@@ -34,12 +34,19 @@ export interface VerifyRequest {
   readonly limitBits?: number;
   /** Also the delay of every n (its total stopping time: the steps to reach 1) and its records. */
   readonly delay?: boolean;
+  /**
+   * A range [1, 2^N) is settled class by class (classes.ts in the kernel: verifyClasses) unless this
+   * is false or a sieve depth is given; the preimage skip of its leaves unless `preimage` is false.
+   */
+  readonly classes?: boolean;
+  readonly preimage?: boolean;
 }
 
 /** One block of a plan: first..last (inclusive); aligned blocks are n = a + 2^K h, h0 <= h < h0 + periods. */
 export interface BlockSpec {
   readonly index: number;
-  readonly kind: "aligned" | "range" | "delay";
+  /** classes: the roots c mod 2^D with first <= c <= last (D = h0), 2^(N - D) numbers each (periods), 0 left out. */
+  readonly kind: "aligned" | "range" | "delay" | "classes";
   readonly first: bigint;
   readonly last: bigint;
   readonly h0: bigint;
@@ -57,6 +64,10 @@ export interface VerifyPlan {
   readonly limitBits: number;
   readonly engine: "kernel" | "bigint";
   readonly delay: boolean;
+  /** "classes": [1, 2^N) settled class by class to depth N = sieveDepth; "periods": the depth-K sieve's periods and ranges. */
+  readonly method: "classes" | "periods";
+  /** classes: leaves with a smaller number reaching them are skipped (the preimage sieve). */
+  readonly preimage: boolean;
   /** The request's block count (null: from the range's size), which certificates keep to re-plan the run. */
   readonly blockTarget: number | null;
   /** Names the parameters: checkpoints and blocks of another plan are refused. */
@@ -65,7 +76,18 @@ export interface VerifyPlan {
 }
 
 /** The size of a block (numbers). */
-export const blockSize = (b: { first: bigint; last: bigint }) => b.last - b.first + 1n;
+export const blockSize = (b: Pick<BlockSpec, "kind" | "first" | "last" | "periods">) =>
+  b.kind === "classes" ? (b.last - b.first + 1n) * b.periods - (b.first === 0n ? 1n : 0n) : b.last - b.first + 1n;
+
+/** Roots of a run by classes: residues mod 2^min(N, ROOT_DEPTH). */
+const ROOT_DEPTH = 16;
+
+/** N when [from, to) is [1, 2^N) and can be settled class by class (r > 0, classes within 64 bits), else null. */
+export function classDepthOf(map: CollatzMap, from: bigint, to: bigint): number | null {
+  if (from !== 1n || map.r < 0 || to < 2n || (to & (to - 1n)) !== 0n) return null;
+  const N = to.toString(2).length - 1;
+  return N <= kernelDepthLimit(map) ? N : null;
+}
 
 /**
  * Checks a request and splits it into blocks.
@@ -75,12 +97,17 @@ export function planVerify(req: VerifyRequest): VerifyPlan {
   const { map, from, to } = req;
   if (from < 1n) throw new UsageError(`from must be at least 1, got ${from}`);
   if (to <= from) throw new UsageError(`to must be above from (the range is [from, to)), got from ${from} to ${to}`);
-  const sieveDepth = req.sieveDepth ?? DEFAULT_SIEVE_DEPTH;
-  const stepDepth = req.stepDepth ?? DEFAULT_STEP_DEPTH;
   const maxSteps = req.maxSteps ?? DEFAULT_MAX_STEPS;
+  // (a class settled at depth j counts its members as descending at step j: within the cap)
+  const fits = (N: number | null) => (N !== null && N <= maxSteps ? N : null);
+  const classDepth = req.classes === false || req.sieveDepth !== undefined ? null : fits(classDepthOf(map, from, to));
+  const method = classDepth === null ? "periods" : "classes";
+  const preimage = method === "classes" && req.preimage !== false;
+  const sieveDepth = classDepth ?? req.sieveDepth ?? DEFAULT_SIEVE_DEPTH;
+  const stepDepth = req.stepDepth ?? DEFAULT_STEP_DEPTH;
   const limitBits = req.limitBits ?? 128;
   const depthLimit = Math.min(MAX_VERIFY_SIEVE_DEPTH, kernelDepthLimit(map));
-  if (!Number.isInteger(sieveDepth) || sieveDepth < 1 || sieveDepth > depthLimit)
+  if (method === "periods" && (!Number.isInteger(sieveDepth) || sieveDepth < 1 || sieveDepth > depthLimit))
     throw new LimitError(`sieve depth ${sieveDepth} is out of range for ${map.name}: 1 to ${depthLimit} (the sieve table's exact limit)`);
   const stepLimit = Math.min(MAX_VERIFY_STEP_DEPTH, kernelDepthLimit(map));
   if (!Number.isInteger(stepDepth) || stepDepth < 1 || stepDepth > stepLimit)
@@ -88,7 +115,7 @@ export function planVerify(req: VerifyRequest): VerifyPlan {
   if (!Number.isInteger(maxSteps) || maxSteps < 1 || maxSteps > MAX_MAX_STEPS)
     throw new UsageError(`max steps must be from 1 to ${MAX_MAX_STEPS}`);
   // the sieve counts its classes as descending at their cut depth j <= K, which a smaller cap would contradict
-  if (maxSteps < sieveDepth)
+  if (method === "periods" && maxSteps < sieveDepth)
     throw new UsageError(
       `max steps ${maxSteps} is below the sieve depth ${sieveDepth}: give a sieve depth of at most ${maxSteps}, or more steps`,
     );
@@ -102,7 +129,7 @@ export function planVerify(req: VerifyRequest): VerifyPlan {
   const blockTarget = req.blocks ?? null;
   if (blockTarget !== null && (!Number.isInteger(blockTarget) || blockTarget < 1))
     throw new UsageError("blocks must be a positive whole number");
-  const key = `${map.name}|${from}|${to}|${sieveDepth}|${stepDepth}|${maxSteps}|${limitBits}${delay ? "|delay" : ""}${blockTarget === null ? "" : `|blocks ${blockTarget}`}`;
+  const key = `${map.name}|${from}|${to}|${sieveDepth}|${stepDepth}|${maxSteps}|${limitBits}${delay ? "|delay" : ""}${blockTarget === null ? "" : `|blocks ${blockTarget}`}${method === "classes" ? `|classes${preimage ? "+preimage" : ""}` : ""}`;
   const blocks: BlockSpec[] = [];
   const push = (kind: BlockSpec["kind"], first: bigint, last: bigint, h0 = 0n, periods = 0n) =>
     blocks.push({ index: blocks.length, kind, first, last, h0, periods });
@@ -112,7 +139,17 @@ export function planVerify(req: VerifyRequest): VerifyPlan {
   if (engine === "bigint") {
     chunks("range", from, to, BIGINT_BLOCK);
     if (delay) chunks("delay", from, to, BIGINT_BLOCK);
-    return { map, from, to, sieveDepth, stepDepth, maxSteps, limitBits, engine, delay, blockTarget, key, blocks };
+    return { map, from, to, sieveDepth, stepDepth, maxSteps, limitBits, engine, delay, method, preimage, blockTarget, key, blocks };
+  }
+  if (method === "classes") {
+    const D = Math.min(sieveDepth, ROOT_DEPTH);
+    const roots = 1n << BigInt(D);
+    const target = BigInt(Math.max(1, blockTarget ?? Math.max(16, Math.min(4096, Number(to >> 26n)))));
+    const per = (roots + target - 1n) / target;
+    for (let c = 0n; c < roots; c += per)
+      push("classes", c, c + per <= roots ? c + per - 1n : roots - 1n, BigInt(D), 1n << BigInt(sieveDepth - D));
+    if (delay) chunks("delay", from, to, RANGE_BLOCK);
+    return { map, from, to, sieveDepth, stepDepth, maxSteps, limitBits, engine, delay, method, preimage, blockTarget, key, blocks };
   }
   const period = 1n << BigInt(sieveDepth);
   // aligned periods: [hA 2^K, hB 2^K), all below 2^127
@@ -131,5 +168,5 @@ export function planVerify(req: VerifyRequest): VerifyPlan {
     if (hB * period < to) chunks("range", hB * period, to, RANGE_BLOCK);
   }
   if (delay) chunks("delay", from, to, RANGE_BLOCK);
-  return { map, from, to, sieveDepth, stepDepth, maxSteps, limitBits, engine, delay, blockTarget, key, blocks };
+  return { map, from, to, sieveDepth, stepDepth, maxSteps, limitBits, engine, delay, method, preimage, blockTarget, key, blocks };
 }

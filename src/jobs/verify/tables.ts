@@ -48,6 +48,31 @@ export interface VerifyTableData {
 export async function verifyTables(pool: KernelPool, plan: VerifyPlan, options: RunOptions = {}): Promise<VerifyTableData> {
   const { map, sieveDepth: K, stepDepth: KS } = plan;
   const levels = exactCounts(map, K).levels;
+  if (plan.method === "classes") {
+    // no sieve table: the classes are extended in the kernel; the step tables as for every run
+    const stepBytes = await stepBytesOf(pool, map, KS, options);
+    const tables: VerifyTables = {
+      key: plan.key,
+      q: map.q,
+      r: map.r,
+      depth: K,
+      stepDepth: KS,
+      residues: new Uint32Array(0),
+      sievedGlide: 0,
+      sievedPeak: 0,
+      sievedSlack: 0n,
+      survivorSlack: slack(map, K),
+      slacks: BigUint64Array.from({ length: KS + 1 }, (_, d) => slack(map, d)),
+      stoppedClasses: BigUint64Array.from(levels, (l) => l.stopped),
+      classes: {
+        bounds: pathBounds(map, K, plan.maxSteps),
+        slacks: BigUint64Array.from({ length: K + 1 }, (_, j) => slack(map, j)),
+        preimage: plan.preimage,
+        glideCap: Math.min(2 * plan.maxSteps + 2, GLIDE_CAP),
+      },
+    };
+    return { tables, sieveBytes: new Uint8Array(0), stepBytes, exceptions: [], stoppedClasses: levels.map((l) => l.stopped) };
+  }
   const rows = levels[K]!.survivors;
   const sorter = new ResidueSorter(K, Math.min(K, 10), 0, 1 << Math.min(K, 10));
   const sieve = await runSieve(
@@ -72,13 +97,7 @@ export async function verifyTables(pool: KernelPool, plan: VerifyPlan, options: 
     at += part.length;
   }
   if (BigInt(at) !== rows) throw new Error(`internal error: ${at} survivors sorted, the exact counter says ${rows}`);
-  const stepParts = stepTableRaw(await stepTable(pool, map, KS, { signal: options.signal }));
-  const stepBytes = new Uint8Array(stepParts.reduce((s, p) => s + p.length, 0));
-  let offset = 0;
-  for (const part of stepParts) {
-    stepBytes.set(part, offset);
-    offset += part.length;
-  }
+  const stepBytes = await stepBytesOf(pool, map, KS, options);
   // the deepest cut within K, and the most odd steps a class cut by K can have before its cut
   const odds = stoppingOdds(map.q, K);
   let sievedGlide = 0;
@@ -100,8 +119,56 @@ export async function verifyTables(pool: KernelPool, plan: VerifyPlan, options: 
     survivorSlack: slack(map, K),
     slacks: BigUint64Array.from({ length: KS + 1 }, (_, d) => slack(map, d)),
     stoppedClasses: BigUint64Array.from(levels, (l) => l.stopped),
+    classes: null,
   };
   return { tables, sieveBytes: new Uint8Array(residues.buffer), stepBytes, exceptions, stoppedClasses: levels.map((l) => l.stopped) };
+}
+
+/** The step table of depth KS as `glidepath steps --out` writes it. */
+async function stepBytesOf(pool: KernelPool, map: CollatzMap, KS: number, options: RunOptions): Promise<Uint8Array> {
+  const stepParts = stepTableRaw(await stepTable(pool, map, KS, { signal: options.signal }));
+  const stepBytes = new Uint8Array(stepParts.reduce((s, p) => s + p.length, 0));
+  let offset = 0;
+  for (const part of stepParts) {
+    stepBytes.set(part, offset);
+    offset += part.length;
+  }
+  return stepBytes;
+}
+
+/** Standard glides a run by classes keeps one least n for (larger ones are sent as they come). */
+const GLIDE_CAP = 1 << 16;
+/** Every n below 2^PROBE_BITS is a probe of the path bounds, and 2^k - 1, 2^k - 3 above. */
+const PROBE_BITS = 12;
+
+/**
+ * Lower bounds on the largest path of any number below 2^k, k = 0..N - 1, as (low, high) u64 pairs:
+ * the largest path (its highest value before it goes below itself; n itself on a cycle) of the
+ * probes below 2^k, each iterated exactly in BigInt (a probe past the cap is left out). In a run from
+ * 1, n in [2^k, 2^(k+1)) is a path record only if its path beats this bound: the kernel iterates a
+ * number for its path only when a bound on it could.
+ * @example pathBounds(parseMap("3x+1"), 8, 1000)[2 * 3] // 26n: the path of 7 (T: 7, 11, 17, 26, ...)
+ */
+export function pathBounds(map: CollatzMap, N: number, maxSteps: number): BigUint64Array {
+  const probes: bigint[] = [];
+  for (let n = 1n; n < 1n << BigInt(Math.min(N, PROBE_BITS)); n++) probes.push(n);
+  for (let k = PROBE_BITS; k < N; k++) probes.push((1n << BigInt(k)) - 3n, (1n << BigInt(k)) - 1n);
+  const out = new BigUint64Array(2 * N);
+  let best = 0n;
+  let i = 0;
+  for (let k = 0; k < N; k++) {
+    // the probes below 2^k
+    while (i < probes.length && probes[i]! < 1n << BigInt(k)) {
+      const t = traceBig(map, probes[i]!, maxSteps, 0);
+      const path = t.outcome === "descent" ? t.path : t.outcome === "cycle" ? probes[i]! : 0n;
+      if (path > best) best = path;
+      i++;
+    }
+    if (best >> 128n !== 0n) throw new Error("internal error: a path bound past 128 bits");
+    out[2 * k] = BigInt.asUintN(64, best);
+    out[2 * k + 1] = best >> 64n;
+  }
+  return out;
 }
 
 /** Most numbers below the early-descent bound that a run iterates here to list them. */

@@ -11,7 +11,7 @@ import { runWhole, shardEstimate } from "../../engine/plan.js";
 import type { JobKind, PartBase, ShardOptions } from "../../engine/plan.js";
 import type { KernelPool, RunOptions } from "../../engine/pool.js";
 import type { BlockEntry } from "./block.js";
-import { mergeVerify } from "./merge.js";
+import { mergeVerify, PreimageSkipError } from "./merge.js";
 import type { VerifyResult } from "./merge.js";
 import { blockSize, planVerify } from "./plan.js";
 import type { BlockSpec, VerifyPlan, VerifyRequest } from "./plan.js";
@@ -209,6 +209,13 @@ export const verifyJob: JobKind<VerifyParams, VerifyPart, VerifyResult, VerifyOp
  * (the plan layer's one-shard run, as for every job).
  * @example const r = await runVerify(pool, { map: parseMap("3x+1"), from: 1n, to: 1n << 20n }); r.maxGlide?.n // 77671n
  */
-export function runVerify(pool: KernelPool, req: VerifyRequest, options: VerifyOptions = {}): Promise<VerifyResult> {
-  return runWhole(pool, verifyJob, req, options);
+export async function runVerify(pool: KernelPool, req: VerifyRequest, options: VerifyOptions = {}): Promise<VerifyResult> {
+  try {
+    return await runWhole(pool, verifyJob, req, options);
+  } catch (e) {
+    // the preimage sieve met a trajectory that does not descend: the run again without it has whole lists
+    if (!(e instanceof PreimageSkipError)) throw e;
+    const { done: _done, tables: _tables, ...rest } = options;
+    return runWhole(pool, verifyJob, { ...req, preimage: false }, rest);
+  }
 }
