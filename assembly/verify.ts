@@ -781,11 +781,45 @@ export function preimageBelow(n: u64): u64 {
   return 0;
 }
 
-/** The preimage skip of verifyClasses for one n (the tests compare it with a search in BigInt). */
+// Above skipFrom the skip depends on n mod q^2 alone (the size conditions above hold from there on):
+// skipTable[n mod skipPeriod] is 1 when it applies, one division a leaf instead of three.
+let skipFrom: u64 = 0;
+let skipPeriod: u64 = 1;
+const skipTable: usize = memory.data(256 * 256);
+
+/** Fills the residue table of the preimage skip (q < 256), or makes every n take the direct test. */
+function prepareSkip(): void {
+  const r = <u64>(HQ * 2 - Q);
+  if (Q >= 256) {
+    skipFrom = <u64>-1;
+    return;
+  }
+  skipPeriod = Q * Q;
+  // every size condition holds once 8n > r (q + 2) + q^2 and (4 - q) n, (8 - q) n exceed r where positive
+  skipFrom = 2 * r * (Q + 2) + 2 * Q * Q + 8 * r + 64;
+  for (let t: u64 = 0; t < skipPeriod; t++) {
+    const n = skipFrom + ((t + skipPeriod - (skipFrom % skipPeriod)) % skipPeriod);
+    store<u8>(skipTable + <usize>(n % skipPeriod), preimageBelow(n) != 0 ? 1 : 0);
+  }
+}
+
+/** Whether a leaf n is skipped (prepareSkip first). */
+@inline function skipped(n: u64): bool {
+  return n < skipFrom ? preimageBelow(n) != 0 : load<u8>(skipTable + <usize>(n % skipPeriod)) != 0;
+}
+
+/**
+ * The preimage skip of verifyClasses for one n, as a leaf takes it (the residue table from skipFrom
+ * on): the smaller u, 0 when n is not skipped, 2^63 when the table and the direct test disagree.
+ * The tests compare it with a search in BigInt.
+ */
 export function verifyPreimage(q: u32, r: i32, n: u64): u64 {
   assert(r > 0 && n >= 1 && n < (<u64>1) << 60);
   setMap(q, r);
-  return preimageBelow(n);
+  prepareSkip();
+  const u = preimageBelow(n);
+  if (skipped(n) != (u != 0)) return (<u64>1) << 63;
+  return u;
 }
 
 /** Iterates n exactly and books it (class mode): counted under `counted` when it descends. */
@@ -847,14 +881,21 @@ function settleClass(a: u64, D: i32, j: i32, m: i32, b: u64, ip: i32, mp: i32): 
 
 /** A leaf: n = a survived N steps with T^N(n) = b (m odd, peak ip, mp); iterated on to its descent. */
 function leaf(n: u64, m: i32, b: u64, ip: i32, mp: i32): void {
-  if (usePreimage && preimageBelow(n) != 0) {
+  if (usePreimage && skipped(n)) {
     bump(VERIFY_COUNT_PREIMAGE);
     return;
   }
   bandBound(n);
-  peakBound(n, 0, ip, mp, load<u64>(classSlack + (<usize>nTop << 3)));
-  const bh0 = carry ? <u64>-1 : rhi;
-  const done = descend(n, 0, 64 - <i32>clz(n), b, 0, nTop, m, rlo, bh0);
+  const nBits = 64 - <i32>clz(n);
+  const slack = load<u64>(classSlack + (<usize>nTop << 3));
+  let bl = n, bh: u64 = 0;
+  // the bound on the first N steps' values is below 2^(nBits + bitlen(q^mp) - ip + 1) while the slack is below 2^nBits
+  if (nBits + dropDepth(mp) - ip + 2 >= bestPathBits || 64 - <i32>clz(slack) > nBits) {
+    peakBound(n, 0, ip, mp, slack);
+    bl = rlo;
+    bh = carry ? <u64>-1 : rhi;
+  }
+  const done = descend(n, 0, nBits, b, 0, nTop, m, bl, bh);
   if (done == DONE_DESCENT) {
     bump(VERIFY_COUNT_CHECKED);
     noteGlideMin(n, glideT + glideOdd, glideT);
@@ -894,6 +935,7 @@ export function verifyClasses(
   nTop = N;
   usePreimage = preimage != 0;
   classMode = true;
+  if (usePreimage) prepareSkip();
   memory.fill(glideMin, 0, <usize>cap << 4);
   let leaves: u64 = 0;
   for (let c = first; c <= last; c++) {
