@@ -697,16 +697,17 @@ export function verifyDelays(
 // with a smaller number u whose trajectory reaches n (a preimage chain, below) is skipped: n's
 // convergence follows from u's, u < n, in the same run.
 // Records are kept as candidates: per glide (standard steps) the least n of the block with it, swept
-// at the end; a path only when it beats the host's lower bound lb(k) on the largest path of any
-// number below 2^k (n in [2^k, 2^(k+1))), computed exactly.
+// at the end; a path only when it beats the host's lower bound lb(i) on the largest path of any
+// number of [from, from + 2^(i-1)) (n - from in [2^(i-1), 2^i)), computed exactly.
 
-let lbPtr: usize = 0; // u64 pairs (lo, hi) per k = 0..N - 1
+let lbPtr: usize = 0; // u64 pairs (lo, hi) per band i = 0..N of n - from (pathBounds)
 let classSlack: usize = 0; // u64 r (q/2)^j rounded up, j = 0..N
 let glideMinPtr: usize = 0; // per standard glide g < glideCap: u64 least n, u64 its glide in steps of T
 let glideCap: i32 = 0;
 let glideTop: i32 = -1; // the largest g written
 let nTop: i32 = 0; // N
 let usePreimage: bool = false;
+let fromN: u64 = 1; // the range's first number (a power of two): members below it are left out
 let classMode: bool = false;
 // the DFS stack: per depth, a node (a, m, b, peak ip, mp) and which children are done
 const stA = new StaticArray<u64>(72);
@@ -733,8 +734,7 @@ function noteGlideMin(n: u64, g: i32, t: i32): void {
 
 /** The lower bound of the band of n (n >= 1) as the block's "best path", for the shortcuts of descend. */
 @inline function bandBound(n: u64): void {
-  const k = 63 - <i32>clz(n);
-  const p = lbPtr + (<usize>k << 4);
+  const p = lbPtr + (<usize>bitlen(n - fromN, 0) << 4);
   bestPathLo = load<u64>(p);
   bestPathHi = load<u64>(p, 8);
   bestPathBits = bitlen(bestPathLo, bestPathHi);
@@ -805,6 +805,8 @@ function prepareSkip(): void {
 
 /** Whether a leaf n is skipped (prepareSkip first). */
 @inline function skipped(n: u64): bool {
+  // (a range from 2^f: u must be in it too, so that n is no record of the range either)
+  if (fromN > 1) return preimageBelow(n) >= fromN;
   return n < skipFrom ? preimageBelow(n) != 0 : load<u8>(skipTable + <usize>(n % skipPeriod)) != 0;
 }
 
@@ -816,6 +818,7 @@ function prepareSkip(): void {
 export function verifyPreimage(q: u32, r: i32, n: u64): u64 {
   assert(r > 0 && n >= 1 && n < (<u64>1) << 60);
   setMap(q, r);
+  fromN = 1;
   prepareSkip();
   const u = preimageBelow(n);
   if (skipped(n) != (u != 0)) return (<u64>1) << 63;
@@ -842,7 +845,7 @@ function settleClass(a: u64, D: i32, j: i32, m: i32, b: u64, ip: i32, mp: i32): 
   const X: u64 = (<u64>1) << <u64>(nTop - D);
   const stride: u64 = (<u64>1) << <u64>D;
   const qm = load<u64>(qpowPtr + (<usize>m << 3));
-  let x: u64 = a == 0 ? 1 : 0;
+  let x: u64 = a >= fromN ? 0 : (fromN - a + stride - 1) >> <u64>D;
   while (x < X) {
     const n = a + (x << <u64>D);
     mulAdd(n >> <u64>j, 0, qm, b);
@@ -857,17 +860,20 @@ function settleClass(a: u64, D: i32, j: i32, m: i32, b: u64, ip: i32, mp: i32): 
   noteGlideMin(first, j + m, j);
   // paths, band by band: members in [2^k, 2^(k+1)) with a bound above lb(k), from the top down
   const slack = load<u64>(classSlack + (<usize>j << 3));
-  const extra = dropDepth(mp) - ip + 1; // bound < 2^(k + 1 + extra) when the slack is below 2^(k + 1)
+  const extra = dropDepth(mp) - ip + 1; // bound < 2^(bits + extra) for n < 2^bits when the slack is below 2^bits
   const top: u64 = a + ((X - 1) << <u64>D);
-  for (let k = 63 - <i32>clz(first); k < nTop; k++) {
-    const lp = lbPtr + (<usize>k << 4);
+  // bands i of n - from in [2^(i-1), 2^i) (i = 0: n = from), each with its bound lb(i)
+  const last = bitlen(top - fromN, 0);
+  for (let i = bitlen(first - fromN, 0); i <= last; i++) {
+    const lp = lbPtr + (<usize>i << 4);
     const lbl = load<u64>(lp), lbh = load<u64>(lp, 8);
-    if (k + 1 + extra < bitlen(lbl, lbh) && 64 - <i32>clz(slack) <= k + 1) continue;
-    const hiN: u64 = k + 1 >= 64 ? <u64>-1 : ((<u64>1) << <u64>(k + 1)) - 1;
+    const lo: u64 = fromN + (i == 0 ? 0 : (<u64>1) << <u64>(i - 1));
+    const hiN: u64 = fromN + (i == 0 ? 0 : ((<u64>1) << <u64>i) - 1);
+    const bits = 64 - <i32>clz(hiN);
+    if (bits + extra < bitlen(lbl, lbh) && 64 - <i32>clz(slack) <= bits) continue;
     const bandTop = hiN < top ? hiN : top;
-    const lo: u64 = (<u64>1) << <u64>k;
     if (bandTop < first || bandTop < lo) continue;
-    // the last member at or below bandTop, then down while the bound can beat lb(k)
+    // the last member at or below bandTop, then down while the bound can beat lb(i)
     let n = bandTop - ((bandTop - a) & (stride - 1));
     while (n >= first && n >= lo) {
       peakBound(n, 0, ip, mp, slack);
@@ -881,6 +887,7 @@ function settleClass(a: u64, D: i32, j: i32, m: i32, b: u64, ip: i32, mp: i32): 
 
 /** A leaf: n = a survived N steps with T^N(n) = b (m odd, peak ip, mp); iterated on to its descent. */
 function leaf(n: u64, m: i32, b: u64, ip: i32, mp: i32): void {
+  if (n < fromN) return;
   if (usePreimage && skipped(n)) {
     bump(VERIFY_COUNT_PREIMAGE);
     return;
@@ -921,10 +928,10 @@ function leaf(n: u64, m: i32, b: u64, ip: i32, mp: i32): void {
  * Returns the leaves visited.
  */
 export function verifyClasses(
-  q: u32, r: i32, N: i32, D: i32, first: u64, last: u64, preimage: i32, stepDepth: i32, steps: i32, limit: i32,
+  q: u32, r: i32, N: i32, D: i32, first: u64, last: u64, from: u64, preimage: i32, stepDepth: i32, steps: i32, limit: i32,
   tables: usize, lb: usize, cslack: usize, slacks: usize, glideMin: usize, cap: i32, counts: usize, scratch: usize,
 ): u64 {
-  assert(r > 0 && N >= 1 && N <= 62 && D >= 0 && D <= N && first <= last && stepDepth >= 1 && stepDepth <= VERIFY_MAX_STEP_DEPTH && cap >= 1);
+  assert(r > 0 && N >= 1 && N <= 62 && D >= 0 && D <= N && first <= last && from >= 1 && from < (<u64>1) << <u64>N && stepDepth >= 1 && stepDepth <= VERIFY_MAX_STEP_DEPTH && cap >= 1);
   begin(q, r, N, stepDepth, steps, limit, tables, counts, scratch);
   slackPtr = slacks;
   lbPtr = lb;
@@ -934,6 +941,7 @@ export function verifyClasses(
   glideTop = -1;
   nTop = N;
   usePreimage = preimage != 0;
+  fromN = from;
   classMode = true;
   if (usePreimage) prepareSkip();
   memory.fill(glideMin, 0, <usize>cap << 4);

@@ -3,7 +3,7 @@
 import { afterAll, describe, expect, it } from "vitest";
 import { parseMap } from "../src/core/map.js";
 import { runVerify } from "../src/jobs/verify/verify.js";
-import { planVerify } from "../src/jobs/verify/plan.js";
+import { blockSize, planVerify } from "../src/jobs/verify/plan.js";
 import { pathBounds } from "../src/jobs/verify/tables.js";
 import { traceBig } from "../src/jobs/verify/trace.js";
 import { Kernel } from "../src/engine/loader.js";
@@ -33,7 +33,7 @@ const found = (r: VerifyResult) =>
 const withSkipped = (r: VerifyResult): VerifyResult => ({ ...r, counts: { ...r.counts, checked: r.counts.checked + r.counts.preimage } });
 
 describe("verify by classes: the plan", () => {
-  it("takes [1, 2^N) by classes, to depth N, unless a sieve depth is given, r < 0, or the range is another", () => {
+  it("takes [1, 2^N) and [2^f, 2^N) by classes, to depth N, unless a sieve depth is given, r < 0, or the range is another", () => {
     const map = parseMap("3x+1");
     const p = planVerify({ map, from: 1n, to: 1n << 30n });
     expect([p.method, p.sieveDepth, p.preimage]).toEqual(["classes", 30, true]);
@@ -41,7 +41,11 @@ describe("verify by classes: the plan", () => {
     expect(planVerify({ map, from: 1n, to: 1n << 30n, sieveDepth: 20 }).method).toBe("periods");
     expect(planVerify({ map, from: 1n, to: 1n << 30n, classes: false }).method).toBe("periods");
     expect(planVerify({ map, from: 1n, to: 1n << 30n, preimage: false }).preimage).toBe(false);
-    expect(planVerify({ map, from: 2n, to: 1n << 30n }).method).toBe("periods");
+    expect(planVerify({ map, from: 3n, to: 1n << 30n }).method).toBe("periods");
+    // [2^f, 2^N): by classes too (the numbers below 2^f left out)
+    const p20 = planVerify({ map, from: 1n << 20n, to: 1n << 30n });
+    expect(p20.method).toBe("classes");
+    expect(p20.blocks.reduce((t, b) => t + blockSize(b), 0n)).toBe((1n << 30n) - (1n << 20n));
     expect(planVerify({ map, from: 1n, to: (1n << 30n) + 1n }).method).toBe("periods");
     expect(planVerify({ map: parseMap("3x-1"), from: 1n, to: 1n << 20n }).method).toBe("periods");
     // past the map's 64-bit depth (40 for 3x+1): by periods
@@ -50,26 +54,31 @@ describe("verify by classes: the plan", () => {
     expect(planVerify({ map, from: 1n, to: 1n << 30n, maxSteps: 29 }).method).toBe("periods");
   });
 
-  it("the path bounds: the largest path below 2^k, from probes iterated here (below 2^12, every number)", () => {
+  it("the path bounds: the largest path of [from, from + 2^(i-1)), from probes iterated here (every number near from)", () => {
     const map = parseMap("3x+1");
-    const b = pathBounds(map, 14, 100_000);
-    // the largest path of any n < 2^k, by plain iteration here
-    let best = 0n;
-    for (let k = 0, n = 1n; k < 13; k++) {
-      for (; n < 1n << BigInt(k); n++) {
+    for (const from of [1n, 1n << 20n]) {
+      const b = pathBounds(map, 30, 100_000, from);
+      // the largest path of the numbers of [from, from + 2^(i-1)), by plain iteration here (the value before
+      // the first one below n; n itself for 1, on its cycle)
+      const pathOf = (n: bigint) => {
         let v = n,
           max = n;
         do {
           v = T(3n, 1n, v);
           if (v > max) max = v;
         } while (v > n);
-        if (n > 1n && max > best) best = max;
-        if (n === 1n && best < 2n) best = 2n; // 1's cycle: its path counts as 1; 2 is not below 2^1
+        return n === 1n ? 1n : max;
+      };
+      let best = 0n;
+      let n = from;
+      for (let i = 1; i <= 13; i++) {
+        for (; n < from + (1n << BigInt(i - 1)); n++) if (pathOf(n) > best) best = pathOf(n);
+        expect((b[2 * i + 1]! << 64n) | b[2 * i]!).toBe(best);
       }
-      if (k >= 2) expect((b[2 * k + 1]! << 64n) | b[2 * k]!).toBe(best);
+      expect(b[0]).toBe(0n); // band 0: n = from, no smaller number of the range
     }
-    // 27 (below 2^5) rises to 9232 under 3n + 1 (common practice): 4616 under T
-    expect(b[2 * 5]).toBe(4616n);
+    // 27 (below 1 + 2^5) rises to 9232 under 3n + 1 (common practice): 4616 under T
+    expect(pathBounds(map, 14, 100_000, 1n)[2 * 6]).toBe(4616n);
   });
 });
 
@@ -102,6 +111,21 @@ describe("verify by classes: against the brute force", () => {
       expectAgrees(withSkipped(r), b);
       // with anything but descents and members of cycles on the way, the run is redone without the skip
       if (b.unresolved.length > 0 || b.entrants.length > 0) expect([r.preimage, r.counts.preimage]).toEqual([false, 0n]);
+    });
+
+  for (const [text, f, N, cap] of [
+    ["3x+1", 10, 16, 100_000],
+    ["3x+7", 12, 16, 100_000],
+    ["3x+65", 9, 15, 100_000],
+    ["5x+3", 10, 14, 400],
+  ] as const)
+    it(`${text} over [2^${f}, 2^${N}): records relative to 2^${f}, lists and counts as the brute force's`, async () => {
+      const map = parseMap(text);
+      const from = 1n << BigInt(f),
+        to = 1n << BigInt(N);
+      const r = await runVerify(pool, { map, from, to, maxSteps: cap });
+      expect(r.method).toBe("classes");
+      expectAgrees(withSkipped(r), bruteVerify(map, from, to, cap, N));
     });
 
   it("1, 7 and 300 blocks, one worker or two, and without the skip: the same records and lists", async () => {

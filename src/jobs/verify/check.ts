@@ -138,7 +138,8 @@ function classCounts(plan: VerifyPlan, c: VerifyCounts): void {
   }
   const others = c.exceptions + c.cycleMembers + c.cycleEntrants + c.unresolved;
   const leaves = levels[N]!.survivors;
-  const missing = cut - c.sieved + (leaves - c.checked - c.preimage);
+  // (the numbers below FROM are left out, in cut classes and leaves alike)
+  const missing = cut - c.sieved + (leaves - c.checked - c.preimage) - (plan.from - 1n);
   if (c.checked + c.preimage > leaves || missing !== others)
     throw new Differs(
       `counts: ${c.checked} checked and ${c.preimage} skipped of ${leaves} survivors at depth ${N}, ${others} iterated one by one; the exact counter leaves ${missing} for those`,

@@ -139,6 +139,7 @@ function verifyBlock(kernel: Kernel, t: VerifyTables, block: VerifyBlock): Verif
         Number(block.h0),
         block.first,
         block.last,
+        c.from,
         c.preimage ? 1 : 0,
         t.stepDepth,
         block.maxSteps,

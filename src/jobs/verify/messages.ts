@@ -22,8 +22,10 @@ export interface VerifyTables {
   readonly slacks: BigUint64Array;
   /** Classes mod 2^j stopping at j, j = 0..depth (the exact counter): the sieved counts of aligned blocks. */
   readonly stoppedClasses: BigUint64Array;
-  /** A run by classes: the path bounds per band (pathBounds), ceil(r (q/2)^j) for j = 0..N, the preimage skip, and how many glides get a slot. */
+  /** A run by classes: its first number, the path bounds per band (pathBounds), ceil(r (q/2)^j) for j = 0..N, the preimage skip, and how many glides get a slot. */
   readonly classes: {
+    /** The range's first number, 2^f (1 for a range from 1). */
+    readonly from: bigint;
     readonly bounds: BigUint64Array;
     readonly slacks: BigUint64Array;
     readonly preimage: boolean;

@@ -35,7 +35,7 @@ export interface VerifyRequest {
   /** Also the delay of every n (its total stopping time: the steps to reach 1) and its records. */
   readonly delay?: boolean;
   /**
-   * A range [1, 2^N) is settled class by class (classes.ts in the kernel: verifyClasses) unless this
+   * A range [2^f, 2^N) (from 1: f = 0) is settled class by class (the kernel's verifyClasses) unless this
    * is false or a sieve depth is given; the preimage skip of its leaves unless `preimage` is false.
    */
   readonly classes?: boolean;
@@ -51,6 +51,8 @@ export interface BlockSpec {
   readonly last: bigint;
   readonly h0: bigint;
   readonly periods: bigint;
+  /** classes: how many numbers of the roots' classes lie below FROM (left out). */
+  readonly below: bigint;
 }
 
 /** A checked request with its defaults filled in. */
@@ -76,17 +78,30 @@ export interface VerifyPlan {
 }
 
 /** The size of a block (numbers). */
-export const blockSize = (b: Pick<BlockSpec, "kind" | "first" | "last" | "periods">) =>
-  b.kind === "classes" ? (b.last - b.first + 1n) * b.periods - (b.first === 0n ? 1n : 0n) : b.last - b.first + 1n;
+export const blockSize = (b: Pick<BlockSpec, "kind" | "first" | "last" | "periods" | "below">) =>
+  b.kind === "classes" ? (b.last - b.first + 1n) * b.periods - b.below : b.last - b.first + 1n;
 
 /** Roots of a run by classes: residues mod 2^min(N, ROOT_DEPTH). */
 const ROOT_DEPTH = 16;
 
-/** N when [from, to) is [1, 2^N) and can be settled class by class (r > 0, classes within 64 bits), else null. */
+const isPowerOfTwo = (x: bigint) => x >= 1n && (x & (x - 1n)) === 0n;
+
+/**
+ * N when [from, to) is [2^f, 2^N) (f = 0: from 1) and can be settled class by class (r > 0, classes
+ * within 64 bits), else null.
+ */
 export function classDepthOf(map: CollatzMap, from: bigint, to: bigint): number | null {
-  if (from !== 1n || map.r < 0 || to < 2n || (to & (to - 1n)) !== 0n) return null;
+  if (map.r < 0 || to < 2n || !isPowerOfTwo(from) || !isPowerOfTwo(to) || from >= to) return null;
   const N = to.toString(2).length - 1;
   return N <= kernelDepthLimit(map) ? N : null;
+}
+
+/** Numbers below from = 2^f in the classes of roots first..last mod 2^D (0 included). */
+function belowFrom(from: bigint, D: number, first: bigint, last: bigint): bigint {
+  const roots = last - first + 1n;
+  if (from >= 1n << BigInt(D)) return roots * (from >> BigInt(D)); // 2^(f - D) in each class
+  const end = last < from - 1n ? last : from - 1n; // the roots below from hold one each
+  return end >= first ? end - first + 1n : 0n;
 }
 
 /**
@@ -131,8 +146,8 @@ export function planVerify(req: VerifyRequest): VerifyPlan {
     throw new UsageError("blocks must be a positive whole number");
   const key = `${map.name}|${from}|${to}|${sieveDepth}|${stepDepth}|${maxSteps}|${limitBits}${delay ? "|delay" : ""}${blockTarget === null ? "" : `|blocks ${blockTarget}`}${method === "classes" ? `|classes${preimage ? "+preimage" : ""}` : ""}`;
   const blocks: BlockSpec[] = [];
-  const push = (kind: BlockSpec["kind"], first: bigint, last: bigint, h0 = 0n, periods = 0n) =>
-    blocks.push({ index: blocks.length, kind, first, last, h0, periods });
+  const push = (kind: BlockSpec["kind"], first: bigint, last: bigint, h0 = 0n, periods = 0n, below = 0n) =>
+    blocks.push({ index: blocks.length, kind, first, last, h0, periods, below });
   const chunks = (kind: "range" | "delay", first: bigint, end: bigint, size: bigint) => {
     for (let s = first; s < end; s += size) push(kind, s, s + size < end ? s + size - 1n : end - 1n);
   };
@@ -144,10 +159,12 @@ export function planVerify(req: VerifyRequest): VerifyPlan {
   if (method === "classes") {
     const D = Math.min(sieveDepth, ROOT_DEPTH);
     const roots = 1n << BigInt(D);
-    const target = BigInt(Math.max(1, blockTarget ?? Math.max(16, Math.min(4096, Number(to >> 26n)))));
+    const target = BigInt(Math.max(1, blockTarget ?? Math.max(16, Math.min(4096, Number((to - from) >> 26n)))));
     const per = (roots + target - 1n) / target;
-    for (let c = 0n; c < roots; c += per)
-      push("classes", c, c + per <= roots ? c + per - 1n : roots - 1n, BigInt(D), 1n << BigInt(sieveDepth - D));
+    for (let c = 0n; c < roots; c += per) {
+      const last = c + per <= roots ? c + per - 1n : roots - 1n;
+      push("classes", c, last, BigInt(D), 1n << BigInt(sieveDepth - D), belowFrom(from, D, c, last));
+    }
     if (delay) chunks("delay", from, to, RANGE_BLOCK);
     return { map, from, to, sieveDepth, stepDepth, maxSteps, limitBits, engine, delay, method, preimage, blockTarget, key, blocks };
   }

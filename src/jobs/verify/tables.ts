@@ -65,7 +65,8 @@ export async function verifyTables(pool: KernelPool, plan: VerifyPlan, options: 
       slacks: BigUint64Array.from({ length: KS + 1 }, (_, d) => slack(map, d)),
       stoppedClasses: BigUint64Array.from(levels, (l) => l.stopped),
       classes: {
-        bounds: pathBounds(map, K, plan.maxSteps),
+        from: plan.from,
+        bounds: pathBounds(map, K, plan.maxSteps, plan.from),
         slacks: BigUint64Array.from({ length: K + 1 }, (_, j) => slack(map, j)),
         preimage: plan.preimage,
         glideCap: Math.min(2 * plan.maxSteps + 2, GLIDE_CAP),
@@ -138,35 +139,40 @@ async function stepBytesOf(pool: KernelPool, map: CollatzMap, KS: number, option
 
 /** Standard glides a run by classes keeps one least n for (larger ones are sent as they come). */
 const GLIDE_CAP = 1 << 16;
-/** Every n below 2^PROBE_BITS is a probe of the path bounds, and 2^k - 1, 2^k - 3 above. */
+/** Every n of [FROM, FROM + 2^PROBE_BITS) is a probe of the path bounds, and 2^k - 1, 2^k - 3 above. */
 const PROBE_BITS = 12;
 
 /**
- * Lower bounds on the largest path of any number below 2^k, k = 0..N - 1, as (low, high) u64 pairs:
- * the largest path (its highest value before it goes below itself; n itself on a cycle) of the
- * probes below 2^k, each iterated exactly in BigInt (a probe past the cap is left out). In a run from
- * 1, n in [2^k, 2^(k+1)) is a path record only if its path beats this bound: the kernel iterates a
- * number for its path only when a bound on it could.
- * @example pathBounds(parseMap("3x+1"), 8, 1000)[2 * 3] // 26n: the path of 7 (T: 7, 11, 17, 26, ...)
+ * Lower bounds on the largest path of the numbers of [from, from + 2^(i-1)), band i = 0..N (n - from
+ * in [2^(i-1), 2^i); band 0 is n = from), as (low, high) u64 pairs: the largest path (the highest
+ * value before the number goes below itself; n itself on a cycle) of the probes there, each iterated
+ * exactly in BigInt (a probe past the cap is left out). n is a path record of a run from FROM only if
+ * its path beats its band's bound: the kernel iterates a number for its path only when a bound on it could.
+ * @example pathBounds(parseMap("3x+1"), 8, 1000, 1n)[2 * 4] // 26n: the path of 7 (T: 7, 11, 17, 26, ...)
  */
-export function pathBounds(map: CollatzMap, N: number, maxSteps: number): BigUint64Array {
+export function pathBounds(map: CollatzMap, N: number, maxSteps: number, from: bigint): BigUint64Array {
+  // every number of [from, from + 2^PROBE_BITS), then from + 2^t - 1 (2^t - 1 from 1: t odd steps up), ascending
   const probes: bigint[] = [];
-  for (let n = 1n; n < 1n << BigInt(Math.min(N, PROBE_BITS)); n++) probes.push(n);
-  for (let k = PROBE_BITS; k < N; k++) probes.push((1n << BigInt(k)) - 3n, (1n << BigInt(k)) - 1n);
-  const out = new BigUint64Array(2 * N);
+  const top = 1n << BigInt(N);
+  for (let n = from; n < from + (1n << BigInt(PROBE_BITS)) && n < top; n++) probes.push(n);
+  for (let t = 2; t < N; t++) {
+    const p = (from === 1n ? 0n : from) + (1n << BigInt(t)) - 1n;
+    if (p > probes.at(-1)! && p < top) probes.push(p);
+  }
+  const out = new BigUint64Array(2 * (N + 1));
   let best = 0n;
-  let i = 0;
-  for (let k = 0; k < N; k++) {
-    // the probes below 2^k
-    while (i < probes.length && probes[i]! < 1n << BigInt(k)) {
-      const t = traceBig(map, probes[i]!, maxSteps, 0);
-      const path = t.outcome === "descent" ? t.path : t.outcome === "cycle" ? probes[i]! : 0n;
+  let at = 0;
+  for (let i = 1; i <= N; i++) {
+    // the probes below from + 2^(i-1)
+    while (at < probes.length && probes[at]! < from + (1n << BigInt(i - 1))) {
+      const t = traceBig(map, probes[at]!, maxSteps, 0);
+      const path = t.outcome === "descent" ? t.path : t.outcome === "cycle" ? probes[at]! : 0n;
       if (path > best) best = path;
-      i++;
+      at++;
     }
     if (best >> 128n !== 0n) throw new Error("internal error: a path bound past 128 bits");
-    out[2 * k] = BigInt.asUintN(64, best);
-    out[2 * k + 1] = best >> 64n;
+    out[2 * i] = BigInt.asUintN(64, best);
+    out[2 * i + 1] = best >> 64n;
   }
   return out;
 }
