@@ -188,6 +188,33 @@ describe("certificate: --check finds every edited field", async () => {
   });
 });
 
+describe("certificate: a run by classes", () => {
+  it("[1, 2^20) and [2^16, 2^20) by classes hold; a leaf moved from checked to skipped, or the method changed, does not", async () => {
+    const map = parseMap("3x+1");
+    for (const from of [1n, 1n << 16n]) {
+      const req = { map, from, to: 1n << 20n, stepDepth: 8, blocks: 4 };
+      const r = await runVerify(pool, req);
+      expect([r.method, r.preimage]).toEqual(["classes", true]);
+      const hashes = await tableHashes(await verifyTables(pool, planVerify(req)), sha256);
+      const text = toExactJson(await certificate(r, hashes, stamp, { started: "s", finished: "f", workers: 2 }), 2);
+      expect((await check(text)).failure).toBeNull();
+      const d = parseExactJson(text) as Loose;
+      expect([d.method, d.preimage, d.tables.sieve.rows]).toEqual(["classes", true, 0n]);
+      // one leaf moved between outcomes in a block and the totals, every digest recomputed: the block run again differs
+      const moved = parseExactJson(text) as Loose;
+      moved.blockTable[1].counts.checked -= 1n;
+      moved.blockTable[1].counts.preimage += 1n;
+      moved.counts.checked -= 1n;
+      moved.counts.preimage += 1n;
+      expect((await check(await reseal(moved))).failure).toMatch(/blockTable\[1\]/);
+      // the method changed: the plan re-made from it is another
+      const periods = parseExactJson(text) as Loose;
+      periods.method = "periods";
+      expect((await check(await reseal(periods))).failure).not.toBeNull();
+    }
+  });
+});
+
 describe("certificate: numbers past 2^64 stay whole (BigInt engine)", () => {
   it("a certificate of [2^64 + 1, 2^64 + 2^8) holds and lists n above 2^64", async () => {
     const from = (1n << 64n) + 1n;

@@ -416,6 +416,30 @@ describe("cli: verify", () => {
     expect((await cli("verify", "--from", "1", "--to", "10", "--checkpoint", sub)).stderr).toMatch(/it is a directory/);
   });
 
+  it("verify from 1 to 2^N goes class by class (--periods, --no-preimage), and its checkpoint resumes after Ctrl-C", async () => {
+    const json = async (...args: string[]) => JSON.parse((await cli("verify", "--from", "1", "--to", "2^22", "--json", ...args)).stdout);
+    const classes = await json();
+    expect([classes.method, classes.preimage, classes.sieveDepth]).toEqual(["classes", true, 22]);
+    const periods = await json("--periods");
+    expect([periods.method, periods.sieveDepth]).toEqual(["periods", 26]);
+    expect(periods.glideRecords).toEqual(classes.glideRecords);
+    expect(periods.pathRecords).toEqual(classes.pathRecords);
+    const all = await json("--no-preimage");
+    expect([all.preimage, all.counts.preimage]).toEqual([false, 0]);
+    expect(all.counts.checked).toBe(classes.counts.checked + classes.counts.preimage);
+    expect((await cli("verify", "--from", "1", "--to", "2^22")).stdout).toMatch(/classes settled bit by bit to depth 22/);
+    const sub = mkdtempSync(join(dir, "ck-classes-"));
+    const ck = join(sub, "run.ck.json");
+    const child = spawn("node", [BIN, "verify", "--from", "1", "--to", "2^32", "--checkpoint", ck], { stdio: "ignore" });
+    const exited = new Promise<number | null>((res) => child.on("exit", (code) => res(code)));
+    while (!existsSync(ck)) await new Promise((r) => setTimeout(r, 20));
+    child.kill("SIGINT");
+    expect(await exited).toBe(130);
+    const resumed = JSON.parse((await cli("verify", "--resume", ck, "--json")).stdout);
+    expect(resumed.method).toBe("classes");
+    expect(resumed.maxGlide.n).toBe(2788008987); // OEIS A060412: the last glide record below 2^32 (from memory)
+  });
+
   it("verify | head -1: the run stops when the reader has gone; --string-integers writes every integer as a string", async () => {
     const t0 = performance.now();
     const r = spawnSync("sh", ["-c", `node ${BIN} verify --from 2^40 --to 2^40+2^36 | head -1`], { encoding: "utf8" });

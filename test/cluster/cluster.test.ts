@@ -265,7 +265,19 @@ describe("cluster: failures are found, rerun and merged; bad parts are refused",
   });
 
   it("shards beyond the work are not planned, and batch says so", async () => {
-    const r = await cli(["batch", "verify", "--from", "2^26", "--to", "2^27", "--shards", "4", "--dir", runDir("small-verify")]);
+    const r = await cli([
+      "batch",
+      "verify",
+      "--from",
+      "2^26",
+      "--to",
+      "2^27",
+      "--periods",
+      "--shards",
+      "4",
+      "--dir",
+      runDir("small-verify"),
+    ]);
     expect(r.code).toBe(0);
     expect(r.stderr).toMatch(/asked for 4 shards, but only 1 would have work \(1 kernel task\): planned 1/);
     expect(r.stdout).toMatch(/as 1 shard of 1 kernel task/);
