@@ -878,7 +878,10 @@ function settleClass(a: u64, D: i32, j: i32, m: i32, b: u64, ip: i32, mp: i32): 
     while (n >= first && n >= lo) {
       peakBound(n, 0, ip, mp, slack);
       if (!carry && leU(rlo, rhi, lbl, lbh)) break;
-      if (exact(n, 0) == DONE_DESCENT && ltU(lbl, lbh, pathLo, pathHi)) push(CHANNEL_PATH_RECORDS, n, pathLo, pathHi, 0);
+      const done = exact(n, 0);
+      if (done == DONE_DESCENT) {
+        if (ltU(lbl, lbh, pathLo, pathHi)) push(CHANNEL_PATH_RECORDS, n, pathLo, pathHi, 0);
+      } else settle(n, 0, done, -1); // past a lowered limit: counted already, the host iterates it for its records
       if (n < stride) break;
       n -= stride;
     }

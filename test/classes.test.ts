@@ -128,6 +128,14 @@ describe("verify by classes: against the brute force", () => {
       expectAgrees(withSkipped(r), bruteVerify(map, from, to, cap, N));
     });
 
+  it("values past a lowered limit (2^19) finished in BigInt: the same records, lists and counts", async () => {
+    const map = parseMap("3x+1");
+    const r = await runVerify(pool, { map, from: 1n, to: 1n << 18n, limitBits: 19 });
+    expect(r.method).toBe("classes");
+    expect(r.handoffs).toBeGreaterThan(0n);
+    expectAgrees(withSkipped(r), bruteVerify(map, 1n, 1n << 18n, 100_000, 18));
+  });
+
   it("1, 7 and 300 blocks, one worker or two, and without the skip: the same records and lists", async () => {
     const map = parseMap("3x+1");
     const one = await runVerify(pool, { map, from: 1n, to: 1n << 24n, blocks: 1 });
