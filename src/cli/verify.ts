@@ -90,9 +90,9 @@ function rangeOptions(cmd: Command): Command {
     .option("--to <TO>", "the end of the range, not included")
     .option(
       "--sieve-depth <K>",
-      `sieve depth: 1 to ${MAX_VERIFY_SIEVE_DEPTH} (default ${DEFAULT_SIEVE_DEPTH}; a range [1, 2^N) goes class by class to depth N unless given)`,
+      `sieve depth: 1 to ${MAX_VERIFY_SIEVE_DEPTH} (default ${DEFAULT_SIEVE_DEPTH}; a range from 1 or 2^f to 2^N goes class by class to depth N unless given)`,
     )
-    .option("--periods", "run a range [1, 2^N) by the sieve's periods too, not class by class")
+    .option("--periods", "run a range from 1 or 2^f to 2^N by the sieve's periods too, not class by class")
     .option("--no-preimage", "by classes: iterate every leaf, also those a smaller number's trajectory reaches")
     .option("--step-depth <k>", `table step depth: 1 to ${MAX_VERIFY_STEP_DEPTH} (default ${DEFAULT_STEP_DEPTH})`)
     .option("--delay", "also the delay of every n (steps to reach 1) and its records: each n iterated to the end, slower")
