@@ -327,8 +327,16 @@ function descend(nl: u64, nh: u64, nBits: i32, vl: u64, vh: u64, steps: i32, odd
   return DONE_DESCENT;
 }
 
-/** Records of the block: a glide (standard steps) or a path above every smaller n's so far. */
+/**
+ * Records of the block: a glide (standard steps) or a path above every smaller n's so far; in class
+ * mode, candidates (the least n of each glide, a path above its band's bound).
+ */
 @inline function noteRecords(nl: u64, nh: u64, glideStd: i32): void {
+  if (classMode) {
+    noteGlideMin(nl, glideStd, glideT);
+    notePathCandidate(nl);
+    return;
+  }
   if (glideStd > bestGlide) {
     bestGlide = glideStd;
     push(CHANNEL_GLIDE_RECORDS, nl, <u64>glideT, <u64>glideStd, nh);
@@ -825,16 +833,6 @@ export function verifyPreimage(q: u32, r: i32, n: u64): u64 {
   return u;
 }
 
-/** Iterates n exactly and books it (class mode): counted under `counted` when it descends. */
-function classExact(n: u64, counted: i32): void {
-  const done = exact(n, 0);
-  if (done == DONE_DESCENT) {
-    bump(counted);
-    noteGlideMin(n, glideT + glideOdd, glideT);
-    notePathCandidate(n);
-  } else settle(n, 0, done, counted);
-}
-
 /**
  * The members n = a + 2^D x (x < 2^(N - D), n >= 1) of a class whose coefficient first dropped at
  * depth j: T^j(n) = q^m (n >> j) + b. The small members that do not descend at j are iterated; the
@@ -850,7 +848,7 @@ function settleClass(a: u64, D: i32, j: i32, m: i32, b: u64, ip: i32, mp: i32): 
     const n = a + (x << <u64>D);
     mulAdd(n >> <u64>j, 0, qm, b);
     if (rhi == 0 && rlo < n) break;
-    classExact(n, VERIFY_COUNT_EXCEPTIONS);
+    settle(n, 0, exact(n, 0), VERIFY_COUNT_EXCEPTIONS);
     x++;
   }
   if (x >= X) return;
@@ -914,13 +912,8 @@ function leaf(n: u64, m: i32, b: u64, ip: i32, mp: i32): void {
       if (again == DONE_DESCENT) notePathCandidate(n);
       else settle(n, 0, again, -1);
     }
-  } else if (done == DONE_CYCLE) {
-    bump(VERIFY_COUNT_CYCLES);
-    push(CHANNEL_CYCLE_MEMBERS, n, <u64>glideT, 0, 0);
-    pathLo = n;
-    pathHi = 0;
-    notePathCandidate(n);
-  } else classExact(n, VERIFY_COUNT_CHECKED);
+  } else if (done == DONE_CYCLE) settle(n, 0, done, -1);
+  else settle(n, 0, exact(n, 0), VERIFY_COUNT_CHECKED);
 }
 
 /**

@@ -50,20 +50,11 @@ export async function verifyTables(pool: KernelPool, plan: VerifyPlan, options: 
   const levels = exactCounts(map, K).levels;
   if (plan.method === "classes") {
     // no sieve table: the classes are extended in the kernel; the step tables as for every run
-    const stepBytes = await stepBytesOf(pool, map, KS, options);
-    const tables: VerifyTables = {
-      key: plan.key,
-      q: map.q,
-      r: map.r,
-      depth: K,
-      stepDepth: KS,
+    return tableData(plan, levels, await stepBytesOf(pool, map, KS, options), [], {
       residues: new Uint32Array(0),
       sievedGlide: 0,
       sievedPeak: 0,
       sievedSlack: 0n,
-      survivorSlack: slack(map, K),
-      slacks: BigUint64Array.from({ length: KS + 1 }, (_, d) => slack(map, d)),
-      stoppedClasses: BigUint64Array.from(levels, (l) => l.stopped),
       classes: {
         from: plan.from,
         bounds: pathBounds(map, K, plan.maxSteps, plan.from),
@@ -71,8 +62,7 @@ export async function verifyTables(pool: KernelPool, plan: VerifyPlan, options: 
         preimage: plan.preimage,
         glideCap: Math.min(2 * plan.maxSteps + 2, GLIDE_CAP),
       },
-    };
-    return { tables, sieveBytes: new Uint8Array(0), stepBytes, exceptions: [], stoppedClasses: levels.map((l) => l.stopped) };
+    });
   }
   const rows = levels[K]!.survivors;
   const sorter = new ResidueSorter(K, Math.min(K, 10), 0, 1 << Math.min(K, 10));
@@ -107,22 +97,37 @@ export async function verifyTables(pool: KernelPool, plan: VerifyPlan, options: 
   });
   let sievedPeak = 0;
   while (dropDepth(map.q, sievedPeak + 1) <= K) sievedPeak++;
+  return tableData(plan, levels, stepBytes, exceptions, {
+    residues,
+    sievedGlide,
+    sievedPeak,
+    sievedSlack: slack(map, sievedPeak),
+    classes: null,
+  });
+}
+
+/** A run's tables from what its method builds, with the parts every run shares. */
+function tableData(
+  plan: VerifyPlan,
+  levels: readonly { stopped: bigint }[],
+  stepBytes: Uint8Array,
+  exceptions: VerifyTableData["exceptions"],
+  own: Pick<VerifyTables, "residues" | "sievedGlide" | "sievedPeak" | "sievedSlack" | "classes">,
+): VerifyTableData {
+  const { map, sieveDepth: K, stepDepth: KS } = plan;
   const tables: VerifyTables = {
     key: plan.key,
     q: map.q,
     r: map.r,
     depth: K,
     stepDepth: KS,
-    residues,
-    sievedGlide,
-    sievedPeak,
-    sievedSlack: slack(map, sievedPeak),
+    ...own,
     survivorSlack: slack(map, K),
     slacks: BigUint64Array.from({ length: KS + 1 }, (_, d) => slack(map, d)),
     stoppedClasses: BigUint64Array.from(levels, (l) => l.stopped),
-    classes: null,
   };
-  return { tables, sieveBytes: new Uint8Array(residues.buffer), stepBytes, exceptions, stoppedClasses: levels.map((l) => l.stopped) };
+  const stoppedClasses = levels.map((l) => l.stopped);
+  return { tables, sieveBytes: new Uint8Array(own.residues.buffer), stepBytes, exceptions, stoppedClasses };
 }
 
 /** The step table of depth KS as `glidepath steps --out` writes it. */
