@@ -28,7 +28,7 @@ import { parseWhole } from "../core/parse.js";
 import type { BatchJob } from "./batch.js";
 import { group, plural } from "../outputs/format.js";
 import { parseExactJson, toExactJson } from "../core/json.js";
-import { writeFileAtomic } from "../node/files.js";
+import { removeStaleTemporaries, writeFileAtomic } from "../node/files.js";
 import { toolStamp, withPool } from "../node/kernel.js";
 import { checkWritableTarget, intOption, jobCommand, mapOption, outputOption, workersOption } from "./options.js";
 import type { RawOptions } from "./options.js";
@@ -262,6 +262,10 @@ async function verify(o: VerifyOptions): Promise<void> {
   const stamp = await toolStamp();
   const started = new Date().toISOString();
   const note = (o.json ? process.stderr : process.stdout).write.bind(o.json ? process.stderr : process.stdout);
+  // the temporaries of a killed run (SIGKILL leaves its .NAME.partial-PID-N: no handler ran)
+  for (const path of [checkpointPath, out?.path])
+    if (path !== undefined)
+      for (const name of removeStaleTemporaries(path)) process.stderr.write(`removed ${name}, left by a process that no longer runs\n`);
   if (resumed)
     process.stderr.write(
       `resumed ${o.resume}: ${plural(done.size, "block")} of ${plan.blocks.length} done, ${plural(plan.blocks.length - done.size, "block")} to go\n`,
@@ -300,13 +304,37 @@ async function verify(o: VerifyOptions): Promise<void> {
     "numbers",
   );
   setInterruptNote(null);
+  // a certificate that cannot be written (a full disk) loses neither the report nor the checkpoint
+  let unwritten: Error | null = null;
   if (out) {
     const cert = await certificate(result, hashes, stamp, { started, finished: new Date().toISOString(), workers });
-    await writeFileAtomic(out.path, `${toExactJson(cert, 2)}\n`);
+    try {
+      await writeFileAtomic(out.path, `${toExactJson(cert, 2)}\n`);
+    } catch (e) {
+      unwritten = e instanceof Error ? e : new Error(String(e));
+    }
   }
-  print(o.json ? `${jsonText(verifyJson(result), o.stringIntegers)}\n` : verifyText(result, workers));
-  if (out) note(`wrote the certificate to ${out.path}\n`);
+  print(o.json ? `${jsonText({ ...verifyJson(result), ...processJson(result) }, o.stringIntegers)}\n` : verifyText(result, workers));
+  if (out && !unwritten) note(`wrote the certificate to ${out.path}\n`);
   if (checkpointPath) note(`checkpoint: ${checkpointPath} (complete: ${plural(plan.blocks.length, "block")})\n`);
+  if (unwritten)
+    throw new Error(
+      `${unwritten.message.split("\n")[0]}; the certificate was not written${
+        checkpointPath
+          ? ` (the checkpoint ${checkpointPath} holds the whole run: glidepath verify --resume ${checkpointPath} --out FILE writes it)`
+          : " (with --checkpoint FILE a run keeps its blocks, and --resume FILE --out writes the certificate without running again)"
+      }`,
+    );
+}
+
+/** What --json adds to the run's fields: what this process ran, and in how many passes (`seconds` is this process's time). */
+function processJson(r: VerifyResult) {
+  return {
+    blocksRun: r.blocksRun,
+    numbersRun: r.numbersRun,
+    passes: r.passes,
+    firstPassSeconds: r.firstPassSeconds === null ? null : Number(r.firstPassSeconds.toFixed(3)),
+  };
 }
 
 /** The report's first line, printed before the run starts. */
@@ -321,7 +349,6 @@ function verifyHeader(p: Pick<VerifyPlan, "map" | "from" | "to" | "sieveDepth" |
 /** The report after its first line. */
 function verifyText(r: VerifyResult, workers: number): string {
   const c = r.counts;
-  const rate = Number(c.numbers) / Math.max(r.seconds, 1e-9);
   const lines = [
     `every n reaches a value below n, except the cycle members, cycle entrants and unresolved numbers listed below`,
     "",
@@ -369,11 +396,34 @@ function verifyText(r: VerifyResult, workers: number): string {
         ]
       : []),
     "",
-    `${r.seconds.toFixed(2)} s, ${group(BigInt(Math.round(rate)))} numbers/s (${plural(workers, "worker")}, ${plural(r.entries.length, "block")}, ${r.engine} engine` +
-      `${r.handoffs > 0n ? `, ${group(r.handoffs)} finished in BigInt` : ""})`,
+    timeLine(r, workers),
     "",
   ];
   return lines.join("\n");
+}
+
+/**
+ * The time of this process and the numbers it ran (after --resume, not the checkpoint's), with their
+ * rate; a second pass (the preimage skip's fallback) is named and counted in the time.
+ */
+function timeLine(r: VerifyResult, workers: number): string {
+  const all = r.entries.length;
+  const rate = r.blocksRun === 0 ? "" : `, ${group(BigInt(Math.round(Number(r.numbersRun) / Math.max(r.seconds, 1e-9))))} numbers/s`;
+  const passes =
+    r.passes === 2
+      ? ` in two passes (the first, ${r.firstPassSeconds!.toFixed(2)} s with the preimage skip, met a cycle entrant or an unresolved number; the second iterated every leaf)`
+      : "";
+  const held = all - r.blocksRun;
+  const part =
+    held === 0
+      ? ""
+      : r.blocksRun === 0
+        ? `: the checkpoint held all ${plural(all, "block")}`
+        : ` for ${r.blocksRun} of ${plural(all, "block")} (${group(r.numbersRun)} of ${group(r.counts.numbers)} numbers; the checkpoint held the other ${held})`;
+  return (
+    `${r.seconds.toFixed(2)} s${passes}${part}${rate} (${plural(workers, "worker")}${held === 0 ? `, ${plural(all, "block")}` : ""}, ${r.engine} engine` +
+    `${r.handoffs > 0n ? `, ${group(r.handoffs)} finished in BigInt` : ""})`
+  );
 }
 
 async function check(o: VerifyOptions): Promise<void> {

@@ -1,9 +1,11 @@
 // Output files that are complete or absent: data goes to a hidden temporary name beside the
 // target and is renamed over it only when complete; signals remove what is still temporary.
 // A data file and its manifest are placed together: if the second rename fails, the first is undone.
+// A target that is a device or a pipe (/dev/null, /dev/stdout) is written directly: there is no file
+// to replace, and renaming over it would replace the device node.
 import { createHash } from "node:crypto";
 import type { Hash } from "node:crypto";
-import { unlinkSync } from "node:fs";
+import { readdirSync, statSync, unlinkSync } from "node:fs";
 import { open, rename, unlink } from "node:fs/promises";
 import type { FileHandle } from "node:fs/promises";
 import { basename, dirname, join } from "node:path";
@@ -26,6 +28,50 @@ export function removePendingFiles(): void {
   pending.clear();
 }
 
+/** The temporary name of a target, as AtomicFile makes it: `.NAME.partial-PID-N` beside it. */
+const TEMP_NAME = /^\.(.+)\.partial-(\d+)-\d+$/;
+
+/** Whether a process with this id runs (EPERM: it does, under another user). */
+function alive(pid: number): boolean {
+  try {
+    process.kill(pid, 0);
+    return true;
+  } catch (e) {
+    return (e as NodeJS.ErrnoException).code === "EPERM";
+  }
+}
+
+/**
+ * Removes the temporaries of `path` that a killed process left (SIGKILL, a crash: no handler ran):
+ * those named `.NAME.partial-PID-N` beside it whose PID is not a running process. Returns their names.
+ * @example removeStaleTemporaries("run.ck.json") // [".run.ck.json.partial-4242-17"]
+ */
+export function removeStaleTemporaries(path: string): string[] {
+  let names: string[];
+  try {
+    names = readdirSync(dirname(path));
+  } catch {
+    return [];
+  }
+  const removed: string[] = [];
+  for (const name of names) {
+    const m = TEMP_NAME.exec(name);
+    if (!m || m[1] !== basename(path) || alive(Number(m[2]))) continue;
+    try {
+      unlinkSync(join(dirname(path), name));
+      removed.push(name);
+    } catch {
+      // gone already, or not ours to remove
+    }
+  }
+  return removed;
+}
+
+/** The error of a failed write, naming the file (a bare ENOSPC does not say which). */
+function writeError(path: string, e: unknown): Error {
+  return new Error(`cannot write ${path}: ${e instanceof Error ? e.message : String(e)}`, { cause: e });
+}
+
 /** Writes smaller than this are gathered into one of about this size. */
 const WRITE_BUFFER_BYTES = 1 << 20;
 
@@ -38,10 +84,20 @@ export class AtomicFile {
     readonly path: string,
     readonly tempPath: string,
     private readonly fh: FileHandle,
+    /** A device or a pipe, written in place: never renamed or removed. */
+    private readonly direct = false,
   ) {}
 
   /** Creates the temporary file now, so an unwritable path fails before any long work. */
   static async create(path: string): Promise<AtomicFile> {
+    const stat = statSync(path, { throwIfNoEntry: false });
+    if (stat && !stat.isFile() && !stat.isDirectory()) {
+      try {
+        return new AtomicFile(path, path, await open(path, "w"), true);
+      } catch (e) {
+        throw new UsageError(`cannot write ${path}: ${(e as NodeJS.ErrnoException).code ?? String(e)}`);
+      }
+    }
     const tempPath = join(dirname(path), `.${basename(path)}.partial-${process.pid}-${made++}`);
     let fh: FileHandle;
     pending.add(tempPath); // before the open: a signal during it must still remove the file
@@ -83,31 +139,47 @@ export class AtomicFile {
 
   private async writeOut(bytes: Uint8Array): Promise<void> {
     let off = 0;
-    while (off < bytes.byteLength) {
-      const { bytesWritten } = await this.fh.write(bytes, off, bytes.byteLength - off);
-      off += bytesWritten;
+    try {
+      while (off < bytes.byteLength) {
+        const { bytesWritten } = await this.fh.write(bytes, off, bytes.byteLength - off);
+        off += bytesWritten;
+      }
+    } catch (e) {
+      throw writeError(this.path, e);
     }
   }
 
   /** Flushes and closes the temporary file; returns what a manifest says of it. */
   async finish(): Promise<DataFile> {
     await this.flush();
-    await this.fh.sync();
-    await this.fh.close();
+    try {
+      if (!this.direct) await this.fh.sync();
+      await this.fh.close();
+    } catch (e) {
+      throw writeError(this.path, e);
+    }
     this.closed = true;
     return { file: basename(this.path), bytes: this.bytes, sha256: this.hash.digest("hex") };
   }
 
   /** Renames the finished file into place. */
   async place(): Promise<void> {
+    if (this.direct) return;
     await rename(this.tempPath, this.path);
     pending.delete(this.tempPath);
   }
 
+  /** Closes and removes the temporary file (a device or a pipe is only closed). */
   async abort(): Promise<void> {
     if (!this.closed) await this.fh.close().catch(() => {});
+    if (this.direct) return;
     await unlink(this.tempPath).catch(() => {});
     pending.delete(this.tempPath);
+  }
+
+  /** Undoes a placed file: removes it (a device or a pipe stays). */
+  async unplace(): Promise<void> {
+    if (!this.direct) await unlink(this.path).catch(() => {});
   }
 }
 
@@ -120,7 +192,7 @@ async function placeAll(files: readonly AtomicFile[]): Promise<void> {
       placed.push(f);
     }
   } catch (e) {
-    for (const f of placed) await unlink(f.path).catch(() => {});
+    for (const f of placed) await f.unplace();
     for (const f of files) await f.abort();
     throw new Error(
       `cannot place ${files.map((f) => f.path).join(" and ")}: ${(e as NodeJS.ErrnoException).code ?? String(e)}; nothing was written`,

@@ -66,7 +66,18 @@ export interface VerifyResult
   readonly handoffs: bigint;
   /** The block table: every block's finished entry, in plan order. */
   readonly entries: readonly BlockEntry[];
+  /**
+   * Seconds of this process (runVerify: its wall time, every pass included; a merge of parts: the
+   * parts' seconds added), not of the whole run when a checkpoint brought blocks.
+   */
   readonly seconds: number;
+  /** Blocks and numbers this process ran: after --resume, those the checkpoint lacked (else all). */
+  readonly blocksRun: number;
+  readonly numbersRun: bigint;
+  /** 2 when a run by classes met a non-descending n with the preimage skip on and ran again without it; else 1. */
+  readonly passes: 1 | 2;
+  /** The seconds of the first, abandoned pass when passes is 2 (included in `seconds`); else null. */
+  readonly firstPassSeconds: number | null;
 }
 
 /** Blocks of a plan that an entry list does not match (missing, extra, or another range): one line, or null. */
@@ -190,5 +201,9 @@ export function mergeVerify(plan: VerifyPlan, entries: readonly BlockEntry[], se
     handoffs,
     entries,
     seconds,
+    blocksRun: entries.length,
+    numbersRun: plan.blocks.reduce((s, b) => s + blockSize(b), 0n),
+    passes: 1,
+    firstPassSeconds: null,
   };
 }

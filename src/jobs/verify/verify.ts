@@ -206,16 +206,28 @@ export const verifyJob: JobKind<VerifyParams, VerifyPart, VerifyResult, VerifyOp
 
 /**
  * Verifies the range on the pool: the blocks not in `options.done`, then the merge of all of them
- * (the plan layer's one-shard run, as for every job).
+ * (the plan layer's one-shard run, as for every job). The result's `seconds` is this call's wall
+ * time (both passes when the preimage skip falls back), `blocksRun` and `numbersRun` what this call
+ * ran itself (not the blocks of `options.done`).
  * @example const r = await runVerify(pool, { map: parseMap("3x+1"), from: 1n, to: 1n << 20n }); r.maxGlide?.n // 77671n
  */
 export async function runVerify(pool: KernelPool, req: VerifyRequest, options: VerifyOptions = {}): Promise<VerifyResult> {
+  const started = performance.now();
+  const given = new Set(options.done?.keys()); // now: a caller's onBlock may add to options.done
+  const timed = (r: VerifyResult, run: VerifyRequest, done: ReadonlySet<number>, firstPassSeconds: number | null): VerifyResult => {
+    const ran = planOf(run).blocks.filter((b) => !done.has(b.index));
+    const numbersRun = ran.reduce((s, b) => s + blockSize(b), 0n);
+    const seconds = (performance.now() - started) / 1000;
+    return { ...r, seconds, blocksRun: ran.length, numbersRun, passes: firstPassSeconds === null ? 1 : 2, firstPassSeconds };
+  };
   try {
-    return await runWhole(pool, verifyJob, req, options);
+    return timed(await runWhole(pool, verifyJob, req, options), req, given, null);
   } catch (e) {
     // the preimage sieve met a trajectory that does not descend: the run again without it has whole lists
     if (!(e instanceof PreimageSkipError)) throw e;
+    const firstPassSeconds = (performance.now() - started) / 1000;
     const { done: _done, tables: _tables, ...rest } = options;
-    return runWhole(pool, verifyJob, { ...req, preimage: false }, rest);
+    const again = { ...req, preimage: false };
+    return timed(await runWhole(pool, verifyJob, again, rest), again, new Set(), firstPassSeconds);
   }
 }
