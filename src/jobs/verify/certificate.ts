@@ -115,8 +115,10 @@ export function verifyJson(r: VerifyResult) {
   return { ...paramsJson(r), engine: r.engine, ...verifyFindings(r), seconds: Number(r.seconds.toFixed(3)) };
 }
 
-/** The run's parameters as a certificate and a checkpoint name them. */
-function paramsJson(r: VerifyResult) {
+/** The run's parameters as a certificate names them (verify --check compares each with the plan). */
+export function paramsJson(
+  r: Pick<VerifyResult, "map" | "from" | "to" | "sieveDepth" | "stepDepth" | "maxSteps" | "blockTarget" | "method" | "preimage">,
+) {
   return {
     map: r.map.name,
     q: r.map.q,
@@ -208,6 +210,25 @@ function big(o: unknown, key: string, path = "", min = 0n): bigint {
   if (typeof v !== "bigint") throw new UsageError(`${where(path, key)} must be a whole number written as digits, got ${describe(v)}`);
   if (v < min) throw new UsageError(`${where(path, key)} must be at least ${min}, got ${v}`);
   return v;
+}
+
+/** A whole number that may be negative (a map's r). */
+function signed(o: unknown, key: string, path = ""): bigint {
+  const v = field(o, key, path);
+  if (typeof v !== "bigint") throw new UsageError(`${where(path, key)} must be a whole number written as digits, got ${describe(v)}`);
+  return v;
+}
+
+function boolean(o: unknown, key: string, path = ""): boolean {
+  const v = field(o, key, path);
+  if (typeof v !== "boolean") throw new UsageError(`${where(path, key)} must be true or false, got ${describe(v)}`);
+  return v;
+}
+
+/** A field that is null or read by `read`. */
+function nullable<T>(o: unknown, key: string, path: string, read: (x: unknown, p: string) => T): T | null {
+  const v = field(o, key, path);
+  return v === null ? null : read(v, where(path, key));
 }
 
 function int(o: unknown, key: string, path = "", min = 0): number {
@@ -370,10 +391,86 @@ export interface ReadCertificate {
   readonly request: VerifyRequest;
   readonly engine: string;
   readonly tables: TableHashes | null;
+  /** What it states it found, read strictly (verify --check compares it with the merge of the block table). */
+  readonly findings: ReturnType<typeof verifyFindings>;
   /** The document as parsed (exact integers), for the field-by-field comparison and the digest. */
   readonly document: Json;
   readonly entries: BlockEntry[];
   readonly entryDigests: string[];
+}
+
+/** The fields of a version 2 certificate, in the order it writes them: any other field is refused. */
+const CERTIFICATE_FIELDS = [
+  "kind",
+  "version",
+  "map",
+  "q",
+  "r",
+  "from",
+  "to",
+  "sieveDepth",
+  "stepDepth",
+  "maxSteps",
+  "blockTarget",
+  "method",
+  "preimage",
+  "engine",
+  "tables",
+  "counts",
+  "maxGlide",
+  "maxPath",
+  "glideRecords",
+  "pathRecords",
+  "cycleMembers",
+  "cycleEntrants",
+  "unresolved",
+  "delay",
+  "handoffs",
+  "blockCount",
+  "blockTable",
+  "tool",
+  "started",
+  "finished",
+  "workers",
+  "digest",
+] as const;
+
+/** The findings of a certificate read strictly, in the shape verifyFindings writes (compared with the block table's). */
+function readFindings(j: Json) {
+  const counts = field(j, "counts", "");
+  const count = (k: string) => big(counts, k, "counts");
+  const d = field(j, "delay", "");
+  return {
+    counts: {
+      numbers: count("numbers"),
+      checked: count("checked"),
+      sieved: count("sieved"),
+      sievedByDepth: readList(counts, "sievedByDepth", "counts", (x, p) => ({ depth: int(x, "depth", p), count: big(x, "count", p) })),
+      exceptions: count("exceptions"),
+      cycleMembers: count("cycleMembers"),
+      cycleEntrants: count("cycleEntrants"),
+      unresolved: count("unresolved"),
+      ...("preimage" in (counts as Json) ? { preimage: count("preimage") } : {}),
+    },
+    maxGlide: nullable(j, "maxGlide", "", readGlide),
+    maxPath: nullable(j, "maxPath", "", readPath),
+    glideRecords: readList(j, "glideRecords", "", readGlide),
+    pathRecords: readList(j, "pathRecords", "", readPath),
+    cycleMembers: readList(j, "cycleMembers", "", readMember),
+    cycleEntrants: readList(j, "cycleEntrants", "", readEntrant),
+    unresolved: bigList(j, "unresolved", ""),
+    delay:
+      d === null
+        ? null
+        : {
+            records: readList(d, "records", "delay", readGlide),
+            max: nullable(d, "max", "delay", readGlide),
+            unreached: big(d, "unreached", "delay"),
+            unreachedList: bigList(d, "unreachedList", "delay"),
+          },
+    handoffs: big(j, "handoffs"),
+    blockCount: int(j, "blockCount"),
+  };
 }
 
 /** Parses a certificate file; one clear line naming the field when it is not one. */
@@ -386,6 +483,9 @@ export function readCertificate(source: string): ReadCertificate {
     throw new UsageError(
       `certificate version ${typeof version === "bigint" ? version : describe(version)}: this glidepath checks version ${CERTIFICATE_VERSION} (re-run the range to get one)`,
     );
+  for (const k of CERTIFICATE_FIELDS) field(j, k, "");
+  const extra = Object.keys(j).find((k) => !(CERTIFICATE_FIELDS as readonly string[]).includes(k));
+  if (extra !== undefined) throw new UsageError(`${extra} is not a field of a version ${CERTIFICATE_VERSION} certificate`);
   const t = field(j, "tables", "");
   const table = (key: string) => ({
     rows: int(field(t, key, "tables"), "rows", `tables.${key}`),
@@ -398,18 +498,25 @@ export function readCertificate(source: string): ReadCertificate {
     entryDigests.push(text(x, "digest", `blockTable[${i}]`));
   }
   text(j, "digest");
-  // the stated totals must at least be whole numbers (their values are compared by --check)
-  const counts = field(j, "counts", "");
-  for (const k of ["numbers", "checked", "sieved", "exceptions", "cycleMembers", "cycleEntrants", "unresolved"]) big(counts, k, "counts");
-  readList(counts, "sievedByDepth", "counts", (x, p) => [int(x, "depth", p), big(x, "count", p)]);
-  readList(j, "glideRecords", "", readGlide);
-  readList(j, "pathRecords", "", readPath);
-  big(j, "handoffs");
-  int(j, "blockCount");
+  // the parameters: each of its type here, each compared with the plan by --check
+  signed(j, "r");
+  int(j, "q", "", 1);
+  int(j, "sieveDepth", "", 1);
+  boolean(j, "preimage");
+  // provenance: stated, not re-derivable (the digest covers them)
+  const tool = field(j, "tool", "");
+  if (text(tool, "name", "tool") !== "glidepath")
+    throw new UsageError(`tool.name must be "glidepath", got "${text(tool, "name", "tool")}"`);
+  text(tool, "version", "tool");
+  text(tool, "kernelBuild", "tool");
+  text(j, "started");
+  text(j, "finished");
+  int(j, "workers", "", 1);
   return {
     request: readRequest(j, "", true),
     engine: text(j, "engine"),
     tables: t === null ? null : { sieve: table("sieve"), steps: table("steps") },
+    findings: readFindings(j),
     document: j,
     entries,
     entryDigests,

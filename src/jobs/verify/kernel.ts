@@ -5,6 +5,7 @@ import type { WorkerContext } from "../../engine/worker.js";
 import { collector } from "../../engine/loader.js";
 import type { VerifyBlock, VerifyBlockResult, VerifyTables } from "./messages.js";
 import { writeDropTables } from "../../engine/tables.js";
+import { stepImageOffset } from "../steps.js";
 import { makeMap } from "../../core/map.js";
 import { bigintBlock, finishKernelBlock } from "./block.js";
 import { MAX_VERIFY_SIEVE_DEPTH, MAX_VERIFY_STEP_DEPTH } from "./plan.js";
@@ -42,6 +43,25 @@ export function verifyPrepare(kernel: Kernel, t: VerifyTables): void {
   // (a run by classes has no sieve table: its depth N only sizes the per-m tables above)
   const sieveDepth = Math.min(t.depth, MAX_VERIFY_SIEVE_DEPTH);
   kernel.call("verifyPrepare", [t.q, t.r, sieveDepth, t.stepDepth, tables, S, a, m, b, peak, sm, sb, speak, trough]);
+  sameStepTable(kernel.memory, t, sm, sb);
+}
+
+/**
+ * The kernel's table of depth KS (odd steps and images, built by verifyPrepare) against the host's
+ * (the bytes a certificate hashes, built by the step-table kernel): a run starts only when they are
+ * equal entry by entry, so the hash names the table that did the work.
+ */
+function sameStepTable(memory: ArrayBuffer, t: VerifyTables, sm: number, sb: number): void {
+  const rows = 2 ** t.stepDepth;
+  const base = rows - 2; // the depth-KS rows follow those of depths 1..KS-1
+  const odd = new Uint8Array(memory, sm + base, rows);
+  const image = new BigUint64Array(memory, sb + 8 * base, rows);
+  const host = new DataView(t.steps.buffer, t.steps.byteOffset, t.steps.byteLength);
+  const at = stepImageOffset(t.stepDepth);
+  if (t.steps.byteLength !== at + 8 * rows) throw new Error("internal error: the host's step table has the wrong size");
+  for (let c = 0; c < rows; c++)
+    if (odd[c] !== t.steps[c] || image[c] !== host.getBigUint64(at + 8 * c, true))
+      throw new Error(`internal error: the kernel's step table differs from the host's at residue ${c} of depth ${t.stepDepth}`);
 }
 
 /**

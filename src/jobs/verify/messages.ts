@@ -20,6 +20,11 @@ export interface VerifyTables {
   readonly sievedSlack: bigint;
   readonly survivorSlack: bigint;
   readonly slacks: BigUint64Array;
+  /**
+   * The depth-KS step table as `steps --out` writes it (the bytes the certificate hashes): the kernel's
+   * own table of depth KS must equal it byte for byte, or verifyPrepare refuses to run.
+   */
+  readonly steps: Uint8Array;
   /** Classes mod 2^j stopping at j, j = 0..depth (the exact counter): the sieved counts of aligned blocks. */
   readonly stoppedClasses: BigUint64Array;
   /** A run by classes: its first number, the path bounds per band (pathBounds), ceil(r (q/2)^j) for j = 0..N, the preimage skip, and how many glides get a slot. */

@@ -124,6 +124,7 @@ function tableData(
     ...own,
     survivorSlack: slack(map, K),
     slacks: BigUint64Array.from({ length: KS + 1 }, (_, d) => slack(map, d)),
+    steps: stepBytes,
     stoppedClasses: BigUint64Array.from(levels, (l) => l.stopped),
   };
   const stoppedClasses = levels.map((l) => l.stopped);
