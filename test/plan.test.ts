@@ -1,14 +1,25 @@
 // The plan layer in one process: every job's shards, run one by one and merged, give exactly the
 // whole run; the weights that balance a sieve's shards are exact; parts survive their serialisation.
+import { mkdtempSync, readFileSync, rmSync, writeFileSync } from "node:fs";
+import { tmpdir } from "node:os";
+import { join } from "node:path";
 import { afterAll, describe, expect, it } from "vitest";
 import { parseMap } from "../src/core/map.js";
 import { makePlan, planHash, runWhole, splitTasks } from "../src/engine/plan.js";
-import type { JobKind, PartBase } from "../src/engine/plan.js";
+import type { JobKind, JobName, PartBase, Plan } from "../src/engine/plan.js";
 import { censusJob } from "../src/jobs/census/census.js";
+import type { CensusParams } from "../src/jobs/census/census.js";
 import { conjugacyJob } from "../src/jobs/conjugacy.js";
+import type { ConjugacyParams } from "../src/jobs/conjugacy.js";
 import { cycleJob } from "../src/jobs/cycles/cycles.js";
+import type { CycleParams } from "../src/jobs/cycles/cycles.js";
 import { liveDescendants, sieveJob, sieveParams } from "../src/jobs/sieve/sieve.js";
-import { verifyJob } from "../src/jobs/verify/verify.js";
+import type { SieveParams } from "../src/jobs/sieve/sieve.js";
+import { treeJob } from "../src/jobs/tree/tree.js";
+import type { TreeParams } from "../src/jobs/tree/tree.js";
+import { runVerify, verifyJob } from "../src/jobs/verify/verify.js";
+import type { VerifyParams, VerifyPart } from "../src/jobs/verify/verify.js";
+import { checkParts, createRun, readRun, runShardToDisk } from "../src/node/cluster.js";
 import { packData, toExactJson, unpackData } from "../src/core/json.js";
 import { censusJson, conjugacyJson, cyclesJson, sieveJson } from "../src/outputs/summary.js";
 import { verifyJson } from "../src/jobs/verify/certificate.js";
@@ -17,7 +28,11 @@ import { A076227 } from "../src/core/published.js";
 import { coefficientStop } from "./helpers.js";
 
 const pool = await nodePool(2);
-afterAll(() => pool.terminate());
+const tmp = mkdtempSync(join(tmpdir(), "glidepath-plan-"));
+afterAll(async () => {
+  await pool.terminate();
+  rmSync(tmp, { recursive: true, force: true });
+});
 
 /** A result's JSON without its time. */
 const untimed = (j: Record<string, unknown>) => toExactJson({ ...j, seconds: 0 });
@@ -136,5 +151,203 @@ describe("plan layer: layout, weights and hashes", () => {
     expect(files.size).toBe(1); // only the array above the spill size
     const back = unpackData(JSON.parse(JSON.stringify(packed)), (f) => files.get(f)!) as typeof value;
     expect(back).toEqual(value);
+  });
+});
+
+// ---- every field of every job's request survives plan.json, and the plan hash names each one ----
+
+/**
+ * A job's request with every field set (`full`: Required<P>, so a field added to the request type
+ * and not here does not compile), each field to something other than its default, and a second
+ * value for every field (`other`); `minimal` leaves every optional field out.
+ */
+interface CodecCase<P> {
+  readonly job: JobKind<P, PartBase, unknown>;
+  readonly full: Required<P>;
+  readonly other: Required<P>;
+  readonly minimal: P;
+}
+
+/** A case with its request type erased, for the table of all jobs. */
+interface AnyCase {
+  readonly job: JobKind<unknown, PartBase, unknown>;
+  readonly full: Record<string, unknown>;
+  readonly other: Record<string, unknown>;
+  readonly minimal: Record<string, unknown>;
+}
+const caseOf = <P>(c: CodecCase<P>): AnyCase => c as unknown as AnyCase;
+
+// One case per job the plan layer knows (a job missing from the table does not compile). The values
+// are chosen here, each valid for its job's layout (checked by makePlan below).
+const CODEC_CASES: Record<JobName, AnyCase> = {
+  verify: caseOf<VerifyParams>({
+    job: verifyJob,
+    full: {
+      map: parseMap("3x+1"),
+      from: (1n << 20n) + 5n,
+      to: (1n << 21n) + 3n,
+      sieveDepth: 12,
+      stepDepth: 9,
+      maxSteps: 500,
+      blocks: 5,
+      limitBits: 24,
+      delay: true,
+      classes: false,
+      preimage: false,
+    },
+    other: {
+      map: parseMap("3x-1"),
+      from: 7n,
+      to: 1n << 22n,
+      sieveDepth: 13,
+      stepDepth: 10,
+      maxSteps: 501,
+      blocks: 6,
+      limitBits: 25,
+      delay: false,
+      classes: true,
+      preimage: true,
+    },
+    minimal: { map: parseMap("3x+1"), from: 1n, to: 1n << 16n },
+  }),
+  sieve: caseOf<SieveParams>({
+    job: sieveJob,
+    full: { map: parseMap("3x-1"), depth: 14, mode: "full", leaves: true, exceptionLimit: 7 },
+    other: { map: parseMap("5x+1"), depth: 15, mode: "survivors", leaves: false, exceptionLimit: 8 },
+    minimal: { map: parseMap("3x+1"), depth: 10, mode: "survivors", leaves: false, exceptionLimit: 50 },
+  }),
+  census: caseOf<CensusParams>({
+    job: censusJob,
+    full: { map: parseMap("5x+1"), depth: 10 },
+    other: { map: parseMap("3x+1"), depth: 11 },
+    minimal: { map: parseMap("3x+1"), depth: 10 },
+  }),
+  cycles: caseOf<CycleParams>({
+    job: cycleJob,
+    full: { map: parseMap("3x+5"), maxPeriod: 12 },
+    other: { map: parseMap("3x+1"), maxPeriod: 13 },
+    minimal: { map: parseMap("3x+1"), maxPeriod: 12 },
+  }),
+  conjugacy: caseOf<ConjugacyParams>({
+    job: conjugacyJob,
+    full: { map: parseMap("3x-1"), depth: 10 },
+    other: { map: parseMap("3x+1"), depth: 11 },
+    minimal: { map: parseMap("3x+1"), depth: 10 },
+  }),
+  tree: caseOf<TreeParams>({
+    job: treeJob,
+    full: { map: parseMap("3x+1"), n: 5n, depth: 12, steps: "standard", below: 100n },
+    other: { map: parseMap("3x+5"), n: 7n, depth: 13, steps: "T", below: 101n },
+    minimal: { map: parseMap("3x+1"), n: 1n, depth: 12, steps: "T", below: null },
+  }),
+};
+
+/** The params as plan.json carries them: encoded, packed, written as JSON text, read back and decoded. */
+function throughJson(job: JobKind<unknown, PartBase, unknown>, params: unknown): unknown {
+  return job.codec.decode(unpackData(JSON.parse(JSON.stringify(packData(job.codec.encode(params))))) as Record<string, unknown>);
+}
+
+const jobOf = (name: string) => CODEC_CASES[name as JobName].job;
+
+describe("plan layer: every field of every job's request survives plan.json", () => {
+  for (const [name, c] of Object.entries(CODEC_CASES)) {
+    it(`${name}: the codec has exactly the request's fields, each round-trips, and each changes the plan hash`, async () => {
+      expect(c.job.name).toBe(name);
+      // the field table's keys are the request type's keys (those `full` must list to compile)
+      expect(Object.keys(c.job.codec.fields).sort()).toEqual(Object.keys(c.full).sort());
+      expect(Object.keys(c.other).sort()).toEqual(Object.keys(c.full).sort());
+      for (const params of [c.full, c.other, c.minimal]) expect(throughJson(c.job, params)).toEqual(params);
+      expect(throughJson(c.job, c.full)).toStrictEqual(c.full); // every field present, with its own value
+      // the plan hash goes through the same codec: changing any one field changes it
+      const body: Omit<Plan<unknown>, "hash"> = {
+        kind: "glidepath plan",
+        job: c.job.name,
+        params: c.full,
+        prefixBits: 0,
+        prefixes: null,
+        tasks: 1,
+        weights: null,
+        shards: [{ first: 0, end: 1 }],
+        kernelBuild: "0000000000000000",
+      };
+      const hash = await planHash(c.job, body);
+      for (const key of Object.keys(c.full)) {
+        expect(await planHash(c.job, { ...body, params: { ...c.full, [key]: c.other[key] } }), key).not.toBe(hash);
+        if (!(key in c.minimal)) expect(await planHash(c.job, { ...body, params: { ...c.full, [key]: undefined } }), key).not.toBe(hash);
+      }
+    });
+  }
+
+  it("every job's full request through a stored plan.json (createRun, readRun) comes back field for field", async () => {
+    for (const [name, c] of Object.entries(CODEC_CASES)) {
+      const plan = await makePlan(pool, c.job, c.full, 2);
+      const dir = join(tmp, `stored-${name}`);
+      await createRun(dir, c.job, plan, { cpusPerTask: 1, estimate: { seconds: 1, memoryMiB: 300 } });
+      const run = await readRun(dir, jobOf);
+      expect(run.plan.params, name).toStrictEqual(c.full);
+      expect(run.plan.hash, name).toBe(plan.hash);
+    }
+  });
+
+  it("a stored field edited, removed, added or of the wrong type is refused with a line naming it", async () => {
+    const dir = join(tmp, "stored-verify");
+    const path = join(dir, "plan.json");
+    const text = readFileSync(path, "utf8");
+    const edit = (key: string, value: unknown) => {
+      const j = JSON.parse(text) as { plan: { params: Record<string, unknown> } };
+      if (value === undefined) delete j.plan.params[key];
+      else j.plan.params[key] = value;
+      writeFileSync(path, JSON.stringify(j));
+    };
+    // each case: one stored field set to a value (undefined: removed), and the refusal it gets
+    const cases: [string, unknown, RegExp][] = [
+      // the old encoder kept no `classes`: an edit of it went unseen by the hash
+      ["classes", null, /was changed after it was written: its hash does not match/],
+      ["preimage", true, /was changed after it was written/],
+      ["blocks", 6, /was changed after it was written/],
+      ["limitBits", undefined, /plan\.json is damaged: params\.limitBits is missing/],
+      ["colour", "red", /plan\.json is damaged: params\.colour is not a parameter of this job/],
+      ["delay", "yes", /plan\.json is damaged: params\.delay must be true or false, got "yes"/],
+      ["sieveDepth", 12.5, /plan\.json is damaged: params\.sieveDepth must be a whole number, got 12\.5/],
+      ["map", "3X + 1", /plan\.json is damaged: params\.map must be a map's canonical name/],
+    ];
+    try {
+      for (const [key, value, why] of cases) {
+        edit(key, value);
+        await expect(readRun(dir, jobOf)).rejects.toThrow(why);
+      }
+    } finally {
+      writeFileSync(path, text);
+    }
+    expect((await readRun(dir, jobOf)).plan.params).toStrictEqual(CODEC_CASES.verify.full);
+  });
+
+  it("verify with every field set (blocks, limitBits, delay, periods, depths, cap): stored plan, parts on disk, merge = one process", async () => {
+    const req = CODEC_CASES.verify.full as unknown as VerifyParams;
+    const plan = await makePlan(pool, verifyJob, req, 3);
+    const dir = join(tmp, "verify-every-field");
+    await createRun(dir, verifyJob as JobKind<unknown, PartBase, unknown>, plan, {
+      cpusPerTask: 1,
+      estimate: { seconds: 1, memoryMiB: 300 },
+    });
+    const run = await readRun(dir, jobOf);
+    for (let i = 0; i < run.plan.shards.length; i++) await runShardToDisk(run, verifyJob as JobKind<unknown, VerifyPart, unknown>, i, pool);
+    const parts = await checkParts<unknown, VerifyPart>(run, pool.build);
+    const merged = await verifyJob.merge(
+      pool,
+      run.plan as Plan<VerifyParams>,
+      parts.map((p) => p.part),
+    );
+    const whole = await runVerify(pool, req);
+    expect(untimed(verifyJson(merged))).toBe(untimed(verifyJson(whole)));
+    expect(toExactJson(merged.entries)).toBe(toExactJson(whole.entries));
+    // each field took effect (a field lost on the way would change these; values computed by the plan here)
+    expect(merged.blockTarget).toBe(5);
+    expect(merged.method).toBe("periods");
+    expect(merged.sieveDepth).toBe(12);
+    expect(merged.stepDepth).toBe(9);
+    expect(merged.maxSteps).toBe(500);
+    expect(merged.delay).not.toBeNull();
+    expect(merged.handoffs).toBeGreaterThan(0n); // limitBits 24: values past 2^24 finish in BigInt
   });
 });

@@ -33,4 +33,10 @@ export interface BatchJob<P, R> {
   /** Its shards write their sorted part of the class table (RUN/parts/I.table). */
   readonly table?: boolean;
   readonly out?: MergeOutput<R>;
+  /**
+   * The command that checks the merged file on its own (verify: --check --full runs every block
+   * again), for jobs that have one, and the file name (in RUN) batch-status suggests for it: a
+   * part's digest finds accidental damage only, not a node that lies.
+   */
+  readonly check?: { readonly file: string; command(file: string): string };
 }

@@ -1,13 +1,24 @@
 // glidepath batch | shard | batch-status | merge: any long job as shards of the plan layer, run as a
 // Slurm job array (or here, one after another, with --local), checked and merged into exactly the
 // result of the one-machine command.
+import { join } from "node:path";
 import type { Command } from "commander";
 import { UsageError } from "../core/errors.js";
 import { makePlan } from "../engine/plan.js";
 import type { JobKind, PartBase, Plan } from "../engine/plan.js";
 import { group, plural } from "../outputs/format.js";
 import { toExactJson } from "../core/json.js";
-import { arrayList, checkParts, checkShard, createRun, inspectParts, readRun, runShardToDisk, SCRIPT_FILE } from "../node/cluster.js";
+import {
+  arrayList,
+  checkParts,
+  checkShard,
+  createRun,
+  inspectParts,
+  PARTS,
+  readRun,
+  runShardToDisk,
+  SCRIPT_FILE,
+} from "../node/cluster.js";
 import type { RunDir } from "../node/cluster.js";
 import { kernelBuildId, toolStamp, withPool } from "../node/kernel.js";
 import { censusBatch } from "./census.js";
@@ -163,6 +174,8 @@ async function status(dir: string, o: RawOptions): Promise<void> {
       : rerun.length === 1
         ? `glidepath shard ${dir} ${rerun[0]}`
         : `for i in ${rerun.join(" ")}; do glidepath shard ${dir} $i; done`;
+  const spec = batchJob(run.plan.job);
+  const checkLine = complete && spec.check ? checkCommand(dir, spec) : null;
   if (o.json) {
     print(
       `${toExactJson({
@@ -171,28 +184,56 @@ async function status(dir: string, o: RawOptions): Promise<void> {
         failed,
         missing,
         damaged: inspected.bad,
+        extra: inspected.extra,
         problems: inspected.problems,
         complete,
         rerun: slurmLine,
         rerunHere: localLine,
+        check: checkLine,
       })}\n`,
     );
   } else {
-    const spec = batchJob(run.plan.job);
     print(
       [
         `${spec.job.describe(run.plan.params)}: ${plural(shards, "shard")} (plan ${run.plan.hash.slice(0, 16)})`,
-        `done ${inspected.parts.length}, failed ${failed.length}, missing ${missing.length}, damaged ${inspected.bad.length}`,
+        `done ${inspected.parts.length}, failed ${failed.length}, missing ${missing.length}, damaged ${inspected.bad.length}` +
+          (inspected.extra.length > 0 ? `, not in the plan ${inspected.extra.length}` : ""),
         ...failed.map((f) => `  failed: shard ${f.shard}: ${f.error}`),
         ...(missing.length > 0 ? [`  missing: ${arrayList(missing)} (not run yet, running, or killed before it could say)`] : []),
         ...inspected.damaged.map((p) => `  damaged: ${p}`),
-        ...(slurmLine ? [`rerun what is not done: ${slurmLine}`, `  or here: ${localLine}`] : [`complete: glidepath merge ${dir}`]),
+        ...(slurmLine
+          ? [`rerun what is not done: ${slurmLine}`, `  or here: ${localLine}`]
+          : complete
+            ? completeLines(dir, spec)
+            : [`not complete: remove the parts not in the plan: rm ${inspected.extra.map((name) => join(dir, PARTS, name)).join(" ")}`]),
         "",
       ].join("\n"),
     );
   }
-  if (!complete) throw new Error(`${dir} is not complete: ${plural(rerun.length, "shard")} to rerun`); // exit 1, after the report
+  if (!complete)
+    throw new Error(
+      `${dir} is not complete: ${[
+        ...(rerun.length > 0 ? [`${plural(rerun.length, "shard")} to rerun`] : []),
+        ...(inspected.extra.length > 0 ? [`${plural(inspected.extra.length, "file")} not in the plan to remove`] : []),
+      ].join(", ")}`,
+    ); // exit 1, after the report
 }
+
+/** `merge --out` and the check of what it writes, for a job that has a check (verify). */
+function checkCommand(dir: string, spec: AnyBatchJob): string {
+  const file = join(dir, spec.check!.file);
+  return `glidepath merge ${dir} --out ${file}; ${spec.check!.command(file)}`;
+}
+
+/** What batch-status says of a complete run: the merge, and the check to run on what it writes. */
+function completeLines(dir: string, spec: AnyBatchJob): string[] {
+  if (!spec.check) return [`complete: glidepath merge ${dir}`];
+  return [`complete: ${checkCommand(dir, spec)}`, `  (${PART_DIGEST_NOTE})`];
+}
+
+/** What the parts' checks prove, and what they do not: said wherever the check line is printed. */
+const PART_DIGEST_NOTE =
+  "a part's digest finds accidental damage, not a node that lies; the check runs the blocks again: --full all of them, --sample N some";
 
 async function merge(dir: string, o: RawOptions): Promise<void> {
   const run: RunDir = await readRun(dir, jobOf);
@@ -224,5 +265,11 @@ async function merge(dir: string, o: RawOptions): Promise<void> {
       );
     print(`${toExactJson(spec.json(result))}\n`);
     if (out) process.stderr.write(`wrote ${spec.out!.what} to ${out.path}\n`);
+    if (spec.check)
+      process.stderr.write(
+        out
+          ? `check it: ${spec.check.command(out.path)}\n  (${PART_DIGEST_NOTE})\n`
+          : `to check it, write it and run the check: ${checkCommand(dir, spec)}\n  (${PART_DIGEST_NOTE})\n`,
+      );
   });
 }

@@ -112,6 +112,7 @@ export const verifyBatch: BatchJob<VerifyParams, VerifyResult> = {
     return req;
   },
   json: verifyJson,
+  check: { file: "certificate.json", command: (file) => `glidepath verify --check ${file} --full` },
   out: {
     formats: ["raw"],
     what: "the certificate",

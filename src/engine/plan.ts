@@ -4,6 +4,7 @@
 // (one shard for the whole run), `batch --local` and a Slurm job array (one shard per array task).
 import { exactCounts } from "../core/exact.js";
 import type { CollatzMap } from "../core/map.js";
+import type { ParamsCodec } from "./codec.js";
 import type { Mode } from "./messages.js";
 import type { KernelPool, RunOptions } from "./pool.js";
 
@@ -63,9 +64,11 @@ export interface JobKind<P, Part extends PartBase, R, O extends ShardOptions = S
   layout(pool: KernelPool, params: P, parallelism: number): Promise<TaskLayout>;
   runShard(pool: KernelPool, plan: Plan<P>, shard: number, options?: O): Promise<Part>;
   merge(pool: KernelPool, plan: Plan<P>, parts: readonly Part[]): Promise<R>;
-  /** The parameters as plain JSON values (bigints allowed) and back: what plan.json stores. */
-  encodeParams(params: P): Record<string, unknown>;
-  decodeParams(stored: Record<string, unknown>): P;
+  /**
+   * The parameters as plain JSON values (bigints allowed) and back, field by field: what plan.json
+   * stores and what the plan hash names. Its field table has every key of P (codec.ts).
+   */
+  readonly codec: ParamsCodec<P>;
   /** One line naming the run, for logs and status (e.g. "sieve 3x+1 mod 2^30"). */
   describe(params: P): string;
   /** What the largest shard needs with `cpus` workers (conservative: for a scheduler's limits). */
@@ -132,9 +135,12 @@ function planText(p: Omit<Plan<unknown>, "hash">, encodedParams: Record<string, 
   );
 }
 
-/** The hash a plan must carry (checked when a stored plan is read back). */
+/**
+ * The hash a plan must carry (checked when a stored plan is read back), over the parameters as the
+ * job's codec stores them: what a shard decodes is what the hash names.
+ */
 export function planHash<P>(job: JobKind<P, PartBase, unknown>, p: Omit<Plan<P>, "hash">): Promise<string> {
-  return sha256Hex(planText(p, job.encodeParams(p.params)));
+  return sha256Hex(planText(p, job.codec.encode(p.params)));
 }
 
 /**

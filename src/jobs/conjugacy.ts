@@ -6,9 +6,9 @@ import { censusTasks, fullTreeLayout } from "./census/census.js";
 import { concat } from "../engine/loader.js";
 import { largestShare, makePlan, runWhole, shardEstimate } from "../engine/plan.js";
 import type { JobKind, PartBase } from "../engine/plan.js";
-import { parseMap } from "../core/map.js";
 import { UsageError } from "../core/errors.js";
 import type { JobApi } from "./registry.js";
+import { intField, mapField, paramsCodec } from "../engine/codec.js";
 
 export const MAX_CONJUGACY_DEPTH = 26;
 
@@ -53,8 +53,7 @@ export interface ConjugacyPart extends PartBase {
 export const conjugacyJob: JobKind<ConjugacyParams, ConjugacyPart, ConjugacyResult> = {
   name: "conjugacy",
   describe: (p) => `conjugacy ${p.map.name} mod 2^${p.depth}`,
-  encodeParams: (p) => ({ map: p.map.name, depth: p.depth }),
-  decodeParams: (s) => ({ map: parseMap(String(s.map)), depth: Number(s.depth) }),
+  codec: paramsCodec<ConjugacyParams>({ map: mapField, depth: intField }),
   estimate(plan, cpus) {
     const tasks = BigInt(largestShare(plan).tasks);
     const leaves = tasks << BigInt(plan.params.depth - plan.prefixBits);

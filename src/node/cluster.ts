@@ -49,7 +49,7 @@ export interface RunDir<P = unknown> {
 function planJson(plan: Plan<unknown>, job: JobKind<unknown, PartBase, unknown>): unknown {
   // prefixes and weights as packed u64 arrays (compact); the parameters as the job encodes them
   const u64 = (xs: readonly bigint[] | null | undefined) => (xs ? BigUint64Array.from(xs) : null);
-  return packData({ ...plan, params: job.encodeParams(plan.params), prefixes: u64(plan.prefixes), weights: u64(plan.weights) });
+  return packData({ ...plan, params: job.codec.encode(plan.params), prefixes: u64(plan.prefixes), weights: u64(plan.weights) });
 }
 
 /** The time a task asks for: four times the estimate and a minute to start, at least ten minutes. */
@@ -172,7 +172,7 @@ function decodePlan(
   const plan: Plan<unknown> = {
     kind: PLAN_KIND,
     job: job.name,
-    params: job.decodeParams(p.params as Record<string, unknown>),
+    params: job.codec.decode(p.params as Record<string, unknown>),
     prefixBits: Number(p.prefixBits),
     prefixes: list(p.prefixes),
     tasks: Number(p.tasks),
@@ -327,6 +327,8 @@ export interface PartInspection<Part> {
   readonly missing: number[];
   /** Shards whose part is damaged, altered or foreign. */
   readonly bad: number[];
+  /** Files RUN/parts/*.json that are no shard's part (I.json with I past the plan's shards, or another name). */
+  readonly extra: string[];
   /** One line for each damaged, altered, foreign or extra part. */
   readonly damaged: string[];
   /** One line for every missing or bad part, in shard order (what merge refuses with). */
@@ -348,9 +350,18 @@ export async function inspectParts<P, Part extends PartBase>(run: RunDir<P>, bui
   const failed: PartInspection<Part>["failed"][number][] = [];
   const missing: number[] = [];
   const bad: number[] = [];
-  for (const name of readdirSync(join(run.dir, PARTS))) {
-    const m = /^(\d+)\.json$/.exec(name);
-    if (m && Number(m[1]) >= n) damaged.push(`part ${m[1]}: not in the plan (shards 0 to ${n - 1})`);
+  const extra: string[] = [];
+  const partName = /^(0|[1-9]\d*)\.json$/;
+  for (const name of readdirSync(join(run.dir, PARTS)).sort()) {
+    if (!name.endsWith(".json")) continue;
+    const m = partName.exec(name);
+    if (m && Number(m[1]) < n) continue;
+    extra.push(name);
+    damaged.push(
+      m
+        ? `part ${m[1]}: not in the plan (shards 0 to ${n - 1})`
+        : `${PARTS}/${name}: not a part of the plan (parts are 0.json to ${n - 1}.json)`,
+    );
   }
   problems.push(...damaged);
   for (let i = 0; i < n; i++) {
@@ -367,7 +378,7 @@ export async function inspectParts<P, Part extends PartBase>(run: RunDir<P>, bui
       problems.push(`part ${i}: ${why}`);
     }
   }
-  return { parts, failed, missing, bad, damaged, problems };
+  return { parts, failed, missing, bad, extra, damaged, problems };
 }
 
 /** One part checked and, when good, read into `parts`: null, "missing", or what is wrong with it. */

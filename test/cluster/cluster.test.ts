@@ -2,13 +2,14 @@
 // another with --local or `glidepath shard`, and as a real Slurm job array), batch-status finds what
 // failed, merge checks the parts and gives exactly the one-machine command's JSON and file.
 import { execFile } from "node:child_process";
+import { createHash } from "node:crypto";
 import { copyFileSync, existsSync, mkdirSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
 import { promisify } from "node:util";
 import { afterAll, describe, expect, it } from "vitest";
 import { A076227 } from "../../src/core/published.js";
-import { parseExactJson } from "../../src/core/json.js";
+import { parseExactJson, toExactJson } from "../../src/core/json.js";
 import { privateSlurm } from "../system.js";
 
 const BIN = new URL("../../bin/glidepath.js", import.meta.url).pathname;
@@ -39,6 +40,17 @@ function untimed(text: string): unknown {
   const j = parseExactJson(text) as Record<string, unknown>;
   delete j.seconds;
   return j;
+}
+
+/**
+ * Merge's JSON against the one-machine command's: every field merge prints (but the time) is the
+ * one-machine run's; that run may add fields about its own process (verify: the blocks it ran, its
+ * passes), and `own` names further fields that say how the one-machine run computed (tree --out: engine).
+ */
+function sameAsSingle(mergedText: string, singleText: string, own: readonly string[] = []): void {
+  const merged = parseExactJson(mergedText) as Record<string, unknown>;
+  const single = parseExactJson(singleText) as Record<string, unknown>;
+  for (const k of Object.keys(merged)) if (k !== "seconds" && !own.includes(k)) expect(merged[k], `field ${k}`).toEqual(single[k]);
 }
 
 async function ok(args: string[], env: Record<string, string> = {}): Promise<string> {
@@ -119,7 +131,7 @@ describe("cluster: batch --local and merge equal the one-machine command", () =>
       await ok(["batch", job.name, ...job.opts, "--shards", String(job.shards), "--dir", run, "--local", "--cpus-per-task", "2"]);
       const merged = await ok(["merge", run]);
       const single = await ok([...("single" in job ? job.single : [job.name, ...job.opts]), "--json", "--workers", "2"]);
-      expect(untimed(merged)).toEqual(untimed(single));
+      sameAsSingle(merged, single);
       job.outside(parseExactJson(merged) as Record<string, unknown>);
     });
   }
@@ -310,6 +322,213 @@ describe("cluster: failures are found, rerun and merged; bad parts are refused",
   });
 });
 
+// ---- every option of every job, through plan.json, shards on disk and merge ----
+
+/** Fields that say when and where a file was made, not what it holds (a certificate's document digest covers its times). */
+const WHEN_FIELDS = new Set(["started", "finished", "workers", "digest", "created", "seconds"]);
+
+/** Two documents equal field by field, apart from WHEN_FIELDS; each differing field is named. */
+function sameFields(merged: Record<string, unknown>, single: Record<string, unknown>, what: string): void {
+  const keys = new Set([...Object.keys(merged), ...Object.keys(single)]);
+  for (const k of keys) if (!WHEN_FIELDS.has(k)) expect(merged[k], `${what}: field ${k}`).toEqual(single[k]);
+}
+
+const readExact = (path: string) => parseExactJson(readFileSync(path, "utf8")) as Record<string, unknown>;
+
+/**
+ * A job's options through a cluster run (batch --local, merge --out) against the one-machine command
+ * (--json --out) with the same options: the JSON field by field (the one-machine run may add fields
+ * about its own process), the --out file byte for byte or, for a certificate, field by field, and its
+ * manifest field by field. The check values are the one-machine run's (a computation inside the test).
+ */
+const OPTION_CASES: { job: string; opts: string[]; single?: string[]; shards: number; out?: string }[] = [
+  // verify: the issue's run (--periods was dropped by the plan's encoder: 15 blocks planned, 16 run)
+  { job: "verify", opts: ["--from", "2^20", "--to", "2^24", "--periods"], shards: 3, out: "cert.json" },
+  { job: "verify", opts: ["--from", "1", "--to", "2^18", "--no-preimage"], shards: 3, out: "cert.json" },
+  { job: "verify", opts: ["--from", "2^16", "--to", "2^19", "--delay"], shards: 3, out: "cert.json" },
+  { job: "verify", opts: ["--from", "1000", "--to", "2^20+77", "--sieve-depth", "10", "--step-depth", "7"], shards: 3, out: "cert.json" },
+  { job: "verify", opts: ["--from", "2^20", "--to", "2^21", "--sieve-depth", "14", "--max-steps", "20"], shards: 2, out: "cert.json" },
+  { job: "verify", opts: ["--map", "3x+5", "--from", "1", "--to", "2^16", "--no-preimage"], shards: 2, out: "cert.json" },
+  { job: "verify", opts: ["--map", "3x-1", "--from", "1", "--to", "5000", "--sieve-depth", "8", "--delay"], shards: 2, out: "cert.json" },
+  { job: "sieve", opts: ["--map", "3x-1", "--depth", "16"], shards: 3, out: "table.u32" },
+  { job: "census", opts: ["--map", "5x+1", "--depth", "12"], shards: 3, out: "census.arrow" },
+  { job: "cycles", opts: ["--map", "3x+5", "--max-period", "14"], shards: 3, out: "cycles.arrow" },
+  { job: "conjugacy", opts: ["--map", "3x-1", "--depth", "10"], shards: 3 },
+  {
+    job: "tree",
+    opts: ["--map", "3x+5", "--n", "7", "--depth", "14", "--steps", "standard", "--below", "100"],
+    single: ["tree", "7", "--map", "3x+5", "--depth", "14", "--steps", "standard", "--below", "100"],
+    shards: 3,
+    out: "edges.csv",
+  },
+];
+
+describe("cluster: every option of every job travels through plan.json, the shards and merge", () => {
+  OPTION_CASES.forEach((c, i) => {
+    it(`batch ${c.job} ${c.opts.join(" ")} = ${c.job} with the same options`, async () => {
+      const run = runDir(`option-${i}`);
+      const mergedOut = c.out ? join(dir, `option-${i}-merged`, c.out) : null;
+      const singleOut = c.out ? join(dir, `option-${i}-single`, c.out) : null;
+      for (const f of [mergedOut, singleOut]) if (f) mkdirSync(join(f, ".."), { recursive: true });
+      await ok(["batch", c.job, ...c.opts, "--shards", String(c.shards), "--dir", run, "--local", "--cpus-per-task", "1"]);
+      const merged = await ok(["merge", run, ...(mergedOut ? ["--out", mergedOut] : []), "--workers", "1"]);
+      const single = await ok([
+        ...(c.single ?? [c.job, ...c.opts]),
+        "--json",
+        ...(singleOut ? ["--out", singleOut] : []),
+        "--workers",
+        "1",
+      ]);
+      // tree --out walks the tree in BigInt to write its edges, and says so in `engine`
+      sameAsSingle(merged, single, c.job === "tree" ? ["engine"] : []);
+      if (!mergedOut || !singleOut) return;
+      if (c.job === "verify") sameFields(readExact(mergedOut), readExact(singleOut), "certificate");
+      else {
+        expect(readFileSync(mergedOut).equals(readFileSync(singleOut)), `${c.out} bytes`).toBe(true);
+        sameFields(readExact(`${mergedOut}.json`), readExact(`${singleOut}.json`), "manifest");
+      }
+    });
+  });
+});
+
+it("verify 3x+5 by classes with the preimage skip: merge refuses and names --no-preimage (the one-machine run goes again without it)", async () => {
+  const run = runDir("preimage-3x+5");
+  await ok([
+    "batch",
+    "verify",
+    "--map",
+    "3x+5",
+    "--from",
+    "1",
+    "--to",
+    "2^12",
+    "--shards",
+    "2",
+    "--dir",
+    run,
+    "--local",
+    "--cpus-per-task",
+    "1",
+  ]);
+  const m = await cli(["merge", run, "--workers", "1"]);
+  expect(m.code).toBe(2);
+  expect(m.stdout).toBe("");
+  expect(m.stderr).toMatch(/cycle entrants with the preimage sieve on.*--no-preimage/);
+  // the one-machine command's second pass: preimage false (the run without the skip)
+  expect(
+    (
+      parseExactJson(await ok(["verify", "--map", "3x+5", "--from", "1", "--to", "2^12", "--json", "--workers", "1"])) as {
+        preimage: boolean;
+      }
+    ).preimage,
+  ).toBe(false);
+});
+
+describe("cluster: a part that is not its shard's, an extra part, a resumed block of another range", () => {
+  const run = runDir("slips-census");
+
+  it("a part copied over another part's file is refused by merge and batch-status (its shard number is not the file's)", async () => {
+    await ok(["batch", "census", "--depth", "14", "--shards", "3", "--dir", run, "--local", "--cpus-per-task", "1"]);
+    const one = join(run, "parts", "1.json");
+    const saved = readFileSync(one);
+    copyFileSync(join(run, "parts", "0.json"), one); // digest, plan and build all sound: only the shard number differs
+    const m = await cli(["merge", run]);
+    expect(m.code).toBe(2);
+    expect(m.stdout).toBe("");
+    expect(m.stderr.trim().split("\n")).toHaveLength(1);
+    expect(m.stderr).toMatch(/part 1: its manifest says shard 0/);
+    const st = await cli(["batch-status", run]);
+    expect(st.code).toBe(1);
+    expect(st.stdout).toContain("done 2, failed 0, missing 0, damaged 1");
+    expect(st.stdout).toContain(`rerun what is not done: sbatch --array=1 ${run}/job.sbatch`);
+    writeFileSync(one, saved);
+    expect((await cli(["batch-status", run])).code).toBe(0);
+  });
+
+  it("an extra part file makes the run incomplete: batch-status says so (exit 1) and merge refuses", async () => {
+    for (const name of ["3.json", "01.json"]) {
+      const extra = join(run, "parts", name);
+      copyFileSync(join(run, "parts", "0.json"), extra);
+      const st = await cli(["batch-status", run]);
+      expect(st.code, name).toBe(1);
+      expect(st.stdout).toContain("done 3, failed 0, missing 0, damaged 0, not in the plan 1");
+      expect(st.stdout).toContain(`not complete: remove the parts not in the plan: rm ${extra}`);
+      expect(st.stdout).not.toContain("complete: glidepath merge");
+      const j = parseExactJson((await cli(["batch-status", run, "--json"])).stdout) as { complete: boolean; extra: string[] };
+      expect(j.complete).toBe(false);
+      expect(j.extra).toEqual([name]);
+      const m = await cli(["merge", run]);
+      expect(m.code, name).toBe(2);
+      expect(m.stderr).toMatch(name === "3.json" ? /part 3: not in the plan \(shards 0 to 2\)/ : /parts\/01\.json: not a part of the plan/);
+      rmSync(extra);
+    }
+    expect(await ok(["batch-status", run])).toContain(`complete: glidepath merge ${run}`);
+  });
+
+  it("--resume refuses a checkpoint whose block ends (or starts) elsewhere than the plan's block, before running anything", async () => {
+    const cp = join(dir, "slip.checkpoint.json");
+    await ok(["verify", "--from", "1", "--to", "2^18", "--sieve-depth", "10", "--checkpoint", cp, "--workers", "1"]);
+    const text = readFileSync(cp, "utf8");
+    for (const field of ["last", "first"]) {
+      const j = parseExactJson(text) as { done: Record<string, bigint>[] };
+      j.done[1]![field] = j.done[1]![field]! - 1n; // the rest of the file (its key, its block count) is the plan's
+      writeFileSync(cp, toExactJson(j));
+      const r = await cli(["verify", "--resume", cp, "--workers", "1"]);
+      expect(r.code, field).toBe(2);
+      expect(r.stdout, field).toBe("");
+      expect(r.stderr.trim().split("\n"), field).toEqual([`glidepath: ${cp}: its block 1 is not the plan's block 1: it cannot be resumed`]);
+    }
+    writeFileSync(cp, text);
+    expect((await cli(["verify", "--resume", cp, "--workers", "1"])).code).toBe(0);
+  });
+});
+
+describe("cluster: a part's digest finds damage, not a node that lies; the merged certificate's full check does", () => {
+  const run = runDir("lying-verify");
+
+  it("batch-status and merge print the check to run; a part edited and re-digested merges, and --check --full refuses it", async () => {
+    await ok([
+      "batch",
+      "verify",
+      "--from",
+      "2^20",
+      "--to",
+      "2^22",
+      "--sieve-depth",
+      "12",
+      "--shards",
+      "3",
+      "--dir",
+      run,
+      "--local",
+      "--cpus-per-task",
+      "1",
+    ]);
+    const cert = join(run, "certificate.json");
+    const status = await ok(["batch-status", run]);
+    expect(status).toContain(`complete: glidepath merge ${run} --out ${cert}; glidepath verify --check ${cert} --full`);
+    expect(status).toContain("a part's digest finds accidental damage, not a node that lies");
+    // a node that lies: one count moved from checked to exceptions in a block of part 1, and the part's digest made again
+    const path = join(run, "parts", "1.json");
+    const text = readFileSync(path, "utf8");
+    const edited = text.replace(
+      /"checked":\{"\$n":"(\d+)"\},"sievedByDepth":(\[[^\]]*\]),"exceptions":\{"\$n":"(\d+)"\}/,
+      (_m, c, s, e) => `"checked":{"$n":"${BigInt(c) - 1n}"},"sievedByDepth":${s},"exceptions":{"$n":"${BigInt(e) + 1n}"}`,
+    );
+    expect(edited).not.toBe(text);
+    const { digest: _old, ...body } = parseExactJson(edited) as Record<string, unknown>;
+    // the part digest as cluster.ts defines it: sha256 of the part's exact JSON without the digest (README)
+    writeFileSync(path, `${toExactJson({ ...body, digest: createHash("sha256").update(toExactJson(body)).digest("hex") })}\n`);
+    expect((await cli(["batch-status", run])).code).toBe(0); // the digest cannot tell
+    const m = await cli(["merge", run, "--out", cert, "--workers", "1"]);
+    expect(m.code).toBe(0);
+    expect(m.stderr).toContain(`check it: glidepath verify --check ${cert} --full`);
+    const full = await cli(["verify", "--check", cert, "--full", "--workers", "1"]);
+    expect(full.code).not.toBe(0); // running every block again finds the forged one
+    writeFileSync(path, text);
+  });
+});
+
 // submitted only to the private single-node Slurm that test/cluster/slurm.sh started, when asked for
 const slurm = privateSlurm();
 
@@ -323,7 +542,7 @@ describe.runIf(slurm !== null)("cluster: a real Slurm job array (sbatch --wait)"
       expect(await ok(["batch-status", run])).toContain("complete");
       const out = job.name === "sieve" ? ["--out", join(dir, "slurm.u32")] : [];
       const merged = await ok(["merge", run, ...out]);
-      expect(untimed(merged)).toEqual(untimed(await ok([job.name, ...job.opts, "--json", "--workers", "2"])));
+      sameAsSingle(merged, await ok([job.name, ...job.opts, "--json", "--workers", "2"]));
       job.outside(parseExactJson(merged) as Record<string, unknown>);
       if (job.name === "sieve") expect(readFileSync(join(dir, "slurm.u32")).equals(readFileSync(join(dir, "single.u32")))).toBe(true);
     });

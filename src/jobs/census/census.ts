@@ -3,7 +3,7 @@
 // depends on the residue (log2 bins, descents that differ, the largest ratio) comes from the kernel
 // (assembly/census.ts), merged and finished exactly here: ambiguous bins and the ratio in BigInt.
 import type { CollatzMap } from "../../core/map.js";
-import { kernelDepthLimit, parseMap } from "../../core/map.js";
+import { kernelDepthLimit } from "../../core/map.js";
 import { TALLY_STRIDE } from "../../engine/messages.js";
 import type { Mode } from "../../engine/messages.js";
 import type { CensusShard, CensusShardResult } from "./messages.js";
@@ -21,6 +21,7 @@ import { LimitError, UsageError } from "../../core/errors.js";
 import { bitLength } from "../../core/arith.js";
 import { Smallest } from "../../core/smallest.js";
 import type { JobApi } from "../registry.js";
+import { intField, mapField, paramsCodec } from "../../engine/codec.js";
 
 export const MAX_CENSUS_DEPTH = 32;
 
@@ -282,8 +283,7 @@ export function censusTasks(plan: Plan<CensusParams>, shard: number, vectors: bo
 export const censusJob: JobKind<CensusParams, CensusPart, CensusResult> = {
   name: "census",
   describe: (p) => `census ${p.map.name} 2^${p.depth}`,
-  encodeParams: (p) => ({ map: p.map.name, depth: p.depth }),
-  decodeParams: (s) => ({ map: parseMap(String(s.map)), depth: Number(s.depth) }),
+  codec: paramsCodec<CensusParams>({ map: mapField, depth: intField }),
   estimate(plan, cpus) {
     const share = BigInt(largestShare(plan).tasks) << BigInt(plan.params.depth + 1 - plan.prefixBits);
     return shardEstimate(share, 1.5e7, cpus, 2 ** 26);

@@ -4,7 +4,7 @@
 // b - a (assembly/cycles.ts tests every node). The host solves for the periodic point, walks the
 // cycle in BigInt, and keeps each cycle once, with its minimal period.
 import type { CollatzMap } from "../../core/map.js";
-import { kernelDepthLimit, parseMap } from "../../core/map.js";
+import { kernelDepthLimit } from "../../core/map.js";
 import { concatU64, threadKernel } from "../../engine/loader.js";
 import type { CycleShard } from "./messages.js";
 import { choosePrefixBits, largestShare, runWhole, shardEstimate, shardPrefixes } from "../../engine/plan.js";
@@ -14,6 +14,7 @@ import type { KernelPool, RunOptions } from "../../engine/pool.js";
 import { cycleRepresentative, iterate } from "../../core/padic.js";
 import { LimitError, UsageError } from "../../core/errors.js";
 import type { JobApi } from "../registry.js";
+import { intField, mapField, paramsCodec } from "../../engine/codec.js";
 
 export const MAX_CYCLE_PERIOD = 63;
 
@@ -115,8 +116,7 @@ export interface CyclePart extends PartBase {
 export const cycleJob: JobKind<CycleParams, CyclePart, CycleSearchResult> = {
   name: "cycles",
   describe: (p) => `cycles of ${p.map.name} to period ${p.maxPeriod}`,
-  encodeParams: (p) => ({ map: p.map.name, maxPeriod: p.maxPeriod }),
-  decodeParams: (s) => ({ map: parseMap(String(s.map)), maxPeriod: Number(s.maxPeriod) }),
+  codec: paramsCodec<CycleParams>({ map: mapField, maxPeriod: intField }),
   estimate(plan, cpus) {
     const { maxPeriod } = plan.params;
     const share =

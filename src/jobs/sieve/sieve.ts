@@ -4,7 +4,7 @@
 // asked for, its sorted class table); merging sums them and expands the exceptions.
 import { transfer } from "comlink";
 import type { CollatzMap } from "../../core/map.js";
-import { checkKernelDepth, dropDepths, makeMap, parseMap } from "../../core/map.js";
+import { checkKernelDepth, dropDepths, makeMap } from "../../core/map.js";
 import type { Level } from "../../core/exact.js";
 import { exactCounts } from "../../core/exact.js";
 import { threadKernel } from "../../engine/loader.js";
@@ -21,6 +21,7 @@ import type { ExceptionClass, SieveException } from "./exceptions.js";
 import { UsageError } from "../../core/errors.js";
 import { DEFAULT_PASS_BUDGET, passPlan, ResidueSorter } from "./sort.js";
 import type { JobApi } from "../registry.js";
+import { boolField, choiceField, intField, mapField, paramsCodec } from "../../engine/codec.js";
 
 export interface SieveRequest {
   readonly map: CollatzMap;
@@ -115,13 +116,12 @@ function topRun(kernel: Kernel, p: SieveParams, d: number, onLeaves: (c: LeafChu
 export const sieveJob: JobKind<SieveParams, SievePart, SieveResult> = {
   name: "sieve",
   describe: (p) => `sieve ${p.map.name} mod 2^${p.depth}${p.mode === "full" ? " (all classes)" : ""}`,
-  encodeParams: (p) => ({ map: p.map.name, depth: p.depth, mode: p.mode, leaves: p.leaves, exceptionLimit: p.exceptionLimit }),
-  decodeParams: (s) => ({
-    map: parseMap(String(s.map)),
-    depth: Number(s.depth),
-    mode: s.mode === "full" ? "full" : "survivors",
-    leaves: s.leaves === true,
-    exceptionLimit: Number(s.exceptionLimit),
+  codec: paramsCodec<SieveParams>({
+    map: mapField,
+    depth: intField,
+    mode: choiceField("survivors", "full"),
+    leaves: boolField,
+    exceptionLimit: intField,
   }),
 
   estimate(plan, cpus) {

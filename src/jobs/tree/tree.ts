@@ -3,7 +3,6 @@
 // subtrees; the kernel (assembly/inverse.ts) walks the subtrees in the pool where every node
 // provably fits (below 2^62); past that, the whole walk runs here in BigInt, up to a node cap.
 import type { CollatzMap } from "../../core/map.js";
-import { parseMap } from "../../core/map.js";
 import { LimitError, UsageError } from "../../core/errors.js";
 import { CancelledError } from "../../engine/pool.js";
 import type { KernelPool, RunOptions } from "../../engine/pool.js";
@@ -12,6 +11,7 @@ import type { JobKind, PartBase } from "../../engine/plan.js";
 import type { InverseShardResult } from "./messages.js";
 import type { JobApi } from "../registry.js";
 import { INVERSE_BOUND_BITS } from "./messages.js";
+import { bigintField, choiceField, intField, mapField, nullable, paramsCodec } from "../../engine/codec.js";
 
 /** "T": steps of T (n/2, (q n + r)/2); "standard": steps of n/2 and q n + r. */
 export type StepConvention = "T" | "standard";
@@ -212,13 +212,12 @@ const TASKS_PER_WORKER = 16;
 export const treeJob: JobKind<TreeParams, TreePart, TreeResult> = {
   name: "tree",
   describe: (p) => `inverse tree of ${p.n} under ${p.map.name} to depth ${p.depth} (${p.steps === "T" ? "steps of T" : "standard steps"})`,
-  encodeParams: (p) => ({ map: p.map.name, n: p.n, depth: p.depth, steps: p.steps, below: p.below }),
-  decodeParams: (s) => ({
-    map: parseMap(String(s.map)),
-    n: BigInt(s.n as bigint),
-    depth: Number(s.depth),
-    steps: s.steps === "standard" ? "standard" : "T",
-    below: s.below === null || s.below === undefined ? null : BigInt(s.below as bigint),
+  codec: paramsCodec<TreeParams>({
+    map: mapField,
+    n: bigintField,
+    depth: intField,
+    steps: choiceField("T", "standard"),
+    below: nullable(bigintField),
   }),
   estimate(plan, cpus) {
     // nodes below a root grow by about 4/3 a level; a generous bound of 2 a level

@@ -5,8 +5,8 @@
 // (plan.ts); each block runs in a worker and comes back finished (block.ts); the blocks merge in
 // order (merge.ts). This file is the run: the scheduling of blocks, and the job of the plan layer.
 import { exactCounts } from "../../core/exact.js";
-import { parseMap } from "../../core/map.js";
 import type { VerifyBlock } from "./messages.js";
+import { bigintField, boolField, intField, mapField, optional, paramsCodec } from "../../engine/codec.js";
 import { runWhole, shardEstimate } from "../../engine/plan.js";
 import type { JobKind, PartBase, ShardOptions } from "../../engine/plan.js";
 import type { KernelPool, RunOptions } from "../../engine/pool.js";
@@ -120,8 +120,23 @@ function planOf(req: VerifyRequest): VerifyPlan {
   return plan;
 }
 
-/** What plan.json keeps of a verification run: its request. */
+/** What plan.json keeps of a verification run: its request, every field of it. */
 export type VerifyParams = VerifyRequest;
+
+/** The request's codec: a field of VerifyRequest missing here does not compile. */
+export const verifyCodec = paramsCodec<VerifyParams>({
+  map: mapField,
+  from: bigintField,
+  to: bigintField,
+  sieveDepth: optional(intField),
+  stepDepth: optional(intField),
+  maxSteps: optional(intField),
+  blocks: optional(intField),
+  limitBits: optional(intField),
+  delay: optional(boolField),
+  classes: optional(boolField),
+  preimage: optional(boolField),
+});
 
 /** A shard's finished blocks, ascending by block. */
 export interface VerifyPart extends PartBase {
@@ -131,27 +146,7 @@ export interface VerifyPart extends PartBase {
 export const verifyJob: JobKind<VerifyParams, VerifyPart, VerifyResult, VerifyOptions> = {
   name: "verify",
   describe: (p) => `verify ${p.map.name} over [${p.from}, ${p.to})`,
-  encodeParams: (p) => ({
-    map: p.map.name,
-    from: p.from,
-    to: p.to,
-    sieveDepth: p.sieveDepth ?? null,
-    stepDepth: p.stepDepth ?? null,
-    maxSteps: p.maxSteps ?? null,
-    delay: p.delay === true,
-  }),
-  decodeParams: (s) => {
-    const num = (v: unknown) => (v === null || v === undefined ? undefined : Number(v));
-    return {
-      map: parseMap(String(s.map)),
-      from: BigInt(s.from as bigint),
-      to: BigInt(s.to as bigint),
-      sieveDepth: num(s.sieveDepth),
-      stepDepth: num(s.stepDepth),
-      maxSteps: num(s.maxSteps),
-      delay: s.delay === true,
-    };
-  },
+  codec: verifyCodec,
   estimate(plan, cpus) {
     const vplan = planOf(plan.params);
     let numbers = 0n;
