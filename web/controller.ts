@@ -36,6 +36,15 @@ export class RunController {
     this.abort?.abort();
   }
 
+  /**
+   * While a run goes on: names the phase it is in, with the bar indeterminate (moving, no share)
+   * until the next progress report gives it a share again.
+   */
+  phase(text: string): void {
+    ($(this.el.progress) as HTMLProgressElement).removeAttribute("value");
+    $(this.el.status).textContent = text;
+  }
+
   /** Shows a message under the form (bad: styled as an error). */
   say(text: string, bad = false): void {
     const m = $(this.el.message);

@@ -5,7 +5,7 @@ import { cancelRun, readRunForm, startRun } from "./views/run.js";
 import { refreshTable, setupTable } from "./views/table.js";
 import { runInspect } from "./views/inspect.js";
 import { cancelCycles, exportCycles, runCycles } from "./views/cycles.js";
-import { applyPreset, cancelVerify, downloadCertificate, startVerify } from "./views/verify.js";
+import { applyPreset, cancelVerify, downloadCertificate, startVerify, syncVerifyForm } from "./views/verify.js";
 import { resizeCharts } from "./views/charts.js";
 import { defaultWorkers } from "./engine.js";
 import { readWorkers } from "./workers.js";
@@ -107,6 +107,7 @@ const JOBS: Record<View, () => void> = { run, table: run, inspect: inspectNow, c
 function apply(run: boolean): void {
   const state = loadState();
   show(state.view);
+  syncVerifyForm();
   for (const [id, value] of state.refused) fieldError(id, `the link asks for "${value}", which this field does not offer`);
   for (const form of FORMS) panelOf(form[0])?.follow();
   if ((run || state.view === "inspect") && state.refused.length === 0) JOBS[state.view]();
@@ -151,8 +152,12 @@ function setup(): void {
   setupTree((n, map) => openInInspector(String(n), map.name));
   $("verify-cancel").addEventListener("click", cancelVerify);
   $("verify-certificate").addEventListener("click", downloadCertificate);
+  // the Sieve depth field says what depth runs, or that the method does not use it
+  $("verify-form").addEventListener("input", syncVerifyForm);
+  $("verify-form").addEventListener("change", syncVerifyForm);
   $("verify-preset").addEventListener("change", () => {
     applyPreset(($("verify-preset") as HTMLSelectElement).value);
+    syncVerifyForm();
     panelOf("verify-form")?.follow();
   });
   document.querySelector('a[href="#glossary"]')?.addEventListener("click", () => {

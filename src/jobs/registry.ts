@@ -8,8 +8,16 @@ import { cyclesHandlers } from "./cycles/kernel.js";
 import { sieveHandlers } from "./sieve/kernel.js";
 import { treeHandlers } from "./tree/kernel.js";
 import { verifyHandlers } from "./verify/kernel.js";
+import { boundsHandlers } from "./verify/bounds.js";
 
-export const jobHandlers = { ...sieveHandlers, ...censusHandlers, ...cyclesHandlers, ...treeHandlers, ...verifyHandlers };
+export const jobHandlers = {
+  ...sieveHandlers,
+  ...censusHandlers,
+  ...cyclesHandlers,
+  ...treeHandlers,
+  ...verifyHandlers,
+  ...boundsHandlers,
+};
 
 export type JobHandlers = typeof jobHandlers;
 

@@ -60,6 +60,7 @@ describe.skipIf(!hasChromium)("web app: links, table, stale results, schemes, wi
     await page.fill("#verify-map", "3x+1");
     await page.fill("#verify-from", "1");
     await page.fill("#verify-to", "2^18");
+    await page.selectOption("#verify-method", "periods");
     await page.fill("#verify-depth", "12");
     await page.click("#verify-go");
     const verified = stable(await summaryOf(page));

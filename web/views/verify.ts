@@ -5,12 +5,15 @@ import { parseCount, parseWhole } from "../../src/core/parse.js";
 import { certificate, tableHashes, verifyJson } from "../../src/jobs/verify/certificate.js";
 import type { TableHashes } from "../../src/jobs/verify/certificate.js";
 import type { VerifyResult } from "../../src/jobs/verify/merge.js";
-import { classDepthOf, MAX_VERIFY_SIEVE_DEPTH, planVerify } from "../../src/jobs/verify/plan.js";
+import { classDepthOf, DEFAULT_SIEVE_DEPTH, MAX_VERIFY_SIEVE_DEPTH, planVerify } from "../../src/jobs/verify/plan.js";
 import type { VerifyRequest } from "../../src/jobs/verify/plan.js";
+import { verifyClaim } from "../../src/jobs/verify/claim.js";
+import { kernelDepthLimit } from "../../src/core/map.js";
+import type { CollatzMap } from "../../src/core/map.js";
 import { verifyTables } from "../../src/jobs/verify/tables.js";
 import type { VerifyTableData } from "../../src/jobs/verify/tables.js";
 import { runVerify } from "../../src/jobs/verify/verify.js";
-import { group } from "../../src/outputs/format.js";
+import { group, plural } from "../../src/outputs/format.js";
 import { toExactJson } from "../../src/core/json.js";
 import pkg from "../../package.json";
 import { RunController } from "../controller.js";
@@ -28,13 +31,76 @@ const controller = new RunController({
 });
 let lastCertificate: string | null = null;
 
+/** The bit length of a positive whole number. */
+const bitLength = (x: bigint) => x.toString(2).length;
+
+/**
+ * The sieve depth the page runs a range by periods at: the one given, or (none given) one suited to
+ * the range, 2^K about a sixteenth of its size (at least 1, at most the CLI's default); never deeper
+ * than the bit length of the range's size, where a period would be longer than the range itself and
+ * its table of no use (every n of such a range is iterated one by one). With the note beside the field.
+ * @example sieveDepthFor(parseMap("5x+1"), 1n, 2000n, null) // { depth: 6, note: "auto: 6 for 1,999 numbers" }
+ */
+export function sieveDepthFor(map: CollatzMap, from: bigint, to: bigint, given: number | null): { depth: number; note: string } {
+  const size = to - from;
+  const limit = Math.min(MAX_VERIFY_SIEVE_DEPTH, kernelDepthLimit(map));
+  const cap = Math.max(1, bitLength(size));
+  if (given === null) {
+    const depth = Math.max(1, Math.min(DEFAULT_SIEVE_DEPTH, limit, bitLength(size) - 5));
+    return { depth, note: `auto: ${depth} for ${plural(size, "number")}` };
+  }
+  if (given > cap) return { depth: cap, note: `${given} is deeper than ${plural(size, "number")} can use: ${cap} is run` };
+  return { depth: given, note: "" };
+}
+
+/** Map, From and To as the form holds them, or null where one is not valid (no error shown: the run shows them). */
+function quietRange(): { map: CollatzMap; from: bigint; to: bigint } | null {
+  try {
+    const map = parseMap(($("verify-map") as HTMLInputElement).value);
+    const from = parseWhole("from", ($("verify-from") as HTMLInputElement).value);
+    const to = parseWhole("to", ($("verify-to") as HTMLInputElement).value);
+    return from >= 1n && to > from ? { map, from, to } : null;
+  } catch {
+    return null;
+  }
+}
+
+/** Whether the form's range runs class by class (the Method asks for it and the range is [1 or 2^f, 2^N)). */
+const runsByClasses = (map: CollatzMap, from: bigint, to: bigint) =>
+  ($("verify-method") as HTMLSelectElement).value === "classes" && classDepthOf(map, from, to) !== null;
+
+/**
+ * The Sieve depth field follows the form: off, with the reason beside it, for a range run class by
+ * class (which goes bit by bit to depth N whatever the field says); else the depth that will run.
+ */
+export function syncVerifyForm(): void {
+  const field = $("verify-depth") as HTMLInputElement;
+  const note = $("verify-depth-note");
+  const range = quietRange();
+  if (range && runsByClasses(range.map, range.from, range.to)) {
+    field.disabled = true;
+    note.textContent = `not used: classes go to depth ${classDepthOf(range.map, range.from, range.to)}`;
+    return;
+  }
+  field.disabled = false;
+  const text = field.value.trim();
+  const given = /^\d+$/.test(text) ? Number(text) : null;
+  note.textContent = range && (text === "" || given !== null) ? sieveDepthFor(range.map, range.from, range.to, given).note : "";
+}
+
 /** Reads and checks the form; errors appear beside the fields and nothing runs. */
 export function readVerifyForm(): VerifyRequest | null {
   const map = parseField("verify-map", parseMap);
   const from = parseField("verify-from", (t) => parseWhole("from", t));
   const to = parseField("verify-to", (t) => parseWhole("to", t));
-  const depth = parseField("verify-depth", (t) => parseCount("sieve depth", t, 1, MAX_VERIFY_SIEVE_DEPTH));
-  if (!map || from === null || to === null || depth === null) return null;
+  const depthText = ($("verify-depth") as HTMLInputElement).value.trim();
+  // a range [1, 2^N) by classes (no sieve depth: the classes go to depth N), unless the periods are chosen
+  const byClasses = map !== null && from !== null && to !== null && from >= 1n && to > from && runsByClasses(map, from, to);
+  // an empty depth: one suited to the range
+  const given =
+    byClasses || depthText === "" ? null : parseField("verify-depth", (t) => parseCount("sieve depth", t, 1, MAX_VERIFY_SIEVE_DEPTH));
+  if (byClasses || depthText === "") fieldError("verify-depth", "");
+  if (!map || from === null || to === null || (given === null && !byClasses && depthText !== "")) return null;
   // the range's own checks, in the fields' words
   if (from < 1n) {
     fieldError("verify-from", `From must be at least 1, got ${group(from)}`);
@@ -45,15 +111,15 @@ export function readVerifyForm(): VerifyRequest | null {
     return null;
   }
   const delay = ($("verify-delay") as HTMLInputElement).checked;
-  // a range [1, 2^N) by classes (no sieve depth: the classes go to depth N), unless the periods are chosen
-  const byClasses = ($("verify-method") as HTMLSelectElement).value === "classes" && classDepthOf(map, from, to) !== null;
-  const req: VerifyRequest = byClasses ? { map, from, to, delay } : { map, from, to, sieveDepth: depth, delay, classes: false };
+  const req: VerifyRequest = byClasses
+    ? { map, from, to, delay }
+    : { map, from, to, sieveDepth: sieveDepthFor(map, from, to, given).depth, delay, classes: false };
   try {
     planVerify(req);
   } catch (e) {
-    // a message about from alone belongs beside From; the rest (the range, its size, the depth) beside To
+    // a message about from alone belongs beside From, one about the depth beside it; the rest (the range, its size) beside To
     const msg = (e as Error).message;
-    fieldError(/^from /.test(msg) ? "verify-from" : "verify-to", msg);
+    fieldError(/^from /.test(msg) ? "verify-from" : /^sieve depth /.test(msg) ? "verify-depth" : "verify-to", msg);
     return null;
   }
   return req;
@@ -63,19 +129,49 @@ function rows(head: string[], body: string[][]): string {
   return `<thead><tr>${head.map((h) => `<th>${h}</th>`).join("")}</tr></thead><tbody>${body.map((r) => `<tr>${r.map((c) => `<td>${c}</td>`).join("")}</tr>`).join("")}</tbody>`;
 }
 
+/** The run's claim (src/jobs/verify/claim.ts), as it states it: what is proved, what is not, the assumption, the lists. */
+function renderClaim(r: VerifyResult): void {
+  const claim = verifyClaim(r);
+  $("verify-descent").textContent = claim.descent;
+  $("verify-claim").textContent = claim.claim;
+  $("verify-claim").classList.toggle("partial", claim.firstUnproved !== null);
+  $("verify-not-proved").textContent = claim.notProved ?? "";
+  $("verify-not-proved").hidden = claim.notProved === null;
+  $("verify-assumption").textContent = claim.assumption;
+  const items: HTMLElement[] = [];
+  for (const l of claim.lists) {
+    const dt = document.createElement("dt");
+    dt.textContent = `${l.title}: ${group(l.count)}`;
+    const dd = document.createElement("dd");
+    const more = l.more > 0n ? `, … and ${group(l.more)} more` : "";
+    if (l.title.startsWith("cycle members")) {
+      // each member named with its cycle: n = 1 on 1 → 2 → 1
+      const ul = document.createElement("ul");
+      ul.id = "verify-cycles";
+      ul.className = "cycle-list";
+      ul.setAttribute("aria-label", "Cycle members and their cycles");
+      ul.replaceChildren(
+        ...r.cycleMembers.slice(0, l.shown.length).map((m) => {
+          const cycle = [m.n];
+          for (let v = step(r.map, m.n), i = 0; v !== m.n && i < 12; v = step(r.map, v), i++) cycle.push(v);
+          const li = document.createElement("li");
+          const tail = m.period > cycle.length ? ` → … (period ${m.period})` : "";
+          li.textContent = `n = ${group(m.n)} on ${cycle.map(group).join(" → ")}${tail} → ${group(m.n)}`;
+          return li;
+        }),
+      );
+      dd.append(ul);
+      if (more) dd.append(more.slice(2));
+    } else dd.textContent = `${l.shown.join(", ")}${more}`;
+    items.push(dt, dd);
+  }
+  $("verify-lists").replaceChildren(...items);
+}
+
 function render(r: VerifyResult): void {
   const c = r.counts;
   panel.shown(`${r.map.name}, [${r.from}, ${r.to})`);
-  const rate = Number(c.numbers) / Math.max(r.seconds, 1e-9);
-  controller.say(
-    `Every n in [${r.from}, ${r.to}) of ${r.map.name} reaches a value below n` +
-      `${c.cycleMembers + c.cycleEntrants + c.unresolved > 0n ? ", except the cycle members, cycle entrants and unresolved numbers counted below" : ""}. ` +
-      // by induction over n: no divergent start and no new cycle in the range, given the numbers below it
-      (r.from > 1n
-        ? `So no n in the range starts a divergent trajectory or lies on a cycle, other than the cycle members and unresolved numbers below, given that no n below ${group(r.from)} does (the induction assumption of a range that does not start at 1). `
-        : "By induction from 1, no n in the range starts a divergent trajectory or lies on a cycle, other than the cycle members and unresolved numbers below. ") +
-      `${group(c.numbers)} numbers in ${r.seconds.toFixed(2)} s (${group(BigInt(Math.round(rate)))} a second).`,
-  );
+  renderClaim(r);
   const counts: [string, string][] = [
     ["numbers in the range", group(c.numbers)],
     [
@@ -96,17 +192,6 @@ function render(r: VerifyResult): void {
   ];
   $("verify-counts").innerHTML =
     `<tbody>${counts.map(([k, v]) => `<tr><th scope="row" class="left">${k}</th><td>${v}</td></tr>`).join("")}</tbody>`;
-  // each cycle member named with its cycle: n = 1 on 1 → 2 → 1
-  $("verify-cycles").replaceChildren(
-    ...r.cycleMembers.map((m) => {
-      const cycle = [m.n];
-      for (let v = step(r.map, m.n), i = 0; v !== m.n && i < 12; v = step(r.map, v), i++) cycle.push(v);
-      const li = document.createElement("li");
-      const more = m.period > cycle.length ? ` → … (period ${m.period})` : "";
-      li.textContent = `n = ${group(m.n)} on ${cycle.map(group).join(" → ")}${more} → ${group(m.n)}`;
-      return li;
-    }),
-  );
   $("verify-glide").innerHTML = rows(
     ["glide record n", "standard steps", "steps of T"],
     r.glideRecords.map((g) => [group(g.n), String(g.standardSteps), String(g.steps)]),
@@ -138,6 +223,7 @@ export async function startVerify(workers: number): Promise<boolean> {
   const started = new Date().toISOString();
   const waiting = pagePoolPending() > 0 ? "Waiting for the job already running..." : "Building the sieve and step tables...";
   let hashes: TableHashes | null = null;
+  let tableSeconds = 0;
   const out = await controller.run(
     (options) =>
       withPagePool(
@@ -146,9 +232,22 @@ export async function startVerify(workers: number): Promise<boolean> {
           const plan = planVerify(req);
           let tables: VerifyTableData | undefined;
           if (plan.engine === "kernel") {
+            controller.phase(
+              plan.method === "classes"
+                ? `Building the step tables and the path bounds of depth ${plan.sieveDepth}...`
+                : `Building the depth-${plan.sieveDepth} sieve and step tables...`,
+            );
+            const t0 = performance.now();
             tables = await verifyTables(pool, plan, options);
             hashes = await tableHashes(tables, sha256);
+            tableSeconds = (performance.now() - t0) / 1000;
           }
+          // the blocks: the kernel's walk, then in the same worker the exact (BigInt) finish of values
+          // past 128 bits and of the numbers that did not descend; the bar moves as blocks finish
+          controller.phase(
+            `Checking ${plural(req.to - req.from, "number")} in ${plural(plan.blocks.length, "block")} ` +
+              "(the kernel, then exact BigInt arithmetic for values past 128 bits and numbers that do not descend)...",
+          );
           return runVerify(pool, req, { ...options, tables });
         },
         options.signal,
@@ -162,6 +261,12 @@ export async function startVerify(workers: number): Promise<boolean> {
     return true;
   }
   render(out.value);
+  // one time for the run: the page's, from the click to the result (tables included), and the rate over it
+  const numbers = out.value.counts.numbers;
+  const rate = Number(numbers) / Math.max(out.seconds, 1e-9);
+  $("verify-status").textContent =
+    `Done in ${out.seconds.toFixed(2)} s: ${plural(numbers, "number")}, ${group(BigInt(Math.round(rate)))} a second` +
+    `${tableSeconds > 0 ? ` (building the tables took ${tableSeconds.toFixed(2)} s of it)` : ""}.`;
   const stamp = { version: pkg.version, kernelBuild: await kernelBuildId() };
   lastCertificate = `${toExactJson(await certificate(out.value, hashes, stamp, { started, finished: new Date().toISOString(), workers }), 2)}\n`;
   ($("verify-certificate") as HTMLButtonElement).disabled = false;

@@ -13,6 +13,8 @@ import { stepTable, stepTableRaw } from "../steps.js";
 import type { VerifyPlan } from "./plan.js";
 import { traceBig } from "./trace.js";
 import { coefficientStoppingTime } from "../../core/padic.js";
+import type { ProbeChunk } from "./bounds.js";
+import type { JobApi } from "../registry.js";
 
 /** Exceptions a run may carry (they are listed and iterated one by one). */
 const MAX_EXCEPTIONS = 1n << 24n;
@@ -57,7 +59,7 @@ export async function verifyTables(pool: KernelPool, plan: VerifyPlan, options: 
       sievedSlack: 0n,
       classes: {
         from: plan.from,
-        bounds: pathBounds(map, K, plan.maxSteps, plan.from),
+        bounds: await pathBoundsOnPool(pool, map, K, plan.maxSteps, plan.from, options.signal),
         slacks: BigUint64Array.from({ length: K + 1 }, (_, j) => slack(map, j)),
         preimage: plan.preimage,
         glideCap: Math.min(2 * plan.maxSteps + 2, GLIDE_CAP),
@@ -157,7 +159,20 @@ const PROBE_BITS = 12;
  * @example pathBounds(parseMap("3x+1"), 8, 1000, 1n)[2 * 4] // 26n: the path of 7 (T: 7, 11, 17, 26, ...)
  */
 export function pathBounds(map: CollatzMap, N: number, maxSteps: number, from: bigint): BigUint64Array {
-  // every number of [from, from + 2^PROBE_BITS), then from + 2^t - 1 (2^t - 1 from 1: t odd steps up), ascending
+  const probes = pathProbes(N, from);
+  return boundsFromPaths(
+    N,
+    from,
+    probes,
+    probes.map((n) => probePath(map, n, maxSteps)),
+  );
+}
+
+/**
+ * The probes of pathBounds, ascending: every n of [from, from + 2^PROBE_BITS), then from + 2^t - 1
+ * (2^t - 1 from 1: t odd steps up), those below from + 2^(N-1) (the bands' end) only.
+ */
+function pathProbes(N: number, from: bigint): bigint[] {
   const probes: bigint[] = [];
   const top = 1n << BigInt(N);
   for (let n = from; n < from + (1n << BigInt(PROBE_BITS)) && n < top; n++) probes.push(n);
@@ -165,22 +180,51 @@ export function pathBounds(map: CollatzMap, N: number, maxSteps: number, from: b
     const p = (from === 1n ? 0n : from) + (1n << BigInt(t)) - 1n;
     if (p > probes.at(-1)! && p < top) probes.push(p);
   }
+  const end = from + (1n << BigInt(Math.max(0, N - 1)));
+  return probes.filter((n) => n < end);
+}
+
+/** A probe's path: the highest value before it goes below itself, n itself on a cycle, 0 past the cap. */
+export function probePath(map: CollatzMap, n: bigint, maxSteps: number): bigint {
+  const t = traceBig(map, n, maxSteps, 0);
+  return t.outcome === "descent" ? t.path : t.outcome === "cycle" ? n : 0n;
+}
+
+/** The bounds of pathBounds from its probes' paths (in the probes' order). */
+function boundsFromPaths(N: number, from: bigint, probes: readonly bigint[], paths: readonly bigint[]): BigUint64Array {
   const out = new BigUint64Array(2 * (N + 1));
   let best = 0n;
   let at = 0;
   for (let i = 1; i <= N; i++) {
     // the probes below from + 2^(i-1)
-    while (at < probes.length && probes[at]! < from + (1n << BigInt(i - 1))) {
-      const t = traceBig(map, probes[at]!, maxSteps, 0);
-      const path = t.outcome === "descent" ? t.path : t.outcome === "cycle" ? probes[at]! : 0n;
-      if (path > best) best = path;
-      at++;
-    }
+    for (; at < probes.length && probes[at]! < from + (1n << BigInt(i - 1)); at++) if (paths[at]! > best) best = paths[at]!;
     if (best >> 128n !== 0n) throw new Error("internal error: a path bound past 128 bits");
     out[2 * i] = BigInt.asUintN(64, best);
     out[2 * i + 1] = best >> 64n;
   }
   return out;
+}
+
+/**
+ * pathBounds with its probes iterated in the pool's workers, a few chunks a worker: the same bounds,
+ * and the host's thread (a page's main thread) stays free: a probe that does not descend costs the
+ * whole step cap in BigInt (seconds a probe for 5x+1).
+ */
+async function pathBoundsOnPool(pool: KernelPool, map: CollatzMap, N: number, maxSteps: number, from: bigint, signal?: AbortSignal) {
+  const probes = pathProbes(N, from);
+  const size = Math.max(1, Math.ceil(probes.length / (8 * pool.size)));
+  const chunks: ProbeChunk[] = [];
+  for (let i = 0; i < probes.length; i += size) chunks.push({ first: i, q: map.q, r: map.r, maxSteps, probes: probes.slice(i, i + size) });
+  const paths = new Array<bigint>(probes.length).fill(0n);
+  await pool.run(
+    chunks,
+    (api: JobApi, c) => api.verifyProbePaths(c),
+    (c, out) => {
+      for (let j = 0; j < out.length; j++) paths[c.first + j] = out[j]!;
+    },
+    { signal },
+  );
+  return boundsFromPaths(N, from, probes, paths);
 }
 
 /** Most numbers below the early-descent bound that a run iterates here to list them. */
