@@ -11,6 +11,7 @@ import type { TableHashes } from "../jobs/verify/certificate.js";
 import { checkCertificate } from "../jobs/verify/check.js";
 import type { BlockEntry } from "../jobs/verify/block.js";
 import type { VerifyResult } from "../jobs/verify/merge.js";
+import { verifyClaim } from "../jobs/verify/claim.js";
 import {
   DEFAULT_MAX_STEPS,
   DEFAULT_SIEVE_DEPTH,
@@ -350,8 +351,13 @@ function verifyHeader(p: Pick<VerifyPlan, "map" | "from" | "to" | "sieveDepth" |
 /** The report after its first line. */
 function verifyText(r: VerifyResult, workers: number): string {
   const c = r.counts;
+  // what the run proves, from its counts (the page states the same lines)
+  const claim = verifyClaim(r);
   const lines = [
-    `every n reaches a value below n, except the cycle members, cycle entrants and unresolved numbers listed below`,
+    claim.descent,
+    claim.claim,
+    ...(claim.notProved ? [claim.notProved] : []),
+    claim.assumption,
     "",
     `  sieved (descend at their class's depth)  ${group(c.sieved).padStart(22)}`,
     `  checked (survivors iterated)             ${group(c.checked).padStart(22)}`,
