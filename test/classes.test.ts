@@ -125,6 +125,17 @@ describe("verify by classes: against the brute force", () => {
     expect(r.counts.preimage).toBe(skippable);
   });
 
+  it("3x+1 over [1, 2^N) for N = 9 to 12: small trees, where a leaf's path bound decides a record (255, OEIS A006884)", async () => {
+    // 255 is a path record of 3x+1 (OEIS A006884, from memory): the one leaf of depth 9 to 12 whose path beats its band
+    const map = parseMap("3x+1");
+    for (let N = 9; N <= 12; N++) {
+      const r = await runVerify(pool, { map, from: 1n, to: 1n << BigInt(N) });
+      expect(r.method).toBe("classes");
+      expectAgrees(withSkipped(r), bruteVerify(map, 1n, 1n << BigInt(N), 100_000, N));
+      expect(r.pathRecords.map((p) => p.n)).toContain(255n);
+    }
+  });
+
   for (const [text, N, cap] of [
     ["3x+5", 16, 100_000],
     ["3x+7", 16, 100_000],

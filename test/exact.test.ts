@@ -125,10 +125,26 @@ describe("exact counter: special", () => {
       }
     }
   }, 60_000);
-  it("the streamed rows equal the collected counts", () => {
-    const map = parseMap("3x-1");
-    const rows = [...exactRows(map, 60)].map((r) => ({ depth: r.depth, survivors: r.survivors, stopped: r.stopped }));
-    expect(rows).toEqual(exactCounts(map, 60).levels);
+  it("3x-1 and 7x+3, collected to depth 60, equal the plain lattice-path count written here (r < 0, q = 7)", () => {
+    // a class mod 2^j is alive while q^m >= 2^i at every step i <= j: counted word by word as in the test above
+    for (const text of ["3x-1", "7x+3"]) {
+      const q = BigInt(parseMap(text).q);
+      const levels = [{ depth: 0, survivors: 1n, stopped: 0n }];
+      let alive = [1n];
+      for (let j = 1; j <= 60; j++) {
+        const next = new Array<bigint>(alive.length + 1).fill(0n);
+        let stopped = 0n;
+        alive.forEach((count, m) => {
+          for (const odd of [0, 1]) {
+            if (q ** BigInt(m + odd) >= 1n << BigInt(j)) next[m + odd]! += count;
+            else stopped += count;
+          }
+        });
+        alive = next;
+        levels.push({ depth: j, survivors: alive.reduce((s, x) => s + x, 0n), stopped });
+      }
+      expect(exactCounts(parseMap(text), 60).levels, text).toEqual(levels);
+    }
   });
   it("refuses depths out of range", () => {
     expect(() => exactCounts(parseMap("3x+1"), 10_001)).toThrow(/depth must be/);

@@ -9,6 +9,7 @@ import { nodePool } from "../src/node/kernel.js";
 import { toExactJson, parseExactJson } from "../src/core/json.js";
 import { sortBig } from "./helpers.js";
 import { classTableArrow } from "../src/outputs/arrow.js";
+import { A076227 } from "../src/core/published.js";
 
 const TOOL = { version: "0.0.0-test", kernelBuild: "test" };
 
@@ -62,10 +63,27 @@ describe("tables: sorting", () => {
     }
   });
 
-  it("pass plans keep 4 bytes a row under the budget (depth 34: one pass at 768 MiB; depth 36: several)", () => {
-    expect(passPlan(34, 151_917_636n)).toEqual({ bucketBits: 10, passes: 1 });
-    expect(passPlan(36, 527_682_754n).passes).toBe(3);
-    expect(passPlan(5, 4n)).toEqual({ bucketBits: 5, passes: 1 });
+  it("pass plans: the fewest passes that keep 4 bytes a row of the published table sizes within the budget, searched here", () => {
+    // rows: the survivors of the 3x+1 sieve at each depth, OEIS A076227 (published entry); the budget of a pass is
+    // 768 MiB by default and a table of 4-byte residues must fit p passes (the least such p, by search)
+    const least = (rows: bigint, budget: bigint) => {
+      let p = 1n;
+      while (4n * rows > p * budget) p++;
+      return Number(p);
+    };
+    for (let d = 1; d < A076227.length; d++)
+      for (const budget of [768n * 2n ** 20n, 2n ** 20n, 12_345n]) {
+        // (a pass is a range of the at most 2^10 buckets of the top bits: more passes than buckets are refused)
+        if (least(A076227[d]!, budget) > 1 << Math.min(d, 10)) expect(() => passPlan(d, A076227[d]!, Number(budget))).toThrow(/passes/);
+        else
+          expect(passPlan(d, A076227[d]!, Number(budget)), `depth ${d}, budget ${budget}`).toEqual({
+            bucketBits: Math.min(d, 10),
+            passes: least(A076227[d]!, budget),
+          });
+      }
+    // past the table: 3x+1 at depth 36 has 527,682,754 survivors (OEIS A076227, from memory): 3 passes of 768 MiB
+    expect(passPlan(36, 527_682_754n).passes).toBe(least(527_682_754n, 768n * 2n ** 20n));
+    expect(least(527_682_754n, 768n * 2n ** 20n)).toBe(3);
   });
 });
 

@@ -169,6 +169,42 @@ describe("verify: far ranges and other maps, against the brute force", () => {
       expectAgrees(r, brute(map, 1n, to, cap, K));
     }
   });
+  it("a period that ends at 2^64 (the carry into n's high word): its last sieved n iterated for the records", async () => {
+    // 7x-9 at depth 3: the survivors mod 8 are 1, 3 and 5 (found here below), so the period [2^64 - 8, 2^64) ends with
+    // the sieved 2^64 - 2 and 2^64 - 1, records of the period by the brute force (2^64 - 1 its longest glide)
+    const map = parseMap("7x-9");
+    const survivors = [0n, 1n, 2n, 3n, 4n, 5n, 6n, 7n].filter((a) => {
+      let v = a,
+        m = 0;
+      for (let j = 1; j <= 3; j++) {
+        if (v % 2n !== 0n) m++;
+        v = v % 2n === 0n ? v / 2n : (7n * v - 9n) >> 1n;
+        if (7 ** m < 2 ** j) return false;
+      }
+      return true;
+    });
+    expect(survivors).toEqual([1n, 3n, 5n]);
+    const from = (1n << 64n) - 8n * 16n,
+      to = (1n << 64n) + 8n * 16n;
+    const r = await runVerify(pool, { map, from, to, sieveDepth: 3, stepDepth: 4, maxSteps: 3000, blocks: 32 });
+    expect(r.engine).toBe("kernel");
+    expect(r.entries.length).toBe(32);
+    for (const e of r.entries) {
+      const b = brute(map, e.first, e.last + 1n, 3000, 3);
+      expect(e.kind).toBe("aligned");
+      expect(
+        e.glideRecords.map((g) => g.n),
+        `block from ${e.first}`,
+      ).toEqual(b.glideRecords);
+      expect(
+        e.pathRecords.map((p) => p.n),
+        `block from ${e.first}`,
+      ).toEqual(b.pathRecords);
+    }
+    const last = brute(map, (1n << 64n) - 8n, 1n << 64n, 3000, 3);
+    expect(last.glideRecords.at(-1)).toBe((1n << 64n) - 1n);
+    expectAgrees(r, brute(map, from, to, 3000, 3));
+  });
   it("r < 0: each block's own records, one period a block, equal the brute force's (survivors that descend before step K)", async () => {
     // 3x-65 at depth 6: survivors 69, 81, 89, 101 and 133 go below themselves before step 6 with every value positive
     const map = parseMap("3x-65");
@@ -218,6 +254,8 @@ describe("verify: ends that are not aligned, shallow sieves, and numbers past 2^
     ["3x+65535", 1n, 6000n, 8],
     ["5x+4095", 1n, 3000n, 6],
     ["3x-4097", 1n, 3000n, 8],
+    // q^m v past 128 bits inside a survivor's first steps near 2^126: the path bound must say unbounded
+    ["3x+1", (1n << 126n) + (1n << 20n), (1n << 126n) + (1n << 20n) + (1n << 13n), 5],
   ];
   for (const [text, from, to, K] of cases) {
     it(`${text} over [${from}, ${to}), sieve depth ${K}: counts by outcome and depth, records, maxima and lists`, async () => {

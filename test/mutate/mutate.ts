@@ -1,233 +1,351 @@
 // npm run mutate: plants one bug at a time in a copy of the tree (the kernels in assembly/, the
-// library in src/), rebuilds what it touches, runs the tests that guard that code, and reports which
-// test killed each planted bug (or that none did). The bugs are the classes that verification relies
-// on: carries and overflow checks, cut depths, the descent and cycle tests, table steps, path bounds,
-// record sweeps, certificate and part checks. Usage: npm run mutate [-- NAME ...] (names as listed;
-// --all also runs the bugs marked masked: ones that, by the design, change no result).
+// library in src/), rebuilds what it touches, runs every test file that reaches the mutated file, and
+// reports which test killed each planted bug (or that none did). The bugs are the classes that
+// verification relies on: carries and overflow checks, cut depths, the descent and cycle tests, table
+// steps, path bounds, record sweeps, certificate and part checks.
+// Usage: npm run mutate [-- NAME ...] (a NAME selects the mutants whose name contains it; --list prints
+// each one's test files and runs nothing), or node --import tsx test/mutate/mutate.ts [NAME ...].
+// A planted bug that does not build is an error of the mutant (reported, exit code 2), not a kill.
+// Which tests reach a file: the import graph of test/, src/ and assembly/ (relative imports and
+// relative URLs; lib/X.js stands for src/X.ts, bin/glidepath.js for src/cli/main.ts), and a kernel
+// file is reached by every file that names one of its exported functions (kernel.call("verifyClasses")),
+// but not through the jobs' registry (which names every job for the workers): a job's worker handlers
+// (src/jobs/<job>/kernel.ts) are reached from the job's other files.
+// The browser tests (test/browser/) are left out: they need a browser and guard no kernel or check.
 import { execFileSync, spawnSync } from "node:child_process";
-import { cpSync, existsSync, mkdtempSync, readFileSync, rmSync, symlinkSync, writeFileSync } from "node:fs";
+import { cpSync, existsSync, mkdtempSync, readdirSync, readFileSync, rmSync, symlinkSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
-import { join } from "node:path";
+import { dirname, join, relative, resolve } from "node:path";
 
 interface Mutant {
   readonly name: string;
   readonly file: string;
   readonly find: string;
   readonly replace: string;
-  /** The test files that guard this code. */
-  readonly tests: readonly string[];
-  /** Why the planted bug cannot change a result (it is run only with --all, and not scored). */
-  readonly masked?: string;
 }
 
-const VERIFY = ["test/verify.test.ts", "test/certificate.test.ts", "test/u128.test.ts"];
-const CLASSES = ["test/classes.test.ts"];
 const MUTANTS: Mutant[] = [
   {
     name: "classes: a settled class counted one member short",
     file: "assembly/verify.ts",
     find: "store<u64>(p, load<u64>(p) + (X - x));",
     replace: "store<u64>(p, load<u64>(p) + (X - x - 1));",
-    tests: CLASSES,
   },
   {
     name: "classes: a leaf skipped behind a smaller number below FROM",
     file: "assembly/verify.ts",
     find: "if (fromN > 1) return preimageBelow(n) >= fromN;",
     replace: "if (fromN > 1) return preimageBelow(n) != 0;",
-    tests: CLASSES,
   },
   {
     name: "classes: a leaf's path never iterated again exactly when its bound could beat the band's",
     file: "assembly/verify.ts",
     find: "    if (exceededPath) {\n      const again = exact(n, 0);",
     replace: "    if (false) {\n      const again = exact(n, 0);",
-    tests: CLASSES,
   },
   {
     name: "u128: a dropped carry from the low word in the multiply-add",
     file: "assembly/u128.ts",
     find: "  if (l2 < l) {\n    hh++;",
     replace: "  if (l2 < l) {\n    hh += 0;",
-    tests: VERIFY,
   },
   {
     name: "u128: a missed overflow of the high word in the multiply-add",
     file: "assembly/u128.ts",
     find: "carry = mulhi(hi, y) != 0 || hh < h;",
     replace: "carry = hh < h;",
-    tests: VERIFY,
   },
   {
     name: "kernel: a return to n taken for a descent in the fast path",
     file: "assembly/verify.ts",
     find: "      bh = vh;\n    }\n    if (ltU(vl, vh, nl, nh)) break;",
     replace: "      bh = vh;\n    }\n    if (leU(vl, vh, nl, nh)) break;",
-    tests: VERIFY,
   },
   {
     name: "kernel: a table step that may pass over the first value below n",
     file: "assembly/verify.ts",
     find: "let d = bits - nBits - 1;",
     replace: "let d = bits - nBits + 1;",
-    tests: VERIFY,
-    masked:
-      "the fast path's glide only decides whether a survivor is iterated again in single steps (exact), which finds its records; " +
-      "a descent passed over is found later, so only the time changes",
   },
   {
     name: "kernel: a class's cut depth off by one",
     file: "assembly/verify.ts",
     find: "if (cutDepth == 0 && steps <= K && steps >= dropDepth(odd)) cutDepth = steps;",
     replace: "if (cutDepth == 0 && steps <= K && steps > dropDepth(odd)) cutDepth = steps;",
-    tests: VERIFY,
   },
   {
     name: "kernel: the peak bound without its slack",
     file: "assembly/verify.ts",
     find: "const l = rlo + slack;",
     replace: "const l = rlo;",
-    tests: VERIFY,
-    masked:
-      "no input found where it changes a record: 72 ranges of 3x+r (r up to 2^20 - 1, depths 4 to 12) give the same path records; " +
-      "the bound only decides whether a survivor is iterated again, and survivors whose glide beats the block's are iterated anyway",
   },
   {
     name: "kernel: a survivor's records not noted after it is iterated again in single steps",
     file: "assembly/verify.ts",
     find: "          if (again == DONE_DESCENT) noteRecords(nextL, nextH, glideT + glideOdd);",
     replace: "          if (again == DONE_DESCENT) {}",
-    tests: VERIFY,
+  },
+  {
+    name: "classes: the leaf's path-bound shortcut with margin -2 instead of +2",
+    file: "assembly/verify.ts",
+    find: "if (nBits + dropDepth(mp) - ip + 2 >= bestPathBits || 64 - <i32>clz(slack) > nBits) {",
+    replace: "if (nBits + dropDepth(mp) - ip - 2 >= bestPathBits || 64 - <i32>clz(slack) > nBits) {",
+  },
+  {
+    name: "classes: a band skipped when its bound's bit length only equals the lower bound's",
+    file: "assembly/verify.ts",
+    find: "if (bits + extra < bitlen(lbl, lbh) && 64 - <i32>clz(slack) <= bits) continue;",
+    replace: "if (bits + extra <= bitlen(lbl, lbh) && 64 - <i32>clz(slack) <= bits) continue;",
+  },
+  {
+    name: "kernel: peakBound not flagging q^m v past 128 bits",
+    file: "assembly/verify.ts",
+    find: "carry = over || rhi == 0xffffffffffffffff || slack == 0xffffffffffffffff;",
+    replace: "carry = rhi == 0xffffffffffffffff || slack == 0xffffffffffffffff;",
+  },
+  {
+    name: "kernel: the carry into the high word of the next survivor or period end dropped",
+    file: "assembly/verify.ts",
+    find: "nextH = baseH + select<u64>(1, 0, baseL + off < baseL);",
+    replace: "nextH = baseH;",
   },
   {
     name: "check: the step table's hash not compared",
     file: "src/jobs/verify/check.ts",
     find: 'expectSame(c.tables, hashes, "tables", "the rebuilt tables");',
     replace: 'expectSame(c.tables?.sieve, hashes.sieve, "tables.sieve", "the rebuilt tables");',
-    tests: VERIFY,
   },
   {
     name: "check: path-record values not compared with BigInt iteration",
     file: "src/jobs/verify/check.ts",
     find: 'if (t.outcome === "unresolved" || peak !== p.peakT)',
     replace: 'if (t.outcome === "unresolved")',
-    tests: VERIFY,
   },
   {
     name: "check: block entry digests not compared",
     file: "src/jobs/verify/check.ts",
     find: "if (d !== c.entryDigests[i])",
     replace: "if (d === c.entryDigests[i] && false)",
-    tests: VERIFY,
   },
   {
     name: "check: the sieved counts not compared with the sieve restricted to the range",
     file: "src/jobs/verify/check.ts",
     find: "          merged.counts.sievedByDepth,\n          sieved,\n",
     replace: "          merged.counts.sievedByDepth,\n          merged.counts.sievedByDepth,\n",
-    tests: VERIFY,
   },
   {
     name: "check: sampled blocks not compared with their entries",
     file: "src/jobs/verify/check.ts",
     find: "for (const e of rerun) expectSame(",
     replace: "for (const e of rerun.slice(rerun.length)) expectSame(",
-    tests: VERIFY,
   },
   {
     name: "merge: a record kept on a tie in the sweep",
     file: "src/jobs/verify/block.ts",
     find: "    if (v > best) {",
     replace: "    if (v >= best) {",
-    tests: VERIFY,
   },
   {
     name: "block: an exception of the sieve counted as checked",
     file: "src/jobs/verify/block.ts",
     find: "else if (t.cutDepth !== null) f.exceptions++;",
     replace: "else if (t.cutDepth !== null) f.checked++;",
-    tests: VERIFY,
   },
   {
     name: "trace: a return to n taken for a descent",
     file: "src/jobs/verify/trace.ts",
     find: 'if (v < n) return { outcome: "descent", steps, odd, path, cutDepth };',
     replace: 'if (v <= n) return { outcome: "descent", steps, odd, path, cutDepth };',
-    tests: VERIFY,
   },
   {
     name: "parts: a part's digest not compared",
     file: "src/node/cluster.ts",
     find: 'if (typeof m.digest !== "string" || partDigest(withoutDigest(exact)) !== m.digest)',
     replace: 'if (typeof m.digest !== "string")',
-    tests: ["test/cluster/cluster.test.ts"],
   },
   {
     name: "exact counter: a class kept alive one step too long",
     file: "src/core/exact.ts",
     find: "if (keep !== 0n && jj === drop[lo + i]) {",
     replace: "if (keep !== 0n && jj === drop[lo + i]! + 1) {",
-    tests: ["test/exact.test.ts", "test/sieve.test.ts"],
   },
 ];
 
-const root = new URL("../../", import.meta.url).pathname;
-const args = process.argv.slice(2);
-const all = args.includes("--all");
-const only = args.filter((a) => a !== "--all");
-const chosen = MUTANTS.filter((m) => (all || !m.masked) && (only.length === 0 || only.some((o) => m.name.includes(o))));
-for (const m of MUTANTS) if (m.masked && !all) process.stdout.write(`masked    ${m.name}\n          (not run: ${m.masked})\n`);
+const root = resolve(new URL("../../", import.meta.url).pathname);
+
+/** The repository files a file refers to: relative imports and URLs, lib/ and bin/ mapped to src/, kernel exports named. */
+function graph(): { edges: Map<string, Set<string>>; tests: string[] } {
+  const files: string[] = [];
+  const walk = (dir: string) => {
+    for (const e of readdirSync(join(root, dir), { withFileTypes: true })) {
+      const rel = join(dir, e.name);
+      if (e.isDirectory()) walk(rel);
+      else if (/\.(ts|js|mjs)$/.test(e.name)) files.push(rel);
+    }
+  };
+  for (const d of ["src", "test", "assembly"]) walk(d);
+  const known = new Set(files);
+  const toSource = (p: string): string | null => {
+    if (p === "bin/glidepath.js") return "src/cli/main.ts";
+    if (p.startsWith("lib/")) p = `src/${p.slice(4)}`;
+    for (const c of [p, p.replace(/\.js$/, ".ts"), `${p}.ts`]) if (known.has(c)) return c;
+    return null;
+  };
+  // exported functions of each kernel file: a file naming one in a string reaches it
+  const exportsOf = new Map<string, string>();
+  for (const f of files)
+    if (f.startsWith("assembly/"))
+      for (const m of readFileSync(join(root, f), "utf8").matchAll(/^export function (\w+)/gm)) exportsOf.set(m[1]!, f);
+  const edges = new Map<string, Set<string>>();
+  for (const f of files) {
+    // type-only imports run nothing; the jobs' registry names every job for the workers, so a test
+    // reaches a job's kernel adapter through the job it runs, not through the registry
+    const text = f === "src/jobs/registry.ts" ? "" : readFileSync(join(root, f), "utf8").replace(/\b(import|export)\s+type\s[^;]*;/g, "");
+    const out = new Set<string>();
+    for (const m of text.matchAll(/["'`](\.{1,2}\/[^"'`$]+)["'`]/g)) {
+      const t = toSource(relative(root, resolve(root, dirname(f), m[1]!)));
+      if (t) out.add(t);
+    }
+    for (const m of text.matchAll(/["'`](\w+)["'`]/g)) {
+      const k = exportsOf.get(m[1]!);
+      if (k && k !== f) out.add(k);
+    }
+    edges.set(f, out);
+  }
+  const tests = files.filter((f) => f.endsWith(".test.ts") && !f.startsWith("test/browser/")).sort();
+  return { edges, tests };
+}
+
+/** The test files whose closure in the graph holds `file`. */
+function testsReaching(g: ReturnType<typeof graph>, file: string): string[] {
+  return g.tests.filter((t) => {
+    const seen = new Set([t]);
+    const todo = [t];
+    while (todo.length > 0) {
+      const f = todo.pop()!;
+      if (f === file) return true;
+      // a job's worker handlers (src/jobs/<job>/kernel.ts) run for whoever reaches the job
+      const job = /^src\/jobs\/[^/]+\//.exec(f)?.[0];
+      const next = [...(g.edges.get(f) ?? [])];
+      if (job && g.edges.has(`${job}kernel.ts`)) next.push(`${job}kernel.ts`);
+      for (const n of next)
+        if (!seen.has(n)) {
+          seen.add(n);
+          todo.push(n);
+        }
+    }
+    return false;
+  });
+}
+
+const listOnly = process.argv.includes("--list");
+const only = process.argv.slice(2).filter((a) => a !== "--list");
+const chosen = MUTANTS.filter((m) => only.length === 0 || only.some((o) => m.name.includes(o)));
+if (chosen.length === 0) throw new Error(`no mutant's name contains ${only.map((o) => JSON.stringify(o)).join(" or ")}`);
 for (const m of chosen)
   if (readFileSync(join(root, m.file), "utf8").split(m.find).length !== 2)
     throw new Error(`mutant "${m.name}": its text is not found exactly once in ${m.file}`);
+const g = graph();
+if (listOnly) {
+  for (const m of chosen) process.stdout.write(`${m.name}\n          ${testsReaching(g, m.file).join(", ")}\n`);
+  process.exit(0);
+}
 const work = mkdtempSync(join(tmpdir(), "glidepath-mutate-"));
 const copy = join(work, "tree");
 const skip = new Set(["node_modules", ".git", "dist", "build", "lib"]);
-cpSync(root, copy, { recursive: true, filter: (src) => !skip.has(src.slice(root.length).split("/")[0]!) });
+cpSync(root, copy, { recursive: true, filter: (src) => !skip.has(relative(root, src).split("/")[0]!) });
 symlinkSync(join(root, "node_modules"), join(copy, "node_modules"));
 const run = (cmd: string, args: string[]) => spawnSync(cmd, args, { cwd: copy, encoding: "utf8", env: { ...process.env, CI: "" } });
 execFileSync("npm", ["run", "build:wasm"], { cwd: copy, stdio: "ignore" });
 execFileSync("npm", ["run", "build:lib"], { cwd: copy, stdio: "ignore" });
+// vitest runs the files in the order given here (the smaller test files first, the command line's and
+// the cluster's last), so that with --bail a killed mutant stops early
+writeFileSync(
+  join(copy, "vitest.mutate.config.ts"),
+  `import { relative } from "node:path";
+import { mergeConfig } from "vitest/config";
+import base from "./vitest.config.ts";
+const order: string[] = JSON.parse(process.env.MUTATE_ORDER ?? "[]");
+class InOrder {
+  constructor(readonly ctx: { config: { root: string } }) {}
+  shard<T>(files: T[]): T[] { return files; }
+  sort<T extends { moduleId: string }>(files: T[]): T[] {
+    const at = (f: T) => order.indexOf(relative(this.ctx.config.root, f.moduleId));
+    return [...files].sort((a, b) => at(a) - at(b));
+  }
+}
+export default mergeConfig(base, { test: { sequence: { sequencer: InOrder } } });
+`,
+);
+const weight = (t: string) =>
+  (t.startsWith("test/cluster/") ? 2e9 : t === "test/cli.test.ts" ? 1e9 : 0) + readFileSync(join(root, t)).length;
+const runTests = (tests: string[], report: string) =>
+  spawnSync(
+    "npx",
+    ["vitest", "run", "--config", "vitest.mutate.config.ts", ...tests, "--reporter=json", `--outputFile=${report}`, "--bail=1"],
+    {
+      cwd: copy,
+      encoding: "utf8",
+      env: { ...process.env, CI: "", MUTATE_ORDER: JSON.stringify([...tests].sort((a, b) => weight(a) - weight(b))) },
+    },
+  );
+const rebuild = (file: string) => (file.startsWith("assembly/") ? run("npm", ["run", "build:wasm"]) : run("npm", ["run", "build:lib"]));
 
-const results: { name: string; killed: boolean; by: string }[] = [];
+type Outcome = "killed" | "survived" | "error";
+const results: { name: string; outcome: Outcome; by: string }[] = [];
 try {
   for (const m of chosen) {
+    const tests = testsReaching(g, m.file);
     const path = join(copy, m.file);
     const original = readFileSync(path, "utf8");
-    if (original.split(m.find).length !== 2) throw new Error(`mutant "${m.name}": its text is not found exactly once in ${m.file}`);
     writeFileSync(path, original.replace(m.find, m.replace));
+    const started = Date.now();
+    let restored = false;
     try {
-      const build = m.file.startsWith("assembly/") ? run("npm", ["run", "build:wasm"]) : run("npm", ["run", "build:lib"]);
+      const build = rebuild(m.file);
       if (build.status !== 0) {
-        results.push({ name: m.name, killed: true, by: "the build" });
-        continue;
-      }
-      const report = join(work, "report.json");
-      const t = run("npx", ["vitest", "run", ...m.tests, "--reporter=json", `--outputFile=${report}`, "--bail=1"]);
-      let by = "";
-      if (existsSync(report)) {
-        const j = JSON.parse(readFileSync(report, "utf8")) as {
-          testResults: { name: string; assertionResults: { status: string; fullName: string }[] }[];
-        };
-        const failed = j.testResults.flatMap((f) =>
-          f.assertionResults.filter((a) => a.status === "failed").map((a) => `${f.name.slice(copy.length + 1)}: ${a.fullName}`),
+        const why = `${build.stdout}${build.stderr}`.split("\n").find((l) => /error/i.test(l)) ?? `exit code ${build.status}`;
+        results.push({ name: m.name, outcome: "error", by: `the planted bug does not build: ${why.trim()}` });
+      } else if (tests.length === 0) results.push({ name: m.name, outcome: "error", by: `no test file reaches ${m.file}` });
+      else {
+        const report = join(work, "report.json");
+        const t = runTests(tests, report);
+        let by = "";
+        if (existsSync(report)) {
+          const j = JSON.parse(readFileSync(report, "utf8")) as {
+            testResults: { name: string; status: string; message?: string; assertionResults: { status: string; fullName: string }[] }[];
+          };
+          const failed = j.testResults.flatMap((f) => {
+            const at = relative(copy, f.name);
+            const tests = f.assertionResults.filter((a) => a.status === "failed").map((a) => `${at}: ${a.fullName}`);
+            return tests.length > 0 || f.status !== "failed" ? tests : [`${at} (the file failed: ${(f.message ?? "").split("\n")[0]})`];
+          });
+          by = failed[0] ?? "";
+          rmSync(report);
+        }
+        results.push(
+          t.status === 0
+            ? { name: m.name, outcome: "survived", by: tests.join(", ") }
+            : { name: m.name, outcome: "killed", by: by || `vitest exit code ${t.status}` },
         );
-        by = failed[0] ?? "";
-        rmSync(report);
       }
-      results.push({ name: m.name, killed: t.status !== 0, by: t.status !== 0 ? by || "a failing test file" : "" });
     } finally {
       writeFileSync(path, original);
-      if (m.file.startsWith("assembly/")) run("npm", ["run", "build:wasm"]);
-      else run("npm", ["run", "build:lib"]);
+      restored = rebuild(m.file).status === 0;
     }
+    if (!restored) throw new Error(`the copy does not build again after "${m.name}"`);
     const r = results.at(-1)!;
-    process.stdout.write(`${r.killed ? "killed  " : "SURVIVED"}  ${r.name}${r.killed ? `\n          by ${r.by}` : ""}\n`);
+    const label = { killed: "killed  ", survived: "SURVIVED", error: "ERROR   " }[r.outcome];
+    const seconds = Math.round((Date.now() - started) / 1000);
+    const detail = { killed: `by ${r.by}`, survived: `ran ${r.by}`, error: r.by }[r.outcome];
+    process.stdout.write(`${label}  ${m.name} (${tests.length} test files, ${seconds} s)\n          ${detail}\n`);
   }
 } finally {
   rmSync(work, { recursive: true, force: true });
 }
-const scored = results.filter((r) => !MUTANTS.find((m) => m.name === r.name)?.masked);
-const killed = scored.filter((r) => r.killed).length;
-process.stdout.write(`\nmutation score: ${killed} of ${scored.length} planted bugs killed\n`);
-process.exitCode = killed === scored.length ? 0 : 1;
+const killed = results.filter((r) => r.outcome === "killed").length;
+const errors = results.filter((r) => r.outcome === "error").length;
+process.stdout.write(
+  `\nmutation score: ${killed} of ${results.length - errors} planted bugs killed${errors > 0 ? `; ${errors} mutant(s) in error (not scored)` : ""}\n`,
+);
+process.exitCode = errors > 0 ? 2 : killed === results.length ? 0 : 1;
