@@ -5,7 +5,7 @@ import { tmpdir } from "node:os";
 import { join } from "node:path";
 import { afterAll, describe, expect, it } from "vitest";
 import { parseMap } from "../src/core/map.js";
-import { makePlan, planHash, runWhole, splitTasks } from "../src/engine/plan.js";
+import { makePlan, planHash, runWhole, sha256Hex, splitTasks } from "../src/engine/plan.js";
 import type { JobKind, JobName, PartBase, Plan } from "../src/engine/plan.js";
 import { censusJob } from "../src/jobs/census/census.js";
 import type { CensusParams } from "../src/jobs/census/census.js";
@@ -130,8 +130,20 @@ describe("plan layer: layout, weights and hashes", () => {
     const c = await makePlan(pool, censusJob, { map: parseMap("3x+1"), depth: 12 }, 4);
     expect(new Set([a.hash, b.hash, c.hash]).size).toBe(3);
     const { hash, ...body } = a;
-    expect(await planHash(censusJob, body)).toBe(hash);
-    expect(await planHash(censusJob, { ...body, kernelBuild: "0000000000000000" })).not.toBe(hash);
+    // a sha256 in hex, by a digest that gives the standard's example: sha256("abc") (FIPS 180-2, from memory)
+    expect(hash).toMatch(/^[0-9a-f]{64}$/);
+    expect(await sha256Hex("abc")).toBe("ba7816bf8f01cfea414140de5dae2223b00361a396177a9cb410ff61f20015ad");
+    // every field of the plan is in the hash: another value of any one of them (the plan's own list of fields) gives another hash
+    const other = (key: string, v: unknown): unknown => {
+      if (key === "params") return { ...(v as { depth: number }), depth: (v as { depth: number }).depth + 1 };
+      if (typeof v === "string") return `${v}x`;
+      if (typeof v === "number") return v + 1;
+      if (Array.isArray(v)) return v.length > 0 ? v.slice(1) : [1n];
+      if (v === null) return [1n];
+      throw new Error(`no other value for the plan's field ${key}`);
+    };
+    for (const [key, v] of Object.entries(body))
+      expect(await planHash(censusJob, { ...body, [key]: other(key, v) } as typeof body), key).not.toBe(hash);
   });
 
   it("packData round-trips bigints and typed arrays exactly, inline or spilled to files", () => {
