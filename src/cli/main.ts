@@ -13,6 +13,7 @@ import { classCommand } from "./class.js";
 import { conjugacyCommand } from "./conjugacy.js";
 import { countsCommand } from "./counts.js";
 import { cyclesCommand } from "./cycles.js";
+import { cycleBoundCommand } from "./cyclebound.js";
 import { treeCommand } from "./tree.js";
 import { periodicCommand } from "./periodic.js";
 import { sieveCommand } from "./sieve.js";
@@ -31,6 +32,7 @@ const COMMANDS: readonly ((program: Command) => Command)[] = [
   conjugacyCommand,
   stepsCommand,
   verifyCommand,
+  cycleBoundCommand,
   treeCommand,
   clusterCommands,
 ];

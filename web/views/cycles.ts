@@ -7,7 +7,10 @@ import { RunController } from "../controller.js";
 import { $, download, fieldError, parseField, ResultsPanel } from "../dom.js";
 import { cyclesCsv } from "../../src/outputs/summary.js";
 import { pagePoolPending, withPagePool } from "../engine.js";
-import { parseCount } from "../../src/core/parse.js";
+import { parseCount, parseWhole } from "../../src/core/parse.js";
+import { cycleBound } from "../../src/core/cyclebound.js";
+import { positiveCycles } from "../../src/jobs/cyclebound.js";
+import { cycleBoundLine } from "../../src/outputs/cyclebound.js";
 
 const panel = new ResultsPanel("cycles-results", "cycles-stale", "cycles-form");
 let last: CycleSearchResult | null = null;
@@ -36,12 +39,31 @@ function readCyclesForm(mapText: string, periodText: string): { map: CollatzMap;
   return map && ok ? { map, period } : null;
 }
 
+/**
+ * What the Verify view's range proves about cycle lengths, when it starts at 1 for this map: the least
+ * length of a cycle with every element >= X (src/core/cyclebound.ts), the cycles found below X aside.
+ */
+function boundLine(r: CycleSearchResult): string {
+  const vmap = (document.getElementById("verify-map") as HTMLInputElement | null)?.value ?? "";
+  const from = (document.getElementById("verify-from") as HTMLInputElement | null)?.value ?? "";
+  const to = (document.getElementById("verify-to") as HTMLInputElement | null)?.value ?? "";
+  try {
+    if (parseMap(vmap).name !== r.map.name || parseWhole("from", from) !== 1n) return "";
+    const X = parseWhole("to", to);
+    if (X < 2n) return "";
+    const below = positiveCycles(r).filter((c) => c.min < X);
+    return ` If the Verify view's range [1, ${to}) is verified: ${cycleBoundLine(cycleBound(r.map, X), below)}.`;
+  } catch {
+    return "";
+  }
+}
+
 function renderCycles(r: CycleSearchResult): void {
   last = r;
   panel.shown(`${r.map.name}, period up to ${r.maxPeriod}`);
   controller.say(
     `${r.cycles.length} integer cycles of ${r.map.name} with period <= ${r.maxPeriod} (complete search, ${r.width}-bit, ` +
-      `${r.seconds.toFixed(2)} s).`,
+      `${r.seconds.toFixed(2)} s).${boundLine(r)}`,
   );
   const rows = r.cycles
     .map(

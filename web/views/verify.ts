@@ -8,6 +8,9 @@ import type { VerifyResult } from "../../src/jobs/verify/merge.js";
 import { classDepthOf, DEFAULT_SIEVE_DEPTH, MAX_VERIFY_SIEVE_DEPTH, planVerify } from "../../src/jobs/verify/plan.js";
 import type { VerifyRequest } from "../../src/jobs/verify/plan.js";
 import { verifyClaim } from "../../src/jobs/verify/claim.js";
+import { cycleBound } from "../../src/core/cyclebound.js";
+import { cycleThrough, runLimit } from "../../src/jobs/cyclebound.js";
+import { cycleBoundLine } from "../../src/outputs/cyclebound.js";
 import { kernelDepthLimit } from "../../src/core/map.js";
 import type { CollatzMap } from "../../src/core/map.js";
 import { verifyTables } from "../../src/jobs/verify/tables.js";
@@ -163,6 +166,17 @@ function renderClaim(r: VerifyResult): void {
       dd.append(ul);
       if (more) dd.append(more.slice(2));
     } else dd.textContent = `${l.shown.join(", ")}${more}`;
+    items.push(dt, dd);
+  }
+  // what a run from 1 proves about cycle lengths (src/core/cyclebound.ts), one line
+  const X = runLimit(r);
+  if (X !== null) {
+    const dt = document.createElement("dt");
+    dt.textContent = "cycle lengths";
+    const dd = document.createElement("dd");
+    dd.id = "verify-cycle-bound";
+    const below = r.cycleMembers.filter((m) => m.n < X).map((m) => cycleThrough(r.map, m.n, m.period));
+    dd.textContent = cycleBoundLine(cycleBound(r.map, X), below);
     items.push(dt, dd);
   }
   $("verify-lists").replaceChildren(...items);
