@@ -22,6 +22,8 @@ interface Mutant {
   readonly file: string;
   readonly find: string;
   readonly replace: string;
+  /** Test files run before the others that reach the file (the ones expected to kill it), so that --bail stops early. */
+  readonly first?: readonly string[];
 }
 
 const MUTANTS: Mutant[] = [
@@ -66,6 +68,7 @@ const MUTANTS: Mutant[] = [
     file: "assembly/verify.ts",
     find: "let d = bits - nBits - 1;",
     replace: "let d = bits - nBits + 1;",
+    first: ["test/verify.test.ts"],
   },
   {
     name: "kernel: a class's cut depth off by one",
@@ -78,6 +81,7 @@ const MUTANTS: Mutant[] = [
     file: "assembly/verify.ts",
     find: "const l = rlo + slack;",
     replace: "const l = rlo;",
+    first: ["test/classes.test.ts"],
   },
   {
     name: "kernel: a survivor's records not noted after it is iterated again in single steps",
@@ -90,24 +94,28 @@ const MUTANTS: Mutant[] = [
     file: "assembly/verify.ts",
     find: "if (nBits + dropDepth(mp) - ip + 2 >= bestPathBits || 64 - <i32>clz(slack) > nBits) {",
     replace: "if (nBits + dropDepth(mp) - ip - 2 >= bestPathBits || 64 - <i32>clz(slack) > nBits) {",
+    first: ["test/classes.test.ts"],
   },
   {
     name: "classes: a band skipped when its bound's bit length only equals the lower bound's",
     file: "assembly/verify.ts",
     find: "if (bits + extra < bitlen(lbl, lbh) && 64 - <i32>clz(slack) <= bits) continue;",
     replace: "if (bits + extra <= bitlen(lbl, lbh) && 64 - <i32>clz(slack) <= bits) continue;",
+    first: ["test/classes.test.ts"],
   },
   {
     name: "kernel: peakBound not flagging q^m v past 128 bits",
     file: "assembly/verify.ts",
     find: "carry = over || rhi == 0xffffffffffffffff || slack == 0xffffffffffffffff;",
     replace: "carry = rhi == 0xffffffffffffffff || slack == 0xffffffffffffffff;",
+    first: ["test/verify.test.ts"],
   },
   {
     name: "kernel: the carry into the high word of the next survivor or period end dropped",
     file: "assembly/verify.ts",
     find: "nextH = baseH + select<u64>(1, 0, baseL + off < baseL);",
     replace: "nextH = baseH;",
+    first: ["test/verify.test.ts"],
   },
   {
     name: "check: the step table's hash not compared",
@@ -255,10 +263,11 @@ const copy = join(work, "tree");
 const skip = new Set(["node_modules", ".git", "dist", "build", "lib"]);
 cpSync(root, copy, { recursive: true, filter: (src) => !skip.has(relative(root, src).split("/")[0]!) });
 symlinkSync(join(root, "node_modules"), join(copy, "node_modules"));
-const run = (cmd: string, args: string[]) => spawnSync(cmd, args, { cwd: copy, encoding: "utf8", env: { ...process.env, CI: "" } });
+const run = (cmd: string, args: string[]) =>
+  spawnSync(cmd, args, { cwd: copy, encoding: "utf8", env: { ...process.env, CI: "", NO_COLOR: "1", FORCE_COLOR: "0" } });
 execFileSync("npm", ["run", "build:wasm"], { cwd: copy, stdio: "ignore" });
 execFileSync("npm", ["run", "build:lib"], { cwd: copy, stdio: "ignore" });
-// vitest runs the files in the order given here (the smaller test files first, the command line's and
+// vitest runs the files in the order given here (a mutant's `first`, then the smaller test files, the command line's and
 // the cluster's last), so that with --bail a killed mutant stops early
 writeFileSync(
   join(copy, "vitest.mutate.config.ts"),
@@ -279,14 +288,20 @@ export default mergeConfig(base, { test: { sequence: { sequencer: InOrder } } })
 );
 const weight = (t: string) =>
   (t.startsWith("test/cluster/") ? 2e9 : t === "test/cli.test.ts" ? 1e9 : 0) + readFileSync(join(root, t)).length;
-const runTests = (tests: string[], report: string) =>
+const runTests = (tests: string[], first: readonly string[], report: string) =>
   spawnSync(
     "npx",
     ["vitest", "run", "--config", "vitest.mutate.config.ts", ...tests, "--reporter=json", `--outputFile=${report}`, "--bail=1"],
     {
       cwd: copy,
       encoding: "utf8",
-      env: { ...process.env, CI: "", MUTATE_ORDER: JSON.stringify([...tests].sort((a, b) => weight(a) - weight(b))) },
+      env: {
+        ...process.env,
+        CI: "",
+        MUTATE_ORDER: JSON.stringify(
+          [...tests].sort((a, b) => (first.includes(b) ? 1 : 0) - (first.includes(a) ? 1 : 0) || weight(a) - weight(b)),
+        ),
+      },
     },
   );
 const rebuild = (file: string) => (file.startsWith("assembly/") ? run("npm", ["run", "build:wasm"]) : run("npm", ["run", "build:lib"]));
@@ -295,7 +310,7 @@ type Outcome = "killed" | "survived" | "error";
 const results: { name: string; outcome: Outcome; by: string }[] = [];
 try {
   for (const m of chosen) {
-    const tests = testsReaching(g, m.file);
+    const tests = [...new Set([...(m.first ?? []), ...testsReaching(g, m.file)])];
     const path = join(copy, m.file);
     const original = readFileSync(path, "utf8");
     writeFileSync(path, original.replace(m.find, m.replace));
@@ -309,7 +324,7 @@ try {
       } else if (tests.length === 0) results.push({ name: m.name, outcome: "error", by: `no test file reaches ${m.file}` });
       else {
         const report = join(work, "report.json");
-        const t = runTests(tests, report);
+        const t = runTests(tests, m.first ?? [], report);
         let by = "";
         if (existsSync(report)) {
           const j = JSON.parse(readFileSync(report, "utf8")) as {
