@@ -1,7 +1,7 @@
 // The kernels' one 128-bit library: (hi, lo) pairs of u64, results in globals rlo/rhi (and carry,
 // for the checked unsigned multiply-add). Signed (two's complement): add, arithmetic shift by one,
 // the low 128 bits of a product. Unsigned: the checked multiply-add of the verification kernel,
-// comparisons. probe128 runs one of them for the tests (test/u128.test.ts, against BigInt).
+// comparisons, the bit length. probe128 runs one of them for the tests (test/u128.test.ts, against BigInt).
 
 export let rlo: u64 = 0;
 export let rhi: u64 = 0;
@@ -43,6 +43,11 @@ export let carry: bool = false;
 /** Unsigned (ahi, alo) < (bhi, blo). */
 @inline export function ltU(alo: u64, ahi: u64, blo: u64, bhi: u64): bool {
   return ahi < bhi || (ahi == bhi && alo < blo);
+}
+
+/** The bit length of the unsigned (hi, lo): 0 for 0, 128 - clz otherwise. */
+@inline export function bitlen(lo: u64, hi: u64): i32 {
+  return hi != 0 ? 128 - <i32>clz(hi) : 64 - <i32>clz(lo);
 }
 
 /** Unsigned (hi, lo) * y + add into (rhi, rlo); carry when the result needs more than 128 bits. */

@@ -1,0 +1,175 @@
+// Blocks by periods. Aligned blocks (whole periods n = a + 2^K h, h0 <= h < h0 + periods) visit only
+// the survivors of the depth-K sieve (walk.ts fast). Sieved n (their class is cut at depth j) descend
+// at step j exactly (coefficient stopping time); the host counts them. They are iterated here only
+// when they could be a record of the block (a glide or path larger than every smaller n of the
+// block) and when they are the sieve's exceptions.
+// Ranged blocks (any [lo, hi)) iterate every n exactly and find its class's cut depth on the way.
+
+import { VERIFY_COUNT_CHECKED, VERIFY_COUNT_EXCEPTIONS, VERIFY_COUNT_SIEVED, VERIFY_MAX_DEPTH, VERIFY_MAX_STEP_DEPTH } from "../layout";
+import { dropDepth } from "../tree";
+import { bitlen, carry, leU, ltU, rhi, rlo } from "../u128";
+import {
+  DONE_CYCLE,
+  DONE_DESCENT,
+  begin,
+  bestGlide,
+  bestPathBits,
+  bestPathHi,
+  bestPathLo,
+  bump,
+  cutDepth,
+  end,
+  exceededPath,
+  glideOdd,
+  glideT,
+  noteRecords,
+  settle,
+} from "./books";
+import { peakBound, slackK, slackPtr, survA } from "./state";
+import { exact, fast } from "./walk";
+
+/**
+ * The gap [prev, next) of sieved n between two survivors: records are possible only while the
+ * block's best glide is below the deepest cut's, or its best path below a bound on theirs: a class
+ * cut by depth K has m_i <= sievedPeak odd steps among its first i < j steps, so
+ * T^i(n) <= (q/2)^sievedPeak n + slack. The listed exceptions in it are iterated too (e: the next
+ * one, returned past those done).
+ */
+@inline function sievedGap(
+  prevL: u64, prevH: u64, nextL: u64, nextH: u64, e: i32, exc: usize, excN: i32,
+  sievedGlide: i32, sievedPeak: i32, sievedPeakBits: i32, sievedSlack: u64,
+): i32 {
+  let candidate = bestGlide < sievedGlide;
+  if (!candidate) {
+    const bits = bitlen(nextL, nextH);
+    if (bits + sievedPeakBits + 2 >= bestPathBits || 64 - <i32>clz(sievedSlack) > bits) {
+      peakBound(nextL, nextH, sievedPeak, sievedPeak, sievedSlack);
+      candidate = carry || ltU(bestPathLo, bestPathHi, rlo, rhi);
+    }
+  }
+  let nl = prevL, nh = prevH;
+  while (ltU(nl, nh, nextL, nextH)) {
+    const excAt: u64 = e < excN ? load<u64>(exc + (<usize>e << 3)) : 0;
+    const isException = e < excN && nh == 0 && excAt == nl;
+    if (!candidate && !isException) {
+      // on to the next exception in the gap, if any
+      if (e < excN && ltU(excAt, 0, nextL, nextH) && ltU(nl, nh, excAt, 0)) {
+        nl = excAt;
+        nh = 0;
+        continue;
+      }
+      break;
+    }
+    if (nl != 0 || nh != 0) {
+      const done = exact(nl, nh);
+      if (isException) {
+        e++;
+        // (r < 0) a listed n that goes below itself before its class's cut is checked, not an exception
+        settle(nl, nh, done, done == DONE_DESCENT && cutDepth == 0 ? VERIFY_COUNT_CHECKED : VERIFY_COUNT_EXCEPTIONS);
+      } else if (done == DONE_DESCENT) noteRecords(nl, nh, glideT + glideOdd); // counted by the host
+      else settle(nl, nh, done, -1);
+    }
+    nl++;
+    if (nl == 0) nh++;
+  }
+  return e;
+}
+
+/** Survivor i at period h, n = (nl, nh): its glide by fast(), and exactly where it could be a record. */
+@inline function survivor(nl: u64, nh: u64, i: i32, hl: u64, hh: u64): void {
+  let done = fast(nl, nh, i, hl, hh);
+  if (done == DONE_DESCENT) {
+    bump(VERIFY_COUNT_CHECKED);
+    if (exceededPath || glideT + glideOdd > bestGlide) {
+      // its path could be a record: the exact path, in single steps
+      const again = exact(nl, nh);
+      if (again == DONE_DESCENT) noteRecords(nl, nh, glideT + glideOdd);
+      // a value past the limit on the way (inside the first K steps, which fast() only bounds): n is
+      // counted as checked already; the host iterates it for its records
+      else settle(nl, nh, again, -1);
+    }
+  } else if (done == DONE_CYCLE) settle(nl, nh, done, -1);
+  else {
+    // past the cap, or too large for the kernel: single steps settle which (and find the cycle)
+    done = exact(nl, nh);
+    settle(nl, nh, done, VERIFY_COUNT_CHECKED);
+  }
+}
+
+/**
+ * An aligned block: n = a + 2^K h for h0 <= h < h0 + periods (h0 = (h0h, h0l)), in increasing n.
+ * Survivors are iterated; sieved n only where they could be records (or are in the sorted exception
+ * list exc[0..excN), all below 2^64). Counts by outcome go to `counts`, lists to the channels.
+ * (r < 0: a small survivor may go below itself before step K, where fast() starts; fast() then only
+ * overstates its glide and path, and every n whose glide or path could be a record is iterated again
+ * exactly, so the records and counts stay exact.)
+ * Returns the survivors visited. The caller ensures 0 < n < 2^127 throughout.
+ */
+export function verifyAligned(
+  q: u32, r: i32, depth: i32, stepDepth: i32, steps: i32, limit: i32, tables: usize, survivors: i32,
+  h0l: u64, h0h: u64, periods: u64, exc: usize, excN: i32, sievedGlide: i32, sievedPeak: i32, sievedSlack: u64,
+  survivorSlack: u64, slacks: usize, counts: usize, scratch: usize,
+): u64 {
+  assert(r != 0 && survivors > 0 && depth >= 1 && depth <= VERIFY_MAX_DEPTH && stepDepth >= 1 && stepDepth <= VERIFY_MAX_STEP_DEPTH && limit >= 1 && limit <= 128);
+  begin(q, r, depth, stepDepth, steps, limit, tables, counts, scratch);
+  slackK = survivorSlack;
+  slackPtr = slacks;
+  const sievedPeakBits = dropDepth(sievedPeak) - sievedPeak; // bitlen(q^mp) - ip, the bound's extra bits
+  const K = <u64>depth;
+  let e = 0; // next exception
+  let visited: u64 = 0;
+  let hl = h0l, hh = h0h;
+  for (let p: u64 = 0; p < periods; p++) {
+    // base = h 2^K (below 2^127: no bit is lost)
+    const baseL = hl << K, baseH = (hh << K) | (hl >> (64 - K));
+    let prevL = baseL, prevH = baseH; // first n of the current gap
+    for (let i = 0; i <= survivors; i++) {
+      const off: u64 = i < survivors ? <u64>load<u32>(survA + (<usize>i << 2)) : (<u64>1) << K;
+      const nextL = baseL + off, nextH = baseH + select<u64>(1, 0, baseL + off < baseL);
+      if (ltU(prevL, prevH, nextL, nextH)) {
+        e = sievedGap(prevL, prevH, nextL, nextH, e, exc, excN, sievedGlide, sievedPeak, sievedPeakBits, sievedSlack);
+      }
+      if (i == survivors) break;
+      visited++;
+      survivor(nextL, nextH, i, hl, hh);
+      prevL = nextL + 1;
+      prevH = nextH + select<u64>(1, 0, prevL == 0);
+    }
+    hl++;
+    if (hl == 0) hh++;
+  }
+  end();
+  return visited;
+}
+
+
+/**
+ * Any block first..last (inclusive; each a (lo, hi) pair below 2^127), every n iterated exactly
+ * (the range's partial periods): sieved n are counted by their cut depth
+ * (counts[VERIFY_COUNT_SIEVED + j]), survivors as checked, exceptions apart. Returns the numbers visited.
+ */
+export function verifyRange(
+  q: u32, r: i32, depth: i32, steps: i32, limit: i32, tables: usize, firstL: u64, firstH: u64, lastL: u64, lastH: u64,
+  counts: usize, scratch: usize,
+): u64 {
+  assert(r != 0 && depth >= 1 && depth <= VERIFY_MAX_DEPTH && (firstL | firstH) != 0 && leU(firstL, firstH, lastL, lastH) && limit >= 1 && limit <= 128);
+  begin(q, r, depth, 1, steps, limit, tables, counts, scratch);
+  let nl = firstL, nh = firstH;
+  let visited: u64 = 0;
+  while (true) {
+    const done = exact(nl, nh);
+    if (done == DONE_DESCENT && cutDepth > 0) {
+      if (glideT == cutDepth) {
+        bump(VERIFY_COUNT_SIEVED + cutDepth);
+        noteRecords(nl, nh, glideT + glideOdd);
+      } else settle(nl, nh, done, VERIFY_COUNT_EXCEPTIONS);
+    } else if (cutDepth > 0) settle(nl, nh, done, VERIFY_COUNT_EXCEPTIONS);
+    else settle(nl, nh, done, VERIFY_COUNT_CHECKED);
+    visited++;
+    if (nl == lastL && nh == lastH) break;
+    nl++;
+    if (nl == 0) nh++;
+  }
+  end();
+  return visited;
+}

@@ -1,0 +1,85 @@
+// The preimage skip of class blocks: a leaf n with a smaller number u whose trajectory reaches n (a
+// preimage chain of at most three steps) is skipped, n's convergence following from u's, u < n, in
+// the same run.
+
+import { fromN } from "./books";
+import { HQ, Q, setMap } from "./state";
+
+/**
+ * A number u < n whose trajectory reaches n within three steps while every value before n stays
+ * above u (r > 0; n below 2^60), or 0. Then n's convergence follows from u's, and n is no record:
+ * u's glide is longer (it passes through all of n's) and u's path holds n's.
+ * The shapes, with the last step into n: odd, u = (2n - r) / q; even from 2n, whose odd predecessor
+ * is w = (4n - r) / q, with u = w or u = (2w - r) / q (odd, odd, even); even from 2n and 4n, u = (8n - r) / q.
+ */
+export function preimageBelow(n: u64): u64 {
+  const r = <u64>(HQ * 2 - Q); // r > 0 here
+  // (each difference below is taken only when positive: r may be larger than 2n, 4n or 8n)
+  const t1 = 2 * n - r;
+  if (2 * n > r && t1 % Q == 0) {
+    const u = t1 / Q;
+    if (u >= 1 && u < n) return u;
+  }
+  const t2 = 4 * n - r;
+  if (4 * n > r && t2 % Q == 0) {
+    const w = t2 / Q;
+    if (w < n) return w;
+    if (2 * w > r) {
+      const t3 = 2 * w - r;
+      if (t3 % Q == 0) {
+        const u = t3 / Q;
+        if (u >= 1 && u < n && u < w) return u;
+      }
+    }
+  }
+  const t4 = 8 * n - r;
+  if (8 * n > r && t4 % Q == 0) {
+    const u = t4 / Q;
+    if (u >= 1 && u < n) return u;
+  }
+  return 0;
+}
+
+// Above skipFrom the skip depends on n mod q^2 alone (the size conditions above hold from there on):
+// skipTable[n mod skipPeriod] is 1 when it applies, one division a leaf instead of three.
+let skipFrom: u64 = 0;
+let skipPeriod: u64 = 1;
+const skipTable: usize = memory.data(256 * 256);
+
+/** Fills the residue table of the preimage skip (q < 256), or makes every n take the direct test. */
+export function prepareSkip(): void {
+  const r = <u64>(HQ * 2 - Q);
+  if (Q >= 256) {
+    skipFrom = <u64>-1;
+    return;
+  }
+  skipPeriod = Q * Q;
+  // every size condition holds once 8n > r (q + 2) + q^2 and (4 - q) n, (8 - q) n exceed r where positive
+  skipFrom = 2 * r * (Q + 2) + 2 * Q * Q + 8 * r + 64;
+  for (let t: u64 = 0; t < skipPeriod; t++) {
+    const n = skipFrom + ((t + skipPeriod - (skipFrom % skipPeriod)) % skipPeriod);
+    store<u8>(skipTable + <usize>(n % skipPeriod), preimageBelow(n) != 0 ? 1 : 0);
+  }
+}
+
+/** Whether a leaf n is skipped (prepareSkip first). */
+@inline export function skipped(n: u64): bool {
+  // (a range from 2^f: u must be in it too, so that n is no record of the range either)
+  if (fromN > 1) return preimageBelow(n) >= fromN;
+  return n < skipFrom ? preimageBelow(n) != 0 : load<u8>(skipTable + <usize>(n % skipPeriod)) != 0;
+}
+
+/**
+ * The preimage skip of verifyClasses for one n, as a leaf takes it (the residue table from skipFrom
+ * on): the smaller u, 0 when n is not skipped, 2^63 when the table and the direct test disagree.
+ * The tests compare it with a search in BigInt.
+ */
+export function verifyPreimage(q: u32, r: i32, n: u64): u64 {
+  assert(r > 0 && n >= 1 && n < (<u64>1) << 60);
+  setMap(q, r);
+  fromN = 1;
+  prepareSkip();
+  const u = preimageBelow(n);
+  if (skipped(n) != (u != 0)) return (<u64>1) << 63;
+  return u;
+}
