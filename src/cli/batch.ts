@@ -8,7 +8,7 @@ import type { ToolStamp } from "../engine/messages.js";
 import type { FileFormat, OutputChoice, RawOptions } from "./options.js";
 
 /** What `merge --out FILE` writes: the file the one-machine command's --out writes. */
-export interface MergeOutput<R> {
+export interface MergeOutput<P, R> {
   readonly formats: readonly FileFormat[];
   readonly what: string;
   /** How a refusal names what it writes (default: the formats). */
@@ -20,6 +20,8 @@ export interface MergeOutput<R> {
     stamp: ToolStamp,
     tables: readonly string[],
     span: { readonly started: string; readonly finished: string },
+    /** The plan's parameters (the object the merge read: verify's plan is made once for it). */
+    params: P,
   ): Promise<void>;
 }
 
@@ -32,7 +34,7 @@ export interface BatchJob<P, R> {
   json(result: R): unknown;
   /** Its shards write their sorted part of the class table (RUN/parts/I.table). */
   readonly table?: boolean;
-  readonly out?: MergeOutput<R>;
+  readonly out?: MergeOutput<P, R>;
   /**
    * The command that checks the merged file on its own (verify: --check --full runs every block
    * again), for jobs that have one, and the file name (in RUN) batch-status suggests for it: a

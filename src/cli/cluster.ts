@@ -262,6 +262,7 @@ async function merge(dir: string, o: RawOptions): Promise<void> {
           started: parts.map((p) => p.started).reduce((a, b) => (b < a ? b : a)),
           finished: parts.map((p) => p.finished).reduce((a, b) => (b > a ? b : a)),
         },
+        run.plan.params,
       );
     print(`${toExactJson(spec.json(result))}\n`);
     if (out) process.stderr.write(`wrote ${spec.out!.what} to ${out.path}\n`);

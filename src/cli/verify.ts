@@ -6,7 +6,7 @@ import { resolve } from "node:path";
 import type { Command } from "commander";
 import { UsageError } from "../core/errors.js";
 import type { CollatzMap } from "../core/map.js";
-import { certificate, checkpoint, readCertificate, readCheckpoint, tableHashes, verifyJson } from "../jobs/verify/certificate.js";
+import { checkpoint, readCertificate, readCheckpoint, verifyJson } from "../jobs/verify/certificate.js";
 import type { TableHashes } from "../jobs/verify/certificate.js";
 import { checkCertificate } from "../jobs/verify/check.js";
 import type { BlockEntry } from "../jobs/verify/block.js";
@@ -19,13 +19,12 @@ import {
   MAX_MAX_STEPS,
   MAX_VERIFY_SIEVE_DEPTH,
   MAX_VERIFY_STEP_DEPTH,
-  planVerify,
 } from "../jobs/verify/plan.js";
 import type { VerifyPlan, VerifyRequest } from "../jobs/verify/plan.js";
-import { verifyTables } from "../jobs/verify/tables.js";
-import { runVerify, verifyJob } from "../jobs/verify/verify.js";
+import { certificateText, runVerification, verificationTables } from "../jobs/verify/run.js";
+import { planOf, verifyJob } from "../jobs/verify/verify.js";
 import type { VerifyParams } from "../jobs/verify/verify.js";
-import { parseWhole } from "../core/parse.js";
+import { parseRange } from "../core/parse.js";
 import type { BatchJob } from "./batch.js";
 import { group, plural } from "../outputs/format.js";
 import { parseExactJson, toExactJson } from "../core/json.js";
@@ -109,7 +108,7 @@ export const verifyBatch: BatchJob<VerifyParams, VerifyResult> = {
   options: rangeOptions,
   params: (o: VerifyOptions) => {
     const req = request(o, mapOption(o.map));
-    planVerify(req); // checks it
+    planOf(req); // checks it (and is the plan the batch lays out)
     return req;
   },
   json: verifyJson,
@@ -118,16 +117,10 @@ export const verifyBatch: BatchJob<VerifyParams, VerifyResult> = {
     formats: ["raw"],
     what: "the certificate",
     writes: "the certificate, JSON: name it .json",
-    async write(pool, result, out, stamp, _tables, span) {
-      const { map, from, to, sieveDepth, stepDepth, maxSteps, method, preimage } = result;
-      const plan = planVerify(
-        method === "classes"
-          ? { map, from, to, stepDepth, maxSteps, preimage }
-          : { map, from, to, sieveDepth, stepDepth, maxSteps, classes: false },
-      );
-      const hashes = plan.engine === "kernel" ? await tableHashes(await verifyTables(pool, plan), sha256) : null;
-      const cert = await certificate(result, hashes, stamp, { ...span, workers: pool.size });
-      await writeFileAtomic(out.path, `${toExactJson(cert, 2)}\n`);
+    async write(pool, result, out, stamp, _tables, span, params) {
+      // the merged plan's tables, hashed: the plan is the one the merge read (planOf)
+      const { hashes } = await verificationTables(pool, planOf(params), sha256);
+      await writeFileAtomic(out.path, await certificateText(result, hashes, stamp, { ...span, workers: pool.size }));
     },
   },
 };
@@ -154,10 +147,7 @@ export function verifyCommand(program: Command): Command {
 }
 
 function request(o: VerifyOptions, map: CollatzMap): VerifyRequest {
-  const from = parseWhole("--from", o.from);
-  const to = parseWhole("--to", o.to);
-  if (from < 1n) throw new UsageError(`--from must be at least 1, got ${from}`);
-  if (to <= from) throw new UsageError(`--to must be above --from (the range is [FROM, TO)), got --from ${from} --to ${to}`);
+  const { from, to } = parseRange(o.from, o.to, { from: "--from", to: "--to", range: "[FROM, TO)" });
   return {
     map,
     from,
@@ -221,7 +211,7 @@ function checkCheckpointTarget(path: string, key: string, out: string | undefine
 function startOrResume(o: VerifyOptions) {
   if (o.resume === undefined) {
     const req = request(o, mapOption(o.map));
-    return { req, plan: planVerify(req), done: new Map<number, BlockEntry>(), resumed: false };
+    return { req, plan: planOf(req), done: new Map<number, BlockEntry>(), resumed: false };
   }
   if (
     o.from !== undefined ||
@@ -236,7 +226,7 @@ function startOrResume(o: VerifyOptions) {
   )
     throw new UsageError("--resume takes the run's options from the checkpoint: give no --map, --from, --to or depths");
   const c = readCheckpoint(readText(o.resume));
-  const plan = planVerify(c.request);
+  const plan = planOf(c.request);
   if (plan.key !== c.key || plan.blocks.length !== c.blocks)
     throw new UsageError(`${o.resume} was written by another plan or build of glidepath: it cannot be resumed here`);
   for (const e of c.done.values()) {
@@ -279,39 +269,35 @@ async function verify(o: VerifyOptions): Promise<void> {
   };
   setInterruptNote(checkpointPath ? resumeLine : null);
   if (!o.json) print(`${verifyHeader(plan)}\n`); // the first line at once (a reader such as head -1 has it and may go)
-  let hashes: TableHashes | null = null;
-  const result = await withPool(
+  const { result, hashes } = await withPool(
     workers,
     `verify ${req.map.name}`,
-    async (pool, onProgress) => {
-      const tables = plan.engine === "kernel" ? await verifyTables(pool, plan) : undefined;
-      const h = tables ? await tableHashes(tables, sha256) : null;
-      hashes = h;
-      // the files must hold exactly the tables of this run (equal hashes of equal-length raw files)
-      if (sieveFile && h && sieveFile.sha256 !== h.sieve.sha256)
-        throw new UsageError(`--sieve-table ${sieveFile.path} is not the depth-${plan.sieveDepth} sieve table of ${req.map.name}`);
-      if (stepFile && h && stepFile.sha256 !== h.steps.sha256)
-        throw new UsageError(`--step-table ${stepFile.path} is not the depth-${plan.stepDepth} step table of ${req.map.name}`);
-      return runVerify(pool, req, {
-        tables,
+    (pool, onProgress) =>
+      runVerification(pool, req, sha256, {
         done,
         onProgress,
+        // the files must hold exactly the tables of this run (equal hashes of equal-length raw files)
+        onTables: (h: TableHashes) => {
+          if (sieveFile && sieveFile.sha256 !== h.sieve.sha256)
+            throw new UsageError(`--sieve-table ${sieveFile.path} is not the depth-${plan.sieveDepth} sieve table of ${req.map.name}`);
+          if (stepFile && stepFile.sha256 !== h.steps.sha256)
+            throw new UsageError(`--step-table ${stepFile.path} is not the depth-${plan.stepDepth} step table of ${req.map.name}`);
+        },
         onBlock: async (entry) => {
           done.set(entry.index, entry);
           if (checkpointPath)
             await writeFileAtomic(checkpointPath, `${toExactJson(checkpoint(req, plan.key, plan.blocks.length, done))}\n`);
         },
-      });
-    },
+      }),
     "numbers",
   );
   setInterruptNote(null);
   // a certificate that cannot be written (a full disk) loses neither the report nor the checkpoint
   let unwritten: Error | null = null;
   if (out) {
-    const cert = await certificate(result, hashes, stamp, { started, finished: new Date().toISOString(), workers });
+    const text = await certificateText(result, hashes, stamp, { started, finished: new Date().toISOString(), workers });
     try {
-      await writeFileAtomic(out.path, `${toExactJson(cert, 2)}\n`);
+      await writeFileAtomic(out.path, text);
     } catch (e) {
       unwritten = e instanceof Error ? e : new Error(String(e));
     }

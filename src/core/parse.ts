@@ -33,3 +33,53 @@ export function parseCount(name: string, text: string, min: number, max: number)
     throw new UsageError(`${name} must be a whole number from ${min}${max === Number.POSITIVE_INFINITY ? " up" : ` to ${max}`}`);
   return n;
 }
+
+/** How a front end names the ends of a range [from, to) in its messages (the CLI: --from and --to; the page: From and To). */
+export interface RangeWords {
+  readonly from: string;
+  readonly to: string;
+  /** How the range reads: "[FROM, TO)". */
+  readonly range: string;
+  /** A refused To names To's value alone (beside its field), not both ends. */
+  readonly toAlone?: boolean;
+  /** A number as the messages show it (default: its digits). */
+  readonly show?: (x: bigint) => string;
+}
+
+/** The library's words: from, to, [from, to). */
+export const RANGE_WORDS: RangeWords = { from: "from", to: "to", range: "[from, to)" };
+
+/** A range refused: `end` names the end at fault (a form shows the message beside that field). */
+export class RangeEndError extends UsageError {
+  constructor(
+    readonly end: "from" | "to",
+    message: string,
+  ) {
+    super(message);
+  }
+}
+
+/**
+ * The one check of a range [from, to) for every front end and the plan: from at least 1, to above from.
+ * @example checkRange(0n, 10n, { from: "--from", to: "--to", range: "[FROM, TO)" }) // throws "--from must be at least 1, got 0"
+ */
+export function checkRange(from: bigint, to: bigint, words: RangeWords = RANGE_WORDS): void {
+  const { from: f, to: t, show = String } = words;
+  if (from < 1n) throw new RangeEndError("from", `${f} must be at least 1, got ${show(from)}`);
+  if (to <= from)
+    throw new RangeEndError(
+      "to",
+      `${t} must be above ${f} (the range is ${words.range}), got ${words.toAlone ? show(to) : `${f} ${show(from)} ${t} ${show(to)}`}`,
+    );
+}
+
+/**
+ * A range [from, to) as a command line gives it: both ends parsed (parseWhole) and checked (checkRange).
+ * @example parseRange("1", "2^20", { from: "--from", to: "--to", range: "[FROM, TO)" }) // { from: 1n, to: 1048576n }
+ */
+export function parseRange(fromText: string | undefined, toText: string | undefined, words: RangeWords = RANGE_WORDS) {
+  const from = parseWhole(words.from, fromText);
+  const to = parseWhole(words.to, toText);
+  checkRange(from, to, words);
+  return { from, to };
+}

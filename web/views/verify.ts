@@ -1,21 +1,20 @@
 // The Verify view: a range of n checked in the page's workers, with its counts, maxima, record
 // lists and a certificate to download (the same library and certificate format as the CLI).
-import { parseMap, step } from "../../src/core/map.js";
-import { parseCount, parseWhole } from "../../src/core/parse.js";
-import { certificate, tableHashes, verifyJson } from "../../src/jobs/verify/certificate.js";
-import type { TableHashes } from "../../src/jobs/verify/certificate.js";
+import { parseMap } from "../../src/core/map.js";
+import { checkRange, parseCount, parseWhole, RangeEndError } from "../../src/core/parse.js";
+import type { RangeWords } from "../../src/core/parse.js";
+import { verifyJson } from "../../src/jobs/verify/certificate.js";
 import type { VerifyResult } from "../../src/jobs/verify/merge.js";
-import { classDepthOf, DEFAULT_SIEVE_DEPTH, MAX_VERIFY_SIEVE_DEPTH, planVerify } from "../../src/jobs/verify/plan.js";
+import { classDepthOf, DEFAULT_SIEVE_DEPTH, MAX_VERIFY_SIEVE_DEPTH } from "../../src/jobs/verify/plan.js";
 import type { VerifyRequest } from "../../src/jobs/verify/plan.js";
-import { verifyClaim } from "../../src/jobs/verify/claim.js";
+import { cycleStart, verifyClaim } from "../../src/jobs/verify/claim.js";
 import { cycleBound } from "../../src/core/cyclebound.js";
 import { cycleThrough, runLimit } from "../../src/jobs/cyclebound.js";
 import { cycleBoundLine } from "../../src/outputs/cyclebound.js";
 import { kernelDepthLimit } from "../../src/core/map.js";
 import type { CollatzMap } from "../../src/core/map.js";
-import { verifyTables } from "../../src/jobs/verify/tables.js";
-import type { VerifyTableData } from "../../src/jobs/verify/tables.js";
-import { runVerify } from "../../src/jobs/verify/verify.js";
+import { certificateText, runVerification } from "../../src/jobs/verify/run.js";
+import { planOf } from "../../src/jobs/verify/verify.js";
 import { group, plural } from "../../src/outputs/format.js";
 import { toExactJson } from "../../src/core/json.js";
 import pkg from "../../package.json";
@@ -56,13 +55,17 @@ export function sieveDepthFor(map: CollatzMap, from: bigint, to: bigint, given: 
   return { depth: given, note: "" };
 }
 
+/** The range's ends in the form's words (the message goes beside the end at fault). */
+const RANGE: RangeWords = { from: "From", to: "To", range: "From to To, To not included", toAlone: true, show: group };
+
 /** Map, From and To as the form holds them, or null where one is not valid (no error shown: the run shows them). */
 function quietRange(): { map: CollatzMap; from: bigint; to: bigint } | null {
   try {
-    const map = parseMap(($("verify-map") as HTMLInputElement).value);
-    const from = parseWhole("from", ($("verify-from") as HTMLInputElement).value);
-    const to = parseWhole("to", ($("verify-to") as HTMLInputElement).value);
-    return from >= 1n && to > from ? { map, from, to } : null;
+    const map = parseMap($<HTMLInputElement>("verify-map").value);
+    const from = parseWhole("from", $<HTMLInputElement>("verify-from").value);
+    const to = parseWhole("to", $<HTMLInputElement>("verify-to").value);
+    checkRange(from, to, RANGE);
+    return { map, from, to };
   } catch {
     return null;
   }
@@ -70,14 +73,14 @@ function quietRange(): { map: CollatzMap; from: bigint; to: bigint } | null {
 
 /** Whether the form's range runs class by class (the Method asks for it and the range is [1 or 2^f, 2^N)). */
 const runsByClasses = (map: CollatzMap, from: bigint, to: bigint) =>
-  ($("verify-method") as HTMLSelectElement).value === "classes" && classDepthOf(map, from, to) !== null;
+  $<HTMLSelectElement>("verify-method").value === "classes" && classDepthOf(map, from, to) !== null;
 
 /**
  * The Sieve depth field follows the form: off, with the reason beside it, for a range run class by
  * class (which goes bit by bit to depth N whatever the field says); else the depth that will run.
  */
 export function syncVerifyForm(): void {
-  const field = $("verify-depth") as HTMLInputElement;
+  const field = $<HTMLInputElement>("verify-depth");
   const note = $("verify-depth-note");
   const range = quietRange();
   if (range && runsByClasses(range.map, range.from, range.to)) {
@@ -96,29 +99,33 @@ export function readVerifyForm(): VerifyRequest | null {
   const map = parseField("verify-map", parseMap);
   const from = parseField("verify-from", (t) => parseWhole("from", t));
   const to = parseField("verify-to", (t) => parseWhole("to", t));
-  const depthText = ($("verify-depth") as HTMLInputElement).value.trim();
+  const depthText = $<HTMLInputElement>("verify-depth").value.trim();
+  // the range's own checks (core/parse.ts), in the fields' words
+  let rangeError: RangeEndError | null = null;
+  if (from !== null && to !== null)
+    try {
+      checkRange(from, to, RANGE);
+    } catch (e) {
+      if (!(e instanceof RangeEndError)) throw e;
+      rangeError = e;
+    }
   // a range [1, 2^N) by classes (no sieve depth: the classes go to depth N), unless the periods are chosen
-  const byClasses = map !== null && from !== null && to !== null && from >= 1n && to > from && runsByClasses(map, from, to);
+  const byClasses = map !== null && from !== null && to !== null && rangeError === null && runsByClasses(map, from, to);
   // an empty depth: one suited to the range
   const given =
     byClasses || depthText === "" ? null : parseField("verify-depth", (t) => parseCount("sieve depth", t, 1, MAX_VERIFY_SIEVE_DEPTH));
   if (byClasses || depthText === "") fieldError("verify-depth", "");
   if (!map || from === null || to === null || (given === null && !byClasses && depthText !== "")) return null;
-  // the range's own checks, in the fields' words
-  if (from < 1n) {
-    fieldError("verify-from", `From must be at least 1, got ${group(from)}`);
+  if (rangeError) {
+    fieldError(rangeError.end === "from" ? "verify-from" : "verify-to", rangeError.message);
     return null;
   }
-  if (to <= from) {
-    fieldError("verify-to", `To must be above From (the range is From to To, To not included), got ${group(to)}`);
-    return null;
-  }
-  const delay = ($("verify-delay") as HTMLInputElement).checked;
+  const delay = $<HTMLInputElement>("verify-delay").checked;
   const req: VerifyRequest = byClasses
     ? { map, from, to, delay }
     : { map, from, to, sieveDepth: sieveDepthFor(map, from, to, given).depth, delay, classes: false };
   try {
-    planVerify(req);
+    planOf(req); // the plan the run uses
   } catch (e) {
     // a message about from alone belongs beside From, one about the depth beside it; the rest (the range, its size) beside To
     const msg = (e as Error).message;
@@ -155,8 +162,7 @@ function renderClaim(r: VerifyResult): void {
       ul.setAttribute("aria-label", "Cycle members and their cycles");
       ul.replaceChildren(
         ...r.cycleMembers.slice(0, l.shown.length).map((m) => {
-          const cycle = [m.n];
-          for (let v = step(r.map, m.n), i = 0; v !== m.n && i < 12; v = step(r.map, v), i++) cycle.push(v);
+          const cycle = cycleStart(r.map, m.n);
           const li = document.createElement("li");
           const tail = m.period > cycle.length ? ` → … (period ${m.period})` : "";
           li.textContent = `n = ${group(m.n)} on ${cycle.map(group).join(" → ")}${tail} → ${group(m.n)}`;
@@ -232,38 +238,29 @@ export async function startVerify(workers: number): Promise<boolean> {
     panel.markStale("the inputs above are not valid");
     return false;
   }
-  ($("verify-certificate") as HTMLButtonElement).disabled = true;
+  $<HTMLButtonElement>("verify-certificate").disabled = true;
   $("run-summary").textContent = "";
   const started = new Date().toISOString();
   const waiting = pagePoolPending() > 0 ? "Waiting for the job already running..." : "Building the sieve and step tables...";
-  let hashes: TableHashes | null = null;
-  let tableSeconds = 0;
   const out = await controller.run(
     (options) =>
       withPagePool(
         workers,
-        async (pool) => {
-          const plan = planVerify(req);
-          let tables: VerifyTableData | undefined;
-          if (plan.engine === "kernel") {
-            controller.phase(
-              plan.method === "classes"
-                ? `Building the step tables and the path bounds of depth ${plan.sieveDepth}...`
-                : `Building the depth-${plan.sieveDepth} sieve and step tables...`,
-            );
-            const t0 = performance.now();
-            tables = await verifyTables(pool, plan, options);
-            hashes = await tableHashes(tables, sha256);
-            tableSeconds = (performance.now() - t0) / 1000;
-          }
-          // the blocks: the kernel's walk, then in the same worker the exact (BigInt) finish of values
-          // past 128 bits and of the numbers that did not descend; the bar moves as blocks finish
-          controller.phase(
-            `Checking ${plural(req.to - req.from, "number")} in ${plural(plan.blocks.length, "block")} ` +
-              "(the kernel, then exact BigInt arithmetic for values past 128 bits and numbers that do not descend)...",
-          );
-          return runVerify(pool, req, { ...options, tables });
-        },
+        (pool) =>
+          runVerification(pool, req, sha256, {
+            ...options,
+            onPhase: (phase, plan) =>
+              controller.phase(
+                phase === "tables"
+                  ? plan.method === "classes"
+                    ? `Building the step tables and the path bounds of depth ${plan.sieveDepth}...`
+                    : `Building the depth-${plan.sieveDepth} sieve and step tables...`
+                  : // the blocks: the kernel's walk, then in the same worker the exact (BigInt) finish of values
+                    // past 128 bits and of the numbers that did not descend; the bar moves as blocks finish
+                    `Checking ${plural(req.to - req.from, "number")} in ${plural(plan.blocks.length, "block")} ` +
+                      "(the kernel, then exact BigInt arithmetic for values past 128 bits and numbers that do not descend)...",
+              ),
+          }),
         options.signal,
       ),
     waiting,
@@ -271,19 +268,20 @@ export async function startVerify(workers: number): Promise<boolean> {
   );
   if (!out.ok) {
     // the results on screen (dimmed) are still the last run's: so is its certificate
-    ($("verify-certificate") as HTMLButtonElement).disabled = lastCertificate === null;
+    $<HTMLButtonElement>("verify-certificate").disabled = lastCertificate === null;
     return true;
   }
-  render(out.value);
+  const { result, hashes, tableSeconds } = out.value;
+  render(result);
   // one time for the run: the page's, from the click to the result (tables included), and the rate over it
-  const numbers = out.value.counts.numbers;
+  const numbers = result.counts.numbers;
   const rate = Number(numbers) / Math.max(out.seconds, 1e-9);
   $("verify-status").textContent =
     `Done in ${out.seconds.toFixed(2)} s: ${plural(numbers, "number")}, ${group(BigInt(Math.round(rate)))} a second` +
     `${tableSeconds > 0 ? ` (building the tables took ${tableSeconds.toFixed(2)} s of it)` : ""}.`;
   const stamp = { version: pkg.version, kernelBuild: await kernelBuildId() };
-  lastCertificate = `${toExactJson(await certificate(out.value, hashes, stamp, { started, finished: new Date().toISOString(), workers }), 2)}\n`;
-  ($("verify-certificate") as HTMLButtonElement).disabled = false;
+  lastCertificate = await certificateText(result, hashes, stamp, { started, finished: new Date().toISOString(), workers });
+  $<HTMLButtonElement>("verify-certificate").disabled = false;
   return true;
 }
 
@@ -300,6 +298,6 @@ export function downloadCertificate(): void {
 export function applyPreset(value: string): void {
   if (!value) return;
   const [from, to] = value.split("|");
-  ($("verify-from") as HTMLInputElement).value = from!;
-  ($("verify-to") as HTMLInputElement).value = to!;
+  $<HTMLInputElement>("verify-from").value = from!;
+  $<HTMLInputElement>("verify-to").value = to!;
 }

@@ -5,6 +5,7 @@
 // enters a cycle of larger numbers: a larger n may go below itself onto u's trajectory, which the
 // run does not follow, so nothing from u on is proved by the run.
 import type { CollatzMap } from "../../core/map.js";
+import { step } from "../../core/map.js";
 import { group, plural } from "../../outputs/format.js";
 import type { VerifyResult } from "./merge.js";
 
@@ -136,4 +137,14 @@ export function verifyClaim(r: ClaimInput, caps: { members: number; entrants: nu
     list(`unresolved after ${plural(r.maxSteps, "step")}`, c.unresolved, r.unresolvedList, caps.unresolved, (n) => group(n)),
   ].filter((l) => l.count > 0n);
   return { provedTo, firstUnproved: first, descent, claim, notProved, assumption, lists };
+}
+
+/**
+ * The first elements of the cycle through n, n first: at most `count`, all of them when the cycle is shorter.
+ * @example cycleStart(parseMap("3x+1"), 1n) // [1n, 2n]
+ */
+export function cycleStart(map: CollatzMap, n: bigint, count = 13): bigint[] {
+  const cycle = [n];
+  for (let v = step(map, n); v !== n && cycle.length < count; v = step(map, v)) cycle.push(v);
+  return cycle;
 }

@@ -4,6 +4,7 @@
 import { LimitError, UsageError } from "../../core/errors.js";
 import type { CollatzMap } from "../../core/map.js";
 import { kernelDepthLimit } from "../../core/map.js";
+import { checkRange } from "../../core/parse.js";
 
 export const DEFAULT_SIEVE_DEPTH = 26;
 export const DEFAULT_STEP_DEPTH = 12;
@@ -110,8 +111,7 @@ function belowFrom(from: bigint, D: number, first: bigint, last: bigint): bigint
  */
 export function planVerify(req: VerifyRequest): VerifyPlan {
   const { map, from, to } = req;
-  if (from < 1n) throw new UsageError(`from must be at least 1, got ${from}`);
-  if (to <= from) throw new UsageError(`to must be above from (the range is [from, to)), got from ${from} to ${to}`);
+  checkRange(from, to);
   const maxSteps = req.maxSteps ?? DEFAULT_MAX_STEPS;
   // (a class settled at depth j counts its members as descending at step j: within the cap)
   const fits = (N: number | null) => (N !== null && N <= maxSteps ? N : null);

@@ -109,9 +109,13 @@ function numberProgress(blocks: readonly BlockSpec[], done: (b: BlockSpec) => bo
   };
 }
 
-/** The plan of a request, made once per request object (every method of the job reads it). */
+/**
+ * The plan of a request, made once per request object: the front ends check a request with it, and
+ * the run and every method of the job read the same plan.
+ * @example planOf(req) === planOf(req) // true
+ */
 const plans = new WeakMap<VerifyRequest, VerifyPlan>();
-function planOf(req: VerifyRequest): VerifyPlan {
+export function planOf(req: VerifyRequest): VerifyPlan {
   let plan = plans.get(req);
   if (!plan) {
     plan = planVerify(req);
