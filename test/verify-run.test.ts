@@ -9,6 +9,9 @@ import { afterAll, describe, expect, it } from "vitest";
 import { parseExactJson } from "../src/core/json.js";
 import { parseMap } from "../src/core/map.js";
 import { runVerify } from "../src/jobs/verify/verify.js";
+import type { VerifyRunState } from "../src/jobs/verify/verify.js";
+import { planVerify } from "../src/jobs/verify/plan.js";
+import { readCheckpoint } from "../src/jobs/verify/certificate.js";
 import { nodePool } from "../src/node/kernel.js";
 
 const BIN = new URL("../bin/glidepath.js", import.meta.url).pathname;
@@ -201,5 +204,61 @@ describe("verify: a run that falls back from the preimage skip reports both pass
       firstPassSeconds: null;
     };
     expect([one.passes, one.firstPassSeconds]).toEqual([1n, null]); // 3x+1 from 1: every n descends, no fallback
+  });
+});
+
+describe("verify: the preimage skip's fallback is decided in the run, block by block", () => {
+  // computed in the test above: under 3x+5, 3 enters the cycle of 19, and 3 lies in the first block of classes
+  const map = parseMap("3x+5");
+  const to = 1n << 16n;
+
+  it("the first block that breaks the skip ends the first pass; onBlock then reports the plan without the skip only", async () => {
+    const seen: { preimage: boolean; entrySkipped: bigint; held: boolean; size: number }[] = [];
+    const r = await runVerify(
+      pool,
+      { map, from: 1n, to },
+      {
+        onBlock: (e, run: VerifyRunState) => {
+          seen.push({
+            preimage: run.plan.preimage,
+            entrySkipped: e.counts.preimage,
+            held: run.done.get(e.index) === e,
+            size: run.done.size,
+          });
+        },
+      },
+    );
+    const blocks = planVerify({ map, from: 1n, to }).blocks.length;
+    const first = seen.filter((x) => x.preimage);
+    const second = seen.filter((x) => !x.preimage);
+    // the first pass stopped at once: fewer of its blocks ran than the plan has (the merge's refusal ran them all)
+    expect(first.length).toBeGreaterThan(0);
+    expect(first.length).toBeLessThan(blocks);
+    // every block reported is in the map reported with it; the second pass's blocks skip nothing
+    expect(seen.every((x) => x.held)).toBe(true);
+    expect(second.map((x) => x.entrySkipped)).toEqual(new Array(blocks).fill(0n));
+    expect(second.at(-1)!.size).toBe(blocks);
+    expect(seen.slice(first.length).every((x) => !x.preimage)).toBe(true); // no block of the first pass after the switch
+    expect([r.passes, r.preimage, r.counts.preimage, r.blocksRun]).toEqual([2, false, 0n, blocks]);
+  });
+
+  it("the checkpoint holds the plan without the skip and its blocks only: --resume runs nothing again", async () => {
+    const sub = mkdtempSync(join(dir, "fallback-"));
+    const ck = join(sub, "ck.json");
+    const args = ["verify", "--map", "3x+5", "--from", "1", "--to", "2^16", "--json"];
+    const whole = await cli(...args, "--checkpoint", ck);
+    expect(whole.code).toBe(0);
+    const c = readCheckpoint(readFileSync(ck, "utf8"));
+    const plain = planVerify({ map, from: 1n, to, preimage: false });
+    expect([c.request.preimage, c.key, c.blocks, c.done.size]).toEqual([false, plain.key, plain.blocks.length, plain.blocks.length]);
+    expect([...c.done.values()].every((e) => e.counts.preimage === 0n)).toBe(true);
+    const again = await cli("verify", "--resume", ck, "--json");
+    expect(again.code).toBe(0);
+    const j = parseExactJson(again.stdout) as { blocksRun: bigint; passes: bigint; preimage: boolean };
+    expect([j.blocksRun, j.passes, j.preimage]).toEqual([0n, 1n, false]);
+    // the same findings as the run that fell back and as --no-preimage
+    const strip = (t: string) => t.replace(/,"seconds":[^\n]*/, "");
+    expect(strip(again.stdout)).toBe(strip(whole.stdout));
+    expect(strip(again.stdout)).toBe(strip((await cli(...args, "--no-preimage")).stdout));
   });
 });

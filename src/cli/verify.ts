@@ -262,8 +262,10 @@ async function verify(o: VerifyOptions): Promise<void> {
     process.stderr.write(
       `resumed ${o.resume}: ${plural(done.size, "block")} of ${plan.blocks.length} done, ${plural(plan.blocks.length - done.size, "block")} to go\n`,
     );
+  // the blocks the checkpoint holds: after the preimage skip's fallback, those of the plan without it
+  let checkpointed: ReadonlyMap<number, BlockEntry> = done;
   const resumeLine = () => {
-    const held = done.size;
+    const held = checkpointed.size;
     if (!checkpointPath || held === 0) return "no checkpoint was written (give --checkpoint FILE to keep a run's progress)";
     return `the checkpoint ${checkpointPath} holds ${plural(held, "block")} of ${plan.blocks.length}; continue with: glidepath verify --resume ${checkpointPath}`;
   };
@@ -283,10 +285,14 @@ async function verify(o: VerifyOptions): Promise<void> {
           if (stepFile && stepFile.sha256 !== h.steps.sha256)
             throw new UsageError(`--step-table ${stepFile.path} is not the depth-${plan.stepDepth} step table of ${req.map.name}`);
         },
-        onBlock: async (entry) => {
-          done.set(entry.index, entry);
+        // the checkpoint holds the blocks of the plan they belong to (run.plan: the fallback's, once it falls back)
+        onBlock: async (_entry, run) => {
+          checkpointed = run.done;
           if (checkpointPath)
-            await writeFileAtomic(checkpointPath, `${toExactJson(checkpoint(req, plan.key, plan.blocks.length, done))}\n`);
+            await writeFileAtomic(
+              checkpointPath,
+              `${toExactJson(checkpoint(run.request, run.plan.key, run.plan.blocks.length, run.done))}\n`,
+            );
         },
       }),
     "numbers",

@@ -414,6 +414,7 @@ it("verify 3x+5 by classes with the preimage skip: merge refuses and names --no-
   expect(m.code).toBe(2);
   expect(m.stdout).toBe("");
   expect(m.stderr).toMatch(/cycle entrants with the preimage sieve on.*--no-preimage/);
+  expect(m.stderr).toMatch(/plan it again with --no-preimage \(glidepath batch verify \.\.\. --no-preimage\)$/m); // the batch's fix
   // the one-machine command's second pass: preimage false (the run without the skip)
   expect(
     (

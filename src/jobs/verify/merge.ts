@@ -9,12 +9,6 @@ import type { BlockEntry, CycleEntrant, CycleMember, GlideRecord, PathRecord } f
 import type { BlockSpec, VerifyPlan } from "./plan.js";
 import { UsageError } from "../../core/errors.js";
 
-/**
- * A run by classes with the preimage skip met a number that neither descends nor returns: a skipped
- * leaf could share its trajectory, so the lists would not be whole. runVerify runs again without the skip.
- */
-export class PreimageSkipError extends UsageError {}
-
 /** Delays of a run: the records (steps to reach 1, in standard steps and steps of T) and the n that do not reach 1. */
 export interface DelayResult {
   readonly records: GlideRecord[];
@@ -162,9 +156,12 @@ export function mergeVerify(plan: VerifyPlan, entries: readonly BlockEntry[], se
   glides.add(classes.flatMap((e) => e.glideRecords));
   paths.add(classes.flatMap((e) => e.pathRecords));
   const { checked, exceptions, cycles, entrants, unresolved, handoffs, unreached, preimage } = t;
+  // a skipped leaf could share such a trajectory, so the lists would not be whole: runVerify switches
+  // to the plan without the skip when it meets the first such block (verify.ts); parts of a cluster's
+  // plan cannot, and their merge is refused
   if (plan.preimage && (unresolved > 0n || entrants > 0n))
-    throw new PreimageSkipError(
-      `the run met ${unresolved} unresolved numbers and ${entrants} cycle entrants with the preimage sieve on, which may have skipped more of them: run it again without (--no-preimage)`,
+    throw new UsageError(
+      `the run met ${unresolved} unresolved numbers and ${entrants} cycle entrants with the preimage sieve on, which may have skipped more of them: plan it again with --no-preimage (glidepath batch verify ... --no-preimage)`,
     );
   const glideRecords = glides.records;
   const pathRecords = paths.records;

@@ -3,15 +3,16 @@
 // numbers below it: the method of the published verification runs, common practice), or is found on
 // a cycle, or is listed as unresolved past a step cap. The plan cuts the range into blocks
 // (plan.ts); each block runs in a worker and comes back finished (block.ts); the blocks merge in
-// order (merge.ts). This file is the run: the scheduling of blocks, and the job of the plan layer.
+// order (merge.ts). This file is the run: the scheduling of blocks, the preimage skip's fallback,
+// and the job of the plan layer.
 import { exactCounts } from "../../core/exact.js";
 import type { VerifyBlock } from "./messages.js";
 import { bigintField, boolField, intField, mapField, optional, paramsCodec } from "../../engine/codec.js";
-import { runWhole, shardEstimate } from "../../engine/plan.js";
+import { shardEstimate } from "../../engine/plan.js";
 import type { JobKind, PartBase, ShardOptions } from "../../engine/plan.js";
 import type { KernelPool, RunOptions } from "../../engine/pool.js";
 import type { BlockEntry } from "./block.js";
-import { mergeVerify, PreimageSkipError } from "./merge.js";
+import { mergeVerify } from "./merge.js";
 import type { VerifyResult } from "./merge.js";
 import { blockSize, planVerify } from "./plan.js";
 import type { BlockSpec, VerifyPlan, VerifyRequest } from "./plan.js";
@@ -19,13 +20,30 @@ import { exceptionsIn, verifyTables } from "./tables.js";
 import type { VerifyTableData } from "./tables.js";
 import type { JobApi } from "../registry.js";
 
+/** Where a run stands after a block: the request and plan the block belongs to, and that plan's blocks done so far. */
+export interface VerifyRunState {
+  readonly request: VerifyRequest;
+  readonly plan: VerifyPlan;
+  readonly done: ReadonlyMap<number, BlockEntry>;
+}
+
 /** Options of a run: progress and cancel, and blocks already done (a resumed run) with a callback per block. */
 export interface VerifyOptions extends ShardOptions {
   /** The plan's tables, when the caller built them already (verifyTables). */
   readonly tables?: VerifyTableData;
   readonly done?: ReadonlyMap<number, BlockEntry>;
-  readonly onBlock?: (entry: BlockEntry, done: number, total: number) => void | Promise<void>;
+  /**
+   * After each finished block, one call after another. `run` is what a checkpoint holds: every block
+   * of `run.done` belongs to `run.plan` (after the preimage skip's fallback, the plan without the skip).
+   */
+  readonly onBlock?: (entry: BlockEntry, run: VerifyRunState) => void | Promise<void>;
 }
+
+/**
+ * A block that ends the preimage skip: a number in it neither descends nor returns to itself, so a
+ * leaf skipped because a smaller number reaches it may not descend either, and the lists would not be whole.
+ */
+export const breaksSkip = (e: BlockEntry): boolean => e.counts.unresolved > 0n || e.counts.cycleEntrants > 0n;
 
 /** The message a worker gets for one block of a plan. */
 function blockMessage(plan: VerifyPlan, data: VerifyTableData | null, b: BlockSpec): VerifyBlock {
@@ -56,13 +74,15 @@ async function executeBlocks(
   todo: readonly BlockSpec[],
   onResult: (entry: BlockEntry) => void | Promise<void>,
   signal?: AbortSignal,
+  stop: () => boolean = () => false,
 ): Promise<void> {
   const prepared = new WeakSet<object>();
   let chain: Promise<void> = Promise.resolve();
   let failed: unknown = null;
   await pool.run(
     todo.map((b) => blockMessage(plan, data, b)),
-    async (api: JobApi, block) => {
+    async (api: JobApi, block): Promise<BlockEntry | null> => {
+      if (stop()) return null; // the rest of the pass is of no use: its tasks end at once
       if (data && !prepared.has(api)) {
         await api.verifyPrepare(data.tables);
         prepared.add(api);
@@ -70,6 +90,7 @@ async function executeBlocks(
       return api.verifyBlock(block);
     },
     (_block, out) => {
+      if (out === null) return;
       chain = chain
         .then(() => onResult(out))
         .catch((e: unknown) => {
@@ -96,6 +117,50 @@ export async function runBlocks(
   const out: BlockEntry[] = [];
   await executeBlocks(pool, plan, data, specs, (e) => void out.push(e), options.signal);
   return out.sort((u, v) => u.index - v.index);
+}
+
+/**
+ * Runs the blocks of `mine` that `run.done` lacks, into `run.done`, each reported to onBlock. With
+ * `watchSkip`, a block that breaks the preimage skip ends the pass: blocks not yet started are not
+ * run, those that finish later are dropped, and it returns false (a resumed run whose blocks already
+ * hold such a block returns false at once). Otherwise true, with every block of `mine` done. With
+ * the tables it ran on (null when it ran no kernel block).
+ */
+async function runPass(
+  pool: KernelPool,
+  run: VerifyRunState & { readonly done: Map<number, BlockEntry> },
+  mine: readonly BlockSpec[],
+  options: VerifyOptions,
+  watchSkip: boolean,
+): Promise<{ complete: boolean; data: VerifyTableData | null }> {
+  const { plan, done } = run;
+  if (watchSkip && [...done.values()].some(breaksSkip)) return { complete: false, data: options.tables ?? null };
+  const todo = mine.filter((b) => !done.has(b.index));
+  const data = plan.engine === "kernel" && todo.length > 0 ? (options.tables ?? (await verifyTables(pool, plan, options))) : null;
+  const progress = numberProgress(mine, (b) => done.has(b.index), options.onProgress);
+  let broken = false;
+  await executeBlocks(
+    pool,
+    plan,
+    data,
+    todo,
+    async (entry) => {
+      if (broken) return;
+      done.set(entry.index, entry);
+      progress(plan.blocks[entry.index]!);
+      broken = watchSkip && breaksSkip(entry);
+      await options.onBlock?.(entry, run);
+    },
+    options.signal,
+    () => broken,
+  );
+  return { complete: !broken, data };
+}
+
+/** The tables of a run by classes under the plan of its fallback: the same tables, the skip off. */
+function withoutSkip(data: VerifyTableData, plan: VerifyPlan): VerifyTableData {
+  const { classes } = data.tables;
+  return { ...data, tables: { ...data.tables, key: plan.key, classes: classes && { ...classes, preimage: false } } };
 }
 
 /** Progress in numbers (display only: a double is close enough to show a share and a rate). */
@@ -174,21 +239,7 @@ export const verifyJob: JobKind<VerifyParams, VerifyPart, VerifyResult, VerifyOp
     const mine = vplan.blocks.slice(range.first, range.end);
     // blocks already done (a resumed run) are kept as they are
     const results = new Map<number, BlockEntry>([...(options.done ?? [])].filter(([i]) => i >= range.first && i < range.end));
-    const todo = mine.filter((b) => !results.has(b.index));
-    const data = vplan.engine === "kernel" && todo.length > 0 ? (options.tables ?? (await verifyTables(pool, vplan, options))) : null;
-    const progress = numberProgress(mine, (b) => results.has(b.index), options.onProgress);
-    await executeBlocks(
-      pool,
-      vplan,
-      data,
-      todo,
-      async (entry) => {
-        results.set(entry.index, entry);
-        progress(vplan.blocks[entry.index]!);
-        await options.onBlock?.(entry, results.size, mine.length);
-      },
-      options.signal,
-    );
+    await runPass(pool, { request: plan.params, plan: vplan, done: results }, mine, options, false);
     const blocks = mine.map((b) => results.get(b.index)!);
     return { blocks, seconds: (performance.now() - started) / 1000 };
   },
@@ -204,29 +255,39 @@ export const verifyJob: JobKind<VerifyParams, VerifyPart, VerifyResult, VerifyOp
 };
 
 /**
- * Verifies the range on the pool: the blocks not in `options.done`, then the merge of all of them
- * (the plan layer's one-shard run, as for every job). The result's `seconds` is this call's wall
- * time (both passes when the preimage skip falls back), `blocksRun` and `numbersRun` what this call
- * ran itself (not the blocks of `options.done`).
+ * Verifies the range on the pool: the blocks not in `options.done`, then the merge of all of them.
+ * A run by classes with the preimage skip watches its blocks: the first that breaks the skip
+ * (breaksSkip) ends the pass, and the run goes on under the plan without the skip, every block of
+ * classes again (the delay blocks done stand: the skip does not touch them); onBlock then reports
+ * that plan's blocks only. The result's `seconds` is this call's wall time (both passes),
+ * `blocksRun` and `numbersRun` what this call ran of the result's blocks (not those of `options.done`).
  * @example const r = await runVerify(pool, { map: parseMap("3x+1"), from: 1n, to: 1n << 20n }); r.maxGlide?.n // 77671n
  */
 export async function runVerify(pool: KernelPool, req: VerifyRequest, options: VerifyOptions = {}): Promise<VerifyResult> {
   const started = performance.now();
   const given = new Set(options.done?.keys()); // now: a caller's onBlock may add to options.done
-  const timed = (r: VerifyResult, run: VerifyRequest, done: ReadonlySet<number>, firstPassSeconds: number | null): VerifyResult => {
-    const ran = planOf(run).blocks.filter((b) => !done.has(b.index));
+  const timed = (plan: VerifyPlan, done: ReadonlyMap<number, BlockEntry>, held: ReadonlySet<number>, firstPassSeconds: number | null) => {
+    const r = mergeVerify(
+      plan,
+      plan.blocks.map((b) => done.get(b.index)!),
+      0,
+    );
+    const ran = plan.blocks.filter((b) => !held.has(b.index));
     const numbersRun = ran.reduce((s, b) => s + blockSize(b), 0n);
     const seconds = (performance.now() - started) / 1000;
-    return { ...r, seconds, blocksRun: ran.length, numbersRun, passes: firstPassSeconds === null ? 1 : 2, firstPassSeconds };
+    const passes: 1 | 2 = firstPassSeconds === null ? 1 : 2;
+    return { ...r, seconds, blocksRun: ran.length, numbersRun, passes, firstPassSeconds };
   };
-  try {
-    return timed(await runWhole(pool, verifyJob, req, options), req, given, null);
-  } catch (e) {
-    // the preimage sieve met a trajectory that does not descend: the run again without it has whole lists
-    if (!(e instanceof PreimageSkipError)) throw e;
-    const firstPassSeconds = (performance.now() - started) / 1000;
-    const { done: _done, tables: _tables, ...rest } = options;
-    const again = { ...req, preimage: false };
-    return timed(await runWhole(pool, verifyJob, again, rest), again, new Set(), firstPassSeconds);
-  }
+  const plan = planOf(req);
+  const first = { request: req, plan, done: new Map(options.done) };
+  const pass = await runPass(pool, first, plan.blocks, options, plan.preimage);
+  if (pass.complete) return timed(plan, first.done, given, null);
+  // the fallback: the plan without the skip, its tables those of the first pass with the skip off
+  const firstPassSeconds = (performance.now() - started) / 1000;
+  const request = { ...req, preimage: false };
+  const second = planOf(request);
+  const kept = new Map([...first.done].filter(([, e]) => e.kind === "delay"));
+  const tables = pass.data ? withoutSkip(pass.data, second) : undefined;
+  await runPass(pool, { request, plan: second, done: kept }, second.blocks, { ...options, tables }, false);
+  return timed(second, kept, new Set([...given].filter((i) => second.blocks[i]?.kind === "delay")), firstPassSeconds);
 }
