@@ -352,7 +352,7 @@ function entryChecks(plan: VerifyPlan, data: VerifyTableData | null, e: BlockEnt
 function inBlock(plan: VerifyPlan, i: number): (n: bigint) => boolean {
   const b = plan.blocks[i]!;
   if (b.kind !== "classes") return (n) => n >= b.first && n <= b.last;
-  const mask = (1n << b.h0) - 1n;
+  const mask = (1n << BigInt(b.rootDepth)) - 1n;
   return (n) => n >= plan.from && n < plan.to && (n & mask) >= b.first && (n & mask) <= b.last;
 }
 

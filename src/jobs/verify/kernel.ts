@@ -1,6 +1,7 @@
 // The verification kernel's adapter: the run's tables written into a worker's kernel once
-// (verifyPrepare), then one block at a time (verifyAligned or verifyRange), results copied out.
-import type { Kernel } from "../../engine/loader.js";
+// (verifyPrepare), then one block at a time, one typed call per block kind (verifyAligned,
+// verifyClasses, verifyRange, verifyDelays), results copied out.
+import type { FlushSink, Kernel } from "../../engine/loader.js";
 import type { WorkerContext } from "../../engine/worker.js";
 import { collector } from "../../engine/loader.js";
 import type { VerifyBlock, VerifyBlockResult, VerifyTables } from "./messages.js";
@@ -95,20 +96,159 @@ function words(x: bigint): [bigint, bigint] {
   return [BigInt.asUintN(64, x), x >> 64n];
 }
 
+/** What every block call shares: the map, its limits, the tables and the output regions. */
+interface BlockCommon {
+  readonly q: number;
+  readonly r: number;
+  readonly maxSteps: number;
+  readonly limitBits: number;
+  readonly tables: number;
+  readonly counts: number;
+  readonly scratch: number;
+}
+
+/** verifyAligned (assembly/verify/periods.ts): whole periods h0 <= h < h0 + periods of the depth-K sieve. */
+interface AlignedCall extends BlockCommon {
+  readonly depth: number;
+  readonly stepDepth: number;
+  readonly survivors: number;
+  readonly h0: bigint;
+  readonly periods: bigint;
+  readonly exceptions: number;
+  readonly exceptionCount: number;
+  readonly sievedGlide: number;
+  readonly sievedPeak: number;
+  readonly sievedSlack: bigint;
+  readonly survivorSlack: bigint;
+  readonly slacks: number;
+}
+
+/** verifyClasses (assembly/verify/classes.ts): the roots first..last mod 2^rootDepth settled to depth N. */
+interface ClassesCall extends BlockCommon {
+  readonly N: number;
+  readonly rootDepth: number;
+  readonly first: bigint;
+  readonly last: bigint;
+  readonly from: bigint;
+  readonly preimage: boolean;
+  readonly stepDepth: number;
+  readonly bounds: number;
+  readonly classSlacks: number;
+  readonly slacks: number;
+  readonly glideMin: number;
+  readonly glideCap: number;
+}
+
+/** verifyRange (assembly/verify/periods.ts, every n of first..last) or verifyDelays (assembly/verify/delays.ts). */
+interface SpanCall extends BlockCommon {
+  /** verifyRange: the sieve depth; verifyDelays: the table step depth. */
+  readonly depth: number;
+  readonly first: bigint;
+  readonly last: bigint;
+}
+
+/** The kernel's exports in their argument order, one typed call per block kind. */
+const blockCalls = {
+  aligned: (kernel: Kernel, a: AlignedCall, sink: FlushSink) =>
+    kernel.call(
+      "verifyAligned",
+      // biome-ignore format: the export's argument order, as assembly/verify/periods.ts declares it
+      [a.q, a.r, a.depth, a.stepDepth, a.maxSteps, a.limitBits, a.tables, a.survivors, ...words(a.h0), a.periods,
+        a.exceptions, a.exceptionCount, a.sievedGlide, a.sievedPeak, a.sievedSlack, a.survivorSlack, a.slacks, a.counts, a.scratch],
+      sink,
+    ),
+  classes: (kernel: Kernel, c: ClassesCall, sink: FlushSink) =>
+    kernel.call(
+      "verifyClasses",
+      // biome-ignore format: the export's argument order, as assembly/verify/classes.ts declares it
+      [c.q, c.r, c.N, c.rootDepth, c.first, c.last, c.from, c.preimage ? 1 : 0, c.stepDepth, c.maxSteps, c.limitBits,
+        c.tables, c.bounds, c.classSlacks, c.slacks, c.glideMin, c.glideCap, c.counts, c.scratch],
+      sink,
+    ),
+  range: (kernel: Kernel, s: SpanCall, sink: FlushSink) =>
+    kernel.call(
+      "verifyRange",
+      [s.q, s.r, s.depth, s.maxSteps, s.limitBits, s.tables, ...words(s.first), ...words(s.last), s.counts, s.scratch],
+      sink,
+    ),
+  delay: (kernel: Kernel, s: SpanCall, sink: FlushSink) =>
+    kernel.call(
+      "verifyDelays",
+      [s.q, s.r, s.depth, s.maxSteps, s.limitBits, s.tables, ...words(s.first), ...words(s.last), s.counts, s.scratch],
+      sink,
+    ),
+};
+
+/** The block's call of its kind, on the run's tables. */
+function callBlock(kernel: Kernel, t: VerifyTables, block: VerifyBlock, common: BlockCommon, sink: FlushSink): number | bigint {
+  const slacks = kernel.region("verify.slacks", 8 * t.slacks.length);
+  const span = { ...common, first: block.first, last: block.last };
+  switch (block.kind) {
+    case "aligned": {
+      const exceptions = kernel.region("verify.exceptions", 8 * Math.max(1, block.exceptions.length));
+      new BigUint64Array(kernel.memory, exceptions, block.exceptions.length).set(block.exceptions);
+      const aligned: AlignedCall = {
+        ...common,
+        depth: t.depth,
+        stepDepth: t.stepDepth,
+        survivors: t.residues.length,
+        h0: block.h0,
+        periods: block.periods,
+        exceptions,
+        exceptionCount: block.exceptions.length,
+        sievedGlide: t.sievedGlide,
+        sievedPeak: t.sievedPeak,
+        sievedSlack: t.sievedSlack,
+        survivorSlack: t.survivorSlack,
+        slacks,
+      };
+      return blockCalls.aligned(kernel, aligned, sink);
+    }
+    case "classes": {
+      const c = t.classes;
+      if (!c) throw new Error("internal error: a block of classes before its run's class tables");
+      const classes: ClassesCall = {
+        ...span,
+        N: t.depth,
+        rootDepth: block.rootDepth,
+        from: c.from,
+        preimage: c.preimage,
+        stepDepth: t.stepDepth,
+        bounds: kernel.region("verify.classBounds", 8 * c.bounds.length),
+        classSlacks: kernel.region("verify.classSlacks", 8 * c.slacks.length),
+        slacks,
+        glideMin: kernel.region("verify.glideMin", 16 * c.glideCap),
+        glideCap: c.glideCap,
+      };
+      return blockCalls.classes(kernel, classes, sink);
+    }
+    case "delay":
+      return blockCalls.delay(kernel, { ...span, depth: t.stepDepth }, sink);
+    case "range":
+      return blockCalls.range(kernel, { ...span, depth: t.depth }, sink);
+  }
+}
+
 /** Runs one block on tables already prepared: the kernel's raw counters and lists. */
 function verifyBlock(kernel: Kernel, t: VerifyTables, block: VerifyBlock): VerifyBlockResult {
   const L = (name: string) => kernel.layout(name);
-  const tables = kernel.region("tables", L("TABLE_BYTES"));
-  const counts = kernel.region("verify.counts", L("VERIFY_COUNTS") * 8);
-  const scratch = kernel.region("verify.scratch", L("VERIFY_SCRATCH_BYTES"));
-  const slacks = kernel.region("verify.slacks", 8 * t.slacks.length);
-  const region = (channel: string) => scratch + (L(channel) - L("CHANNEL_GLIDE_RECORDS")) * L("VERIFY_REGION_BYTES");
+  const common: BlockCommon = {
+    q: t.q,
+    r: t.r,
+    maxSteps: block.maxSteps,
+    limitBits: block.limitBits,
+    tables: kernel.region("tables", L("TABLE_BYTES")),
+    counts: kernel.region("verify.counts", L("VERIFY_COUNTS") * 8),
+    scratch: kernel.region("verify.scratch", L("VERIFY_SCRATCH_BYTES")),
+  };
+  const list = (channel: string) =>
+    collector(kernel, common.scratch + (L(channel) - L("CHANNEL_GLIDE_RECORDS")) * L("VERIFY_REGION_BYTES"));
   const lists = {
-    glide: collector(kernel, region("CHANNEL_GLIDE_RECORDS")),
-    path: collector(kernel, region("CHANNEL_PATH_RECORDS")),
-    handoffs: collector(kernel, region("CHANNEL_HANDOFFS")),
-    cycles: collector(kernel, region("CHANNEL_CYCLE_MEMBERS")),
-    unresolved: collector(kernel, region("CHANNEL_UNRESOLVED")),
+    glide: list("CHANNEL_GLIDE_RECORDS"),
+    path: list("CHANNEL_PATH_RECORDS"),
+    handoffs: list("CHANNEL_HANDOFFS"),
+    cycles: list("CHANNEL_CYCLE_MEMBERS"),
+    unresolved: list("CHANNEL_UNRESOLVED"),
   };
   const sinks = new Map<number, { take(count: number): void }>([
     [L("CHANNEL_GLIDE_RECORDS"), lists.glide],
@@ -117,81 +257,11 @@ function verifyBlock(kernel: Kernel, t: VerifyTables, block: VerifyBlock): Verif
     [L("CHANNEL_CYCLE_MEMBERS"), lists.cycles],
     [L("CHANNEL_UNRESOLVED"), lists.unresolved],
   ]);
-  const sink = (channel: number, count: number) => sinks.get(channel)?.take(count);
-  let visited: number | bigint;
-  if (block.kind === "aligned") {
-    const exc = kernel.region("verify.exceptions", 8 * Math.max(1, block.exceptions.length));
-    new BigUint64Array(kernel.memory, exc, block.exceptions.length).set(block.exceptions);
-    visited = kernel.call(
-      "verifyAligned",
-      [
-        t.q,
-        t.r,
-        t.depth,
-        t.stepDepth,
-        block.maxSteps,
-        block.limitBits,
-        tables,
-        t.residues.length,
-        ...words(block.h0),
-        block.periods,
-        exc,
-        block.exceptions.length,
-        t.sievedGlide,
-        t.sievedPeak,
-        t.sievedSlack,
-        t.survivorSlack,
-        slacks,
-        counts,
-        scratch,
-      ],
-      sink,
-    );
-  } else if (block.kind === "classes") {
-    const c = t.classes;
-    if (!c) throw new Error("internal error: a block of classes before its run's class tables");
-    visited = kernel.call(
-      "verifyClasses",
-      [
-        t.q,
-        t.r,
-        t.depth,
-        Number(block.h0),
-        block.first,
-        block.last,
-        c.from,
-        c.preimage ? 1 : 0,
-        t.stepDepth,
-        block.maxSteps,
-        block.limitBits,
-        tables,
-        kernel.region("verify.classBounds", 8 * c.bounds.length),
-        kernel.region("verify.classSlacks", 8 * c.slacks.length),
-        slacks,
-        kernel.region("verify.glideMin", 16 * c.glideCap),
-        c.glideCap,
-        counts,
-        scratch,
-      ],
-      sink,
-    );
-  } else if (block.kind === "delay") {
-    visited = kernel.call(
-      "verifyDelays",
-      [t.q, t.r, t.stepDepth, block.maxSteps, block.limitBits, tables, ...words(block.first), ...words(block.last), counts, scratch],
-      sink,
-    );
-  } else {
-    visited = kernel.call(
-      "verifyRange",
-      [t.q, t.r, t.depth, block.maxSteps, block.limitBits, tables, ...words(block.first), ...words(block.last), counts, scratch],
-      sink,
-    );
-  }
+  const visited = callBlock(kernel, t, block, common, (channel, count) => sinks.get(channel)?.take(count));
   return {
     index: block.index,
     visited: BigInt.asUintN(64, BigInt(visited)),
-    counts: new BigUint64Array(kernel.memory, counts, L("VERIFY_COUNTS")).slice(),
+    counts: new BigUint64Array(kernel.memory, common.counts, L("VERIFY_COUNTS")).slice(),
     glideRecords: lists.glide.all(),
     pathRecords: lists.path.all(),
     handoffs: lists.handoffs.all(),

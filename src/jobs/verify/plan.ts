@@ -46,12 +46,15 @@ export interface VerifyRequest {
 /** One block of a plan: first..last (inclusive); aligned blocks are n = a + 2^K h, h0 <= h < h0 + periods. */
 export interface BlockSpec {
   readonly index: number;
-  /** classes: the roots c mod 2^D with first <= c <= last (D = h0), 2^(N - D) numbers each (periods), 0 left out. */
+  /** classes: the roots c mod 2^D with first <= c <= last (D = rootDepth), 2^(N - D) numbers each (periods), 0 left out. */
   readonly kind: "aligned" | "range" | "delay" | "classes";
   readonly first: bigint;
   readonly last: bigint;
+  /** aligned: the first period h0 (0 for the other kinds). */
   readonly h0: bigint;
   readonly periods: bigint;
+  /** classes: the depth D of the roots (0 for the other kinds). */
+  readonly rootDepth: number;
   /** classes: how many numbers of the roots' classes lie below FROM (left out). */
   readonly below: bigint;
 }
@@ -146,8 +149,8 @@ export function planVerify(req: VerifyRequest): VerifyPlan {
     throw new UsageError("blocks must be a positive whole number");
   const key = `${map.name}|${from}|${to}|${sieveDepth}|${stepDepth}|${maxSteps}|${limitBits}${delay ? "|delay" : ""}${blockTarget === null ? "" : `|blocks ${blockTarget}`}${method === "classes" ? `|classes${preimage ? "+preimage" : ""}` : ""}`;
   const blocks: BlockSpec[] = [];
-  const push = (kind: BlockSpec["kind"], first: bigint, last: bigint, h0 = 0n, periods = 0n, below = 0n) =>
-    blocks.push({ index: blocks.length, kind, first, last, h0, periods, below });
+  const push = (kind: BlockSpec["kind"], first: bigint, last: bigint, h0 = 0n, periods = 0n, below = 0n, rootDepth = 0) =>
+    blocks.push({ index: blocks.length, kind, first, last, h0, periods, rootDepth, below });
   const chunks = (kind: "range" | "delay", first: bigint, end: bigint, size: bigint) => {
     for (let s = first; s < end; s += size) push(kind, s, s + size < end ? s + size - 1n : end - 1n);
   };
@@ -163,7 +166,7 @@ export function planVerify(req: VerifyRequest): VerifyPlan {
     const per = (roots + target - 1n) / target;
     for (let c = 0n; c < roots; c += per) {
       const last = c + per <= roots ? c + per - 1n : roots - 1n;
-      push("classes", c, last, BigInt(D), 1n << BigInt(sieveDepth - D), belowFrom(from, D, c, last));
+      push("classes", c, last, 0n, 1n << BigInt(sieveDepth - D), belowFrom(from, D, c, last), D);
     }
     if (delay) chunks("delay", from, to, RANGE_BLOCK);
     return { map, from, to, sieveDepth, stepDepth, maxSteps, limitBits, engine, delay, method, preimage, blockTarget, key, blocks };
