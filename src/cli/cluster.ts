@@ -8,18 +8,11 @@ import { makePlan } from "../engine/plan.js";
 import type { JobKind, PartBase, Plan } from "../engine/plan.js";
 import { group, plural } from "../outputs/format.js";
 import { toExactJson } from "../core/json.js";
-import {
-  arrayList,
-  checkParts,
-  checkShard,
-  createRun,
-  inspectParts,
-  PARTS,
-  readRun,
-  runShardToDisk,
-  SCRIPT_FILE,
-} from "../node/cluster.js";
-import type { RunDir } from "../node/cluster.js";
+import { checkParts, inspectParts } from "../node/cluster/parts.js";
+import { checkShard, createRun, PARTS, readRun, SCRIPT_FILE } from "../node/cluster/rundir.js";
+import type { RunDir } from "../node/cluster/rundir.js";
+import { runShardToDisk } from "../node/cluster/shard.js";
+import { arrayList } from "../node/cluster/slurm.js";
 import { kernelBuildId, toolStamp, withPool } from "../node/kernel.js";
 import { censusBatch } from "./census.js";
 import { conjugacyBatch } from "./conjugacy.js";

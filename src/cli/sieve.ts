@@ -8,7 +8,8 @@ import type { KernelPool } from "../engine/pool.js";
 import { runSieve, sieveJob, sieveParams } from "../jobs/sieve/sieve.js";
 import type { SieveParams, SieveResult } from "../jobs/sieve/sieve.js";
 import { runWhole } from "../engine/plan.js";
-import { mergeSortedTables } from "../node/cluster.js";
+import { mergeSortedTables } from "../jobs/sieve/merge.js";
+import { withPartTables } from "../node/cluster/parts.js";
 import type { BatchJob } from "./batch.js";
 import { classTableArrow } from "../outputs/arrow.js";
 import type { ToolStamp } from "../outputs/manifest.js";
@@ -56,7 +57,7 @@ export const sieveBatch: BatchJob<SieveParams, SieveResult> = {
       await withManifestOutput(
         out.path,
         async (file) => {
-          const n = await mergeSortedTables(tables, result.depth, file!);
+          const n = await withPartTables(tables, (sources) => mergeSortedTables(sources, result.depth, file!));
           if (n !== rows) throw new Error(`internal error: the parts hold ${n} residues, the tallies say ${rows}`);
         },
         (_r, data) => tableManifest(result.map, result.depth, rows, "raw", data, stamp),
