@@ -6,7 +6,8 @@ import { runSieve } from "../src/jobs/sieve/sieve.js";
 import { CancelledError } from "../src/engine/pool.js";
 import { nodePool } from "../src/node/kernel.js";
 import { A076227 } from "../src/core/published.js";
-import type { JobApi } from "../src/jobs/registry.js";
+import type { JobApi } from "../src/engine/worker.js";
+import type { sieveHandlers } from "../src/jobs/sieve/kernel.js";
 
 const pool2 = await nodePool(2);
 const pool1 = await nodePool(1);
@@ -92,7 +93,7 @@ describe("the worker pool", () => {
       await expect(
         debugPool.run(
           [bad],
-          (api: JobApi, s) => api.runShard(s),
+          (api: JobApi<typeof sieveHandlers>, s) => api.runShard(s),
           () => {},
         ),
       ).rejects.toThrow(/kernel assertion failed/);
@@ -124,7 +125,7 @@ describe("the worker pool", () => {
     await expect(
       dying.run(
         [shard],
-        (api: JobApi, s) => api.runShard(s),
+        (api: JobApi<typeof sieveHandlers>, s) => api.runShard(s),
         () => {},
       ),
     ).rejects.toThrow(/worker failed: simulated out of memory/);

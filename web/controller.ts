@@ -41,7 +41,7 @@ export class RunController {
    * until the next progress report gives it a share again.
    */
   phase(text: string): void {
-    ($(this.el.progress) as HTMLProgressElement).removeAttribute("value");
+    $<HTMLProgressElement>(this.el.progress).removeAttribute("value");
     $(this.el.status).textContent = text;
   }
 
@@ -60,10 +60,10 @@ export class RunController {
     const abort = new AbortController();
     this.abort = abort;
     const started = performance.now();
-    const progress = $(this.el.progress) as HTMLProgressElement;
+    const progress = $<HTMLProgressElement>(this.el.progress);
     const status = $(this.el.status);
-    ($(this.el.start) as HTMLButtonElement).disabled = true;
-    ($(this.el.cancel) as HTMLButtonElement).disabled = false;
+    $<HTMLButtonElement>(this.el.start).disabled = true;
+    $<HTMLButtonElement>(this.el.cancel).disabled = false;
     progress.value = 0;
     status.textContent = waiting;
     this.say("");
@@ -98,8 +98,8 @@ export class RunController {
       return { ok: false };
     } finally {
       if (this.abort === abort) this.abort = null;
-      ($(this.el.start) as HTMLButtonElement).disabled = false;
-      ($(this.el.cancel) as HTMLButtonElement).disabled = true;
+      $<HTMLButtonElement>(this.el.start).disabled = false;
+      $<HTMLButtonElement>(this.el.cancel).disabled = true;
     }
   }
 }

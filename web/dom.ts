@@ -27,7 +27,7 @@ export function fieldError(id: string, text: string): boolean {
  * clears the field's error).
  * @example const map = parseField("run-map", parseMap);
  */
-export function parseField<T>(id: string, parse: (text: string) => T, text = ($(id) as HTMLInputElement).value): T | null {
+export function parseField<T>(id: string, parse: (text: string) => T, text = $<HTMLInputElement>(id).value): T | null {
   try {
     const value = parse(text);
     fieldError(id, "");

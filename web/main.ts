@@ -59,7 +59,7 @@ function run(): void {
 }
 
 function inspectNow(): void {
-  if (runInspect(($("inspect-input") as HTMLInputElement).value, ($("inspect-map") as HTMLInputElement).value))
+  if (runInspect($<HTMLInputElement>("inspect-input").value, $<HTMLInputElement>("inspect-map").value))
     saveState(current, ["inspect"], entry(), true);
 }
 
@@ -76,7 +76,7 @@ function recordRun(fields: View, done: Promise<boolean>): void {
 function cycles(): void {
   const workers = readWorkers("cycles-message");
   if (workers === null) return;
-  recordRun("cycles", runCycles(($("cycles-map") as HTMLInputElement).value, ($("cycles-period") as HTMLInputElement).value, workers));
+  recordRun("cycles", runCycles($<HTMLInputElement>("cycles-map").value, $<HTMLInputElement>("cycles-period").value, workers));
 }
 
 function verify(): void {
@@ -93,8 +93,8 @@ function tree(): void {
 
 /** Opens a number or class in the Inspector under its own map, the focus on the Inspector's heading. */
 function openInInspector(input: string, mapName: string): void {
-  ($("inspect-input") as HTMLInputElement).value = input;
-  ($("inspect-map") as HTMLInputElement).value = mapName;
+  $<HTMLInputElement>("inspect-input").value = input;
+  $<HTMLInputElement>("inspect-map").value = mapName;
   show("inspect", true);
   inspectNow();
   $("inspect-heading").focus();
@@ -123,7 +123,7 @@ const FORMS = [
 ] as const;
 
 function setup(): void {
-  ($("run-workers") as HTMLInputElement).value = String(defaultWorkers());
+  $<HTMLInputElement>("run-workers").value = String(defaultWorkers());
   setupTabs();
   setupTable((t, row) => openInInspector(`${t.residues[row]} mod 2^${t.depth}`, t.map.name));
   // each form: its job on submit; the address bar follows its fields as they change
@@ -156,12 +156,12 @@ function setup(): void {
   $("verify-form").addEventListener("input", syncVerifyForm);
   $("verify-form").addEventListener("change", syncVerifyForm);
   $("verify-preset").addEventListener("change", () => {
-    applyPreset(($("verify-preset") as HTMLSelectElement).value);
+    applyPreset($<HTMLSelectElement>("verify-preset").value);
     syncVerifyForm();
     panelOf("verify-form")?.follow();
   });
   document.querySelector('a[href="#glossary"]')?.addEventListener("click", () => {
-    ($("glossary") as HTMLDetailsElement).open = true;
+    $<HTMLDetailsElement>("glossary").open = true;
   });
   addEventListener("resize", () => {
     resizeCharts();

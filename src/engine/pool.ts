@@ -3,7 +3,7 @@
 // Isomorphic: the caller passes a spawner (worker_threads in Node, Web Workers in the browser).
 import { releaseProxy, wrap } from "comlink";
 import type { Endpoint, Remote } from "comlink";
-import type { HandlerMap, WorkerApi } from "./worker.js";
+import type { HandlerMap, JobApi } from "./worker.js";
 
 /** What every worker offers whatever it serves: init. */
 type WorkerInit = { init(module: WebAssembly.Module): Promise<void> };
@@ -37,9 +37,9 @@ export interface RunOptions {
 
 /**
  * A fixed-size pool of kernel workers. It knows no job: a run names the handlers its calls use by
- * the type of `api` (the jobs' registry, src/jobs/registry.ts: JobApi).
+ * the type of `api` (JobApi<typeof its job's handlers>, worker.ts).
  * @example const pool = new KernelPool(spawn, module, 2, buildId);
- *   await pool.run(shards, (api: JobApi, s) => api.runShard(s), (s, out) => merge(out));
+ *   await pool.run(shards, (api: JobApi<typeof sieveHandlers>, s) => api.runShard(s), (s, out) => merge(out));
  */
 export class KernelPool {
   private slots: Slot[] = [];
@@ -69,7 +69,7 @@ export class KernelPool {
   /** Runs every task through `call` on some worker; `onResult` sees each output once, in completion order. */
   async run<H extends HandlerMap, T, O>(
     tasks: readonly T[],
-    call: (api: Remote<WorkerApi<H>>, task: T) => Promise<O>,
+    call: (api: JobApi<H>, task: T) => Promise<O>,
     onResult: (task: T, out: O) => void,
     options: RunOptions = {},
   ): Promise<void> {
@@ -101,7 +101,8 @@ export class KernelPool {
         await slot.ready;
         while (failure === null && next < tasks.length) {
           const task = tasks[next++]!;
-          const out = await call(slot.api as unknown as Remote<WorkerApi<H>>, task); // the workers serve H: the registry
+          // a downcast the types cannot prove: every worker serves the registry (src/registry.ts), so any job's H
+          const out = await call(slot.api as JobApi<H>, task);
           onResult(task, out);
           done++;
           onProgress?.(done, tasks.length);

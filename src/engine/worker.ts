@@ -2,6 +2,7 @@
 // browser's (web/worker.ts) expose the object that createWorkerApi makes from the jobs' registry
 // (src/jobs/registry.ts) through comlink. The engine knows no job: a job's handlers name themselves.
 import { transfer } from "comlink";
+import type { Remote } from "comlink";
 import { Kernel } from "./loader.js";
 
 /** What a handler gets besides its request: the worker's kernel and the state jobs keep in it. */
@@ -13,8 +14,8 @@ export interface WorkerContext {
 }
 
 /** One call a job offers its workers: a request in, a result out (plain data and typed arrays). */
-// biome-ignore lint/suspicious/noExplicitAny: each handler names its own request type; `any` lets them share one map
-export type Handler = (ctx: WorkerContext, request: any) => unknown;
+// `never`: each handler names its own request type, and a function of any request is a Handler
+export type Handler = (ctx: WorkerContext, request: never) => unknown;
 export type HandlerMap = Record<string, Handler>;
 
 /** The object a worker exposes: init, and one method per handler, typed from the handlers. */
@@ -23,6 +24,12 @@ export type WorkerApi<H extends HandlerMap> = {
 } & {
   [K in keyof H]: (request: Parameters<H[K]>[1]) => Promise<Awaited<ReturnType<H[K]>>>;
 };
+
+/**
+ * A worker as a job's run sees it (the `api` of KernelPool.run): the calls of the handlers it names,
+ * its own job's (`JobApi<typeof censusHandlers>`); the worker entries serve every job's (src/registry.ts).
+ */
+export type JobApi<H extends HandlerMap> = Remote<WorkerApi<H>>;
 
 /**
  * The buffers of the typed arrays in a result (top level, one level of fields, lists of them), to
@@ -57,7 +64,8 @@ export function createWorkerApi<H extends HandlerMap>(handlers: H): WorkerApi<H>
   };
   for (const [name, handler] of Object.entries(handlers)) {
     api[name] = async (request: unknown) => {
-      const result = await handler(ctx, request);
+      // comlink brings what the caller's JobApi<H> typed as this handler's request
+      const result = await handler(ctx, request as never);
       if (result === null || typeof result !== "object") return result; // nothing to transfer (comlink keys transfers by object)
       return transfer(result, transferables(result, kernel ? kernel.memory : null));
     };

@@ -7,7 +7,8 @@ import { concat } from "../engine/loader.js";
 import { largestShare, makePlan, runWhole, shardEstimate } from "../engine/plan.js";
 import type { JobKind, PartBase } from "../engine/plan.js";
 import { UsageError } from "../core/errors.js";
-import type { JobApi } from "./registry.js";
+import type { JobApi } from "../engine/worker.js";
+import type { censusHandlers } from "./census/kernel.js";
 import { intField, mapField, paramsCodec } from "../engine/codec.js";
 
 export const MAX_CONJUGACY_DEPTH = 26;
@@ -70,7 +71,7 @@ export const conjugacyJob: JobKind<ConjugacyParams, ConjugacyPart, ConjugacyResu
     const parts: Uint32Array[] = [];
     await pool.run(
       censusTasks(plan, shard, true),
-      (api: JobApi, s) => api.runCensus(s),
+      (api: JobApi<typeof censusHandlers>, s) => api.runCensus(s),
       (_s, out) => parts.push(out.leafVectors!),
       options,
     );

@@ -1,8 +1,6 @@
-// The jobs' registry, the composition root of the workers: every call a job offers its workers, by
-// name. The worker entries (src/node/worker.ts, web/worker.ts) expose these; the jobs call them
-// through a JobPool. Adding a kernel adds its job's handlers here, and nothing in engine/.
-import type { Remote } from "comlink";
-import type { WorkerApi } from "../engine/worker.js";
+// The jobs' registry: every call a job offers its workers, by name. Only src/registry.ts (the worker
+// entries' composition root) imports it; a job calls its own handlers through JobApi<typeof its
+// handlers> (engine/worker.ts). Adding a kernel adds its job's handlers here, and nothing in engine/.
 import { censusHandlers } from "./census/kernel.js";
 import { cyclesHandlers } from "./cycles/kernel.js";
 import { sieveHandlers } from "./sieve/kernel.js";
@@ -18,8 +16,3 @@ export const jobHandlers = {
   ...verifyHandlers,
   ...boundsHandlers,
 };
-
-export type JobHandlers = typeof jobHandlers;
-
-/** A worker as a job's run sees it (the `api` of KernelPool.run). */
-export type JobApi = Remote<WorkerApi<JobHandlers>>;

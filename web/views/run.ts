@@ -45,7 +45,7 @@ export const depthLimit = runDepthLimit;
 /** Reads and checks the form; errors appear beside the fields and nothing runs. */
 export function readRunForm(): RunRequest | null {
   const map = parseField("run-map", parseMap);
-  const mode: Mode = ($("run-mode") as HTMLSelectElement).value === "full" ? "full" : "survivors";
+  const mode: Mode = $<HTMLSelectElement>("run-mode").value === "full" ? "full" : "survivors";
   const depth = parseField("run-depth", (t) => parseCount("depth", t, 1, Number.POSITIVE_INFINITY)) ?? 0;
   let ok = depth > 0;
   if (ok && map) {
@@ -58,7 +58,7 @@ export function readRunForm(): RunRequest | null {
         : `depth ${depth} is beyond the exact range for ${map.name} in ${mode === "full" ? "census" : "survivors"} mode (at most ${limit})`,
     );
   }
-  const keep = ($("run-keep-table") as HTMLInputElement).checked;
+  const keep = $<HTMLInputElement>("run-keep-table").checked;
   const withTable = mode === "survivors" && (depth <= TABLE_DEFAULT_DEPTH || (keep && depth <= TABLE_MAX_DEPTH));
   const workers = readWorkers();
   if (map && ok && workers !== null) return { map, depth, mode, workers, withTable };

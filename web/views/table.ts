@@ -141,10 +141,10 @@ export function showTable(t: ClassTable | null): void {
   $("table-caption").textContent = t
     ? `${n.toLocaleString("en-US")} surviving classes of ${t.map.name} mod 2^${t.depth}, ascending by residue.`
     : "Run a sieve (survivors mode) to fill the class table.";
-  ($("export-raw") as HTMLButtonElement).disabled = !t;
+  $<HTMLButtonElement>("export-raw").disabled = !t;
   const guarded = n > CSV_ROW_GUARD;
   for (const id of ["export-csv", "export-arrow"]) {
-    const b = $(id) as HTMLButtonElement;
+    const b = $<HTMLButtonElement>(id);
     b.disabled = !t || guarded;
     b.title = guarded ? `over the ${CSV_ROW_GUARD.toLocaleString("en-US")}-row guard: export raw` : "";
   }
@@ -254,7 +254,7 @@ export function setupTable(open: (t: ClassTable, row: number) => void): void {
     openRow(current, cursor);
   });
   $("table-search").addEventListener("change", () => {
-    const v = ($("table-search") as HTMLInputElement).value.trim();
+    const v = $<HTMLInputElement>("table-search").value.trim();
     const table = current;
     if (!table) return;
     const a = parseField("table-search", (t) => parseCount(`a residue mod 2^${table.depth}`, t, 0, 2 ** table.depth - 1), v);
@@ -265,7 +265,7 @@ export function setupTable(open: (t: ClassTable, row: number) => void): void {
     moveCursor(hit);
   });
   $("table-jump").addEventListener("change", () => {
-    const v = ($("table-jump") as HTMLInputElement).value.trim();
+    const v = $<HTMLInputElement>("table-jump").value.trim();
     const table = current;
     if (!table) return;
     const i = parseField("table-jump", (t) => parseCount("the row", t, 1, table.residues.length), v);

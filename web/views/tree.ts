@@ -43,7 +43,7 @@ function readTreeForm(): TreeParams | null {
   const map = parseField("tree-map", parseMap);
   const n = parseField("tree-n", (t) => parseWhole("N", t));
   const depth = parseField("tree-depth", (t) => parseCount("depth", t, 0, MAX_TREE_DEPTH));
-  const steps: StepConvention = ($("tree-steps") as HTMLSelectElement).value === "standard" ? "standard" : "T";
+  const steps: StepConvention = $<HTMLSelectElement>("tree-steps").value === "standard" ? "standard" : "T";
   if (!map || n === null || depth === null) return null;
   const params = { map, n, depth, steps, below: null };
   try {

@@ -20,7 +20,8 @@ import { classFromResidue, firstDescent } from "../../core/padic.js";
 import { LimitError, UsageError } from "../../core/errors.js";
 import { bitLength } from "../../core/arith.js";
 import { Smallest } from "../../core/smallest.js";
-import type { JobApi } from "../registry.js";
+import type { JobApi } from "../../engine/worker.js";
+import type { censusHandlers } from "./kernel.js";
 import { intField, mapField, paramsCodec } from "../../engine/codec.js";
 
 export const MAX_CENSUS_DEPTH = 32;
@@ -300,7 +301,7 @@ export const censusJob: JobKind<CensusParams, CensusPart, CensusResult> = {
     const signed = plan.params.map.r < 0;
     await pool.run(
       tasks,
-      (api: JobApi, s) => api.runCensus(s),
+      (api: JobApi<typeof censusHandlers>, s) => api.runCensus(s),
       (_s, out) => tally.addShard(out, signed),
       options,
     );

@@ -13,7 +13,8 @@ import { cycleShard } from "./kernel.js";
 import type { KernelPool, RunOptions } from "../../engine/pool.js";
 import { cycleRepresentative, iterate } from "../../core/padic.js";
 import { LimitError, UsageError } from "../../core/errors.js";
-import type { JobApi } from "../registry.js";
+import type { JobApi } from "../../engine/worker.js";
+import type { cyclesHandlers } from "./kernel.js";
 import { intField, mapField, paramsCodec } from "../../engine/codec.js";
 
 export const MAX_CYCLE_PERIOD = 63;
@@ -148,7 +149,7 @@ export const cycleJob: JobKind<CycleParams, CyclePart, CycleSearchResult> = {
     const tasks: CycleShard[] = prefixes.map((prefix) => ({ ...base, depth: maxPeriod, prefixBits: d, prefix, walkTallies: false }));
     await pool.run(
       tasks,
-      (api: JobApi, task) => api.runCycles(task),
+      (api: JobApi<typeof cyclesHandlers>, task) => api.runCycles(task),
       (_s, out) => {
         found.push(out.candidates);
         nodes += out.nodes;

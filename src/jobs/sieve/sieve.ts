@@ -20,7 +20,8 @@ import { decodeExceptionClasses, EXCEPTION_LIMIT, expandExceptions } from "./exc
 import type { ExceptionClass, SieveException } from "./exceptions.js";
 import { UsageError } from "../../core/errors.js";
 import { DEFAULT_PASS_BUDGET, passPlan, ResidueSorter } from "./sort.js";
-import type { JobApi } from "../registry.js";
+import type { JobApi } from "../../engine/worker.js";
+import type { sieveHandlers } from "./kernel.js";
 import { boolField, choiceField, intField, mapField, paramsCodec } from "../../engine/codec.js";
 
 export interface SieveRequest {
@@ -210,7 +211,7 @@ export const sieveJob: JobKind<SieveParams, SievePart, SieveResult> = {
       if (tasks.length > 0)
         await pool.run(
           passTasks,
-          (api: JobApi, task) => api.runShard(task),
+          (api: JobApi<typeof sieveHandlers>, task) => api.runShard(task),
           (_task, out) => {
             m.add(out, depth);
             if (out.grouped) sorter!.addGrouped(out.grouped);
@@ -229,7 +230,7 @@ export const sieveJob: JobKind<SieveParams, SievePart, SieveResult> = {
           const done = new Map<number, Uint32Array>();
           await pool.run(
             some,
-            (api: JobApi, b) =>
+            (api: JobApi<typeof sieveHandlers>, b) =>
               api.sortBucket(transfer({ keys: b.keys, bits: sorter.keyBits, high: sorter.highOf(b.k), wide: depth > 32 }, [b.keys.buffer])),
             (b, out) => done.set(b.k, out),
             { signal: options.signal },

@@ -9,7 +9,8 @@ import type { KernelPool, RunOptions } from "../../engine/pool.js";
 import { runWhole, shardEstimate, shardPrefixes, largestShare } from "../../engine/plan.js";
 import type { JobKind, PartBase } from "../../engine/plan.js";
 import type { InverseShardResult } from "./messages.js";
-import type { JobApi } from "../registry.js";
+import type { JobApi } from "../../engine/worker.js";
+import type { treeHandlers } from "./kernel.js";
 import { INVERSE_BOUND_BITS } from "./messages.js";
 import { bigintField, choiceField, intField, mapField, nullable, paramsCodec } from "../../engine/codec.js";
 
@@ -257,7 +258,7 @@ export const treeJob: JobKind<TreeParams, TreePart, TreeResult> = {
       const tasks = Array.from({ length: groups }, (_, g) => BigUint64Array.from(roots.filter((_, i) => i % groups === g)));
       await pool.run(
         tasks,
-        (api: JobApi, r) =>
+        (api: JobApi<typeof treeHandlers>, r) =>
           api.runInverse({
             q: p.map.q,
             r: p.map.r,

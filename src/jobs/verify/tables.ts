@@ -14,7 +14,8 @@ import type { VerifyPlan } from "./plan.js";
 import { traceBig } from "./trace.js";
 import { coefficientStoppingTime } from "../../core/padic.js";
 import type { ProbeChunk } from "./bounds.js";
-import type { JobApi } from "../registry.js";
+import type { JobApi } from "../../engine/worker.js";
+import type { boundsHandlers } from "./bounds.js";
 
 /** Exceptions a run may carry (they are listed and iterated one by one). */
 const MAX_EXCEPTIONS = 1n << 24n;
@@ -218,7 +219,7 @@ async function pathBoundsOnPool(pool: KernelPool, map: CollatzMap, N: number, ma
   const paths = new Array<bigint>(probes.length).fill(0n);
   await pool.run(
     chunks,
-    (api: JobApi, c) => api.verifyProbePaths(c),
+    (api: JobApi<typeof boundsHandlers>, c) => api.verifyProbePaths(c),
     (c, out) => {
       for (let j = 0; j < out.length; j++) paths[c.first + j] = out[j]!;
     },

@@ -18,7 +18,8 @@ import { blockSize, planVerify } from "./plan.js";
 import type { BlockSpec, VerifyPlan, VerifyRequest } from "./plan.js";
 import { exceptionsIn, verifyTables } from "./tables.js";
 import type { VerifyTableData } from "./tables.js";
-import type { JobApi } from "../registry.js";
+import type { JobApi } from "../../engine/worker.js";
+import type { verifyHandlers } from "./kernel.js";
 
 /** Where a run stands after a block: the request and plan the block belongs to, and that plan's blocks done so far. */
 export interface VerifyRunState {
@@ -81,7 +82,7 @@ async function executeBlocks(
   let failed: unknown = null;
   await pool.run(
     todo.map((b) => blockMessage(plan, data, b)),
-    async (api: JobApi, block): Promise<BlockEntry | null> => {
+    async (api: JobApi<typeof verifyHandlers>, block): Promise<BlockEntry | null> => {
       if (stop()) return null; // the rest of the pass is of no use: its tasks end at once
       if (data && !prepared.has(api)) {
         await api.verifyPrepare(data.tables);
