@@ -23,7 +23,7 @@ import {
   CENSUS_BATCH, CENSUS_BATCH_AT, CENSUS_COUNT_DIFFER, CENSUS_COUNT_EARLY, CENSUS_COUNT_NONPOSITIVE, CENSUS_COUNT_SLOW, CENSUS_BIN_OFFSET, CENSUS_BINS_AT, CENSUS_COUNTS_AT, CENSUS_EXCEPTIONS_AT, CENSUS_RATIO_AT, CENSUS_REACH_AT, CENSUS_REGION_BYTES, CENSUS_SEED_AT,
   CENSUS_TALLY_BYTES, CHANNEL_AMBIGUOUS, CHANNEL_CHUNK, CHANNEL_DIFFER, CHANNEL_EXCEPTIONS, CHANNEL_RATIO, CHANNEL_VECTORS, TABLE_BINMIN, TALLY_TABLE_BYTES,
 } from "./layout";
-import { dropDepth, evenBit, evenImage, evenResidue, oddImage, qpow, stepImage, stepValue, tally, useTables } from "./tree";
+import { childImage, childResidue, dropDepth, qpow, stepImage, stepValue, tally, useTables } from "./extend";
 
 let K: i32 = 0;
 let Q: u64 = 0;
@@ -224,12 +224,9 @@ type Inner = u16;
 @inline function live<C>(a: u64, b: i64, m: i32, j: i32, early0: u64): void {
   extremes(a, b, m, j);
   const early = earlyBound(a, b, m, j, early0);
-  const pm0 = <i64>qpow(m);
-  const e0 = evenBit<i64>(b);
-  const aEven = evenResidue<i64>(a, e0, j);
-  const aOdd = aEven ^ ((<u64>1) << j);
-  const bEven = evenImage<i64>(b, pm0, e0);
-  const bOdd = oddImage<i64>(b, pm0, e0, <i64>Q, H);
+  const qm = <i64>qpow(m);
+  const aEven = childResidue<i64>(a, b, j, false), aOdd = childResidue<i64>(a, b, j, true);
+  const bEven = childImage<i64>(b, qm, false, <i64>Q, H), bOdd = childImage<i64>(b, qm, true, <i64>Q, H);
   const jj = j + 1;
   nodes += 2;
   tally(livePtr, jj, m + 1); // an odd step never drops a live class
@@ -259,12 +256,9 @@ type Inner = u16;
 /** A node at or below its drop, depth j < K, not barren: ratio candidates; excMax from the drop. */
 @inline function dropped<C>(a: u64, b: i64, m: i32, j: i32, early: u64, excMax: i64): void {
   extremes(a, b, m, j);
-  const pm0 = <i64>qpow(m);
-  const e0 = evenBit<i64>(b);
-  const aEven = evenResidue<i64>(a, e0, j);
-  const aOdd = aEven ^ ((<u64>1) << j);
-  const bEven = evenImage<i64>(b, pm0, e0);
-  const bOdd = oddImage<i64>(b, pm0, e0, <i64>Q, H);
+  const qm = <i64>qpow(m);
+  const aEven = childResidue<i64>(a, b, j, false), aOdd = childResidue<i64>(a, b, j, true);
+  const bEven = childImage<i64>(b, qm, false, <i64>Q, H), bOdd = childImage<i64>(b, qm, true, <i64>Q, H);
   const jj = j + 1;
   nodes += 2;
   const bit = (<u64>1) << j;

@@ -7,7 +7,7 @@
 
 import { flush } from "./buffers";
 import { CHANNEL_CHUNK, CHANNEL_CYCLES, CYCLE_QPOW_HIGH } from "./layout";
-import { evenBit, evenImage, evenResidue, oddImage, stepImage, stepValue } from "./tree";
+import { childImage, childResidue, stepImage, stepValue } from "./extend";
 import { rlo, rhi, add, shr1, mul, leU } from "./u128";
 
 let K: i32 = 0;
@@ -46,12 +46,9 @@ function pushCandidate(a: u64, blo: u64, bhi: u64, j: i32, m: i32): void {
 }
 
 function dfs64<T>(a: u64, b: T, m: i32, j: i32): void {
-  const pm = <T>load<u64>(qlo + (<usize>m << 3));
-  const e0 = evenBit<T>(b);
-  const aEven = evenResidue<T>(a, e0, j);
-  const aOdd = aEven ^ ((<u64>1) << j);
-  const bEven = evenImage<T>(b, pm, e0);
-  const bOdd = oddImage<T>(b, pm, e0, <T>Q, <T>H);
+  const qm = <T>load<u64>(qlo + (<usize>m << 3));
+  const aEven = childResidue<T>(a, b, j, false), aOdd = childResidue<T>(a, b, j, true);
+  const bEven = childImage<T>(b, qm, false, <T>Q, <T>H), bOdd = childImage<T>(b, qm, true, <T>Q, <T>H);
   const jj = j + 1;
   nodes += 2;
   test64<T>(aEven, bEven, jj, m);

@@ -11,7 +11,7 @@
 
 import { flush } from "./buffers";
 import { CHANNEL_CHUNK, CHANNEL_EXCEPTIONS, CHANNEL_LEAVES, LEAF_B_AT, LEAF_CHUNK, LEAF_M_AT, TALLY_STRIDE, TALLY_TABLE_BYTES } from "./layout";
-import { dropDepth, evenBit, evenImage, evenResidue, oddImage, qpow, stepImage, stepValue, tally, useTables } from "./tree";
+import { childImage, childResidue, dropDepth, qpow, stepImage, stepValue, tally, useTables } from "./extend";
 
 export const MODE_SURVIVORS: i32 = 0;
 export const MODE_FULL: i32 = 1;
@@ -63,13 +63,10 @@ type Inner = u16;
 
 /** Below a live class: tallies, the drop test, exceptions; survivors mode cuts dropped classes. */
 @inline function live<T, C>(a: u64, b: T, m: i32, j: i32): void {
-  // children: e0 is the extension bit that makes the next value even (the Terras construction)
-  const pm = <T>qpow(m);
-  const e0 = evenBit<T>(b);
-  const aEven = evenResidue<T>(a, e0, j);
-  const aOdd = aEven ^ ((<u64>1) << j);
-  const bEven = evenImage<T>(b, pm, e0);
-  const bOdd = oddImage<T>(b, pm, e0, <T>Q, <T>H);
+  // children: the Terras construction (extend.ts)
+  const qm = <T>qpow(m);
+  const aEven = childResidue<T>(a, b, j, false), aOdd = childResidue<T>(a, b, j, true);
+  const bEven = childImage<T>(b, qm, false, <T>Q, <T>H), bOdd = childImage<T>(b, qm, true, <T>Q, <T>H);
   const jj = j + 1;
   if (jj >= dropDepth(m)) {
     tally(stoppedPtr, jj, m);
@@ -100,12 +97,9 @@ type Inner = u16;
 
 /** Full mode below a dropped class: every vector is still visited, nothing more is tallied. */
 @inline function dropped<T, C>(a: u64, b: T, m: i32, j: i32): void {
-  const pm = <T>qpow(m);
-  const e0 = evenBit<T>(b);
-  const aEven = evenResidue<T>(a, e0, j);
-  const aOdd = aEven ^ ((<u64>1) << j);
-  const bEven = evenImage<T>(b, pm, e0);
-  const bOdd = oddImage<T>(b, pm, e0, <T>Q, <T>H);
+  const qm = <T>qpow(m);
+  const aEven = childResidue<T>(a, b, j, false), aOdd = childResidue<T>(a, b, j, true);
+  const bEven = childImage<T>(b, qm, false, <T>Q, <T>H), bOdd = childImage<T>(b, qm, true, <T>Q, <T>H);
   const jj = j + 1;
   nodes += 2;
   if (sizeof<C>() == 1) {

@@ -21,7 +21,7 @@ import {
   VERIFY_COUNTS,
   VERIFY_REGION_BYTES,
 } from "../layout";
-import { useTables } from "../tree";
+import { useTables } from "../extend";
 import { bitlen, ltU } from "../u128";
 import { HQ, K, KS, NEG, Q, limitBits, maxSteps, qpowPtr, setMap, tight, tightHalf } from "./state";
 

@@ -8,7 +8,7 @@
 // Records are kept as candidates (books.ts).
 
 import { CHANNEL_PATH_RECORDS, VERIFY_COUNT_CHECKED, VERIFY_COUNT_EXCEPTIONS, VERIFY_COUNT_PREIMAGE, VERIFY_COUNT_SIEVED, VERIFY_MAX_STEP_DEPTH } from "../layout";
-import { dropDepth, evenBit, evenImage, evenResidue, oddImage, stepImage, stepValue } from "../tree";
+import { childImage, childResidue, dropDepth, stepImage, stepValue } from "../extend";
 import { bitlen, carry, leU, ltU, mulAdd, rhi, rlo } from "../u128";
 import {
   DONE_CYCLE,
@@ -158,11 +158,10 @@ function below(c: u64, D: i32, N: i32, m: i32, b: u64, ip: i32, mp: i32): u64 {
     const d = D + s; // the node's depth
     const na = unchecked(stA[s]), nb = unchecked(stB[s]), nm = unchecked(stM[s]);
     const qm = load<u64>(qpowPtr + (<usize>nm << 3));
-    const e0 = evenBit<u64>(nb);
-    // st 0: the even child (bit e0), st 1: the odd child
-    const ca = st == 0 ? evenResidue<u64>(na, e0, d) : na | ((<u64>(1 - <i32>e0)) << <u64>d);
+    // st 0: the even child, st 1: the odd child
+    const ca = childResidue<u64>(na, nb, d, st != 0);
     const cm = st == 0 ? nm : nm + 1;
-    const cb = st == 0 ? evenImage<u64>(nb, qm, e0) : oddImage<u64>(nb, qm, e0, Q, HQ);
+    const cb = childImage<u64>(nb, qm, st != 0, Q, HQ);
     const cj = d + 1;
     let cip = unchecked(stIp[s]), cmp = unchecked(stMp[s]);
     if (cj - cip < dropDepth(cm - cmp)) {

@@ -6,7 +6,7 @@
 // Ranged blocks (any [lo, hi)) iterate every n exactly and find its class's cut depth on the way.
 
 import { VERIFY_COUNT_CHECKED, VERIFY_COUNT_EXCEPTIONS, VERIFY_COUNT_SIEVED, VERIFY_MAX_DEPTH, VERIFY_MAX_STEP_DEPTH } from "../layout";
-import { dropDepth } from "../tree";
+import { dropDepth } from "../extend";
 import { bitlen, carry, leU, ltU, rhi, rlo } from "../u128";
 import {
   DONE_CYCLE,

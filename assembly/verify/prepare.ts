@@ -2,7 +2,7 @@
 // of every depth up to KS with their peaks, and the troughs of the deepest (state.ts holds where).
 
 import { VERIFY_MAX_DEPTH, VERIFY_MAX_STEP_DEPTH } from "../layout";
-import { dropDepth, useTables } from "../tree";
+import { dropDepth, useTables } from "../extend";
 import { setMap, step64, stepB, stepM, stepPeak, stepTrough, survA, survB, survM, survPeak } from "./state";
 
 /** The peak (ip, mp) of q^(m_i) / 2^i over i < len along the parities of a (exact comparison). */

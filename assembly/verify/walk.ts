@@ -9,7 +9,7 @@
 // it (from the peak coefficient of its class, q^mp / 2^ip); when the bound could beat the block's
 // largest path so far, n is iterated again in single steps.
 
-import { dropDepth } from "../tree";
+import { dropDepth } from "../extend";
 import { bitlen, carry, ltU, mulAdd, rhi, rlo } from "../u128";
 import {
   DONE_CYCLE,

@@ -1,9 +1,9 @@
-// What every walker shares: the per-m tables the host writes, the tally update, and the Terras
-// construction, one definition each. The node (a mod 2^j, m, b) with T^j(a + 2^j x) = q^m x + b has
-// two children, extending a by the bit e that makes the next value v = b + e q^m even (then the child
-// is (m, v / 2)) or odd (then (m + 1, (q v + r) / 2)). With v odd, (q v + r) / 2 = q (v >> 1) +
-// (q + r) / 2, so no intermediate exceeds the child's b. T is u64 or i64 (the host proves the width);
-// >> is logical or arithmetic accordingly.
+// The class arithmetic every walker shares: the per-m tables the host writes, the tally update, and
+// the Terras construction, one definition each. The node (a mod 2^j, m, b) with T^j(a + 2^j x) =
+// q^m x + b has two children, extending a by the bit e that makes the next value v = b + e q^m even
+// (then the child is (m, v / 2)) or odd (then (m + 1, (q v + r) / 2)): childResidue, childImage. With v
+// odd, (q v + r) / 2 = q (v >> 1) + (q + r) / 2, so no intermediate exceeds the child's b. T is u64
+// or i64 (the host proves the width); >> is logical or arithmetic accordingly.
 import { TABLE_DROP, TABLE_QPOW, TALLY_SHIFT } from "./layout";
 
 let qpowBase: usize = 0;
@@ -31,23 +31,41 @@ export function useTables(tables: usize): void {
   store<u64>(p, load<u64>(p) + 1);
 }
 
+/**
+ * The residue of a child of the node (a mod 2^j, image b): the even child extends a by the bit
+ * e0 = b mod 2, the odd child by 1 - e0 (the even child's residue with bit j flipped).
+ */
+@inline export function childResidue<T>(a: u64, b: T, j: i32, odd: bool): u64 {
+  const even = evenResidue<T>(a, evenBit<T>(b), j);
+  return odd ? even ^ ((<u64>1) << <u64>j) : even;
+}
+
+/**
+ * The image of a child of the node with image b, given qm = q^m and h = (q + r) / 2: the even
+ * child's (b + e0 q^m) / 2, the odd child's q ((b + (1 - e0) q^m) >> 1) + h.
+ */
+@inline export function childImage<T>(b: T, qm: T, odd: bool, q: T, h: T): T {
+  const e0 = evenBit<T>(b);
+  return odd ? oddImage<T>(b, qm, e0, q, h) : evenImage<T>(b, qm, e0);
+}
+
 /** The extension bit of the even child: e0 = b mod 2 (the odd child takes 1 - e0). */
-@inline export function evenBit<T>(b: T): T {
+@inline function evenBit<T>(b: T): T {
   return b & <T>1;
 }
 
 /** The even child's image (b + e0 q^m) / 2, given qm = q^m. */
-@inline export function evenImage<T>(b: T, qm: T, e0: T): T {
+@inline function evenImage<T>(b: T, qm: T, e0: T): T {
   return (b + select<T>(qm, <T>0, e0 != <T>0)) >> 1;
 }
 
 /** The odd child's image q ((b + (1 - e0) q^m) >> 1) + h, with h = (q + r) / 2. */
-@inline export function oddImage<T>(b: T, qm: T, e0: T, q: T, h: T): T {
+@inline function oddImage<T>(b: T, qm: T, e0: T, q: T, h: T): T {
   return q * ((b + select<T>(<T>0, qm, e0 != <T>0)) >> 1) + h;
 }
 
 /** The even child's residue a + e0 2^j; the odd child's is this with bit j flipped. */
-@inline export function evenResidue<T>(a: u64, e0: T, j: i32): u64 {
+@inline function evenResidue<T>(a: u64, e0: T, j: i32): u64 {
   return a | (<u64>e0 << <u64>j);
 }
 
