@@ -80,6 +80,26 @@ function readTableFile(option: string, path: string, kind: string, map: CollatzM
   return { path, sha256: fileSha };
 }
 
+/**
+ * The table files named on the command line (--sieve-table, --step-table), read and checked against
+ * their manifests now; the check of the run's tables against them, for when they are built.
+ */
+function tableFiles(o: VerifyOptions, plan: VerifyPlan): (h: TableHashes) => void {
+  const { map } = plan;
+  const sieveFile =
+    o.sieveTable === undefined ? null : readTableFile("--sieve-table", o.sieveTable, "glidepath class table", map, plan.sieveDepth);
+  const stepFile =
+    o.stepTable === undefined ? null : readTableFile("--step-table", o.stepTable, "glidepath step table", map, plan.stepDepth);
+  if ((sieveFile || stepFile) && plan.engine !== "kernel") throw new UsageError("table files are for the kernel path (n < 2^127)");
+  // the files must hold exactly the tables of this run (equal hashes of equal-length raw files)
+  return (h) => {
+    if (sieveFile && sieveFile.sha256 !== h.sieve.sha256)
+      throw new UsageError(`--sieve-table ${sieveFile.path} is not the depth-${plan.sieveDepth} sieve table of ${map.name}`);
+    if (stepFile && stepFile.sha256 !== h.steps.sha256)
+      throw new UsageError(`--step-table ${stepFile.path} is not the depth-${plan.stepDepth} step table of ${map.name}`);
+  };
+}
+
 /** Records shown in the text report (all of them are in --json and the certificate). */
 const TEXT_RECORDS = 40;
 
@@ -245,11 +265,7 @@ async function verify(o: VerifyOptions): Promise<void> {
     checkCheckpointTarget(checkpointPath, plan.key, out?.path, o.force);
   else if (checkpointPath !== undefined && out && resolve(out.path) === resolve(checkpointPath))
     throw new UsageError("--out and --checkpoint name the same file: give each its own");
-  const sieveFile =
-    o.sieveTable === undefined ? null : readTableFile("--sieve-table", o.sieveTable, "glidepath class table", req.map, plan.sieveDepth);
-  const stepFile =
-    o.stepTable === undefined ? null : readTableFile("--step-table", o.stepTable, "glidepath step table", req.map, plan.stepDepth);
-  if ((sieveFile || stepFile) && plan.engine !== "kernel") throw new UsageError("table files are for the kernel path (n < 2^127)");
+  const checkTables = tableFiles(o, plan);
   const workers = workersOption(o.workers);
   const stamp = await toolStamp();
   const started = new Date().toISOString();
@@ -278,13 +294,7 @@ async function verify(o: VerifyOptions): Promise<void> {
       runVerification(pool, req, sha256, {
         done,
         onProgress,
-        // the files must hold exactly the tables of this run (equal hashes of equal-length raw files)
-        onTables: (h: TableHashes) => {
-          if (sieveFile && sieveFile.sha256 !== h.sieve.sha256)
-            throw new UsageError(`--sieve-table ${sieveFile.path} is not the depth-${plan.sieveDepth} sieve table of ${req.map.name}`);
-          if (stepFile && stepFile.sha256 !== h.steps.sha256)
-            throw new UsageError(`--step-table ${stepFile.path} is not the depth-${plan.stepDepth} step table of ${req.map.name}`);
-        },
+        onTables: checkTables,
         // the checkpoint holds the blocks of the plan they belong to (run.plan: the fallback's, once it falls back)
         onBlock: async (_entry, run) => {
           checkpointed = run.done;

@@ -156,9 +156,7 @@ export function mergeVerify(plan: VerifyPlan, entries: readonly BlockEntry[], se
   glides.add(classes.flatMap((e) => e.glideRecords));
   paths.add(classes.flatMap((e) => e.pathRecords));
   const { checked, exceptions, cycles, entrants, unresolved, handoffs, unreached, preimage } = t;
-  // a skipped leaf could share such a trajectory, so the lists would not be whole: runVerify switches
-  // to the plan without the skip when it meets the first such block (verify.ts); parts of a cluster's
-  // plan cannot, and their merge is refused
+  // lists the skip may have cut short: runVerify falls back in the run (verify.ts), a cluster's merge refuses
   if (plan.preimage && (unresolved > 0n || entrants > 0n))
     throw new UsageError(
       `the run met ${unresolved} unresolved numbers and ${entrants} cycle entrants with the preimage sieve on, which may have skipped more of them: plan it again with --no-preimage (glidepath batch verify ... --no-preimage)`,
