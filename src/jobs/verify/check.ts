@@ -370,8 +370,70 @@ export function sampleLine(chosen: readonly number[], n: number, full: boolean):
     : `${s} of ${n} blocks run again at random${named}: equal to their entries; a single altered block escapes this check with probability ${missed}; --full runs all`;
 }
 
+/** Step 3: the block table against the plan's blocks, each entry's digest and its depth list's length. */
+async function checkBlockTable(plan: VerifyPlan, c: ReadCertificate): Promise<string> {
+  const bad = entryMismatch(plan.blocks, c.entries);
+  if (bad) throw new Differs(`blockTable: ${bad}`);
+  for (const [i, e] of c.entries.entries()) {
+    const d = await digestOf(entryJson(e));
+    if (d !== c.entryDigests[i])
+      throw new Differs(`blockTable[${i}].digest: ${c.entryDigests[i]} in the certificate; the entry gives ${d} (the entry was changed)`);
+    if (e.counts.sievedByDepth.length !== plan.sieveDepth + 1)
+      throw new Differs(
+        `blockTable[${i}].counts.sievedByDepth has ${e.counts.sievedByDepth.length} entries, depths 0 to ${plan.sieveDepth} expected`,
+      );
+  }
+  return `the block table: ${c.entries.length} blocks, the plan's ranges, each entry's digest, each entry's counts adding up to its size`;
+}
+
+/** Steps 6 and 7: the rebuilt tables' hashes, and the sieved counts by depth against the sieve (or the class counter). */
+async function checkTables(plan: VerifyPlan, c: ReadCertificate, data: VerifyTableData | null, counts: VerifyCounts, o: CheckOptions) {
+  if (!data) {
+    expectSame(c.tables, null, "tables", "the BigInt engine (no tables)");
+    return [];
+  }
+  const lines: string[] = [];
+  const hashes = await tableHashes(data, o.sha256);
+  expectSame(c.tables, hashes, "tables", "the rebuilt tables");
+  lines.push(
+    plan.method === "classes"
+      ? `the step table (${hashes.steps.rows} rows) rebuilt: hash and rows equal (a run by classes has no sieve table)`
+      : `the sieve table (${hashes.sieve.rows} rows) and the step table (${hashes.steps.rows} rows) rebuilt: hashes and rows equal`,
+  );
+  if (plan.method === "classes") {
+    classCounts(plan, counts);
+    lines.push(
+      `the counts by depth: within the exact counter's classes cut at each depth (times their members below 2^${plan.sieveDepth}), the rest iterated one by one; the leaves within its depth-${plan.sieveDepth} survivors`,
+    );
+  } else {
+    const sieved = sievedInRange(plan.map, plan.sieveDepth, plan.from, plan.to, data.exceptions);
+    expectSame(counts.sievedByDepth, sieved, "counts.sievedByDepth", `the depth-${plan.sieveDepth} sieve restricted to the range`);
+    lines.push(`the sieved counts by depth: equal to the depth-${plan.sieveDepth} sieve restricted to the range, less its exceptions`);
+  }
+  return lines;
+}
+
+/** Step 9: `--sample N` blocks chosen at random (all with --full) run again and compared with their entries. */
+async function rerunSample(plan: VerifyPlan, c: ReadCertificate, data: VerifyTableData | null, o: CheckOptions): Promise<string> {
+  const n = plan.blocks.length;
+  const pick = new Set<number>();
+  if (o.full) for (let i = 0; i < n; i++) pick.add(i);
+  else while (pick.size < Math.min(o.sample, n)) pick.add(o.randomBelow(n));
+  const chosen = [...pick].sort((u, v) => u - v);
+  if (chosen.length > 0) {
+    const rerun = await runBlocks(
+      o.pool,
+      plan,
+      data,
+      chosen.map((i) => plan.blocks[i]!),
+    );
+    for (const e of rerun) expectSame(entryJson(c.entries[e.index]!), entryJson(e), `blockTable[${e.index}]`, "running the block again");
+  }
+  return sampleLine(chosen, n, o.full === true);
+}
+
 /**
- * Checks a certificate read by readCertificate.
+ * Checks a certificate read by readCertificate, step by step (README: what `verify --check` proves).
  * @example const report = await checkCertificate(readCertificate(text), { pool, sha256, sample: 8, randomBelow });
  */
 export async function checkCertificate(c: ReadCertificate, o: CheckOptions): Promise<CheckReport> {
@@ -392,23 +454,9 @@ export async function checkCertificate(c: ReadCertificate, o: CheckOptions): Pro
     checked.push(
       "the parameters (map, range, depths, step cap, blocks, method, preimage skip, engine): those of the plan re-made from them",
     );
-    const bad = entryMismatch(plan.blocks, c.entries);
-    if (bad) throw new Differs(`blockTable: ${bad}`);
-    for (const [i, e] of c.entries.entries()) {
-      const d = await digestOf(entryJson(e));
-      if (d !== c.entryDigests[i])
-        throw new Differs(`blockTable[${i}].digest: ${c.entryDigests[i]} in the certificate; the entry gives ${d} (the entry was changed)`);
-      if (e.counts.sievedByDepth.length !== plan.sieveDepth + 1)
-        throw new Differs(
-          `blockTable[${i}].counts.sievedByDepth has ${e.counts.sievedByDepth.length} entries, depths 0 to ${plan.sieveDepth} expected`,
-        );
-    }
-    checked.push(
-      `the block table: ${c.entries.length} blocks, the plan's ranges, each entry's digest, each entry's counts adding up to its size`,
-    );
+    checked.push(await checkBlockTable(plan, c));
     const merged = mergeVerify(plan, c.entries, 0);
-    const derived = verifyFindings(merged);
-    for (const [key, value] of Object.entries(derived))
+    for (const [key, value] of Object.entries(verifyFindings(merged)))
       expectSame((c.findings as Record<string, unknown>)[key], value, key, "the block table");
     checked.push(
       "counts, sieved counts by depth, maxima, glide and path records, cycle members and entrants, unresolved numbers, delays: each re-derived from the block table",
@@ -421,32 +469,7 @@ export async function checkCertificate(c: ReadCertificate, o: CheckOptions): Pro
         (plan.preimage ? "" : "no preimage skip (the plan has none); ") +
         "the sieved counts by depth of each aligned block from the exact counter",
     );
-    if (data) {
-      const hashes = await tableHashes(data, o.sha256);
-      expectSame(c.tables, hashes, "tables", "the rebuilt tables");
-      checked.push(
-        plan.method === "classes"
-          ? `the step table (${hashes.steps.rows} rows) rebuilt: hash and rows equal (a run by classes has no sieve table)`
-          : `the sieve table (${hashes.sieve.rows} rows) and the step table (${hashes.steps.rows} rows) rebuilt: hashes and rows equal`,
-      );
-      if (plan.method === "classes") {
-        classCounts(plan, merged.counts);
-        checked.push(
-          `the counts by depth: within the exact counter's classes cut at each depth (times their members below 2^${plan.sieveDepth}), the rest iterated one by one; the leaves within its depth-${plan.sieveDepth} survivors`,
-        );
-      } else {
-        const sieved = sievedInRange(plan.map, plan.sieveDepth, plan.from, plan.to, data.exceptions);
-        expectSame(
-          merged.counts.sievedByDepth,
-          sieved,
-          "counts.sievedByDepth",
-          `the depth-${plan.sieveDepth} sieve restricted to the range`,
-        );
-        checked.push(
-          `the sieved counts by depth: equal to the depth-${plan.sieveDepth} sieve restricted to the range, less its exceptions`,
-        );
-      }
-    } else expectSame(c.tables, null, "tables", "the BigInt engine (no tables)");
+    checked.push(...(await checkTables(plan, c, data, merged.counts, o)));
     // (the certificate's own lists are those of the block table, re-derived above: each n is placed in its block below)
     const seen = new Set<string>();
     let listed = 0;
@@ -455,21 +478,7 @@ export async function checkCertificate(c: ReadCertificate, o: CheckOptions): Pro
     checked.push(
       `${listed} listed numbers (the records, cycle members and entrants, unresolved numbers and delays of the certificate and of each block) iterated again in BigInt: they agree`,
     );
-    const n = plan.blocks.length;
-    const pick = new Set<number>();
-    if (o.full) for (let i = 0; i < n; i++) pick.add(i);
-    else while (pick.size < Math.min(o.sample, n)) pick.add(o.randomBelow(n));
-    const chosen = [...pick].sort((u, v) => u - v);
-    if (chosen.length > 0) {
-      const rerun = await runBlocks(
-        o.pool,
-        plan,
-        data,
-        chosen.map((i) => plan.blocks[i]!),
-      );
-      for (const e of rerun) expectSame(entryJson(c.entries[e.index]!), entryJson(e), `blockTable[${e.index}]`, "running the block again");
-    }
-    checked.push(sampleLine(chosen, n, o.full === true));
+    checked.push(await rerunSample(plan, c, data, o));
     return { checked, failure: null };
   } catch (e) {
     if (e instanceof Differs) return { checked, failure: e.message };
