@@ -87,6 +87,60 @@ describe.skipIf(!hasChromium)("the Verify view: verdict, phases, depth, refused 
     await above.close();
   });
 
+  it("a run from 1 states the least length of any other cycle, in the Verify view and then in the Cycles view", async () => {
+    // the least m (odd elements) and l (steps of T) of a cycle of 3x+1 with every element >= X: the first m
+    // with 2^l > 3^m and 2^l X^m <= (3X + 1)^m for l the least power of 2 above 3^m, searched here in BigInt
+    // (the inequality of a cycle's product: 2^l = prod (3 + 1/x_i) over its odd elements; common practice)
+    const X = 1n << 12n;
+    let three = 1n;
+    let top = 1n;
+    let xm = 1n;
+    let least: { m: number; l: number } | null = null;
+    for (let m = 1; m <= 20_000 && least === null; m++) {
+      three *= 3n;
+      top *= 3n * X + 1n;
+      xm *= X;
+      const l = three.toString(2).length; // 2^l > 3^m (3^m is no power of 2)
+      if ((1n << BigInt(l)) * xm <= top) least = { m, l };
+    }
+    expect(least).not.toBeNull();
+    const { m, l } = least!;
+    const page = await open("?view=verify&vmap=3x%2B1&from=1&to=2%5E12&run=1");
+    await summaryOf(page);
+    const line = await text(page, "#verify-cycle-bound");
+    expect(line).toContain(`every n below X = `);
+    expect(line).toContain(
+      `any other cycle (the cycle of 1 aside), one with all its elements >= X, has at least ${grouped(m)} odd elements and ${grouped(l)} elements`,
+    );
+    // the Cycles view of the same page states it for the map's verified range, and nothing for a map not verified
+    await page.click("#tab-cycles");
+    await page.fill("#cycles-map", "3x+1");
+    await page.fill("#cycles-period", "12");
+    await page.click("#cycles-go");
+    await page.waitForFunction(
+      () => /integer cycles of 3x\+1/.test(document.getElementById("cycles-message")?.textContent ?? ""),
+      undefined,
+      {
+        timeout: 60_000,
+      },
+    );
+    const said = `${await text(page, "#cycles-status")} ${await text(page, "#cycles-message")}`;
+    expect(said).toContain(`With [1, 4,096) verified in the Verify view: every n below X = `);
+    expect(said).toContain(`has at least ${grouped(m)} odd elements and ${grouped(l)} elements`);
+    await page.fill("#cycles-map", "3x+5");
+    await page.click("#cycles-go");
+    await page.waitForFunction(
+      () =>
+        /integer cycles of 3x\+5/.test(
+          `${document.getElementById("cycles-status")?.textContent} ${document.getElementById("cycles-message")?.textContent}`,
+        ),
+      undefined,
+      { timeout: 60_000 },
+    );
+    expect(`${await text(page, "#cycles-status")} ${await text(page, "#cycles-message")}`).not.toContain("verified in the Verify view");
+    await page.close();
+  });
+
   it("the whole claim when nothing is left: 3x+1 from 1 to 2^20 reaches the cycle of 1", async () => {
     // 3x+1 has no n below 2^20 that fails to go below itself but 1, on 1 -> 2 -> 1 (published verification runs)
     const page = await open("?view=verify&vmap=3x%2B1&from=1&to=2%5E20&run=1");

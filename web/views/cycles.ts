@@ -7,7 +7,9 @@ import { RunController } from "../controller.js";
 import { $, download, fieldError, parseField, ResultsPanel } from "../dom.js";
 import { cyclesCsv } from "../../src/outputs/summary.js";
 import { pagePoolPending, withPagePool } from "../engine.js";
-import { parseCount, parseWhole } from "../../src/core/parse.js";
+import { parseCount } from "../../src/core/parse.js";
+import { group } from "../../src/outputs/format.js";
+import { verifiedLimit } from "../verified.js";
 import { cycleBound } from "../../src/core/cyclebound.js";
 import { positiveCycles } from "../../src/jobs/cyclebound.js";
 import { cycleBoundLine } from "../../src/outputs/cyclebound.js";
@@ -40,22 +42,15 @@ function readCyclesForm(mapText: string, periodText: string): { map: CollatzMap;
 }
 
 /**
- * What the Verify view's range proves about cycle lengths, when it starts at 1 for this map: the least
- * length of a cycle with every element >= X (src/core/cyclebound.ts), the cycles found below X aside.
+ * What the Verify view's last run from 1 of this map proves about cycle lengths: the least length of
+ * a cycle with every element >= X (src/core/cyclebound.ts), the cycles found below X aside; "" when
+ * this page has verified no range from 1 of the map.
  */
 function boundLine(r: CycleSearchResult): string {
-  const vmap = (document.getElementById("verify-map") as HTMLInputElement | null)?.value ?? "";
-  const from = (document.getElementById("verify-from") as HTMLInputElement | null)?.value ?? "";
-  const to = (document.getElementById("verify-to") as HTMLInputElement | null)?.value ?? "";
-  try {
-    if (parseMap(vmap).name !== r.map.name || parseWhole("from", from) !== 1n) return "";
-    const X = parseWhole("to", to);
-    if (X < 2n) return "";
-    const below = positiveCycles(r).filter((c) => c.min < X);
-    return ` If the Verify view's range [1, ${to}) is verified: ${cycleBoundLine(cycleBound(r.map, X), below)}.`;
-  } catch {
-    return "";
-  }
+  const v = verifiedLimit(r.map.name);
+  if (v === null || v.X < 2n) return "";
+  const below = positiveCycles(r).filter((c) => c.min < v.X);
+  return ` With [1, ${group(v.to)}) verified in the Verify view: ${cycleBoundLine(cycleBound(r.map, v.X), below)}.`;
 }
 
 function renderCycles(r: CycleSearchResult): void {

@@ -20,6 +20,7 @@ import { toExactJson } from "../../src/core/json.js";
 import pkg from "../../package.json";
 import { RunController } from "../controller.js";
 import { $, download, fieldError, parseField, ResultsPanel } from "../dom.js";
+import { noteVerified } from "../verified.js";
 import { kernelBuildId, pagePoolPending, sha256, withPagePool } from "../engine.js";
 
 const panel = new ResultsPanel("verify-result", "verify-stale", "verify-form");
@@ -191,6 +192,7 @@ function renderClaim(r: VerifyResult): void {
 function render(r: VerifyResult): void {
   const c = r.counts;
   panel.shown(`${r.map.name}, [${r.from}, ${r.to})`);
+  noteVerified(r);
   renderClaim(r);
   const counts: [string, string][] = [
     ["numbers in the range", group(c.numbers)],
