@@ -146,3 +146,34 @@ export function expectAgrees(r: VerifyResult, b: ReturnType<typeof bruteVerify>)
   expect(c.cycleMembers).toBe(BigInt(b.cycles.length));
   expect(c.unresolved).toBe(BigInt(b.unresolved.length));
 }
+
+/** What n's trajectory does first, iterated in BigInt: goes below n, returns to n, enters a cycle of larger numbers, or none of these. */
+export type StartKind =
+  | { kind: "descent"; below: bigint }
+  | { kind: "member"; period: number }
+  | { kind: "entrant"; min: bigint }
+  | { kind: "unresolved" };
+
+/**
+ * n of qx+r iterated in BigInt up to maxSteps: its first value below n, a return to n, or (past the cap)
+ * a cycle entered above n (a value seen twice within 20,000 more steps, values below 2^64), or none.
+ */
+export function classifyStart(q: bigint, r: bigint, n: bigint, maxSteps: number): StartKind {
+  const T = (v: bigint) => ((v & 1n) === 1n ? (q * v + r) / 2n : v / 2n);
+  let v = n;
+  for (let s = 1; s <= maxSteps; s++) {
+    v = T(v);
+    if (v < n) return { kind: "descent", below: v };
+    if (v === n) return { kind: "member", period: s };
+  }
+  const seen = new Set<bigint>();
+  for (let s = 0; s < 20_000 && v < 1n << 64n; s++, v = T(v)) {
+    if (seen.has(v)) {
+      let min = v;
+      for (let w = T(v); w !== v; w = T(w)) if (w < min) min = w;
+      return { kind: "entrant", min };
+    }
+    seen.add(v);
+  }
+  return { kind: "unresolved" };
+}

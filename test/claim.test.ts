@@ -1,5 +1,7 @@
 // The claim a verification run states (src/jobs/verify/claim.ts) against a plain BigInt brute force
 // written here: every n of a small range iterated, and "proved" decided by the induction itself.
+import { classifyStart } from "./brute.js";
+import type { StartKind } from "./brute.js";
 import { describe, expect, it } from "vitest";
 import { parseMap } from "../src/core/map.js";
 import type { CollatzMap } from "../src/core/map.js";
@@ -25,33 +27,8 @@ function run(map: CollatzMap, from: bigint, to: bigint): VerifyResult {
   );
 }
 
-type Kind =
-  | { kind: "descent"; below: bigint }
-  | { kind: "member"; period: number }
-  | { kind: "entrant"; min: bigint }
-  | { kind: "unresolved" };
-
-/** n iterated here in BigInt: the first value below n, a return to n, or a cycle entered above n. */
-function classify(q: bigint, r: bigint, n: bigint): Kind {
-  const T = (v: bigint) => ((v & 1n) === 1n ? (q * v + r) / 2n : v / 2n);
-  let v = n;
-  for (let s = 1; s <= MAX_STEPS; s++) {
-    v = T(v);
-    if (v < n) return { kind: "descent", below: v };
-    if (v === n) return { kind: "member", period: s };
-  }
-  // past the cap: a value seen twice (within 20,000 more steps, values below 2^64) shows the cycle it enters
-  const seen = new Set<bigint>();
-  for (let s = 0; s < 20_000 && v < 1n << 64n; s++, v = T(v)) {
-    if (seen.has(v)) {
-      let min = v;
-      for (let w = T(v); w !== v; w = T(w)) if (w < min) min = w;
-      return { kind: "entrant", min };
-    }
-    seen.add(v);
-  }
-  return { kind: "unresolved" };
-}
+type Kind = StartKind;
+const classify = (q: bigint, r: bigint, n: bigint): Kind => classifyStart(q, r, n, MAX_STEPS);
 
 /** The brute force's verdict: each n's kind and whether the induction proves it (n below from assumed proved). */
 function brute(map: CollatzMap, from: bigint, to: bigint) {

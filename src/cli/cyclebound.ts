@@ -1,6 +1,5 @@
 // glidepath cycle-bound: what a verification of [1, X) proves about the length of any other cycle.
-import { createHash, randomInt } from "node:crypto";
-import { readFileSync } from "node:fs";
+import { randomInt } from "node:crypto";
 import type { Command } from "commander";
 import { UsageError } from "../core/errors.js";
 import { toExactJson } from "../core/json.js";
@@ -13,7 +12,7 @@ import { readCertificate } from "../jobs/verify/certificate.js";
 import { checkCertificate } from "../jobs/verify/check.js";
 import { cycleBoundJson, cycleBoundText } from "../outputs/cyclebound.js";
 import { withPool } from "../node/kernel.js";
-import { intOption, jobCommand, mapOption, workersOption } from "./options.js";
+import { intOption, jobCommand, mapOption, readText, sha256, workersOption } from "./options.js";
 import type { RawOptions } from "./options.js";
 import { print } from "./print.js";
 
@@ -55,18 +54,6 @@ Examples:
   glidepath cycle-bound --certificate cert.json`,
     )
     .action((o: CycleBoundOptions) => cycleBound(o));
-}
-
-/** sha256 (hex) with Node's crypto. */
-const sha256 = (bytes: Uint8Array) => createHash("sha256").update(bytes).digest("hex");
-
-function readText(path: string): string {
-  try {
-    return readFileSync(path, "utf8");
-  } catch (e) {
-    const code = (e as NodeJS.ErrnoException).code;
-    throw new UsageError(`cannot read ${path}: ${code === "EISDIR" ? "it is a folder" : (code ?? String(e))}`);
-  }
 }
 
 async function cycleBound(o: CycleBoundOptions): Promise<void> {

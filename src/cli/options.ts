@@ -1,7 +1,8 @@
 // Option values for every command: text turned into validated values once, at the edge.
 // Commander (src/cli/main.ts) reads the words; these functions decide what they mean.
 import type { Command } from "commander";
-import { statSync } from "node:fs";
+import { createHash } from "node:crypto";
+import { readFileSync, statSync } from "node:fs";
 import { availableParallelism } from "node:os";
 import { dirname } from "node:path";
 import { UsageError } from "../core/errors.js";
@@ -121,4 +122,20 @@ export function jobCommand(
   if (shared.workers !== false) cmd.option("--workers <N>", "worker threads (default: the available cores)");
   if (shared.json !== false) cmd.option("--json", "print JSON (exact integers)");
   return cmd;
+}
+
+/** sha256 (hex) with Node's crypto. */
+export const sha256 = (bytes: Uint8Array) => createHash("sha256").update(bytes).digest("hex");
+
+/**
+ * A file named on the command line, as text; one clear line when it cannot be read.
+ * @example readText("cert.json")
+ */
+export function readText(path: string): string {
+  try {
+    return readFileSync(path, "utf8");
+  } catch (e) {
+    const code = (e as NodeJS.ErrnoException).code;
+    throw new UsageError(`cannot read ${path}: ${code === "EISDIR" ? "it is a folder" : (code ?? String(e))}`);
+  }
 }

@@ -1,6 +1,6 @@
 // glidepath verify: a convergence-verification run over [FROM, TO) on the kernel pool, with its
 // record lists, a certificate (--out), checkpoints (--checkpoint, --resume) and --check.
-import { createHash, randomInt } from "node:crypto";
+import { randomInt } from "node:crypto";
 import { existsSync, readFileSync } from "node:fs";
 import { resolve } from "node:path";
 import type { Command } from "commander";
@@ -30,7 +30,7 @@ import { group, plural } from "../outputs/format.js";
 import { parseExactJson, toExactJson } from "../core/json.js";
 import { removeStaleTemporaries, writeFileAtomic } from "../node/files.js";
 import { toolStamp, withPool } from "../node/kernel.js";
-import { checkWritableTarget, intOption, jobCommand, mapOption, outputOption, workersOption } from "./options.js";
+import { checkWritableTarget, intOption, jobCommand, mapOption, outputOption, readText, sha256, workersOption } from "./options.js";
 import type { RawOptions } from "./options.js";
 import { print, setInterruptNote } from "./print.js";
 
@@ -183,22 +183,10 @@ function request(o: VerifyOptions, map: CollatzMap): VerifyRequest {
   };
 }
 
-/** sha256 (hex) with Node's crypto. */
-const sha256 = (bytes: Uint8Array) => createHash("sha256").update(bytes).digest("hex");
-
 /** JSON text, with every integer as a string when asked (jq and JSON.parse read numbers as doubles). */
 function jsonText(value: unknown, strings: boolean | undefined): string {
   if (!strings) return toExactJson(value);
   return JSON.stringify(value, (_k, v: unknown) => (typeof v === "bigint" || typeof v === "number" ? String(v) : v));
-}
-
-function readText(path: string): string {
-  try {
-    return readFileSync(path, "utf8");
-  } catch (e) {
-    const code = (e as NodeJS.ErrnoException).code;
-    throw new UsageError(`cannot read ${path}: ${code === "EISDIR" ? "it is a folder" : (code ?? String(e))}`);
-  }
 }
 
 /**

@@ -1,6 +1,8 @@
 // The Verify view as a user reads it, in Debian's Chromium: a verdict that follows from the counts
-// (against a BigInt brute force written here), the phase of a run shown while the main thread stays
+// (against the BigInt brute force of test/brute.ts), the phase of a run shown while the main thread stays
 // free, a sieve depth suited to the range, a refused link value beside its field, and one time.
+import { classifyStart } from "../brute.js";
+import type { StartKind } from "../brute.js";
 import { describe, expect, it } from "vitest";
 import type { Page } from "playwright-core";
 import { parseExactJson } from "../../src/core/json.js";
@@ -13,31 +15,8 @@ const text = async (page: Page, sel: string) => ((await page.textContent(sel)) ?
 const grouped = (n: bigint | number) => n.toLocaleString("en-US");
 const bitLength = (n: number) => n.toString(2).length;
 
-type Kind = { kind: "descent"; below: bigint } | { kind: "member" } | { kind: "entrant"; min: bigint } | { kind: "unresolved" };
-
-/**
- * n of qx+r iterated here in BigInt with the page's step cap: its first value below n, a return to
- * n, a cycle entered above n (a value seen twice within 20,000 more steps below 2^64), or none.
- */
-function classify(q: bigint, r: bigint, n: bigint): Kind {
-  const T = (v: bigint) => ((v & 1n) === 1n ? (q * v + r) / 2n : v / 2n);
-  let v = n;
-  for (let s = 1; s <= DEFAULT_MAX_STEPS; s++) {
-    v = T(v);
-    if (v < n) return { kind: "descent", below: v };
-    if (v === n) return { kind: "member" };
-  }
-  const seen = new Set<bigint>();
-  for (let s = 0; s < 20_000 && v < 1n << 64n; s++, v = T(v)) {
-    if (seen.has(v)) {
-      let min = v;
-      for (let w = T(v); w !== v; w = T(w)) if (w < min) min = w;
-      return { kind: "entrant", min };
-    }
-    seen.add(v);
-  }
-  return { kind: "unresolved" };
-}
+type Kind = StartKind;
+const classify = (q: bigint, r: bigint, n: bigint): Kind => classifyStart(q, r, n, DEFAULT_MAX_STEPS);
 
 /** The brute force's verdict on [from, to): u, the first n the induction does not prove (numbers below from assumed), and the lists. */
 function brute(q: bigint, r: bigint, from: bigint, to: bigint) {
