@@ -21,7 +21,7 @@
 import { flush } from "./buffers";
 import {
   CENSUS_BATCH, CENSUS_BATCH_AT, CENSUS_COUNT_DIFFER, CENSUS_COUNT_EARLY, CENSUS_COUNT_NONPOSITIVE, CENSUS_COUNT_SLOW, CENSUS_BIN_OFFSET, CENSUS_BINS_AT, CENSUS_COUNTS_AT, CENSUS_EXCEPTIONS_AT, CENSUS_RATIO_AT, CENSUS_REACH_AT, CENSUS_REGION_BYTES, CENSUS_SEED_AT,
-  CENSUS_TALLY_BYTES, CHANNEL_AMBIGUOUS, CHANNEL_CHUNK, CHANNEL_DIFFER, CHANNEL_EXCEPTIONS, CHANNEL_RATIO, CHANNEL_VECTORS, TABLE_BINMIN, TALLY_TABLE_BYTES,
+  CENSUS_TALLY_BYTES, CHANNEL_AMBIGUOUS, CHANNEL_CHUNK, CHANNEL_DIFFER, CHANNEL_EXCEPTIONS, CHANNEL_RATIO, CHANNEL_VECTORS, MAX_DEPTH, TABLE_BINMIN, TABLE_ENTRIES, TALLY_TABLE_BYTES,
 } from "./layout";
 import { childImage, childResidue, dropDepth, qpow, stepImage, stepValue, tally, useTables } from "./extend";
 
@@ -108,7 +108,7 @@ function raiseBest(r: f64): void {
  */
 @inline function barren(a: u64, m: i32, j: i32, early: u64, excMax: i64): bool {
   const top = m + K - j;
-  return top < ratioMinM && a >= early && <i64>a > excMax && a > load<u64>(reachPtr + (<usize>((m << 6) + top) << 3)) && !emitVectors;
+  return top < ratioMinM && a >= early && <i64>a > excMax && a > load<u64>(reachPtr + (<usize>(m * TABLE_ENTRIES + top) << 3)) && !emitVectors;
 }
 
 /** The extremes of the class a mod 2^j within [1, 2^K): a itself, and a + 2^j (2^(K-j) - 1). */
@@ -301,7 +301,7 @@ export function census(
   q: u32, r: i32, depth: i32, prefixBits: i32, prefix: u64,
   tables: usize, tallies: usize, scratch: usize, vectors: i32,
 ): u64 {
-  assert(depth >= 1 && depth <= 63 && prefixBits >= 0 && prefixBits <= depth);
+  assert(depth >= 1 && depth <= MAX_DEPTH && prefixBits >= 0 && prefixBits <= depth);
   assert((prefix >> <u64>prefixBits) == 0);
   K = depth;
   Q = <u64>q;

@@ -6,7 +6,7 @@
 // Two widths: u64/i64 (host-proven as for enumerate) and signed 128-bit (u128.ts).
 
 import { flush } from "./buffers";
-import { CHANNEL_CHUNK, CHANNEL_CYCLES, CYCLE_QPOW_HIGH } from "./layout";
+import { CHANNEL_CHUNK, CHANNEL_CYCLES, CYCLE_DIVISOR_WORDS, CYCLE_QPOW_HIGH, MAX_DEPTH, TALLY_SHIFT } from "./layout";
 import { childImage, childResidue, stepImage, stepValue } from "./extend";
 import { rlo, rhi, add, shr1, mul, leU } from "./u128";
 
@@ -21,7 +21,7 @@ let candN: i32 = 0;
 let nodes: u64 = 0;
 
 @inline function dEntry(j: i32, m: i32): usize {
-  return dtab + (<usize>((j << 6) + m) << 5);
+  return dtab + <usize>((j << TALLY_SHIFT) + m) * <usize>(CYCLE_DIVISOR_WORDS << 3);
 }
 
 function pushCandidate(a: u64, blo: u64, bhi: u64, j: i32, m: i32): void {
@@ -157,7 +157,7 @@ export function cycleSearch(
   q: u32, r: i32, depth: i32, wide: i32, prefixBits: i32, prefix: u64,
   tables: usize, dTable: usize, candidates: usize, walkTallies: i32,
 ): u64 {
-  assert(depth >= 1 && depth <= 63 && prefixBits >= 0 && prefixBits <= depth);
+  assert(depth >= 1 && depth <= MAX_DEPTH && prefixBits >= 0 && prefixBits <= depth);
   assert((prefix >> <u64>prefixBits) == 0);
   K = depth;
   Q = <u64>q;

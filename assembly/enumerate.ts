@@ -10,7 +10,7 @@
 // The drop test q^m < 2^j is exact: the host passes bitlen(q^m) per m, and q^m < 2^j iff j >= bitlen(q^m).
 
 import { flush } from "./buffers";
-import { CHANNEL_CHUNK, CHANNEL_EXCEPTIONS, CHANNEL_LEAVES, LEAF_B_AT, LEAF_CHUNK, LEAF_M_AT, TALLY_STRIDE, TALLY_TABLE_BYTES } from "./layout";
+import { CHANNEL_CHUNK, CHANNEL_EXCEPTIONS, CHANNEL_LEAVES, LEAF_B_AT, LEAF_CHUNK, LEAF_M_AT, MAX_DEPTH, TALLY_STRIDE, TALLY_TABLE_BYTES } from "./layout";
 import { childImage, childResidue, dropDepth, qpow, stepImage, stepValue, tally, useTables } from "./extend";
 
 export const MODE_SURVIVORS: i32 = 0;
@@ -186,7 +186,7 @@ export function enumerate(
   exceptions: usize,
   walkTallies: i32,
 ): u64 {
-  assert(depth >= 0 && depth <= 63 && prefixBits >= 0 && prefixBits <= depth);
+  assert(depth >= 0 && depth <= MAX_DEPTH && prefixBits >= 0 && prefixBits <= depth);
   assert((prefix >> <u64>prefixBits) == 0);
   K = depth;
   full = mode == MODE_FULL;

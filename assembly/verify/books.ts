@@ -15,10 +15,11 @@ import {
   CHANNEL_HANDOFFS,
   CHANNEL_PATH_RECORDS,
   CHANNEL_UNRESOLVED,
+  VERIFY_CHANNELS,
+  VERIFY_COUNTS,
   VERIFY_COUNT_CYCLES,
   VERIFY_COUNT_HANDOFFS,
   VERIFY_COUNT_UNRESOLVED,
-  VERIFY_COUNTS,
   VERIFY_REGION_BYTES,
 } from "../layout";
 import { useTables } from "../extend";
@@ -32,7 +33,7 @@ export const DONE_HANDOFF: i32 = 3;
 
 export let countsPtr: usize = 0;
 let regions: usize = 0; // one region per channel 7..11
-const chanN = new StaticArray<i32>(5);
+const chanN = new StaticArray<i32>(VERIFY_CHANNELS);
 // the largest values so far in the block (glide in standard steps; path as u128)
 export let bestGlide: i32 = -1;
 export let bestPathLo: u64 = 0;
@@ -181,7 +182,7 @@ export function begin(q: u32, r: i32, depth: i32, stepDepth: i32, steps: i32, li
   countsPtr = counts;
   memory.fill(counts, 0, VERIFY_COUNTS * 8);
   regions = scratch;
-  for (let s = 0; s < 5; s++) unchecked((chanN[s] = 0));
+  for (let s = 0; s < VERIFY_CHANNELS; s++) unchecked((chanN[s] = 0));
   bestGlide = -1;
   bestPathLo = 0;
   bestPathHi = 0;
@@ -191,7 +192,7 @@ export function begin(q: u32, r: i32, depth: i32, stepDepth: i32, steps: i32, li
 
 /** A block's end: the channels' last chunks to the host. */
 export function end(): void {
-  for (let s = 0; s < 5; s++) {
+  for (let s = 0; s < VERIFY_CHANNELS; s++) {
     const n = unchecked(chanN[s]);
     if (n > 0) flush(s + CHANNEL_GLIDE_RECORDS, n);
     unchecked((chanN[s] = 0));

@@ -7,7 +7,15 @@
 // with a smaller number u whose trajectory reaches n (a preimage chain, preimage.ts) is skipped.
 // Records are kept as candidates (books.ts).
 
-import { CHANNEL_PATH_RECORDS, VERIFY_COUNT_CHECKED, VERIFY_COUNT_EXCEPTIONS, VERIFY_COUNT_PREIMAGE, VERIFY_COUNT_SIEVED, VERIFY_MAX_STEP_DEPTH } from "../layout";
+import {
+  CHANNEL_PATH_RECORDS,
+  VERIFY_COUNT_CHECKED,
+  VERIFY_COUNT_EXCEPTIONS,
+  VERIFY_COUNT_PREIMAGE,
+  VERIFY_COUNT_SIEVED,
+  VERIFY_MAX_CLASS_DEPTH,
+  VERIFY_MAX_STEP_DEPTH,
+} from "../layout";
 import { childImage, childResidue, dropDepth, stepImage, stepValue } from "../extend";
 import { bitlen, carry, leU, ltU, mulAdd, rhi, rlo } from "../u128";
 import {
@@ -43,13 +51,14 @@ import { descend, exact } from "./walk";
 let classSlack: usize = 0; // u64 r (q/2)^j rounded up, j = 0..N
 let nTop: i32 = 0; // N
 let usePreimage: bool = false;
-// the DFS stack: per depth, a node (a, m, b, peak ip, mp) and which children are done
-const stA = new StaticArray<u64>(72);
-const stB = new StaticArray<u64>(72);
-const stM = new StaticArray<i32>(72);
-const stIp = new StaticArray<i32>(72);
-const stMp = new StaticArray<i32>(72);
-const stState = new StaticArray<i32>(72);
+// the DFS stack: per depth, a node (a, m, b, peak ip, mp) and which children are done; level s holds
+// depth D + s < N <= VERIFY_MAX_CLASS_DEPTH
+const stA = new StaticArray<u64>(VERIFY_MAX_CLASS_DEPTH);
+const stB = new StaticArray<u64>(VERIFY_MAX_CLASS_DEPTH);
+const stM = new StaticArray<i32>(VERIFY_MAX_CLASS_DEPTH);
+const stIp = new StaticArray<i32>(VERIFY_MAX_CLASS_DEPTH);
+const stMp = new StaticArray<i32>(VERIFY_MAX_CLASS_DEPTH);
+const stState = new StaticArray<i32>(VERIFY_MAX_CLASS_DEPTH);
 
 /**
  * The members n = a + 2^D x (x < 2^(N - D), n >= 1) of a class whose coefficient first dropped at
@@ -221,7 +230,7 @@ export function verifyClasses(
   q: u32, r: i32, N: i32, D: i32, first: u64, last: u64, from: u64, preimage: i32, stepDepth: i32, steps: i32, limit: i32,
   tables: usize, lb: usize, cslack: usize, slacks: usize, glideMin: usize, cap: i32, counts: usize, scratch: usize,
 ): u64 {
-  assert(r > 0 && N >= 1 && N <= 62 && D >= 0 && D <= N && first <= last && from >= 1 && from < (<u64>1) << <u64>N && stepDepth >= 1 && stepDepth <= VERIFY_MAX_STEP_DEPTH && cap >= 1);
+  assert(r > 0 && N >= 1 && N <= VERIFY_MAX_CLASS_DEPTH && D >= 0 && D <= N && first <= last && from >= 1 && from < (<u64>1) << <u64>N && stepDepth >= 1 && stepDepth <= VERIFY_MAX_STEP_DEPTH && cap >= 1);
   begin(q, r, N, stepDepth, steps, limit, tables, counts, scratch);
   slackPtr = slacks;
   lbPtr = lb;

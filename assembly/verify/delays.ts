@@ -8,6 +8,7 @@ import {
   VERIFY_COUNT_CHECKED,
   VERIFY_COUNT_HANDOFFS,
   VERIFY_COUNT_UNRESOLVED,
+  VERIFY_LIMIT_BITS,
   VERIFY_MAX_STEP_DEPTH,
 } from "../layout";
 import { bitlen, carry, leU, rhi, rlo } from "../u128";
@@ -27,7 +28,7 @@ export function verifyDelays(
   q: u32, r: i32, stepDepth: i32, steps: i32, limit: i32, tables: usize, firstL: u64, firstH: u64, lastL: u64, lastH: u64,
   counts: usize, scratch: usize,
 ): u64 {
-  assert(r != 0 && stepDepth >= 1 && stepDepth <= VERIFY_MAX_STEP_DEPTH && (firstL | firstH) != 0 && leU(firstL, firstH, lastL, lastH) && limit >= 1 && limit <= 128);
+  assert(r != 0 && stepDepth >= 1 && stepDepth <= VERIFY_MAX_STEP_DEPTH && (firstL | firstH) != 0 && leU(firstL, firstH, lastL, lastH) && limit >= 1 && limit <= VERIFY_LIMIT_BITS);
   begin(q, r, 1, stepDepth, steps, limit, tables, counts, scratch);
   let nl = firstL, nh = firstH;
   let visited: u64 = 0;

@@ -5,7 +5,14 @@
 // block) and when they are the sieve's exceptions.
 // Ranged blocks (any [lo, hi)) iterate every n exactly and find its class's cut depth on the way.
 
-import { VERIFY_COUNT_CHECKED, VERIFY_COUNT_EXCEPTIONS, VERIFY_COUNT_SIEVED, VERIFY_MAX_DEPTH, VERIFY_MAX_STEP_DEPTH } from "../layout";
+import {
+  VERIFY_COUNT_CHECKED,
+  VERIFY_COUNT_EXCEPTIONS,
+  VERIFY_COUNT_SIEVED,
+  VERIFY_LIMIT_BITS,
+  VERIFY_MAX_DEPTH,
+  VERIFY_MAX_STEP_DEPTH,
+} from "../layout";
 import { dropDepth } from "../extend";
 import { bitlen, carry, leU, ltU, rhi, rlo } from "../u128";
 import {
@@ -110,7 +117,7 @@ export function verifyAligned(
   h0l: u64, h0h: u64, periods: u64, exc: usize, excN: i32, sievedGlide: i32, sievedPeak: i32, sievedSlack: u64,
   survivorSlack: u64, slacks: usize, counts: usize, scratch: usize,
 ): u64 {
-  assert(r != 0 && survivors > 0 && depth >= 1 && depth <= VERIFY_MAX_DEPTH && stepDepth >= 1 && stepDepth <= VERIFY_MAX_STEP_DEPTH && limit >= 1 && limit <= 128);
+  assert(r != 0 && survivors > 0 && depth >= 1 && depth <= VERIFY_MAX_DEPTH && stepDepth >= 1 && stepDepth <= VERIFY_MAX_STEP_DEPTH && limit >= 1 && limit <= VERIFY_LIMIT_BITS);
   begin(q, r, depth, stepDepth, steps, limit, tables, counts, scratch);
   slackK = survivorSlack;
   slackPtr = slacks;
@@ -152,7 +159,7 @@ export function verifyRange(
   q: u32, r: i32, depth: i32, steps: i32, limit: i32, tables: usize, firstL: u64, firstH: u64, lastL: u64, lastH: u64,
   counts: usize, scratch: usize,
 ): u64 {
-  assert(r != 0 && depth >= 1 && depth <= VERIFY_MAX_DEPTH && (firstL | firstH) != 0 && leU(firstL, firstH, lastL, lastH) && limit >= 1 && limit <= 128);
+  assert(r != 0 && depth >= 1 && depth <= VERIFY_MAX_DEPTH && (firstL | firstH) != 0 && leU(firstL, firstH, lastL, lastH) && limit >= 1 && limit <= VERIFY_LIMIT_BITS);
   begin(q, r, depth, 1, steps, limit, tables, counts, scratch);
   let nl = firstL, nh = firstH;
   let visited: u64 = 0;

@@ -8,6 +8,7 @@
 // would be zero or below is handed to the host too (only n below |r| can get there, common practice:
 // from v >= n > |r| / q an odd step stays positive).
 
+import { VERIFY_LIMIT_BITS } from "../layout";
 import { carry, mulAdd, rhi, rlo } from "../u128";
 
 export let Q: u64 = 0;
@@ -23,7 +24,7 @@ export let SIGN: u64 = 0; // all ones when r < 0: b & SIGN is negative exactly w
 export let K: i32 = 0; // sieve depth
 export let KS: i32 = 0; // table step depth
 export let maxSteps: i32 = 0;
-export let limitBits: i32 = 128;
+export let limitBits: i32 = VERIFY_LIMIT_BITS;
 export let qpowPtr: usize = 0; // u64 q^m, m = 0..63
 export let survA: usize = 0; // u32 residues of the survivors mod 2^K, ascending
 export let survM: usize = 0; // u8 m
@@ -49,7 +50,7 @@ export function setMap(q: u32, r: i32): void {
 
 /** The value is at or above 2^limitBits (so n goes to the host). */
 @inline export function tooLarge(lo: u64, hi: u64): bool {
-  if (limitBits >= 128) return false;
+  if (limitBits >= VERIFY_LIMIT_BITS) return false;
   if (limitBits >= 64) return (hi >> <u64>(limitBits - 64)) != 0;
   return hi != 0 || (lo >> <u64>limitBits) != 0;
 }

@@ -128,12 +128,13 @@ export function concatU64(parts: BigUint64Array[]): BigUint64Array {
   return concat(parts, (n) => new BigUint64Array(n));
 }
 
-/** A channel's chunks of 4-word entries, copied out of wasm memory as they are flushed. */
+/** A channel's chunks of entries (ENTRY_WORDS u64 each), copied out of wasm memory as they are flushed. */
 export function collector(kernel: Kernel, base: number) {
   const parts: BigUint64Array[] = [];
+  const words = kernel.layout("ENTRY_WORDS");
   return {
     take(count: number) {
-      parts.push(new BigUint64Array(kernel.memory, base, count * 4).slice());
+      parts.push(new BigUint64Array(kernel.memory, base, count * words).slice());
     },
     all: () => concatU64(parts),
   };

@@ -13,8 +13,9 @@ export function checkTallyStride(kernel: Kernel): void {
 /** Writes q^m and bitlen(q^m) for m <= depth at `at`; entries past depth are set out of reach. */
 export function writeDropTables(kernel: Kernel, at: number, q: number, depth: number): void {
   const mem = kernel.memory;
-  const qpow = new BigUint64Array(mem, at + kernel.layout("TABLE_QPOW"), 64);
-  const drop = new Int32Array(mem, at + kernel.layout("TABLE_DROP"), 64).fill(0x7fffffff);
+  const entries = kernel.layout("TABLE_ENTRIES");
+  const qpow = new BigUint64Array(mem, at + kernel.layout("TABLE_QPOW"), entries);
+  const drop = new Int32Array(mem, at + kernel.layout("TABLE_DROP"), entries).fill(0x7fffffff);
   const depths = dropDepths(q, depth);
   let p = 1n;
   for (let m = 0; m <= depth; m++) {

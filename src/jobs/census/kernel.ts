@@ -23,11 +23,12 @@ export function censusShard(kernel: Kernel, req: CensusShard): CensusShardResult
     // the same for every shard of a run: written once
     checkTallyStride(kernel);
     writeDropTables(kernel, tables, q, depth);
-    const binMin = new BigUint64Array(kernel.memory, tables + L("TABLE_BINMIN"), 64).fill((1n << 64n) - 1n);
+    const entries = L("TABLE_ENTRIES");
+    const binMin = new BigUint64Array(kernel.memory, tables + L("TABLE_BINMIN"), entries).fill((1n << 64n) - 1n);
     binMin.set(coefficientBins(q, r, depth).map((x) => x.min));
-    writeRatioBounds(new Float64Array(kernel.memory, scratch + L("CENSUS_RATIO_AT"), 64), q, r, depth);
+    writeRatioBounds(new Float64Array(kernel.memory, scratch + L("CENSUS_RATIO_AT"), entries), q, r, depth);
     new Float64Array(kernel.memory, scratch + L("CENSUS_SEED_AT"), 1)[0] = ratioSeed(q, r, depth);
-    writeReach(new BigUint64Array(kernel.memory, scratch + L("CENSUS_REACH_AT"), 64 * 64), binMin);
+    writeReach(new BigUint64Array(kernel.memory, scratch + L("CENSUS_REACH_AT"), entries * entries), binMin);
   });
   const region = (channel: string) => scratch + (L(channel) - L("CHANNEL_AMBIGUOUS")) * L("CENSUS_REGION_BYTES");
   const ambiguous = collector(kernel, region("CHANNEL_AMBIGUOUS"));
@@ -141,31 +142,33 @@ function censusCounts(counts: BigUint64Array, L: (name: string) => number) {
     nonpositive: counts[L("CENSUS_COUNT_NONPOSITIVE")]!,
     differCount: counts[L("CENSUS_COUNT_DIFFER")]!,
     early: counts[L("CENSUS_COUNT_EARLY")]!,
-    slow: counts.slice(slow, slow + 64),
+    slow: counts.slice(slow), // per m, to the end of the counts (CENSUS_COUNTS)
   };
 }
 
-/** reach[(m << 6) + top] = max(binMin[m..top]): the slow-bin bound of every m a subtree can reach. */
+/** reach[m * E + top] = max(binMin[m..top]) (E = TABLE_ENTRIES): the slow-bin bound of every m a subtree can reach. */
 function writeReach(reach: BigUint64Array, binMin: BigUint64Array): void {
-  for (let m = 0; m < 64; m++) {
+  const E = binMin.length;
+  for (let m = 0; m < E; m++) {
     let most = 0n;
-    for (let top = m; top < 64; top++) {
+    for (let top = m; top < E; top++) {
       if (binMin[top]! > most) most = binMin[top]!;
-      reach[(m << 6) + top] = most;
+      reach[m * E + top] = most;
     }
   }
 }
 
-/** CHANNEL_VECTORS chunks of (a, vector) with both below 2^32, as u32 pairs. */
+/** CHANNEL_VECTORS chunks of (a, vector) with both below 2^32, as u32 pairs (the low halves of an entry's words 0 and 1). */
 function pairCollector(kernel: Kernel, base: number) {
   const parts: Uint32Array[] = [];
+  const stride = 2 * kernel.layout("ENTRY_WORDS"); // u32 halves per entry
   return {
     take(count: number) {
-      const words = new Uint32Array(kernel.memory, base, count * 8);
+      const words = new Uint32Array(kernel.memory, base, count * stride);
       const out = new Uint32Array(count * 2);
       for (let i = 0; i < count; i++) {
-        out[2 * i] = words[8 * i]!;
-        out[2 * i + 1] = words[8 * i + 2]!;
+        out[2 * i] = words[stride * i]!;
+        out[2 * i + 1] = words[stride * i + 2]!;
       }
       parts.push(out);
     },

@@ -16,9 +16,7 @@ export function cycleShard(kernel: Kernel, req: CycleShard): CycleShardResult {
   const qTables = kernel.region("cycles.qpow", L("CYCLE_QPOW_BYTES"));
   const dTable = kernel.region("cycles.divisors", L("CYCLE_DIVISOR_BYTES"));
   const candidates = kernel.region("cycles.candidates", L("CYCLE_CANDIDATE_BYTES"));
-  kernel.tablesFor("cycles", `${q} ${depth} ${wide}`, () =>
-    writeCycleTables(kernel.memory, qTables, kernel.layout("CYCLE_QPOW_HIGH"), dTable, q, depth, wide ? 128 : 64),
-  );
+  kernel.tablesFor("cycles", `${q} ${depth} ${wide}`, () => writeCycleTables(kernel, qTables, dTable, q, depth, wide ? 128 : 64));
   const found = collector(kernel, candidates);
   const nodes = kernel.call(
     "cycleSearch",
@@ -32,12 +30,17 @@ export function cycleShard(kernel: Kernel, req: CycleShard): CycleShardResult {
 
 /**
  * q^m as two u64 words, and per (j, m) with 1 <= j <= depth the exact divisibility data for
- * |D| = |2^j - q^m| (odd): its inverse mod 2^w and floor((2^w - 1) / |D|), low word then high word.
+ * |D| = |2^j - q^m| (odd): its inverse mod 2^w and floor((2^w - 1) / |D|), low word then high word
+ * (CYCLE_DIVISOR_WORDS u64 at entry (j << TALLY_SHIFT) + m).
  */
-function writeCycleTables(mem: ArrayBuffer, qTables: number, qHigh: number, dTable: number, q: number, depth: number, w: 64 | 128): void {
-  const lo = new BigUint64Array(mem, qTables, 64);
-  const hi = new BigUint64Array(mem, qTables + qHigh, 64);
-  const d = new BigUint64Array(mem, dTable, 64 * 64 * 4);
+function writeCycleTables(kernel: Kernel, qTables: number, dTable: number, q: number, depth: number, w: 64 | 128): void {
+  const L = (name: string) => kernel.layout(name);
+  const mem = kernel.memory;
+  const lo = new BigUint64Array(mem, qTables, L("TABLE_ENTRIES"));
+  const hi = new BigUint64Array(mem, qTables + L("CYCLE_QPOW_HIGH"), L("TABLE_ENTRIES"));
+  const words = L("CYCLE_DIVISOR_WORDS");
+  const shift = L("TALLY_SHIFT");
+  const d = new BigUint64Array(mem, dTable, L("CYCLE_DIVISOR_BYTES") / BigUint64Array.BYTES_PER_ELEMENT);
   const mask64 = (1n << 64n) - 1n;
   const mod = 1n << BigInt(w);
   let p = 1n;
@@ -53,7 +56,7 @@ function writeCycleTables(mem: ArrayBuffer, qTables: number, qHigh: number, dTab
       if (D < 0n) D = -D;
       const inv = inverseMod2k(D, w);
       const lim = (mod - 1n) / D;
-      const at = ((j << 6) + m) * 4;
+      const at = ((j << shift) + m) * words;
       d[at] = inv & mask64;
       d[at + 1] = inv >> 64n;
       d[at + 2] = lim & mask64;

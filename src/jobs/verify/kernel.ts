@@ -19,15 +19,17 @@ export function verifyPrepare(kernel: Kernel, t: VerifyTables): void {
     throw new Error("internal error: the kernel's verification depth limits (assembly/layout.ts) are not the host's (plan.ts)");
   const S = t.residues.length;
   const size = 2 ** (t.stepDepth + 1) - 2; // the step tables of depths 1..KS, built by the kernel
+  const peakBytes = L("VERIFY_PEAK_BYTES");
   const tables = kernel.region("tables", L("TABLE_BYTES"));
-  const a = kernel.region("verify.residues", 4 * S);
+  // residues u32, odd steps u8, images u64, peaks and troughs (u8 i, u8 m)
+  const a = kernel.region("verify.residues", Uint32Array.BYTES_PER_ELEMENT * S);
   const m = kernel.region("verify.odd", S);
-  const b = kernel.region("verify.image", 8 * S);
-  const peak = kernel.region("verify.peak", 2 * S);
+  const b = kernel.region("verify.image", BigUint64Array.BYTES_PER_ELEMENT * S);
+  const peak = kernel.region("verify.peak", peakBytes * S);
   const sm = kernel.region("verify.stepOdd", size);
-  const sb = kernel.region("verify.stepImage", 8 * size);
-  const speak = kernel.region("verify.stepPeak", 2 * size);
-  const trough = kernel.region("verify.stepTrough", 2 * 2 ** t.stepDepth);
+  const sb = kernel.region("verify.stepImage", BigUint64Array.BYTES_PER_ELEMENT * size);
+  const speak = kernel.region("verify.stepPeak", peakBytes * size);
+  const trough = kernel.region("verify.stepTrough", peakBytes * 2 ** t.stepDepth);
   kernel.region("verify.counts", L("VERIFY_COUNTS") * 8);
   kernel.region("verify.scratch", L("VERIFY_SCRATCH_BYTES"));
   const slacks = kernel.region("verify.slacks", 8 * t.slacks.length);
@@ -39,7 +41,7 @@ export function verifyPrepare(kernel: Kernel, t: VerifyTables): void {
     const c = t.classes;
     new BigUint64Array(kernel.memory, kernel.region("verify.classBounds", 8 * c.bounds.length), c.bounds.length).set(c.bounds);
     new BigUint64Array(kernel.memory, kernel.region("verify.classSlacks", 8 * c.slacks.length), c.slacks.length).set(c.slacks);
-    kernel.region("verify.glideMin", 16 * c.glideCap);
+    kernel.region("verify.glideMin", L("VERIFY_GLIDE_MIN_BYTES") * c.glideCap);
   }
   // (a run by classes has no sieve table: its depth N only sizes the per-m tables above)
   const sieveDepth = Math.min(t.depth, MAX_VERIFY_SIEVE_DEPTH);
@@ -217,7 +219,7 @@ function callBlock(kernel: Kernel, t: VerifyTables, block: VerifyBlock, common: 
         bounds: kernel.region("verify.classBounds", 8 * c.bounds.length),
         classSlacks: kernel.region("verify.classSlacks", 8 * c.slacks.length),
         slacks,
-        glideMin: kernel.region("verify.glideMin", 16 * c.glideCap),
+        glideMin: kernel.region("verify.glideMin", kernel.layout("VERIFY_GLIDE_MIN_BYTES") * c.glideCap),
         glideCap: c.glideCap,
       };
       return blockCalls.classes(kernel, classes, sink);
@@ -228,6 +230,18 @@ function callBlock(kernel: Kernel, t: VerifyTables, block: VerifyBlock, common: 
       return blockCalls.range(kernel, { ...span, depth: t.depth }, sink);
   }
 }
+
+/**
+ * The channels a block streams, in channel order from CHANNEL_GLIDE_RECORDS (assembly/layout.ts: the
+ * kernel's VERIFY_CHANNELS; test/layout.test.ts checks the two agree).
+ */
+export const VERIFY_CHANNEL_NAMES = [
+  "CHANNEL_GLIDE_RECORDS",
+  "CHANNEL_PATH_RECORDS",
+  "CHANNEL_HANDOFFS",
+  "CHANNEL_CYCLE_MEMBERS",
+  "CHANNEL_UNRESOLVED",
+] as const;
 
 /** Runs one block on tables already prepared: the kernel's raw counters and lists. */
 function verifyBlock(kernel: Kernel, t: VerifyTables, block: VerifyBlock): VerifyBlockResult {
@@ -241,32 +255,21 @@ function verifyBlock(kernel: Kernel, t: VerifyTables, block: VerifyBlock): Verif
     counts: kernel.region("verify.counts", L("VERIFY_COUNTS") * 8),
     scratch: kernel.region("verify.scratch", L("VERIFY_SCRATCH_BYTES")),
   };
-  const list = (channel: string) =>
-    collector(kernel, common.scratch + (L(channel) - L("CHANNEL_GLIDE_RECORDS")) * L("VERIFY_REGION_BYTES"));
-  const lists = {
-    glide: list("CHANNEL_GLIDE_RECORDS"),
-    path: list("CHANNEL_PATH_RECORDS"),
-    handoffs: list("CHANNEL_HANDOFFS"),
-    cycles: list("CHANNEL_CYCLE_MEMBERS"),
-    unresolved: list("CHANNEL_UNRESOLVED"),
-  };
-  const sinks = new Map<number, { take(count: number): void }>([
-    [L("CHANNEL_GLIDE_RECORDS"), lists.glide],
-    [L("CHANNEL_PATH_RECORDS"), lists.path],
-    [L("CHANNEL_HANDOFFS"), lists.handoffs],
-    [L("CHANNEL_CYCLE_MEMBERS"), lists.cycles],
-    [L("CHANNEL_UNRESOLVED"), lists.unresolved],
-  ]);
+  // channel c streams through its region at (c - CHANNEL_GLIDE_RECORDS) * VERIFY_REGION_BYTES of the scratch
+  const region = (channel: number) => common.scratch + (channel - L("CHANNEL_GLIDE_RECORDS")) * L("VERIFY_REGION_BYTES");
+  const lists = VERIFY_CHANNEL_NAMES.map((name) => collector(kernel, region(L(name))));
+  const sinks = new Map(VERIFY_CHANNEL_NAMES.map((name, i) => [L(name), lists[i]!]));
   const visited = callBlock(kernel, t, block, common, (channel, count) => sinks.get(channel)?.take(count));
+  const [glideRecords, pathRecords, handoffs, cycleMembers, unresolved] = lists.map((list) => list.all());
   return {
     index: block.index,
     visited: BigInt.asUintN(64, BigInt(visited)),
     counts: new BigUint64Array(kernel.memory, common.counts, L("VERIFY_COUNTS")).slice(),
-    glideRecords: lists.glide.all(),
-    pathRecords: lists.path.all(),
-    handoffs: lists.handoffs.all(),
-    cycleMembers: lists.cycles.all(),
-    unresolved: lists.unresolved.all(),
+    glideRecords: glideRecords!,
+    pathRecords: pathRecords!,
+    handoffs: handoffs!,
+    cycleMembers: cycleMembers!,
+    unresolved: unresolved!,
   };
 }
 

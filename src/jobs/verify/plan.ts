@@ -18,8 +18,13 @@ export const MAX_BIGINT_NUMBERS = 1n << 22n;
 const RANGE_BLOCK = 1n << 20n;
 /** Numbers per block on the BigInt engine (about a tenth of a second each). */
 const BIGINT_BLOCK = 1n << 12n;
-/** The kernel takes n below 2^127 (a 128-bit pair; values past 128 bits go to BigInt). */
-const KERNEL_LIMIT = 1n << 127n;
+/** The kernel takes n below 2^KERNEL_N_BITS (a 128-bit pair; assembly/layout.ts VERIFY_N_BITS). */
+export const KERNEL_N_BITS = 127;
+const KERNEL_LIMIT = 1n << BigInt(KERNEL_N_BITS);
+/** The kernel's values are 128 bits wide: limitBits is at most this (assembly/layout.ts VERIFY_LIMIT_BITS). */
+export const MAX_LIMIT_BITS = 128;
+/** The deepest range [1, 2^N) the kernel settles class by class (assembly/layout.ts VERIFY_MAX_CLASS_DEPTH). */
+export const MAX_CLASS_DEPTH = 62;
 
 export interface VerifyRequest {
   readonly map: CollatzMap;
@@ -97,7 +102,7 @@ const isPowerOfTwo = (x: bigint) => x >= 1n && (x & (x - 1n)) === 0n;
 export function classDepthOf(map: CollatzMap, from: bigint, to: bigint): number | null {
   if (map.r < 0 || to < 2n || !isPowerOfTwo(from) || !isPowerOfTwo(to) || from >= to) return null;
   const N = to.toString(2).length - 1;
-  return N <= kernelDepthLimit(map) ? N : null;
+  return N <= Math.min(kernelDepthLimit(map), MAX_CLASS_DEPTH) ? N : null;
 }
 
 /** Numbers below from = 2^f in the classes of roots first..last mod 2^D (0 included). */
@@ -123,7 +128,7 @@ export function planVerify(req: VerifyRequest): VerifyPlan {
   const preimage = method === "classes" && req.preimage !== false;
   const sieveDepth = classDepth ?? req.sieveDepth ?? DEFAULT_SIEVE_DEPTH;
   const stepDepth = req.stepDepth ?? DEFAULT_STEP_DEPTH;
-  const limitBits = req.limitBits ?? 128;
+  const limitBits = req.limitBits ?? MAX_LIMIT_BITS;
   const depthLimit = Math.min(MAX_VERIFY_SIEVE_DEPTH, kernelDepthLimit(map));
   if (method === "periods" && (!Number.isInteger(sieveDepth) || sieveDepth < 1 || sieveDepth > depthLimit))
     throw new LimitError(`sieve depth ${sieveDepth} is out of range for ${map.name}: 1 to ${depthLimit} (the sieve table's exact limit)`);
@@ -137,11 +142,12 @@ export function planVerify(req: VerifyRequest): VerifyPlan {
     throw new UsageError(
       `max steps ${maxSteps} is below the sieve depth ${sieveDepth}: give a sieve depth of at most ${maxSteps}, or more steps`,
     );
-  if (!Number.isInteger(limitBits) || limitBits < 8 || limitBits > 128) throw new UsageError("limitBits must be from 8 to 128");
+  if (!Number.isInteger(limitBits) || limitBits < 8 || limitBits > MAX_LIMIT_BITS)
+    throw new UsageError(`limitBits must be from 8 to ${MAX_LIMIT_BITS}`);
   const engine = to <= KERNEL_LIMIT ? "kernel" : "bigint";
   if (engine === "bigint" && to - from > MAX_BIGINT_NUMBERS)
     throw new LimitError(
-      `numbers at or above 2^127 are verified in BigInt, one by one: at most ${MAX_BIGINT_NUMBERS} numbers a run, got ${to - from}`,
+      `numbers at or above 2^${KERNEL_N_BITS} are verified in BigInt, one by one: at most ${MAX_BIGINT_NUMBERS} numbers a run, got ${to - from}`,
     );
   const delay = req.delay === true;
   const blockTarget = req.blocks ?? null;
