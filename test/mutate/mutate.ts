@@ -146,8 +146,8 @@ const MUTANTS: Mutant[] = [
   {
     name: "check: the sieved counts not compared with the sieve restricted to the range",
     file: "src/jobs/verify/check.ts",
-    find: "          merged.counts.sievedByDepth,\n          sieved,\n",
-    replace: "          merged.counts.sievedByDepth,\n          merged.counts.sievedByDepth,\n",
+    find: "expectSame(counts.sievedByDepth, sieved, ",
+    replace: "expectSame(counts.sievedByDepth, counts.sievedByDepth, ",
   },
   {
     name: "check: sampled blocks not compared with their entries",
