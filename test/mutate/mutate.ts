@@ -293,6 +293,7 @@ const MUTANTS: Mutant[] = [
   {
     name: "files: a write error without the file's name",
     file: "src/node/files.ts",
+    // biome-ignore lint/suspicious/noTemplateCurlyInString: the text to find is source code with a template literal
     find: "return new Error(`cannot write ${path}: ${e instanceof Error ? e.message : String(e)}`, { cause: e });",
     replace: "return e instanceof Error ? e : new Error(String(e));",
     first: ["test/verify-run.test.ts"],
