@@ -104,7 +104,7 @@ describe.skipIf(!hasChromium)("the Verify view: verdict, phases, depth, refused 
       },
     );
     const said = `${await text(page, "#cycles-status")} ${await text(page, "#cycles-message")}`;
-    expect(said).toContain(`With [1, 4,096) verified in the Verify view: every n below X = `);
+    expect(said).toContain(`From the Verify view's run of [1, 4,096): every n below X = `);
     expect(said).toContain(`has at least ${grouped(m)} odd elements and ${grouped(l)} elements`);
     await page.fill("#cycles-map", "3x+5");
     await page.click("#cycles-go");
@@ -116,7 +116,7 @@ describe.skipIf(!hasChromium)("the Verify view: verdict, phases, depth, refused 
       undefined,
       { timeout: 60_000 },
     );
-    expect(`${await text(page, "#cycles-status")} ${await text(page, "#cycles-message")}`).not.toContain("verified in the Verify view");
+    expect(`${await text(page, "#cycles-status")} ${await text(page, "#cycles-message")}`).not.toContain("From the Verify view");
     await page.close();
   });
 

@@ -50,7 +50,7 @@ function boundLine(r: CycleSearchResult): string {
   const v = verifiedLimit(r.map.name);
   if (v === null || v.X < 2n) return "";
   const below = positiveCycles(r).filter((c) => c.min < v.X);
-  return ` With [1, ${group(v.to)}) verified in the Verify view: ${cycleBoundLine(cycleBound(r.map, v.X), below)}.`;
+  return ` From the Verify view's run of [1, ${group(v.to)}): ${cycleBoundLine(cycleBound(r.map, v.X), below)}.`;
 }
 
 function renderCycles(r: CycleSearchResult): void {
