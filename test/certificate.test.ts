@@ -275,7 +275,7 @@ describe("sieved counts by depth from the sieve alone", () => {
 });
 
 /**
- * Every field of a certificate, edited with every digest recomputed (README's table, row by row):
+ * Every field of a certificate, edited with every digest recomputed (docs/certificate.md's table, row by row):
  * refused by the strict reader (exit 2), or found by --check without running any block again
  * (--sample 0), or (edits inside a block that its own totals and the merge hide) only by running that
  * block again, which --full always does and a sample does with the probability --check prints.
