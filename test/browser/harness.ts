@@ -8,7 +8,8 @@ import { tmpdir } from "node:os";
 import { chromium } from "playwright-core";
 import type { BrowserContext, Page } from "playwright-core";
 
-const DIST = new URL("../../dist/", import.meta.url).pathname;
+/** The built app: dist/, or the folder GLIDEPATH_DIST names (a build of its own, `vite build --outDir`). */
+const DIST = process.env.GLIDEPATH_DIST ?? new URL("../../dist/", import.meta.url).pathname;
 const TYPES: Record<string, string> = {
   ".html": "text/html; charset=utf-8",
   ".js": "text/javascript",
