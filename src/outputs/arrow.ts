@@ -2,6 +2,7 @@
 // Column names and types are documented in README ("Arrow exports").
 import { Field, Int32, List, Table, Uint64, Utf8, tableFromArrays, tableToIPC, vectorFromArray } from "apache-arrow";
 import type { CsvRow } from "./tables.js";
+import { censusTallies } from "./screen.js";
 import type { ToolStamp } from "./manifest.js";
 import type { CollatzMap } from "../core/map.js";
 import type { StepTable } from "../jobs/steps.js";
@@ -50,32 +51,12 @@ export function stepTableArrow(t: StepTable): Uint8Array {
  * count (uint64); unused coordinates are -1.
  */
 export function censusArrow(c: CensusResult): Uint8Array {
-  const tally: string[] = [],
-    depth: number[] = [],
-    odd: number[] = [],
-    bin: number[] = [],
-    count: bigint[] = [];
-  const add = (t: string, j: number, m: number, k: number, n: bigint) => {
-    tally.push(t);
-    depth.push(j);
-    odd.push(m);
-    bin.push(k);
-    count.push(n);
-  };
-  for (const [name, table] of [
-    ["live", c.live],
-    ["stopped", c.stopped],
-    ["vectors", c.vectors],
-    ["peak", c.peak],
-  ] as const) {
-    table.forEach((row, j) => {
-      row.forEach((n, m) => {
-        if (n > 0n) add(name, j, m, -1, n);
-      });
-    });
-  }
-  for (const b of c.ratioBins) add("log2_ratio_quarter", c.depth, -1, b.bin, b.count);
-  if (c.nonpositive > 0n) add("nonpositive_image", c.depth, -1, -1, c.nonpositive);
+  const rows = censusTallies(c);
+  const tally = rows.map((t) => t.tally),
+    depth = rows.map((t) => t.depth),
+    odd = rows.map((t) => t.odd),
+    bin = rows.map((t) => t.bin),
+    count = rows.map((t) => t.count);
   return tableToIPC(
     new Table({
       tally: vectorFromArray(tally, new Utf8()),
