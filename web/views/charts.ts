@@ -3,8 +3,12 @@
 import * as echarts from "echarts/core";
 import { BarChart, HeatmapChart, LineChart, ScatterChart } from "echarts/charts";
 import { GridComponent, LegendComponent, TooltipComponent, VisualMapComponent } from "echarts/components";
-import { CanvasRenderer } from "echarts/renderers";
+import { CanvasRenderer, SVGRenderer } from "echarts/renderers";
 import type { Level } from "../../src/core/exact.js";
+import { bothConventions } from "../../src/core/orbit.js";
+import type { OrbitView } from "../../src/core/orbit.js";
+import { group } from "../../src/outputs/format.js";
+import { download } from "../dom.js";
 
 echarts.use([
   BarChart,
@@ -16,6 +20,7 @@ echarts.use([
   TooltipComponent,
   VisualMapComponent,
   CanvasRenderer,
+  SVGRenderer,
 ]);
 
 const PALETTE = ["#0072B2", "#E69F00", "#009E73", "#D55E00", "#CC79A7", "#56B4E9", "#F0E442"];
@@ -35,11 +40,89 @@ function dark(): boolean {
   return scheme.matches;
 }
 
-/** Draws chart `id` from `build`, now and again whenever the colour scheme changes. */
+/** Draws chart `id` from `build`, now and again whenever the colour scheme changes; with its PNG and SVG buttons. */
 function draw(id: string, build: () => Record<string, unknown>): void {
   builders.set(id, build);
   document.getElementById(id)!.dataset.scheme = dark() ? "dark" : "light"; // the scheme it was drawn for
   chart(id).setOption(build(), true);
+  addTools(id);
+}
+
+declare global {
+  interface Window {
+    /** A chart's option as it is drawn, as JSON (functions left out): what the browser tests read back. */
+    glidepathChartOption?: (id: string) => unknown;
+  }
+}
+window.glidepathChartOption = (id) => {
+  const c = charts.get(id);
+  return c ? JSON.parse(JSON.stringify(c.getOption())) : null;
+};
+
+/**
+ * A chart's file name: its own name and the parameters of the results it belongs to (the panel's
+ * data-params: map, depth or range), e.g. glide-records-3x+1-1-1048576.
+ */
+export function chartFileName(id: string): string {
+  const params = document.getElementById(id)!.closest<HTMLElement>("[data-params]")?.dataset.params ?? "";
+  const slug = params
+    .replace(/[^A-Za-z0-9+-]+/g, "-")
+    .replace(/^-+|-+$/g, "")
+    .replace(/-+/g, "-");
+  return `${id.replace(/^chart-/, "")}${slug ? `-${slug}` : ""}`;
+}
+
+/** The background a saved chart gets: its figure's panel colour, so that it reads as on screen. */
+function background(id: string): string {
+  const figure = document.getElementById(id)!.closest("figure");
+  return figure ? getComputedStyle(figure).backgroundColor : dark() ? "#1b1e21" : "#ffffff";
+}
+
+/** The chart as a PNG file (twice the screen's pixels). */
+export function chartPng(id: string): Uint8Array {
+  const url = chart(id).getDataURL({ type: "png", pixelRatio: 2, backgroundColor: background(id) });
+  return Uint8Array.from(atob(url.slice(url.indexOf(",") + 1)), (ch) => ch.charCodeAt(0));
+}
+
+/** The chart as an SVG document: the same option drawn again by ECharts's SVG renderer, at the size on screen. */
+export function chartSvg(id: string): string {
+  const el = document.getElementById(id)!;
+  const holder = document.createElement("div");
+  const width = Math.max(320, el.clientWidth),
+    height = Math.max(200, el.clientHeight);
+  const svg = echarts.init(holder, undefined, { renderer: "svg", width, height });
+  try {
+    svg.setOption({ ...builders.get(id)!(), backgroundColor: background(id) });
+    return svg.renderToSVGString();
+  } finally {
+    svg.dispose();
+  }
+}
+
+/** The PNG and SVG buttons of a chart, under its caption (made once). */
+function addTools(id: string): void {
+  const el = document.getElementById(id)!;
+  const figure = el.closest("figure");
+  if (!figure || figure.querySelector(`[data-chart-tools="${id}"]`)) return;
+  const tools = document.createElement("div");
+  tools.className = "chart-tools";
+  tools.dataset.chartTools = id;
+  tools.style.cssText = "display:flex;gap:6px;justify-content:flex-end;margin-top:4px";
+  const what = el.getAttribute("aria-label") ?? "the chart";
+  for (const format of ["png", "svg"] as const) {
+    const b = document.createElement("button");
+    b.type = "button";
+    b.id = `${id}-${format}`;
+    b.textContent = format.toUpperCase();
+    b.setAttribute("aria-label", `Download the chart (${what}) as ${format.toUpperCase()}`);
+    b.addEventListener("click", () => {
+      const name = `${chartFileName(id)}.${format}`;
+      if (format === "png") download(name, [chartPng(id) as Uint8Array<ArrayBuffer>], "image/png");
+      else download(name, [chartSvg(id)], "image/svg+xml");
+    });
+    tools.append(b);
+  }
+  figure.append(tools);
 }
 
 function chart(id: string): echarts.ECharts {
@@ -69,6 +152,17 @@ function axis(type: "value" | "log" | "category", name: string, extra: object = 
   return { type, name, nameTextStyle: { color: base().textStyle.color }, ...b, ...extra };
 }
 
+/**
+ * A depth axis from 0 to `last` whose labels never run together: a step of 1, 2, 5, 10, ... giving at
+ * most 8 intervals, and the end labelled only where it falls on a step (depth 32 reads 0, 5, ..., 30
+ * rather than 30 and 32 side by side).
+ */
+function depthAxis(name: string, last: number) {
+  const max = Math.max(1, last);
+  const step = [1, 2, 5, 10, 20, 25, 50, 100].find((s) => max / s <= 8) ?? 100;
+  return axis("value", name, { min: 0, max, interval: step, axisLabel: { ...base().axisStyle.axisLabel, showMaxLabel: max % step === 0 } });
+}
+
 /** Survivor density against depth (log axis): the kernel's counts and the exact counter's. */
 export function drawDensity(levels: readonly Level[], exact: readonly Level[]): void {
   const d = (l: Level) => [l.depth, Number(l.survivors) / 2 ** l.depth];
@@ -95,7 +189,7 @@ export function drawStopped(levels: readonly Level[]): void {
       confine: true,
       formatter: (p: { data: number[] }) => `depth ${p.data[0]}: ${p.data[1]!.toLocaleString("en-US")} stopped`,
     },
-    xAxis: axis("value", "depth", { min: 0, max: last, minInterval: 1 }),
+    xAxis: depthAxis("depth", last),
     yAxis: axis("log", "classes", { min: 1 }),
     series: [
       { type: "bar", data: rows, barMaxWidth: 14, itemStyle: { color: palette()[1] } },
@@ -184,20 +278,151 @@ export function drawCensus(peaks: { log2: number; count: bigint }[], bins: { bin
   }));
 }
 
-/** A trajectory: log10 of each value (exact bit lengths for huge values), against the step. */
-export function drawTrajectory(values: readonly bigint[]): void {
-  const log10 = (v: bigint) => {
-    const a = v < 0n ? -v : v;
-    if (a === 0n) return 0;
-    const bits = a.toString(2).length;
-    if (bits <= 1000) return Math.log10(Number(a));
-    return Math.log10(Number(a >> BigInt(bits - 60))) + (bits - 60) * Math.log10(2);
-  };
-  draw("chart-trajectory", () => ({
+/** log10 |v| for drawing (exact bit lengths for values past 2^1000). */
+function log10(v: bigint): number {
+  const a = v < 0n ? -v : v;
+  if (a === 0n) return 0;
+  const bits = a.toString(2).length;
+  if (bits <= 1000) return Math.log10(Number(a));
+  return Math.log10(Number(a >> BigInt(bits - 60))) + (bits - 60) * Math.log10(2);
+}
+
+/** An orbit's marks in one convention: the glide, the step it reaches 1 and its maximum, where they fall. */
+function marks(o: OrbitView): { name: string; value: [number, number, string] }[] {
+  const at = (name: string, j: number | null) =>
+    j === null ? [] : [{ name, value: [j, log10(o.values[j]!), String(o.values[j])] as [number, number, string] }];
+  return [...at("glide", o.glide), ...at("reaches 1", o.one), ...at("maximum", o.maxAt)];
+}
+
+/** One convention's marks in words: "glide 59, reaches 1 at step 70, highest 4,616 at step 38". */
+function marksText(o: OrbitView): string {
+  return [
+    o.glide === null ? "no glide within the steps shown" : `glide ${o.glide}`,
+    ...(o.one === null || o.one === 0 ? [] : [`reaches 1 at step ${o.one}`]),
+    `highest ${group(o.max)} at step ${o.maxAt}`,
+  ].join(", ");
+}
+
+/**
+ * An orbit of T (values[j + 1] = T(values[j])) in both conventions, steps of T and standard steps,
+ * log10 of each value against the step, with the glide, the arrival at 1 and the maximum marked in
+ * each; the marks in words below the chart (chart id + "-marks").
+ */
+export function drawTrajectory(values: readonly bigint[], id = "chart-trajectory"): void {
+  const o = bothConventions(values);
+  const line = (v: OrbitView) => v.values.map((x, j) => [j, log10(x), String(x)]);
+  const names = ["steps of T", "standard steps"] as const;
+  draw(id, () => ({
     ...base(),
+    legend: { top: 0, data: [...names], textStyle: { color: base().textStyle.color } },
+    tooltip: {
+      trigger: "item",
+      confine: true,
+      formatter: (p: { seriesName: string; name: string; data: { value?: [number, number, string] } | [number, number, string] }) => {
+        const d = Array.isArray(p.data) ? p.data : p.data.value!;
+        return `${p.seriesName}, step ${d[0]}: ${d[2]}${p.name ? ` (${p.name})` : ""}`;
+      },
+    },
     xAxis: axis("value", "step", { minInterval: 1 }),
-    yAxis: axis("value", "log10 |T^j(n)|"),
-    series: [{ type: "line", showSymbol: values.length < 200, data: values.map((v, i) => [i, log10(v)]) }],
+    yAxis: axis("value", "log10 value"),
+    series: [
+      { name: names[0], type: "line", showSymbol: values.length < 120, data: line(o.T) },
+      { name: names[1], type: "line", showSymbol: false, lineStyle: { type: "dashed" }, data: line(o.standard) },
+      ...[o.T, o.standard].map((v, i) => ({
+        name: names[i],
+        type: "scatter",
+        symbol: i === 0 ? "circle" : "diamond",
+        symbolSize: 11,
+        z: 5,
+        itemStyle: { color: palette()[i], borderColor: dark() ? "#e7e9ea" : "#1d1f21", borderWidth: 1 },
+        label: { show: true, position: i === 0 ? "top" : "bottom", formatter: "{b}", color: base().textStyle.color, fontSize: 11 },
+        data: marks(v),
+      })),
+    ],
+  }));
+  const el = document.getElementById(id)!;
+  let note = document.getElementById(`${id}-marks`);
+  if (!note) {
+    note = document.createElement("p");
+    note.id = `${id}-marks`;
+    note.className = "hint";
+    el.after(note);
+  }
+  note.textContent = `${group(values[0]!)}: in steps of T, ${marksText(o.T)}; in standard steps (3n + 1 and n/2 each a step), ${marksText(o.standard)}.`;
+}
+
+/** A log axis's label: digits up to a million, then 1e7, 1e8, ... (the ticks are powers of 10). */
+const power = (v: number) => (v < 1e7 ? v.toLocaleString("en-US") : `1e${Math.round(Math.log10(v))}`);
+
+/** A record: n and its value (a glide in standard steps, or a highest value in standard steps). */
+export interface RecordPoint {
+  readonly n: bigint;
+  readonly value: bigint;
+}
+
+/**
+ * A run's records, n against their value on log axes, and the published records that fall in the
+ * range (`published`, null where none apply) as rings around them.
+ */
+export function drawRecords(
+  id: string,
+  what: { axis: string; unit: string },
+  run: readonly RecordPoint[],
+  published: { name: string; points: readonly RecordPoint[] } | null,
+): void {
+  const data = (ps: readonly RecordPoint[]) => ps.map((p) => [Number(p.n), Number(p.value), String(p.n), String(p.value)]);
+  draw(id, () => ({
+    ...base(),
+    grid: { left: 64, right: 24, top: 30, bottom: 36 },
+    legend: { top: 0, textStyle: { color: base().textStyle.color } },
+    tooltip: {
+      trigger: "item",
+      confine: true,
+      formatter: (p: { seriesName: string; data: [number, number, string, string] }) =>
+        `${p.seriesName}: n = ${group(BigInt(p.data[2]))}, ${group(BigInt(p.data[3]))} ${what.unit}`,
+    },
+    xAxis: axis("log", "n", { axisLabel: { color: base().textStyle.color, formatter: power } }),
+    // the name along the axis, clear of the legend at any width; labels past a million as powers of 10
+    yAxis: axis("log", what.axis, {
+      min: 1,
+      nameLocation: "middle",
+      nameGap: 44,
+      axisLabel: { color: base().textStyle.color, formatter: power },
+    }),
+    series: [
+      { name: "this run's records", type: "scatter", symbolSize: 7, data: data(run), itemStyle: { color: palette()[0] } },
+      ...(published
+        ? [
+            {
+              name: published.name,
+              type: "scatter",
+              symbol: "circle",
+              symbolSize: 15,
+              data: data(published.points),
+              itemStyle: { color: "transparent", borderColor: palette()[1], borderWidth: 2 },
+            },
+          ]
+        : []),
+    ],
+  }));
+}
+
+/** A verification's sieved numbers by the depth at which their class is cut: a bar and a dot a depth, log axis. */
+export function drawCutDepths(sievedByDepth: readonly bigint[]): void {
+  const rows = sievedByDepth.flatMap((c, j) => (c > 0n ? [[j, Number(c), String(c)]] : []));
+  draw("chart-cut-depth", () => ({
+    ...base(),
+    tooltip: {
+      trigger: "item",
+      confine: true,
+      formatter: (p: { data: [number, number, string] }) => `cut at depth ${p.data[0]}: ${group(BigInt(p.data[2]))} numbers`,
+    },
+    xAxis: axis("value", "cut depth", { min: 0, max: Math.max(1, sievedByDepth.length - 1), minInterval: 1 }),
+    yAxis: axis("log", "numbers", { min: 1 }),
+    series: [
+      { type: "bar", data: rows, barMaxWidth: 14, itemStyle: { color: palette()[2] } },
+      { type: "scatter", data: rows, symbolSize: 6, itemStyle: { color: PALETTE[3] } },
+    ],
   }));
 }
 
@@ -213,7 +438,7 @@ export function drawTreeLevels(nodes: readonly bigint[], growth: number): void {
     ...base(),
     legend: { top: 0, textStyle: { color: base().textStyle.color } },
     tooltip: { trigger: "axis", confine: true },
-    xAxis: axis("value", "depth j", { min: 0, max: last, minInterval: 1 }),
+    xAxis: depthAxis("depth j", last),
     yAxis: axis("log", "nodes", { min: 1 }),
     series: [
       { name: "nodes", type: "scatter", symbolSize: 6, data: nodes.map((n, j) => [j, Number(n)]) },

@@ -21,6 +21,15 @@ import pkg from "../../package.json";
 import { RunController } from "../controller.js";
 import { $, download, fieldError, parseField, ResultsPanel } from "../dom.js";
 import { noteVerified } from "../verified.js";
+import { drawCutDepths, drawRecords, drawTrajectory } from "./charts.js";
+import type { RecordPoint } from "./charts.js";
+import { fileName, offerExports } from "../export.js";
+import type { ExportFile } from "../export.js";
+import { A006884, A060412, RECORDS_LISTED_BELOW } from "../../src/core/published.js";
+import { standardPeak } from "../../src/core/orbit.js";
+import { iterate, trajectory } from "../../src/core/padic.js";
+import { traceBig } from "../../src/jobs/verify/trace.js";
+import { cutDepthsCsv, cutDepthsJson, glideRecordsCsv, pathRecordsCsv, recordsJson } from "../../src/outputs/screen.js";
 import { kernelBuildId, pagePoolPending, sha256, withPagePool } from "../engine.js";
 
 const panel = new ResultsPanel("verify-result", "verify-stale", "verify-form");
@@ -33,6 +42,8 @@ const controller = new RunController({
   message: "verify-message",
 });
 let lastCertificate: string | null = null;
+/** The run whose results are on screen (its map and range name the downloads). */
+let lastResult: VerifyResult | null = null;
 
 /** The bit length of a positive whole number. */
 const bitLength = (x: bigint) => x.toString(2).length;
@@ -230,7 +241,108 @@ function render(r: VerifyResult): void {
         ["delay record n", "standard steps to 1", "steps of T"],
         r.delay.records.map((g) => [group(g.n), String(g.standardSteps), String(g.steps)]),
       ) + (r.delay.unreached > 0n ? `<caption>${group(r.delay.unreached)} n do not reach 1 within the step cap</caption>` : "");
+  renderCharts(r);
   $("run-summary").textContent = toExactJson({ verify: verifyJson(r) });
+}
+
+/** The base of every file name of a run: verify-MAP-FROM-TO (e.g. verify-3x+1-1-1048576). */
+const runName = (r: VerifyResult) => fileName("verify", r.map.name, r.from, r.to);
+
+/**
+ * The published records of 3x+1 (OEIS A060412, A006884: their terms below 2^32) that fall in the
+ * run's range, with their values computed here exactly (a term of the range is a record of the range
+ * too); null for another map.
+ */
+function publishedIn(r: VerifyResult, kind: "glide" | "path"): RecordPoint[] | null {
+  if (r.map.q !== 3 || r.map.r !== 1) return null;
+  return (kind === "glide" ? A060412 : A006884)
+    .filter((n) => n >= r.from && n < r.to)
+    .map((n) => {
+      const t = traceBig(r.map, n, r.maxSteps, 0);
+      return { n, value: kind === "glide" ? BigInt(t.steps + t.odd) : standardPeak(n, t.path) };
+    });
+}
+
+/** The orbit of n (until it has gone once round the cycle it reaches, at most 10,000 steps) in the Verify view's chart. */
+function drawOrbit(r: VerifyResult, n: bigint): void {
+  const steps = trajectory(r.map, n).steps;
+  const values = [n];
+  for (let j = 0; j < steps; j++) values.push(iterate(r.map, values[j]!, 1));
+  drawTrajectory(values, "chart-orbit");
+  $<HTMLSelectElement>("verify-orbit-n").value = String(n);
+}
+
+// the orbit shown follows its choice, or a click on a row of a record table (its first cell is n)
+$("verify-orbit-n").addEventListener("change", () => {
+  if (lastResult) drawOrbit(lastResult, BigInt($<HTMLSelectElement>("verify-orbit-n").value));
+});
+for (const table of ["verify-glide", "verify-path", "verify-delays"])
+  $(table).addEventListener("click", (e) => {
+    const cell = (e.target as HTMLElement).closest("tr")?.querySelector("td");
+    const n = cell?.textContent?.replace(/[^0-9]/g, "");
+    if (lastResult && n) drawOrbit(lastResult, BigInt(n));
+  });
+
+/** The run's charts (cut depths, records against the published ones, one record's orbit) and its downloads. */
+function renderCharts(r: VerifyResult): void {
+  lastResult = r;
+  const cut = r.counts.sievedByDepth.flatMap((c, j) => (c > 0n ? [[String(j), group(c)]] : []));
+  $("verify-cut-depths").innerHTML = cut.length ? rows(["cut depth", "numbers sieved"], cut) : "";
+  $("verify-cut-none").hidden = cut.length > 0;
+  drawCutDepths(r.counts.sievedByDepth);
+  const pub = (kind: "glide" | "path", name: string) => {
+    const points = publishedIn(r, kind);
+    return points && { name: `OEIS ${name} (below 2^32)`, points };
+  };
+  drawRecords(
+    "chart-glide-records",
+    { axis: "glide (standard steps)", unit: "standard steps" },
+    r.glideRecords.map((g) => ({ n: g.n, value: BigInt(g.standardSteps) })),
+    pub("glide", "A060412"),
+  );
+  drawRecords(
+    "chart-path-records",
+    { axis: "highest value (standard steps)", unit: "at the highest (standard steps)" },
+    r.pathRecords.map((p) => ({ n: p.n, value: standardPeak(p.n, p.peakT) })),
+    pub("path", "A006884"),
+  );
+  // the orbit of a record: the choice lists every glide and path record; the largest glide first
+  const choice = $<HTMLSelectElement>("verify-orbit-n");
+  const seen = new Map<bigint, string[]>();
+  for (const g of r.glideRecords) seen.set(g.n, ["glide"]);
+  for (const p of r.pathRecords) seen.set(p.n, [...(seen.get(p.n) ?? []), "path"]);
+  choice.replaceChildren(
+    ...[...seen]
+      .sort(([a], [b]) => (a < b ? -1 : a > b ? 1 : 0))
+      .map(([n, kinds]) => new Option(`${group(n)} (${kinds.join(" and ")} record)`, String(n))),
+  );
+  $("verify-orbit").hidden = seen.size === 0;
+  const first = r.maxGlide?.n ?? r.maxPath?.n;
+  if (first !== undefined) drawOrbit(r, first);
+  offerExports("verify-cut-exports", "Download", "the numbers sieved by cut depth", [
+    exportOf(r, "csv", "cut-depths", "glidepath verify cut depths", () => cutDepthsCsv(r), cut.length),
+    exportOf(r, "json", "cut-depths", "glidepath verify cut depths", () => toExactJson(cutDepthsJson(r), 2), cut.length),
+  ]);
+  const lists = [
+    ["glide", "glideRecords", r.glideRecords.length, () => glideRecordsCsv(r.glideRecords)],
+    ["path", "pathRecords", r.pathRecords.length, () => pathRecordsCsv(r.pathRecords)],
+    ["delay", "delayRecords", r.delay?.records.length ?? 0, () => glideRecordsCsv(r.delay?.records ?? [])],
+  ] as const;
+  for (const [kind, key, count, csv] of lists) {
+    if (kind === "delay" && r.delay === null) {
+      $("verify-delay-exports").replaceChildren();
+      continue;
+    }
+    offerExports(`verify-${kind}-exports`, `Download the ${kind} records`, `the ${kind} records`, [
+      exportOf(r, "csv", `${kind}-records`, `glidepath verify ${kind} records`, csv, count),
+      exportOf(r, "json", `${kind}-records`, `glidepath verify ${kind} records`, () => toExactJson(recordsJson(r, key), 2), count),
+    ]);
+  }
+}
+
+/** A download of the run's: named verify-MAP-FROM-TO-WHAT, its manifest with the range and the rows. */
+function exportOf(r: VerifyResult, format: "csv" | "json", what: string, kind: string, data: () => string, rows: number): ExportFile {
+  return { format, name: `${runName(r)}-${what}`, data, kind, map: r.map, extra: { from: r.from, to: r.to, rows } };
 }
 
 /** Runs the form's verification; returns false (errors beside the fields) when the form is invalid. */
@@ -293,7 +405,8 @@ export function cancelVerify(): void {
 
 /** Hands the last run's certificate over as a download. */
 export function downloadCertificate(): void {
-  if (lastCertificate) download("verification-certificate.json", [lastCertificate], "application/json");
+  // named after the map and the range, as the README names a certificate (v32.cert.json): verify-3x+1-1-1048576.cert.json
+  if (lastCertificate && lastResult) download(`${runName(lastResult)}.cert.json`, [lastCertificate], "application/json");
 }
 
 /** Fills From and To from the preset list. */
