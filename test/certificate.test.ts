@@ -17,6 +17,8 @@ import { exactCounts } from "../src/core/exact.js";
 import { parseExactJson, toExactJson } from "../src/core/json.js";
 import { nodePool } from "../src/node/kernel.js";
 import { createHash } from "node:crypto";
+import { publishedKnown } from "../src/jobs/verify/known.js";
+import type { KnownRecords } from "../src/jobs/verify/known.js";
 
 const pool = await nodePool(2);
 afterAll(() => pool.terminate());
@@ -29,12 +31,19 @@ type Doc = Record<string, unknown> & {
 // biome-ignore lint/suspicious/noExplicitAny: the edits reach into the parsed JSON freely, as a person editing the file would
 type Loose = any;
 
-async function makeCertificate(map: CollatzMap, from: bigint, to: bigint, sieveDepth: number, extra: { delay?: boolean } = {}) {
+async function makeCertificate(
+  map: CollatzMap,
+  from: bigint,
+  to: bigint,
+  sieveDepth: number,
+  extra: { delay?: boolean } = {},
+  known: KnownRecords | null = null,
+) {
   const req = { map, from, to, sieveDepth, stepDepth: 8, blocks: 4, ...extra };
   const r = await runVerify(pool, req);
   const plan = planVerify(req);
   const hashes = plan.engine === "kernel" ? await tableHashes(await verifyTables(pool, plan), sha256) : null;
-  const cert = await certificate(r, hashes, stamp, { started: "s", finished: "f", workers: 2 });
+  const cert = await certificate(r, hashes, stamp, { started: "s", finished: "f", workers: 2 }, known);
   return toExactJson(cert, 2);
 }
 
@@ -309,7 +318,10 @@ describe("certificate: each field, edited and re-sealed, and the step that finds
     ),
     2,
   );
-  const docs = { periods, negative, cycles, byClasses };
+  // the records known below 10^6 from the shipped lists (OEIS A060412 and A006884): the range holds
+  // the glide records 1027431 and 1126015 and the path record 1042431 of those lists (from memory)
+  const global = await makeCertificate(map, 1_000_000n, 1_000_000n + (1n << 17n), 10, {}, publishedKnown(map, 1_000_000n));
+  const docs = { periods, negative, cycles, byClasses, global };
   /** The certificate's own findings made again from its (edited) block table, as a careful forger would. */
   const rederive = (d: Record<string, Loose>) => {
     const c = readCertificate(toExactJson(d));
@@ -490,6 +502,57 @@ describe("certificate: each field, edited and re-sealed, and the step that finds
         d.counts.preimage += x;
       },
       { sampleZero: /^counts: \d+ checked and \d+ skipped of \d+ survivors at depth 20/ },
+    ],
+    [
+      "known: the assumed glide of its named n",
+      "global",
+      (d) => (d.known.glide.standardSteps += 1n),
+      { sampleZero: /^known\.glide \(n = 626331\): \d+ standard steps stated; BigInt iteration gives \d+/ },
+    ],
+    [
+      "known: its bound",
+      "global",
+      (d) => (d.known.below -= 1n),
+      { sampleZero: /^known\.below: 999999 in the certificate; the range's from gives 1000000/ },
+    ],
+    [
+      "known: a higher assumed path, its n removed",
+      "global",
+      (d) => {
+        d.known.path.n = null;
+        d.known.path.peakT *= 1000n;
+      },
+      {
+        sampleZero: /^globalRecords\.pathRecords: 1 entries in the certificate; the range's records above the known values gives 0 entries/,
+      },
+    ],
+    ["known: source as a number", "global", (d) => (d.known.source = 5n), { reader: /^known\.source must be a string/ }],
+    [
+      "globalRecords: a new record dropped",
+      "global",
+      (d) => d.globalRecords.glideRecords.pop(),
+      {
+        sampleZero:
+          /^globalRecords\.glideRecords: 1 entries in the certificate; the range's records above the known values gives 2 entries/,
+      },
+    ],
+    [
+      "globalRecords: the range's first record claimed new (it does not beat the known glide)",
+      "global",
+      (d) => d.globalRecords.glideRecords.unshift(d.glideRecords[0]),
+      {
+        sampleZero:
+          /^globalRecords\.glideRecords\[0\]\.n: 1000000 in the certificate; the range's records above the known values gives 1027431/,
+      },
+    ],
+    [
+      "globalRecords without known values",
+      "periods",
+      (d) => (d.globalRecords = { glideRecords: [], pathRecords: [] }),
+      {
+        sampleZero:
+          /^globalRecords: \{"glideRecords":\[\],"pathRecords":\[\]\} in the certificate; no known values \(known: null\) gives null/,
+      },
     ],
     ["tool", "periods", (d) => (d.tool.name = "other"), { reader: /^tool\.name must be "glidepath"/ }],
     ["workers", "periods", (d) => (d.workers = 0n), { reader: /^workers must be at least 1, got 0/ }],

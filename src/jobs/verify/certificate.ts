@@ -12,6 +12,8 @@ import type { BlockEntry, CycleEntrant, CycleMember, GlideRecord, PathRecord } f
 import type { VerifyResult } from "./merge.js";
 import type { VerifyRequest } from "./plan.js";
 import type { VerifyTableData } from "./tables.js";
+import { globalJson, globalRecords, knownJson } from "./known.js";
+import type { GlobalRecords, KnownRecords } from "./known.js";
 
 export const CERTIFICATE_KIND = "glidepath verification certificate";
 export const CHECKPOINT_KIND = "glidepath verification checkpoint";
@@ -110,9 +112,17 @@ export function verifyFindings(r: VerifyResult) {
   };
 }
 
+/**
+ * The records known below the range and the range's records new among all n (null and null without
+ * known values): the fields `known` and `globalRecords` of `--json` and the certificate.
+ */
+export function globalFindings(r: Pick<VerifyResult, "glideRecords" | "pathRecords">, known: KnownRecords | null) {
+  return { known: known && knownJson(known), globalRecords: known && globalJson(globalRecords(r, known)) };
+}
+
 /** The fields of `glidepath verify --json`: the certificate's, less the block table and provenance, plus the time. */
-export function verifyJson(r: VerifyResult) {
-  return { ...paramsJson(r), engine: r.engine, ...verifyFindings(r), seconds: Number(r.seconds.toFixed(3)) };
+export function verifyJson(r: VerifyResult, known: KnownRecords | null = null) {
+  return { ...paramsJson(r), engine: r.engine, ...verifyFindings(r), ...globalFindings(r, known), seconds: Number(r.seconds.toFixed(3)) };
 }
 
 /** The run's parameters as a certificate names them (verify --check compares each with the plan). */
@@ -137,7 +147,8 @@ export function paramsJson(
 
 /**
  * The certificate of a finished run: what was checked, how, what was found, block by block, and by
- * which build, with a digest per block entry and one over the whole document.
+ * which build, with a digest per block entry and one over the whole document; with `known` (the
+ * records below FROM), also those values and the range's records new among all n.
  * @example await certificate(result, hashes, stamp, { started, finished, workers: 2 })
  */
 export async function certificate(
@@ -145,6 +156,7 @@ export async function certificate(
   tables: TableHashes | null,
   tool: ToolStamp,
   run: { started: string; finished: string; workers: number },
+  known: KnownRecords | null = null,
 ) {
   const blockTable = await Promise.all(
     r.entries.map(async (e) => {
@@ -159,6 +171,7 @@ export async function certificate(
     engine: r.engine,
     tables,
     ...verifyFindings(r),
+    ...globalFindings(r, known),
     blockTable,
     tool: { name: "glidepath", ...tool },
     started: run.started,
@@ -393,6 +406,9 @@ export interface ReadCertificate {
   readonly tables: TableHashes | null;
   /** What it states it found, read strictly (verify --check compares it with the merge of the block table). */
   readonly findings: ReturnType<typeof verifyFindings>;
+  /** The records it assumed below FROM, and the new records it claims (null without known values). */
+  readonly known: KnownRecords | null;
+  readonly globalRecords: GlobalRecords | null;
   /** The document as parsed (exact integers), for the field-by-field comparison and the digest. */
   readonly document: Json;
   readonly entries: BlockEntry[];
@@ -427,6 +443,8 @@ const CERTIFICATE_FIELDS = [
   "delay",
   "handoffs",
   "blockCount",
+  "known",
+  "globalRecords",
   "blockTable",
   "tool",
   "started",
@@ -473,6 +491,25 @@ function readFindings(j: Json) {
   };
 }
 
+/** The known values a certificate assumed, read strictly (each n may be null: values given without their n). */
+function readKnown(x: unknown, p: string): KnownRecords {
+  const g = field(x, "glide", p);
+  const h = field(x, "path", p);
+  const maybeN = (o: unknown, at: string) => (field(o, "n", at) === null ? null : big(o, "n", at, 1n));
+  return {
+    below: big(x, "below", p, 1n),
+    glide: { n: maybeN(g, `${p}.glide`), standardSteps: int(g, "standardSteps", `${p}.glide`) },
+    path: { n: maybeN(h, `${p}.path`), peakT: big(h, "peakT", `${p}.path`) },
+    source: text(x, "source", p),
+  };
+}
+
+/** The new records a certificate claims, read strictly. */
+const readGlobal = (x: unknown, p: string): GlobalRecords => ({
+  glideRecords: readList(x, "glideRecords", p, readGlide),
+  pathRecords: readList(x, "pathRecords", p, readPath),
+});
+
 /** Parses a certificate file; one clear line naming the field when it is not one. */
 export function readCertificate(source: string): ReadCertificate {
   const j = parseDocument(source, "certificate");
@@ -517,6 +554,8 @@ export function readCertificate(source: string): ReadCertificate {
     engine: text(j, "engine"),
     tables: t === null ? null : { sieve: table("sieve"), steps: table("steps") },
     findings: readFindings(j),
+    known: nullable(j, "known", "", readKnown),
+    globalRecords: nullable(j, "globalRecords", "", readGlobal),
     document: j,
     entries,
     entryDigests,

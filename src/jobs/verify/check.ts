@@ -8,7 +8,7 @@ import { dropDepths } from "../../core/map.js";
 import { exactCounts } from "../../core/exact.js";
 import type { KernelPool } from "../../engine/pool.js";
 import { toExactJson } from "../../core/json.js";
-import { digestOf, entryJson, paramsJson, tableHashes, verifyFindings } from "./certificate.js";
+import { digestOf, entryJson, globalFindings, paramsJson, tableHashes, verifyFindings } from "./certificate.js";
 import type { ReadCertificate } from "./certificate.js";
 import { entryMismatch, mergeVerify } from "./merge.js";
 import type { VerifyCounts } from "./merge.js";
@@ -21,6 +21,8 @@ import { EXCEPTION_LIMIT } from "../sieve/exceptions.js";
 import { cycleBudget, cycleEntry, traceBig } from "./trace.js";
 import { delayBig } from "../../core/padic.js";
 import { runBlocks } from "./verify.js";
+import { knownMismatch } from "./known.js";
+import type { VerifyResult } from "./merge.js";
 
 /** What a check did, line by line, and the first difference found (null: the certificate holds). */
 export interface CheckReport {
@@ -433,6 +435,31 @@ async function rerunSample(plan: VerifyPlan, c: ReadCertificate, data: VerifyTab
 }
 
 /**
+ * Step 4 for the global records: the known values hold for the range's FROM, their n (where named)
+ * have those values by BigInt iteration, and the new records are the range's records (re-derived
+ * from the block table) that beat them. A line of what was checked, or null without known values.
+ */
+function checkGlobal(plan: VerifyPlan, c: ReadCertificate, merged: VerifyResult): string | null {
+  const known = c.known;
+  if (known === null) {
+    expectSame(c.document.globalRecords, null, "globalRecords", "no known values (known: null)");
+    return null;
+  }
+  expectSame(known.below, plan.from, "known.below", "the range's from");
+  const wrong = knownMismatch(plan.map, known, "known");
+  if (wrong) throw new Differs(wrong);
+  const derived = globalFindings(merged, known).globalRecords!;
+  expectSame(c.document.globalRecords, derived, "globalRecords", "the range's records above the known values");
+  const g = derived.glideRecords.length;
+  const p = derived.pathRecords.length;
+  return (
+    `the new records among all n (${g} glide, ${p} path): the range's records above the values assumed below ${plan.from} ` +
+    `(glide ${known.glide.standardSteps} standard steps, path ${known.path.peakT}; ${known.source})` +
+    `${known.glide.n !== null || known.path.n !== null ? ", their named n iterated again in BigInt" : ""}; that nothing below ${plan.from} beats those values is assumed, not checked`
+  );
+}
+
+/**
  * Checks a certificate read by readCertificate, step by step (README: what `verify --check` proves).
  * @example const report = await checkCertificate(readCertificate(text), { pool, sha256, sample: 8, randomBelow });
  */
@@ -461,6 +488,8 @@ export async function checkCertificate(c: ReadCertificate, o: CheckOptions): Pro
     checked.push(
       "counts, sieved counts by depth, maxima, glide and path records, cycle members and entrants, unresolved numbers, delays: each re-derived from the block table",
     );
+    const global = checkGlobal(plan, c, merged);
+    if (global) checked.push(global);
     // the run's tables, rebuilt once: hashed here, and the blocks below run again on them
     const data = plan.engine === "kernel" ? await verifyTables(o.pool, plan) : null;
     for (const [i, e] of c.entries.entries()) entryChecks(plan, data, e, i);

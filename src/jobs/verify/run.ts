@@ -10,6 +10,7 @@ import type { VerifyResult } from "./merge.js";
 import type { VerifyPlan, VerifyRequest } from "./plan.js";
 import { verifyTables } from "./tables.js";
 import type { VerifyTableData } from "./tables.js";
+import type { KnownRecords } from "./known.js";
 import { planOf, runVerify } from "./verify.js";
 import type { VerifyOptions } from "./verify.js";
 
@@ -70,7 +71,8 @@ export async function runVerification(
 }
 
 /**
- * The certificate of a result as its file holds it (JSON, two-space indents, a final newline).
+ * The certificate of a result as its file holds it (JSON, two-space indents, a final newline); with
+ * the records known below FROM, also the new records among all n.
  * @example await writeFile(path, await certificateText(result, hashes, stamp, { started, finished, workers }))
  */
 export async function certificateText(
@@ -78,6 +80,7 @@ export async function certificateText(
   hashes: TableHashes | null,
   stamp: ToolStamp,
   run: { readonly started: string; readonly finished: string; readonly workers: number },
+  known: KnownRecords | null = null,
 ): Promise<string> {
-  return `${toExactJson(await certificate(result, hashes, stamp, run), 2)}\n`;
+  return `${toExactJson(await certificate(result, hashes, stamp, run, known), 2)}\n`;
 }
