@@ -3,6 +3,12 @@
 import type { CollatzMap } from "../src/core/map.js";
 import { toExactJson } from "../src/core/json.js";
 import { manifest } from "../src/outputs/manifest.js";
+import type { CensusResult } from "../src/jobs/census/census.js";
+import type { CycleSearchResult } from "../src/jobs/cycles/cycles.js";
+import type { SieveResult } from "../src/jobs/sieve/sieve.js";
+import type { TreeResult } from "../src/jobs/tree/tree.js";
+import { censusCsv, levelsCsv, treeLevelsCsv } from "../src/outputs/screen.js";
+import { censusJson, cyclesCsv, cyclesJson, sieveJson, treeJson } from "../src/outputs/summary.js";
 import pkg from "../package.json";
 import { $, download } from "./dom.js";
 import { kernelBuildId, sha256 } from "./engine.js";
@@ -75,4 +81,58 @@ export function offerExports(id: string, title: string, what: string, files: rea
     return b;
   });
   bar.replaceChildren(label, ...buttons, said);
+}
+
+/**
+ * The Sieve view's downloads: the table by depth (CSV; JSON: sieve --json's fields) and, after a
+ * census, its tallies (CSV and Arrow: census --out's rows; JSON: census --json), with census --out's manifest.
+ */
+export function offerRunExports(result: SieveResult | CensusResult, census: CensusResult | null): void {
+  const { map, depth } = result;
+  const name = fileName(census ? "census" : "sieve", map.name, depth, "levels");
+  const levels = { kind: "glidepath levels", map, extra: { depth, rows: result.levels.length } };
+  offerExports("run-levels-exports", "Download the table by depth", "the table by depth", [
+    { ...levels, format: "csv", name, data: () => levelsCsv(result.levels) },
+    { ...levels, format: "json", name, data: () => `${toExactJson(sieveJson(result), 2)}\n` },
+  ]);
+  const bar = $("run-census-exports");
+  if (!census) {
+    bar.replaceChildren();
+    return;
+  }
+  const tallies = { kind: "glidepath census", map, name: fileName("census", map.name, depth), extra: { depth } };
+  offerExports("run-census-exports", "Download the census tallies", "the census tallies", [
+    { ...tallies, format: "csv", data: () => censusCsv(census) },
+    { ...tallies, format: "json", data: () => `${toExactJson(censusJson(census), 2)}\n` },
+    { ...tallies, format: "arrow", data: async () => (await import("../src/outputs/arrow.js")).censusArrow(census) },
+  ]);
+}
+
+/** The Cycles view's downloads: CSV (its columns as on screen), JSON (cycles --json), Arrow (cycles --out), with cycles --out's manifest. */
+export function offerCyclesExports(r: CycleSearchResult): void {
+  const file = {
+    kind: "glidepath cycles",
+    map: r.map,
+    name: fileName("cycles", r.map.name, "period", r.maxPeriod),
+    extra: { maxPeriod: r.maxPeriod, rows: r.cycles.length },
+  };
+  offerExports("cycles-exports", "Download the cycles", "the cycles", [
+    { ...file, format: "csv", data: () => cyclesCsv(r) },
+    { ...file, format: "json", data: () => `${toExactJson(cyclesJson(r), 2)}\n` },
+    { ...file, format: "arrow", data: async () => (await import("../src/outputs/arrow.js")).cyclesArrow(r) },
+  ]);
+}
+
+/** The Inverse tree view's downloads: its levels as CSV and as JSON (tree --json). */
+export function offerTreeExports(r: TreeResult): void {
+  const file = {
+    kind: "glidepath tree levels",
+    map: r.map,
+    name: fileName("tree", r.map.name, r.n, "depth", r.depth, ...(r.steps === "standard" ? ["standard"] : []), "levels"),
+    extra: { n: r.n, depth: r.depth, steps: r.steps, rows: r.levels.length },
+  };
+  offerExports("tree-levels-exports", "Download the levels", "the tree's levels", [
+    { ...file, format: "csv", data: () => treeLevelsCsv(r) },
+    { ...file, format: "json", data: () => `${toExactJson(treeJson(r), 2)}\n` },
+  ]);
 }

@@ -4,7 +4,7 @@ import type { View } from "./state.js";
 import { cancelRun, readRunForm, startRun } from "./views/run.js";
 import { refreshTable, setupTable } from "./views/table.js";
 import { runInspect } from "./views/inspect.js";
-import { cancelCycles, exportCycles, runCycles } from "./views/cycles.js";
+import { cancelCycles, runCycles } from "./views/cycles.js";
 import { applyPreset, cancelVerify, downloadCertificate, startVerify, syncVerifyForm } from "./views/verify.js";
 import { resizeCharts } from "./views/charts.js";
 import { defaultWorkers } from "./engine.js";
@@ -147,7 +147,6 @@ function setup(): void {
   }
   $("run-cancel").addEventListener("click", cancelRun);
   $("cycles-cancel").addEventListener("click", cancelCycles);
-  $("cycles-export").addEventListener("click", exportCycles);
   $("tree-cancel").addEventListener("click", cancelTree);
   setupTree((n, map) => openInInspector(String(n), map.name));
   $("verify-cancel").addEventListener("click", cancelVerify);

@@ -4,8 +4,8 @@ import type { CollatzMap } from "../../src/core/map.js";
 import { cycleWidth, MAX_CYCLE_PERIOD, searchCycles } from "../../src/jobs/cycles/cycles.js";
 import type { CycleSearchResult } from "../../src/jobs/cycles/cycles.js";
 import { RunController } from "../controller.js";
-import { $, download, fieldError, parseField, ResultsPanel } from "../dom.js";
-import { cyclesCsv } from "../../src/outputs/summary.js";
+import { $, fieldError, parseField, ResultsPanel } from "../dom.js";
+import { offerCyclesExports } from "../export.js";
 import { pagePoolPending, withPagePool } from "../engine.js";
 import { parseCount } from "../../src/core/parse.js";
 import { group } from "../../src/outputs/format.js";
@@ -15,7 +15,6 @@ import { positiveCycles } from "../../src/jobs/cyclebound.js";
 import { cycleBoundLine } from "../../src/outputs/cyclebound.js";
 
 const panel = new ResultsPanel("cycles-results", "cycles-stale", "cycles-form");
-let last: CycleSearchResult | null = null;
 const controller = new RunController({
   results: panel,
   start: "cycles-go",
@@ -54,7 +53,7 @@ function boundLine(r: CycleSearchResult): string {
 }
 
 function renderCycles(r: CycleSearchResult): void {
-  last = r;
+  offerCyclesExports(r);
   panel.shown(`${r.map.name}, period up to ${r.maxPeriod}`);
   controller.say(
     `${r.cycles.length} integer cycles of ${r.map.name} with period <= ${r.maxPeriod} (complete search, ${r.width}-bit, ` +
@@ -91,9 +90,4 @@ export async function runCycles(mapText: string, periodText: string, workers: nu
 
 export function cancelCycles(): void {
   controller.cancel();
-}
-
-/** Hands the last search's cycles over as CSV (one row a cycle, its elements space-separated). */
-export function exportCycles(): void {
-  if (last) download(`cycles-${last.map.name}-period-${last.maxPeriod}.csv`, [cyclesCsv(last)], "text/csv");
 }

@@ -18,6 +18,7 @@ import { density, group, ratioText } from "../../src/outputs/format.js";
 import { pagePoolPending, withPagePool } from "../engine.js";
 import { RunController } from "../controller.js";
 import { drawCensus, drawDensity, drawHeat, drawStopped } from "./charts.js";
+import { offerRunExports } from "../export.js";
 import { showTable } from "./table.js";
 import { readWorkers } from "../workers.js";
 import { $, fieldError, parseField, ResultsPanel } from "../dom.js";
@@ -217,6 +218,7 @@ async function renderRun(req: RunRequest, r: RunResult, exact: readonly Level[],
     ...(census ? { census: censusJson(census) } : {}),
   };
   $("run-summary").textContent = toExactJson(summary);
+  offerRunExports(result, census);
 }
 
 function yieldToPage(): Promise<void> {

@@ -13,6 +13,7 @@ import { RunController } from "../controller.js";
 import { $, fieldError, parseField, ResultsPanel } from "../dom.js";
 import { pagePoolPending, withPagePool } from "../engine.js";
 import { drawTreeLevels } from "./charts.js";
+import { offerTreeExports } from "../export.js";
 
 /** The drawing shows depths up to this, and stops at the depth where it would pass DRAW_NODES. */
 const DRAW_DEPTH = 20;
@@ -180,6 +181,7 @@ export async function startTree(workers: number): Promise<boolean> {
   renderLevels(r);
   renderDrawing(r);
   $("run-summary").textContent = toExactJson({ tree: treeJson(r) });
+  offerTreeExports(r);
   return true;
 }
 

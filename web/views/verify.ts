@@ -292,7 +292,7 @@ function renderCharts(r: VerifyResult): void {
   drawCutDepths(r.counts.sievedByDepth);
   const pub = (kind: "glide" | "path", name: string) => {
     const points = publishedIn(r, kind);
-    return points && { name: `OEIS ${name} (below 2^32)`, points };
+    return points && { name: `OEIS ${name} (below 2^${RECORDS_LISTED_BELOW.toString(2).length - 1})`, points };
   };
   drawRecords(
     "chart-glide-records",
@@ -321,7 +321,7 @@ function renderCharts(r: VerifyResult): void {
   if (first !== undefined) drawOrbit(r, first);
   offerExports("verify-cut-exports", "Download", "the numbers sieved by cut depth", [
     exportOf(r, "csv", "cut-depths", "glidepath verify cut depths", () => cutDepthsCsv(r), cut.length),
-    exportOf(r, "json", "cut-depths", "glidepath verify cut depths", () => toExactJson(cutDepthsJson(r), 2), cut.length),
+    exportOf(r, "json", "cut-depths", "glidepath verify cut depths", () => `${toExactJson(cutDepthsJson(r), 2)}\n`, cut.length),
   ]);
   const lists = [
     ["glide", "glideRecords", r.glideRecords.length, () => glideRecordsCsv(r.glideRecords)],
@@ -335,7 +335,7 @@ function renderCharts(r: VerifyResult): void {
     }
     offerExports(`verify-${kind}-exports`, `Download the ${kind} records`, `the ${kind} records`, [
       exportOf(r, "csv", `${kind}-records`, `glidepath verify ${kind} records`, csv, count),
-      exportOf(r, "json", `${kind}-records`, `glidepath verify ${kind} records`, () => toExactJson(recordsJson(r, key), 2), count),
+      exportOf(r, "json", `${kind}-records`, `glidepath verify ${kind} records`, () => `${toExactJson(recordsJson(r, key), 2)}\n`, count),
     ]);
   }
 }
