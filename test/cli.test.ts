@@ -452,7 +452,68 @@ describe("cli: verify", () => {
     expect(j.counts.numbers).toBe("100");
   });
 
+  it("verify --known-published: the new records among all n in the report, --json and the certificate, which --check re-derives", async () => {
+    const cert = join(dir, "global.cert.json");
+    const args = ["verify", "--from", "10^6", "--to", "10^6+2^17", "--sieve-depth", "10", "--workers", "2"];
+    const text = await cli(...args, "--known-published", "--out", cert);
+    expect(text.code).toBe(0);
+    // OEIS A060412 (1027431, 1126015) and A006884 (1042431) in the range, beyond the last terms below 10^6 (626331, 704511; from memory)
+    expect(text.stdout).toMatch(
+      /known below 1000000: largest glide \d+ standard steps, n = 626331; largest path \(under T\) \d+, n = 704511/,
+    );
+    expect(text.stdout).toMatch(/new glide records among all n .*: 2\n +1027431 +\d+\n +1126015 +365\n/);
+    expect(text.stdout).toMatch(/new path records among all n .*: 1\n +1042431 +\d+\n/);
+    const j = parseExactJson((await cli(...args, "--known-glide", "287", "--known-path", "28495741760", "--json")).stdout) as {
+      known: { below: bigint; source: string };
+      globalRecords: { glideRecords: { n: bigint }[]; pathRecords: { n: bigint }[] };
+    };
+    expect(j.known.below).toBe(1000000n);
+    expect(j.globalRecords.glideRecords.map((g) => g.n)).toEqual([1027431n, 1126015n]);
+    expect(j.globalRecords.pathRecords.map((g) => g.n)).toEqual([1042431n]);
+    const ok = await cli("verify", "--check", cert, "--sample", "2");
+    expect(ok.stdout).toMatch(/the new records among all n \(2 glide, 1 path\)/);
+    // an edited claim, every digest recomputed: one line, exit 1
+    const { digestOf } = await import("../src/jobs/verify/certificate.js");
+    const { toExactJson } = await import("../src/core/json.js");
+    const d = parseExactJson(readFileSync(cert, "utf8")) as Record<string, unknown> & { globalRecords: { pathRecords: unknown[] } };
+    d.globalRecords.pathRecords = [];
+    delete d.digest;
+    d.digest = await digestOf(d);
+    writeFileSync(cert, toExactJson(d, 2));
+    const refused = await cli("verify", "--check", cert);
+    expect(refused.code).toBe(1);
+    expect(refused.stdout.trim().split("\n")).toHaveLength(1);
+    expect(refused.stdout).toMatch(
+      /^the certificate does NOT hold: globalRecords\.pathRecords: 0 entries in the certificate; the range's records above the known values gives 1 entries/,
+    );
+  });
+
+  const knownBad = join(dir, "known-bad.json");
+  writeFileSync(knownBad, '{"kind": "glidepath known records", "version": 1, "records": [{"map": "3x+1", "below": 1000}');
+  const knownNegative = join(dir, "known-negative.json");
+  writeFileSync(
+    knownNegative,
+    '{"kind": "glidepath known records", "version": 1, "records": [{"map": "3x+1", "below": 1000, "glide": {"n": null, "standardSteps": -3}, "path": {"n": null, "peakT": 5}, "source": "x"}]}',
+  );
   const bad: [string[], number, RegExp][] = [
+    [["verify", "--from", "1000", "--to", "2000", "--known", knownBad], 2, /^glidepath: --known .*known-bad\.json: not JSON\n$/],
+    [
+      ["verify", "--from", "1000", "--to", "2000", "--known", knownNegative],
+      2,
+      /records\[0\]\.glide\.standardSteps must be a whole number/,
+    ],
+    [
+      ["verify", "--from", "1000", "--to", "2000", "--known-glide", "-3", "--known-path", "5"],
+      2,
+      /--known-glide must be a whole number \(0 or more\), got "-3"/,
+    ],
+    [["verify", "--from", "1000", "--to", "2000", "--known-glide", "3"], 2, /--known-glide and --known-path go together/],
+    [
+      ["verify", "--map", "3x+5", "--from", "1000", "--to", "2000", "--known-published"],
+      2,
+      /the published record lists are of 3x\+1, not 3x\+5/,
+    ],
+    [["verify", "--from", "2^50", "--to", "2^50+10", "--known-published"], 2, /cover n up to \d+; FROM = 1125899906842624 lies beyond/],
     [["verify", "--from", "10", "--to", "10"], 2, /--to must be above --from/],
     [["verify", "--from", "-5", "--to", "10"], 2, /--from must be a whole number/],
     [["verify", "--from", "1.5", "--to", "10"], 2, /--from must be a whole number/],

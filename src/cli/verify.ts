@@ -12,6 +12,8 @@ import { checkCertificate } from "../jobs/verify/check.js";
 import type { BlockEntry } from "../jobs/verify/block.js";
 import type { VerifyResult } from "../jobs/verify/merge.js";
 import { verifyClaim } from "../jobs/verify/claim.js";
+import { givenKnown, globalRecords, publishedKnown, readKnownFile } from "../jobs/verify/known.js";
+import type { KnownRecords } from "../jobs/verify/known.js";
 import {
   DEFAULT_MAX_STEPS,
   DEFAULT_SIEVE_DEPTH,
@@ -51,6 +53,10 @@ interface VerifyOptions extends RawOptions {
   readonly stepTable?: string;
   readonly periods?: boolean;
   readonly preimage?: boolean;
+  readonly known?: string;
+  readonly knownPublished?: boolean;
+  readonly knownGlide?: string;
+  readonly knownPath?: string;
 }
 
 /** A table file named on the command line, read with its manifest (FILE.json) and checked against it. */
@@ -163,7 +169,27 @@ export function verifyCommand(program: Command): Command {
     .option("--sample <N>", "with --check: blocks to run again, chosen at random (default 8)")
     .option("--full", "with --check: run every block again")
     .option("--string-integers", "with --json: write integers as strings (for readers that parse numbers as doubles)")
+    .option(
+      "--known <FILE>",
+      "the records known below FROM (a JSON file, README: global records): report which records of the range are new among all n",
+    )
+    .option("--known-published", "the same from the published lists glidepath ships for 3x+1 (OEIS A060412 and A006884)")
+    .option("--known-glide <S>", "the largest glide (standard steps) of any n below FROM; with --known-path")
+    .option("--known-path <P>", "the largest path (highest value under T before the descent) of any n below FROM; with --known-glide")
     .action((o: VerifyOptions) => (o.check !== undefined ? check(o) : verify(o)));
+}
+
+/** The records known below the range (--known FILE, --known-published, or --known-glide with --known-path), or null. */
+function knownOption(o: VerifyOptions, map: CollatzMap, from: bigint): KnownRecords | null {
+  const given = [o.known !== undefined, o.knownPublished === true, o.knownGlide !== undefined || o.knownPath !== undefined];
+  if (given.filter(Boolean).length > 1)
+    throw new UsageError("give the records known below FROM one way: --known FILE, --known-published, or --known-glide with --known-path");
+  if (o.known !== undefined) return readKnownFile(readText(o.known), o.known, map, from);
+  if (o.knownPublished) return publishedKnown(map, from);
+  if (o.knownGlide === undefined && o.knownPath === undefined) return null;
+  if (o.knownGlide === undefined || o.knownPath === undefined)
+    throw new UsageError("--known-glide and --known-path go together: the largest glide and the largest path below FROM");
+  return givenKnown(from, o.knownGlide, o.knownPath);
 }
 
 function request(o: VerifyOptions, map: CollatzMap): VerifyRequest {
@@ -254,6 +280,7 @@ async function verify(o: VerifyOptions): Promise<void> {
   else if (checkpointPath !== undefined && out && resolve(out.path) === resolve(checkpointPath))
     throw new UsageError("--out and --checkpoint name the same file: give each its own");
   const checkTables = tableFiles(o, plan);
+  const known = knownOption(o, plan.map, plan.from);
   const workers = workersOption(o.workers);
   const stamp = await toolStamp();
   const started = new Date().toISOString();
@@ -299,14 +326,18 @@ async function verify(o: VerifyOptions): Promise<void> {
   // a certificate that cannot be written (a full disk) loses neither the report nor the checkpoint
   let unwritten: Error | null = null;
   if (out) {
-    const text = await certificateText(result, hashes, stamp, { started, finished: new Date().toISOString(), workers });
+    const text = await certificateText(result, hashes, stamp, { started, finished: new Date().toISOString(), workers }, known);
     try {
       await writeFileAtomic(out.path, text);
     } catch (e) {
       unwritten = e instanceof Error ? e : new Error(String(e));
     }
   }
-  print(o.json ? `${jsonText({ ...verifyJson(result), ...processJson(result) }, o.stringIntegers)}\n` : verifyText(result, workers));
+  print(
+    o.json
+      ? `${jsonText({ ...verifyJson(result, known), ...processJson(result) }, o.stringIntegers)}\n`
+      : verifyText(result, workers, known),
+  );
   if (out && !unwritten) note(`wrote the certificate to ${out.path}\n`);
   if (checkpointPath) note(`checkpoint: ${checkpointPath} (complete: ${plural(plan.blocks.length, "block")})\n`);
   if (unwritten)
@@ -338,8 +369,24 @@ function verifyHeader(p: Pick<VerifyPlan, "map" | "from" | "to" | "sieveDepth" |
   return `verification of ${p.map.name} over [${p.from}, ${p.to}): ${group(p.to - p.from)} numbers, ${how}, table steps of ${p.stepDepth}`;
 }
 
+/** The report's lines on the records known below FROM and the range's records new among all n. */
+function globalText(r: VerifyResult, known: KnownRecords): string[] {
+  const g = globalRecords(r, known);
+  const at = (n: bigint | null) => (n === null ? "" : `, n = ${n}`);
+  return [
+    `known below ${r.from}: largest glide ${known.glide.standardSteps} standard steps${at(known.glide.n)}; largest path (under T) ${known.path.peakT}${at(known.path.n)}`,
+    `  (assumed, not checked by this run: ${known.source})`,
+    `new glide records among all n (beat the known glide and every smaller n of the range; standard steps): ${g.glideRecords.length}`,
+    ...g.glideRecords.slice(0, TEXT_RECORDS).map((x) => `  ${String(x.n).padStart(22)}  ${x.standardSteps}`),
+    ...(g.glideRecords.length > TEXT_RECORDS ? [`  ... and ${g.glideRecords.length - TEXT_RECORDS} more (--json lists them all)`] : []),
+    `new path records among all n (beat the known path and every smaller n of the range; highest value under T): ${g.pathRecords.length}`,
+    ...g.pathRecords.slice(0, TEXT_RECORDS).map((x) => `  ${String(x.n).padStart(22)}  ${x.peakT}`),
+    ...(g.pathRecords.length > TEXT_RECORDS ? [`  ... and ${g.pathRecords.length - TEXT_RECORDS} more (--json lists them all)`] : []),
+  ];
+}
+
 /** The report after its first line. */
-function verifyText(r: VerifyResult, workers: number): string {
+function verifyText(r: VerifyResult, workers: number, known: KnownRecords | null): string {
   const c = r.counts;
   // what the run proves, from its counts (the page states the same lines)
   const claim = verifyClaim(r);
@@ -368,6 +415,7 @@ function verifyText(r: VerifyResult, workers: number): string {
     `path records (n whose highest value under T beats every smaller n of the range): ${r.pathRecords.length}`,
     ...r.pathRecords.slice(0, TEXT_RECORDS).map((p) => `  ${String(p.n).padStart(22)}  ${p.peakT}`),
     ...(r.pathRecords.length > TEXT_RECORDS ? [`  ... and ${r.pathRecords.length - TEXT_RECORDS} more (--json lists them all)`] : []),
+    ...(known ? globalText(r, known) : []),
     ...(r.delay
       ? [
           `delay records (n whose steps to reach 1 beat every smaller n of the range; standard steps): ${r.delay.records.length}` +
@@ -424,8 +472,20 @@ function timeLine(r: VerifyResult, workers: number): string {
 }
 
 async function check(o: VerifyOptions): Promise<void> {
-  if (o.from !== undefined || o.to !== undefined || o.out !== undefined || o.resume !== undefined || o.checkpoint !== undefined)
-    throw new UsageError("--check reads everything from the certificate: give no range, --out or checkpoint");
+  if (
+    o.from !== undefined ||
+    o.to !== undefined ||
+    o.out !== undefined ||
+    o.resume !== undefined ||
+    o.checkpoint !== undefined ||
+    o.known !== undefined ||
+    o.knownPublished === true ||
+    o.knownGlide !== undefined ||
+    o.knownPath !== undefined
+  )
+    throw new UsageError(
+      "--check reads everything from the certificate (the known records too): give no range, --out, checkpoint or --known",
+    );
   if (o.full && o.sample !== undefined) throw new UsageError("--full runs every block again: give no --sample with it");
   const c = readCertificate(readText(o.check!));
   const sample = intOption("sample", o.sample, 0, 1_000_000, 8);
