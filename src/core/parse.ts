@@ -1,24 +1,29 @@
-// Whole numbers as people write them, for every command and form: decimal digits, or a sum of terms
-// each decimal or b^e (2^50+2^32), of any size.
+// Whole numbers as people write them, for every command and form: decimal digits, or a sum or
+// difference of terms each decimal or b^e (2^50+2^32, 2^61-1), of any size.
 import { UsageError } from "./errors.js";
 
 /** The largest exponent accepted in b^e (2^100000 has 30,103 digits). */
 const MAX_EXPONENT = 100_000;
 
 /**
- * A whole number of any size: decimal digits, or a sum of terms each decimal or b^e.
+ * A whole number of any size: decimal digits, or terms each decimal or b^e joined by + and -, the
+ * first term positive; the value may not be negative.
  * @example parseWhole("--from", "2^40+5") // 1099511627781n
+ * @example parseWhole("N", "2^61-1") // 2305843009213693951n
  */
 export function parseWhole(name: string, text: string | undefined): bigint {
   if (text === undefined) throw new UsageError(`${name} is required`);
   const t = text.replace(/\s+/g, "");
-  if (!/^(\d+(\^\d+)?)(\+\d+(\^\d+)?)*$/.test(t))
-    throw new UsageError(`${name} must be a whole number (digits, or powers such as 2^50+2^32), got "${text}"`);
-  return t.split("+").reduce((s, term) => {
-    const [b, e] = term.split("^");
+  if (!/^(\d+(\^\d+)?)([+-]\d+(\^\d+)?)*$/.test(t))
+    throw new UsageError(`${name} must be a whole number (digits, or powers such as 2^50+2^32 or 2^61-1), got "${text}"`);
+  const value = t.match(/[+-]?[^+-]+/g)!.reduce((s, term) => {
+    const [b, e] = term.replace(/^[+-]/, "").split("^");
     if (e !== undefined && Number(e) > MAX_EXPONENT) throw new UsageError(`${name}: exponent ${e} is too large (at most ${MAX_EXPONENT})`);
-    return s + (e === undefined ? BigInt(b!) : BigInt(b!) ** BigInt(e));
+    const v = e === undefined ? BigInt(b!) : BigInt(b!) ** BigInt(e);
+    return term.startsWith("-") ? s - v : s + v;
   }, 0n);
+  if (value < 0n) throw new UsageError(`${name} must be a whole number, got "${text}" = ${value}`);
+  return value;
 }
 
 /**

@@ -21,8 +21,8 @@ export type InspectInput =
   | { readonly kind: "residue"; readonly a: bigint; readonly k: number };
 
 /**
- * Reads "w:1101000" (a parity word, first step first), "27" or "2^100+1" (a number, any size, may
- * be negative)
+ * Reads "w:1101000" (a parity word, first step first), "27", "2^100+1" or "2^9999-1" (a number, any
+ * size, may be negative)
  * or "27 mod 2^5" / "27 mod 32" (a residue class).
  * @example parseInspectInput("3 mod 16") // { kind: "residue", a: 3n, k: 4 }
  */
@@ -43,9 +43,9 @@ export function parseInspectInput(text: string): InspectInput {
     return { kind: "residue", a: BigInt(m[1]!), k };
   }
   if (/^-?\d+$/.test(t)) return { kind: "number", n: BigInt(t) };
-  // a sum of powers, as every other field takes (2^100+1); negative as -(...)
+  // sums and differences of powers, as every other field takes (2^100+1, 2^9999-1); negative as -(...)
   const neg = /^-\s*(.*)$/.exec(t);
-  if (/^[\d^+ ]+$/.test(neg ? neg[1]! : t)) {
+  if (/^[\d^+\- ]+$/.test(neg ? neg[1]! : t)) {
     const n = parseWhole("the number", neg ? neg[1]! : t);
     return { kind: "number", n: neg ? -n : n };
   }

@@ -63,7 +63,7 @@ function renderCycles(r: CycleSearchResult): void {
     .map(
       (c) =>
         `<tr><td>${c.representative > 0n ? "positive" : "negative"}</td><td>${c.min}</td><td>${c.representative}</td><td>` +
-        `${c.period}</td><td>${c.odd}</td><td class="left">` +
+        `${c.period}</td><td>${c.odd}</td><td class="elements">` +
         `${c.elements.length <= 40 ? c.elements.join(" ") : `${c.elements.slice(0, 40).join(" ")} …`}</td></tr>`,
     )
     .join("");

@@ -269,5 +269,11 @@ function renderGrid(map: CollatzMap, depth: number): void {
   $("grid-title").textContent = `Residues mod 2^${k} by stopping depth`;
   $("grid-legend").textContent =
     `${2 ** k} cells, a = 0 at the top left, row by row; orange: survivors at depth ${k}; ` +
-    `dark to light: classes stopping at depth 1 to ${k}. Hover a cell for its residue.`;
+    `dark to light: classes stopping at depth 1 to ${k}.`;
+  // a click or a tap on a cell says its residue (the hover title is not reachable on a touch screen)
+  $("grid-picked").textContent = "";
+  grid.onclick = (e) => {
+    const cell = e.target as HTMLElement;
+    if (cell.parentElement === grid) $("grid-picked").textContent = cell.title;
+  };
 }

@@ -1,6 +1,8 @@
 // The Inverse tree view: N, map, depth and convention to the level table, the nodes per level against
 // the heuristic growth, and a drawing of the tree's top levels (one row per depth, nodes ordered by
-// value, coloured by residue mod 3), with zoom; a click on a node opens it in the Inspector.
+// value, coloured by residue mod 3 in the scheme's palette, style.css), with zoom; a click or a tap
+// near a node opens it in the Inspector. From the keyboard the drawing is one Tab stop: arrow keys
+// move along a row and between a node and its parent or children, Enter opens the node.
 import { parseMap } from "../../src/core/map.js";
 import type { CollatzMap } from "../../src/core/map.js";
 import { checkTree, heuristicGrowth, MAX_TREE_DEPTH, runTree, treeEdges } from "../../src/jobs/tree/tree.js";
@@ -19,10 +21,12 @@ import { offerTreeExports } from "../export.js";
 const DRAW_DEPTH = 20;
 const DRAW_NODES = 3000;
 const WIDTH = 1000;
-/** Okabe-Ito colours for residues 0, 1, 2 mod 3. */
-const BY_RESIDUE = ["#D55E00", "#0072B2", "#009E73"];
-/** The dark scheme's node colours: lighter, each at least 4.5:1 on the dark panel. */
-const BY_RESIDUE_DARK = ["#FF8C42", "#56B4E9", "#3FCF9F"];
+/** A tap or click this many screen pixels from a node's centre still opens it (a 24 px target). */
+const TAP_RADIUS = 12;
+/** Labels: font size and gap to the node in screen pixels, and the width of a digit (em, a little above the system fonts'). */
+const LABEL_PX = 13;
+const LABEL_GAP = 8;
+const DIGIT_EM = 0.62;
 
 const panel = new ResultsPanel("tree-results", "tree-stale", "tree-form");
 const controller = new RunController({
@@ -38,6 +42,18 @@ let openNode: (n: bigint, map: CollatzMap) => void = () => {};
 let drawnMap: CollatzMap | null = null;
 let view = { x: 0, y: 0, w: WIDTH, h: 400 };
 let whole = { ...view };
+
+/** The drawing's nodes: rows by depth (ascending), each node's place, parent, children and circle. */
+interface Drawn {
+  readonly rows: bigint[][];
+  readonly at: Map<bigint, readonly [x: number, y: number, depth: number, index: number]>;
+  readonly parent: Map<bigint, bigint>;
+  readonly children: Map<bigint, bigint[]>;
+  readonly circle: Map<bigint, SVGCircleElement>;
+}
+let drawn: Drawn | null = null;
+/** The node that holds the drawing's one Tab stop. */
+let current: bigint | null = null;
 
 /** Reads and checks the form; errors appear beside the fields and nothing runs. */
 function readTreeForm(): TreeParams | null {
@@ -87,10 +103,14 @@ function renderDrawing(r: TreeResult): void {
   }
   const rows: bigint[][] = [];
   const parent = new Map<bigint, bigint>();
+  const children = new Map<bigint, bigint[]>();
   for (const e of treeEdges(r.map, r.steps, r.n, depth)) {
     if (!rows[e.depth]) rows[e.depth] = [];
     rows[e.depth]!.push(e.node);
-    if (e.parent !== null) parent.set(e.node, e.parent);
+    if (e.parent !== null) {
+      parent.set(e.node, e.parent);
+      children.set(e.parent, [...(children.get(e.parent) ?? []), e.node]);
+    }
   }
   // rows spread over the drawing's own shape (in units where its width is WIDTH); node size from the widest row
   const box = svg.getBoundingClientRect();
@@ -98,10 +118,10 @@ function renderDrawing(r: TreeResult): void {
   const unit = box.width > 0 ? WIDTH / box.width : 1; // user units per screen pixel
   const ROW = Math.min(60, (height - 40) / Math.max(1, depth));
   const radius = Math.max(1.2, Math.min(5, (0.35 * WIDTH) / Math.max(...rows.map((row) => row.length))));
-  const at = new Map<bigint, [x: number, y: number, depth: number]>();
+  const at = new Map<bigint, readonly [number, number, number, number]>();
   rows.forEach((row, j) => {
     row.forEach((n, i) => {
-      at.set(n, [((i + 0.5) / row.length) * WIDTH, j * ROW + 20, j]);
+      at.set(n, [((i + 0.5) / row.length) * WIDTH, j * ROW + 20, j, i]);
     });
   });
   const ns = "http://www.w3.org/2000/svg";
@@ -112,37 +132,49 @@ function renderDrawing(r: TreeResult): void {
   };
   const edges = make("g", {});
   const nodes = make("g", {});
-  for (const [n, [x, y, j]] of at) {
+  const circle = new Map<bigint, SVGCircleElement>();
+  const labelWidth = (n: bigint) => String(n).length * DIGIT_EM * LABEL_PX * unit;
+  let right = WIDTH; // the right end of the widest label, in user units
+  for (const [n, [x, y, j, i]] of at) {
     const p = parent.get(n);
     if (p !== undefined) {
       const [px, py] = at.get(p)!;
       edges.append(make("line", { class: "edge", x1: x, y1: y, x2: px, y2: py }));
     }
+    // one Tab stop for the whole drawing: the root's, until the arrow keys move it (roving tabindex)
     const c = make("circle", {
-      class: "node",
+      class: `node r${((n % 3n) + 3n) % 3n}`,
       cx: x,
       cy: y,
       r: radius,
-      fill: (matchMedia("(prefers-color-scheme: dark)").matches ? BY_RESIDUE_DARK : BY_RESIDUE)[Number(n % 3n)]!,
       "data-n": String(n),
-      tabindex: 0,
+      tabindex: j === 0 ? 0 : -1,
       role: "button",
       "aria-label": `${n}, depth ${j}: open in the Inspector`,
-    });
+    }) as SVGCircleElement;
     const title = document.createElementNS(ns, "title");
     title.textContent = `${n} (depth ${j}, ${n % 3n} mod 3)`;
     c.append(title);
     nodes.append(c);
-    if (rows[j]!.length <= 16) {
-      // labels of about 12 px on screen whatever the drawing's width (the viewBox scales user units)
-      const t = make("text", { x: x + 8 * unit, y: y + 4 * unit, "font-size": 13 * unit });
+    circle.set(n, c);
+    // a label (about 12 px on screen whatever the drawing's width) where it ends before the next node of its row
+    const row = rows[j]!;
+    const room = i + 1 < row.length ? at.get(row[i + 1]!)![0] - x : Number.POSITIVE_INFINITY;
+    const end = LABEL_GAP * unit + labelWidth(n);
+    if (row.length <= 16 && end + 4 * unit <= room) {
+      const t = make("text", { x: x + LABEL_GAP * unit, y: y + 4 * unit, "font-size": LABEL_PX * unit });
       t.textContent = String(n);
       nodes.append(t);
+      right = Math.max(right, x + end);
     }
   }
-  svg.replaceChildren(edges, nodes);
+  const ring = make("circle", { class: "focus-ring", r: 0, visibility: "hidden" });
+  svg.replaceChildren(edges, nodes, ring);
   drawnMap = r.map;
-  whole = { x: -10, y: 0, w: WIDTH + 20, h: Math.max(height, depth * ROW + 40) };
+  drawn = { rows, at, parent, children, circle };
+  current = r.n;
+  // the whole tree and every label: the last label of a row may end past WIDTH
+  whole = { x: -10, y: 0, w: right + 20, h: Math.max(height, depth * ROW + 40) };
   setView(whole);
   $("tree-drawing-caption").textContent =
     `The tree of ${r.n} to depth ${depth} (${group(count)} nodes): one row per depth, nodes ordered by value, coloured by ` +
@@ -150,9 +182,90 @@ function renderDrawing(r: TreeResult): void {
     (depth < r.depth ? `; the drawing stops at depth ${depth} to stay within ${group(DRAW_NODES)} nodes` : "");
 }
 
+/** User units per screen pixel at the present zoom. */
+function unitNow(): number {
+  const box = ($("tree-drawing") as unknown as SVGSVGElement).getBoundingClientRect();
+  return box.width > 0 ? view.w / box.width : 1;
+}
+
+/** The focus ring around the keyboard's node, about TAP_RADIUS px on screen; hidden when the focus is elsewhere. */
+function placeRing(): void {
+  const ring = document.querySelector<SVGCircleElement>("#tree-drawing .focus-ring");
+  if (!ring || !drawn || current === null) return;
+  const c = drawn.circle.get(current);
+  const focused = c !== undefined && document.activeElement === c;
+  ring.setAttribute("visibility", focused ? "visible" : "hidden");
+  if (!focused) return;
+  const [x, y] = drawn.at.get(current)!;
+  ring.setAttribute("cx", String(x));
+  ring.setAttribute("cy", String(y));
+  ring.setAttribute("r", String(Math.max(Number(c.getAttribute("r")) + 2 * unitNow(), (TAP_RADIUS - 4) * unitNow())));
+}
+
+/** Moves the drawing's Tab stop and the focus to node `n`, panning the view to it if it is out of sight. */
+function focusNode(n: bigint): void {
+  if (!drawn) return;
+  const c = drawn.circle.get(n);
+  if (!c) return;
+  if (current !== null) drawn.circle.get(current)?.setAttribute("tabindex", "-1");
+  c.setAttribute("tabindex", "0");
+  current = n;
+  const [x, y] = drawn.at.get(n)!;
+  if (x < view.x || x > view.x + view.w || y < view.y || y > view.y + view.h) setView({ ...view, x: x - view.w / 2, y: y - view.h / 2 });
+  c.focus();
+  placeRing();
+}
+
+/** The node an arrow key leads to from `n`: along its row, up to its parent, down to its first child (or the nearest node below). */
+function neighbour(n: bigint, key: string): bigint | null {
+  if (!drawn) return null;
+  const [x, , j, i] = drawn.at.get(n)!;
+  const row = drawn.rows[j]!;
+  switch (key) {
+    case "ArrowLeft":
+      return row[i - 1] ?? null;
+    case "ArrowRight":
+      return row[i + 1] ?? null;
+    case "Home":
+      return row[0]!;
+    case "End":
+      return row[row.length - 1]!;
+    case "ArrowUp":
+      return drawn.parent.get(n) ?? null;
+    case "ArrowDown": {
+      const own = drawn.children.get(n);
+      if (own?.length) return own[0]!;
+      const below = drawn.rows[j + 1];
+      if (!below) return null;
+      let best = below[0]!;
+      for (const m of below) if (Math.abs(drawn.at.get(m)![0] - x) < Math.abs(drawn.at.get(best)![0] - x)) best = m;
+      return best;
+    }
+    default:
+      return null;
+  }
+}
+
+/** The node nearest the drawing's point (x, y) within TAP_RADIUS screen pixels, if any. */
+function nodeNear(x: number, y: number): bigint | null {
+  if (!drawn) return null;
+  const reach = TAP_RADIUS * unitNow();
+  let best: bigint | null = null;
+  let bestD = reach * reach;
+  for (const [n, [nx, ny]] of drawn.at) {
+    const d = (nx - x) ** 2 + (ny - y) ** 2;
+    if (d <= bestD) {
+      bestD = d;
+      best = n;
+    }
+  }
+  return best;
+}
+
 function setView(v: typeof view): void {
   view = v;
   ($("tree-drawing") as unknown as SVGSVGElement).setAttribute("viewBox", `${v.x} ${v.y} ${v.w} ${v.h}`);
+  placeRing();
 }
 
 /** Zooms by `factor` about the drawing's point (cx, cy). */
@@ -206,14 +319,18 @@ export function setupTree(open: (n: bigint, map: CollatzMap) => void): void {
     },
     { passive: false },
   );
-  let drag: { x: number; y: number; view: typeof view } | null = null;
+  // a press on the drawing starts a drag; one that has not moved is a tap or click, which opens the nearest node
+  let drag: { x: number; y: number; view: typeof view; moved: boolean } | null = null;
+  let lastDrag = { moved: false };
   svg.addEventListener("pointerdown", (e) => {
-    if ((e.target as Element).classList.contains("node")) return;
-    drag = { x: e.clientX, y: e.clientY, view };
+    drag = { x: e.clientX, y: e.clientY, view, moved: false };
+    lastDrag = drag;
     svg.setPointerCapture(e.pointerId);
   });
   svg.addEventListener("pointermove", (e) => {
     if (!drag) return;
+    if (Math.hypot(e.clientX - drag.x, e.clientY - drag.y) > 6) drag.moved = true;
+    if (!drag.moved) return;
     const box = svg.getBoundingClientRect();
     const dx = ((e.clientX - drag.x) / box.width) * drag.view.w;
     const dy = ((e.clientY - drag.y) / box.height) * drag.view.h;
@@ -222,16 +339,34 @@ export function setupTree(open: (n: bigint, map: CollatzMap) => void): void {
   svg.addEventListener("pointerup", () => {
     drag = null;
   });
-  const openAt = (target: EventTarget | null) => {
-    const n = (target as Element | null)?.getAttribute("data-n");
-    if (n !== null && n !== undefined && drawnMap) openNode(BigInt(n), drawnMap);
+  const openAt = (n: bigint | null) => {
+    if (n !== null && drawnMap) openNode(n, drawnMap);
   };
-  svg.addEventListener("click", (e) => openAt(e.target));
-  svg.addEventListener("keydown", (e) => {
-    if (e.key !== "Enter" && e.key !== " ") return;
-    e.preventDefault();
-    openAt(e.target);
+  svg.addEventListener("click", (e) => {
+    if (lastDrag.moved) return;
+    const own = (e.target as Element).getAttribute("data-n");
+    openAt(own !== null ? BigInt(own) : nodeNear(...toDrawing(e)));
   });
+  svg.addEventListener("keydown", (e) => {
+    const own = (e.target as Element).getAttribute("data-n");
+    if (own === null) return;
+    if (e.key === "Enter" || e.key === " ") {
+      e.preventDefault();
+      openAt(BigInt(own));
+      return;
+    }
+    const to = neighbour(BigInt(own), e.key);
+    if (to === null && !e.key.startsWith("Arrow") && e.key !== "Home" && e.key !== "End") return;
+    e.preventDefault(); // arrows move within the drawing, never the page
+    if (to !== null) focusNode(to);
+  });
+  // a node focused by a click or programmatically takes the Tab stop; the ring follows the focus
+  svg.addEventListener("focusin", (e) => {
+    const own = (e.target as Element).getAttribute("data-n");
+    if (own !== null && BigInt(own) !== current) focusNode(BigInt(own));
+    else placeRing();
+  });
+  svg.addEventListener("focusout", () => requestAnimationFrame(placeRing));
   $("tree-zoom-in").addEventListener("click", () => zoom(0.8));
   $("tree-zoom-out").addEventListener("click", () => zoom(1.25));
   $("tree-zoom-reset").addEventListener("click", () => setView(whole));
