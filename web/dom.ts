@@ -92,6 +92,12 @@ export class ResultsPanel {
     this.reason = why;
   }
 
+  /** Whether results are on screen, not dimmed, and made from the inputs the form now holds. */
+  current(): boolean {
+    const results = $(this.results);
+    return !!results.dataset.params && this.reason === null && results.dataset.inputs === inputsOf(this.form);
+  }
+
   /** After an input: dimmed while the inputs differ from the shown results' own, current again when they match. */
   follow(): void {
     const results = $(this.results);

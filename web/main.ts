@@ -17,8 +17,25 @@ let current: View = "run";
 let restoring = false;
 const entry = () => (restoring ? "replace" : "push");
 
-/** Shows a view; `record`: a new history entry (a tab chosen), else the current entry is rewritten. */
-function show(view: View, record = false): void {
+/** The form whose results a view shows (the class table shows the run view's run). */
+const FORM_OF: Record<View, string> = {
+  run: "run-form",
+  table: "run-form",
+  inspect: "inspect-form",
+  cycles: "cycles-form",
+  verify: "verify-form",
+  tree: "tree-form",
+};
+
+/** Whether the view shows results made from the fields its form now holds (its address then keeps run=1). */
+const resultsShown = (view: View) => panelOf(FORM_OF[view])?.current() === true;
+
+/**
+ * Shows a view; `record`: a new history entry (a tab chosen), else the current entry is rewritten.
+ * `ran`: its job is about to run (a link's run=1); else the address keeps run=1 when the view shows
+ * the results of its fields.
+ */
+function show(view: View, record = false, ran = resultsShown(view)): void {
   for (const tab of document.querySelectorAll<HTMLButtonElement>(".tabs button")) {
     const on = tab.dataset.view === view;
     tab.setAttribute("aria-selected", String(on));
@@ -27,7 +44,7 @@ function show(view: View, record = false): void {
   }
   const switched = view !== current;
   current = view;
-  saveState(view, [], record && switched ? entry() : "replace");
+  saveState(view, [], record && switched ? entry() : "replace", ran);
   requestAnimationFrame(() => {
     resizeCharts();
     if (view === "table") refreshTable();
@@ -58,9 +75,9 @@ function run(): void {
   void startRun(req);
 }
 
-function inspectNow(): void {
+function inspectNow(how: "replace" | "push" = entry()): void {
   if (runInspect($<HTMLInputElement>("inspect-input").value, $<HTMLInputElement>("inspect-map").value))
-    saveState(current, ["inspect"], entry(), true);
+    saveState(current, ["inspect"], how, true);
 }
 
 /**
@@ -91,26 +108,33 @@ function tree(): void {
   recordRun("tree", startTree(workers));
 }
 
-/** Opens a number or class in the Inspector under its own map, the focus on the Inspector's heading. */
+/**
+ * Opens a number or class in the Inspector under its own map, the focus on the Inspector's heading:
+ * one history entry (the view and its card), so that one Back returns to the table or the tree.
+ */
 function openInInspector(input: string, mapName: string): void {
   $<HTMLInputElement>("inspect-input").value = input;
   $<HTMLInputElement>("inspect-map").value = mapName;
   show("inspect", true);
-  inspectNow();
+  inspectNow("replace");
   $("inspect-heading").focus();
 }
 
 /** Each view's job, as its button and run=1 start it. */
 const JOBS: Record<View, () => void> = { run, table: run, inspect: inspectNow, cycles, verify, tree };
 
-/** The address bar's state applied: fields, view, refused select values; then its job when asked for. */
+/**
+ * The address bar's state applied: fields, view, refused select values; then its job when asked for,
+ * unless the view already shows the results of these fields (Back from the Inspector to the table).
+ */
 function apply(run: boolean): void {
   const state = loadState();
-  show(state.view);
   syncVerifyForm();
   for (const [id, value] of state.refused) fieldError(id, `the link asks for "${value}", which this field does not offer`);
   for (const form of FORMS) panelOf(form[0])?.follow();
-  if ((run || state.view === "inspect") && state.refused.length === 0) JOBS[state.view]();
+  const job = (run || state.view === "inspect") && state.refused.length === 0 && !resultsShown(state.view);
+  show(state.view, false, job || resultsShown(state.view));
+  if (job) JOBS[state.view]();
 }
 
 /** Each form: its id, its view, its job. */
@@ -133,9 +157,10 @@ function setup(): void {
       job();
     });
     $(form).addEventListener("change", () => {
-      // a run's entry keeps the fields that made its results: an edit after it is an entry of its own
-      saveState(current, [view], (history.state as { ran?: boolean } | null)?.ran === true ? "push" : "replace");
+      // a run's entry keeps the fields that made its results: an edit after it is an entry of its own,
+      // with run=1 only while the results on screen are still those of its fields
       panelOf(form)?.follow();
+      saveState(current, [view], (history.state as { ran?: boolean } | null)?.ran === true ? "push" : "replace", resultsShown(current));
     });
     // a field being corrected loses its old error (the next run checks it again); results made from
     // other inputs are dimmed at once
@@ -166,16 +191,18 @@ function setup(): void {
     resizeCharts();
     refreshTable();
   });
-  // Back and Forward: the entry's view and fields, and a run's results made again
-  addEventListener("popstate", (e) => {
+  // Back and Forward: the entry's view and fields, and a run's results made again; the load itself
+  // rewrites its entry rather than adding one
+  const restore = (ran: boolean) => {
     restoring = true;
     try {
-      apply((e.state as { ran?: boolean } | null)?.ran === true);
+      apply(ran || new URLSearchParams(location.search).get("run") === "1");
     } finally {
       restoring = false;
     }
-  });
-  apply(new URLSearchParams(location.search).get("run") === "1");
+  };
+  addEventListener("popstate", (e) => restore((e.state as { ran?: boolean } | null)?.ran === true));
+  restore(false);
 }
 
 setup();

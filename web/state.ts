@@ -1,6 +1,7 @@
 // The page state in the address bar, so that a link reproduces what its sender saw: the view, every
-// view's own inputs (each under its own key), and run=1 to run the view's job on load. The defaults
-// are the form's own values in index.html: a key missing from the URL leaves its field as it is.
+// view's own inputs (each under its own key), and run=1 to run the view's job on load, kept while the
+// view shows the results of those inputs (a link copied after a run makes its results again). The
+// defaults are the form's own values in index.html: a key missing from the URL leaves its field as it is.
 export type View = "run" | "table" | "inspect" | "cycles" | "verify" | "tree";
 
 const VIEWS: readonly View[] = ["run", "table", "inspect", "cycles", "verify", "tree"];
@@ -78,16 +79,22 @@ export function loadState(search = location.search): PageState {
 
 /**
  * Writes the view and the fields of `fieldsOf` (as the form now holds them) into the address bar,
- * without a reload, keeping its #fragment; run=1 is dropped (it applies to the load only). `entry`:
- * "replace" the current history entry, or "push" a new one (a view switched to, a run; `ran` marks a
- * run's entry, whose results Back and Forward bring back by running it again).
+ * without a reload, keeping its #fragment. `entry`: "replace" the current history entry, or "push" a
+ * new one (a view switched to, a run). `ran`: the view shows (or is making) the results of the fields
+ * in the address; the address then holds run=1, so that a reload, a copied link and Back or Forward
+ * into the entry (of this page load or another) make those results again.
  */
 export function saveState(view: View, fieldsOf: readonly View[] = [], entry: "replace" | "push" = "replace", ran = false): void {
   const p = new URLSearchParams(location.search);
   p.set("view", view);
-  p.delete("run");
+  if (ran) p.set("run", "1");
+  else p.delete("run");
   for (const [key, id] of fieldsOf.length ? [WORKERS, ...fieldsOf.flatMap((v) => FIELDS[v])] : []) p.set(key, readField(id));
   const url = `${location.pathname}?${p.toString()}${location.hash}`;
-  if (entry === "push" && url !== `${location.pathname}${location.search}${location.hash}`) history.pushState({ ran }, "", url);
+  // an entry that differs from this one in run=1 alone (a run of the fields just edited) replaces it
+  const was = new URLSearchParams(location.search);
+  was.delete("run");
+  p.delete("run");
+  if (entry === "push" && p.toString() !== was.toString()) history.pushState({ ran }, "", url);
   else history.replaceState({ ran }, "", url);
 }
