@@ -31,8 +31,14 @@ function records(to: bigint) {
     }
     const h = max > top[Number(v)]! ? max : top[Number(v)]!;
     top.push(h);
-    if (steps > bestGlide) glides.push([n, (bestGlide = steps)]);
-    if (h > bestPath) paths.push([n, (bestPath = h)]);
+    if (steps > bestGlide) {
+      bestGlide = steps;
+      glides.push([n, steps]);
+    }
+    if (h > bestPath) {
+      bestPath = h;
+      paths.push([n, h]);
+    }
   }
   return { glides, paths };
 }
@@ -57,7 +63,11 @@ function orbit(n: bigint) {
 }
 
 type Option = { series: { name?: string; data: unknown[] }[] };
-const optionOf = (page: Page, id: string) => page.evaluate((id) => window.glidepathChartOption!(id), id) as Promise<Option>;
+const optionOf = (page: Page, id: string) =>
+  page.evaluate(
+    (id) => (window as Window & { glidepathChartOption?: (id: string) => unknown }).glidepathChartOption?.(id),
+    id,
+  ) as Promise<Option>;
 /** A series' exact values: the third and fourth data dimensions hold them as digits. */
 const exact = (data: unknown[]) => (data as [number, number, string, string][]).map((d) => [BigInt(d[2]), BigInt(d[3])]);
 
