@@ -11,6 +11,7 @@ import { defaultWorkers } from "./engine.js";
 import { readWorkers } from "./workers.js";
 import { cancelTree, setupTree, startTree } from "./views/tree.js";
 import { $, fieldError, panelOf } from "./dom.js";
+import { setupGlossary } from "./views/glossary.js";
 
 let current: View = "run";
 /** Set while Back or Forward restores an entry: what runs then replaces that entry, never adds one. */
@@ -184,9 +185,7 @@ function setup(): void {
     syncVerifyForm();
     panelOf("verify-form")?.follow();
   });
-  document.querySelector('a[href="#glossary"]')?.addEventListener("click", () => {
-    $<HTMLDetailsElement>("glossary").open = true;
-  });
+  setupGlossary();
   addEventListener("resize", () => {
     resizeCharts();
     refreshTable();

@@ -182,10 +182,10 @@ function renderDrawing(r: TreeResult): void {
     (depth < r.depth ? `; the drawing stops at depth ${depth} to stay within ${group(DRAW_NODES)} nodes` : "");
 }
 
-/** User units per screen pixel at the present zoom. */
+/** User units per screen pixel at the present zoom (the viewBox is scaled alike in x and y). */
 function unitNow(): number {
-  const box = ($("tree-drawing") as unknown as SVGSVGElement).getBoundingClientRect();
-  return box.width > 0 ? view.w / box.width : 1;
+  const scale = ($("tree-drawing") as unknown as SVGSVGElement).getScreenCTM()?.a ?? 0;
+  return scale > 0 ? 1 / scale : 1;
 }
 
 /** The focus ring around the keyboard's node, about TAP_RADIUS px on screen; hidden when the focus is elsewhere. */
@@ -306,9 +306,10 @@ export function cancelTree(): void {
 export function setupTree(open: (n: bigint, map: CollatzMap) => void): void {
   openNode = open;
   const svg = $("tree-drawing") as unknown as SVGSVGElement;
+  // the page's point in the drawing's units, through the drawing's own transform (the viewBox may not fill the box)
   const toDrawing = (e: { clientX: number; clientY: number }) => {
-    const box = svg.getBoundingClientRect();
-    return [view.x + ((e.clientX - box.left) / box.width) * view.w, view.y + ((e.clientY - box.top) / box.height) * view.h] as const;
+    const p = new DOMPoint(e.clientX, e.clientY).matrixTransform(svg.getScreenCTM()?.inverse());
+    return [p.x, p.y] as const;
   };
   svg.addEventListener(
     "wheel",
@@ -331,9 +332,9 @@ export function setupTree(open: (n: bigint, map: CollatzMap) => void): void {
     if (!drag) return;
     if (Math.hypot(e.clientX - drag.x, e.clientY - drag.y) > 6) drag.moved = true;
     if (!drag.moved) return;
-    const box = svg.getBoundingClientRect();
-    const dx = ((e.clientX - drag.x) / box.width) * drag.view.w;
-    const dy = ((e.clientY - drag.y) / box.height) * drag.view.h;
+    const unit = (unitNow() * drag.view.w) / view.w; // at the zoom the drag started from
+    const dx = (e.clientX - drag.x) * unit;
+    const dy = (e.clientY - drag.y) * unit;
     setView({ ...drag.view, x: drag.view.x - dx, y: drag.view.y - dy });
   });
   svg.addEventListener("pointerup", () => {
