@@ -323,10 +323,12 @@ export function drawTrajectory(values: readonly bigint[], id = "chart-trajectory
         return `${p.seriesName}, step ${d[0]}: ${d[2]}${p.name ? ` (${p.name})` : ""}`;
       },
     },
-    xAxis: axis("value", "step", { minInterval: 1 }),
-    yAxis: axis("value", "log10 value"),
+    grid: { left: 56, right: 24, top: 30, bottom: 44 },
+    xAxis: axis("value", "step", { minInterval: 1, nameLocation: "middle", nameGap: 26 }),
+    // the name along the axis, clear of the legend at any width
+    yAxis: axis("value", "log10 value", { nameLocation: "middle", nameGap: 32 }),
     series: [
-      { name: names[0], type: "line", showSymbol: values.length < 120, data: line(o.T) },
+      { name: names[0], type: "line", showSymbol: values.length < 400, symbolSize: 3, data: line(o.T) },
       { name: names[1], type: "line", showSymbol: false, lineStyle: { type: "dashed" }, data: line(o.standard) },
       ...[o.T, o.standard].map((v, i) => ({
         name: names[i],
@@ -351,8 +353,8 @@ export function drawTrajectory(values: readonly bigint[], id = "chart-trajectory
   note.textContent = `${group(values[0]!)}: in steps of T, ${marksText(o.T)}; in standard steps (3n + 1 and n/2 each a step), ${marksText(o.standard)}.`;
 }
 
-/** A log axis's label: digits up to a million, then 1e7, 1e8, ... (the ticks are powers of 10). */
-const power = (v: number) => (v < 1e7 ? v.toLocaleString("en-US") : `1e${Math.round(Math.log10(v))}`);
+/** A log axis's label: digits up to a thousand, then 1e4, 1e5, ... (the ticks are powers of 10; short enough for a phone). */
+const power = (v: number) => (v < 1e4 ? v.toLocaleString("en-US") : `1e${Math.round(Math.log10(v))}`);
 
 /** A record: n and its value (a glide in standard steps, or a highest value in standard steps). */
 export interface RecordPoint {
