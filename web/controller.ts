@@ -16,6 +16,54 @@ export interface RunElements {
   readonly results?: ResultsPanel;
 }
 
+/** Seconds of work, and the share of the total, behind an estimate before it is stated. */
+const ESTIMATE_SECONDS = 3;
+const ESTIMATE_SHARE = 0.02;
+/** The rates of the two halves of that work may differ by this share of the larger at most. */
+const ESTIMATE_SPREAD = 0.25;
+
+/**
+ * The time a run has left, stated only once it is honest: measured from the first unit done (the
+ * setup before it, such as building tables, says nothing about the rate), after ESTIMATE_SECONDS and
+ * ESTIMATE_SHARE of the work, and while the rates of the first and second half of the work measured
+ * agree within ESTIMATE_SPREAD; otherwise null. The rate of the second half decides (a run's first
+ * blocks are small and slow). Times in seconds, from any fixed origin.
+ * @example new Estimate().left(0.5, 10, 1000) // null: too early to say
+ */
+export class Estimate {
+  private readonly seen: { readonly t: number; readonly done: number }[] = [];
+
+  left(t: number, done: number, total: number): number | null {
+    if (done <= 0 || done >= total) return null;
+    const seen = this.seen;
+    seen.push({ t, done });
+    const first = seen[0]!;
+    const span = t - first.t;
+    if (span < ESTIMATE_SECONDS || (done - first.done) / total < ESTIMATE_SHARE) return null;
+    // the report nearest the middle of the span splits it into two halves with a rate each
+    const mid = seen.reduce((a, b) => (Math.abs(b.t - (first.t + span / 2)) < Math.abs(a.t - (first.t + span / 2)) ? b : a));
+    if (mid === first || mid.t === t) return null;
+    const early = (mid.done - first.done) / (mid.t - first.t);
+    const late = (done - mid.done) / (t - mid.t);
+    if (Math.abs(early - late) > ESTIMATE_SPREAD * Math.max(early, late)) return null;
+    return (total - done) / late;
+  }
+}
+
+/** A time left in words, rounded to what an estimate can promise. @example timeLeft(770) // "about 13 min" */
+export function timeLeft(seconds: number): string {
+  if (seconds < 10) return "a few seconds";
+  if (seconds < 60) return `about ${Math.round(seconds / 10) * 10} s`;
+  if (seconds < 3600) return `about ${Math.max(1, Math.round(seconds / 60))} min`;
+  if (seconds < 48 * 3600) {
+    const tens = Math.round(seconds / 600); // ten-minute units
+    const h = Math.floor(tens / 6),
+      m = (tens % 6) * 10;
+    return `about ${h} h${m ? ` ${m} min` : ""}`;
+  }
+  return `about ${Math.round(seconds / 86400)} days`;
+}
+
 /** What a finished run gives back: its value, or null when it was cancelled or failed (shown already). */
 export type Outcome<T> = { readonly ok: true; readonly value: T; readonly seconds: number } | { readonly ok: false };
 
@@ -68,16 +116,17 @@ export class RunController {
     status.textContent = waiting;
     this.say("");
     this.el.results?.markStale("a new run is in progress");
+    const estimate = new Estimate();
     const onProgress = (done: number, total: number) => {
       const elapsed = (performance.now() - started) / 1000;
       progress.value = done / total;
       // an estimate only where the units are equal work (numbers); shards differ in size, so their
       // count would promise a finish it cannot keep
-      const remaining = unit !== "shards" && done > 0 && elapsed >= 2 ? (elapsed * (total - done)) / done : Number.NaN;
+      const remaining = unit === "shards" ? null : estimate.left(elapsed, done, total);
       const rate = unit === "shards" ? "" : `, ${group(Math.round(done / Math.max(elapsed, 1e-3)))} ${unit}/s`;
       status.textContent =
         `${group(done)} of ${group(total)} ${unit}${rate}, ${elapsed.toFixed(1)} s elapsed` +
-        `${Number.isFinite(remaining) ? `, about ${remaining.toFixed(1)} s left` : ""}`;
+        `${remaining === null ? "" : `, ${timeLeft(remaining)} left`}`;
     };
     try {
       const value = await work({ signal: abort.signal, onProgress });

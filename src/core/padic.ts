@@ -162,8 +162,15 @@ export interface Trajectory {
   readonly word: string;
   /** First j >= 1 with T^j(n) < n (the stopping time), or null within the steps. */
   readonly descent: number | null;
+  /** The largest value under T and the first step of T where it is reached. */
   readonly max: bigint;
   readonly maxAt: number;
+  /**
+   * The same in standard steps (n/2, q·n + r): an odd step of T is two of them, through q·v + r =
+   * 2·T(v), so the standard largest value is 2·max when max follows an odd step (common practice).
+   */
+  readonly standardMax: bigint;
+  readonly standardMaxAt: number;
   /** The cycle reached: the step where it was entered, its element of least |x| and period. */
   readonly cycle: { readonly entry: number; readonly min: bigint; readonly period: number; readonly odd: number } | null;
 }
@@ -222,10 +229,19 @@ export function trajectory(map: CollatzMap, n: bigint, maxSteps = MAX_INSPECT_ST
     descent: number | null = null,
     max = n,
     maxAt = 0,
+    standardMax = n,
+    standardMaxAt = 0,
+    standard = 0,
     min = 0n,
     odd = 0;
   for (let i = 0; i < steps; i++) {
     const isOdd = (v & 1n) === 1n;
+    // the standard steps of this step of T: q·v + r first when v is odd, then the halving
+    if (isOdd && q * v + r > standardMax) {
+      standardMax = q * v + r;
+      standardMaxAt = standard + 1;
+    }
+    standard += isOdd ? 2 : 1;
     word += isOdd ? "1" : "0";
     if (found && i >= found.mu) {
       if (i === found.mu || abs(v) < abs(min)) min = v;
@@ -237,10 +253,14 @@ export function trajectory(map: CollatzMap, n: bigint, maxSteps = MAX_INSPECT_ST
       max = v;
       maxAt = i + 1;
     }
+    if (v > standardMax) {
+      standardMax = v;
+      standardMaxAt = standard;
+    }
   }
   if (found && found.mu === steps) min = v; // the limit fell right at the entry
   const cycle = found && found.mu + found.lambda <= maxSteps ? { entry: found.mu, min, period: found.lambda, odd } : null;
-  return { n, steps, word, descent, max, maxAt, cycle };
+  return { n, steps, word, descent, max, maxAt, standardMax, standardMaxAt, cycle };
 }
 
 export interface PeriodicPoint {

@@ -1,7 +1,7 @@
 // The text of a class card (CLI `glidepath class` and the web inspector show the same lines).
 import type { CollatzMap } from "../core/map.js";
 import type { Card, ClassCard, NumberCard } from "../jobs/inspect.js";
-import { digitsOf } from "../core/padic.js";
+import { digitsOf, parityWord } from "../core/padic.js";
 import type { ClassForm } from "../core/padic.js";
 import { bitLength } from "../core/arith.js";
 import { plural } from "./format.js";
@@ -16,6 +16,9 @@ function affine(f: ClassForm): string {
   const b = f.image < 0n ? ` - ${-f.image}` : ` + ${f.image}`;
   return `T^${f.k}(${f.residue} + 2^${f.k}·x) = ${affineText(f.map.q, f.odd, f.image)}` + (f.k <= 64 ? `   (${q}·x${b})` : "");
 }
+
+/** The odd steps of a parity word (its 1s). */
+const odds = (word: string) => [...word].filter((x) => x === "1").length;
 
 /** s itself, or its first n characters and its length. */
 export function abbreviate(s: string, n = 200): string {
@@ -43,7 +46,7 @@ function classText(c: ClassCard): string {
         ? "0 is not positive"
         : lm.descent === null
           ? `does not descend within ${lm.searched} steps`
-          : `first descends at step ${lm.descent}`) +
+          : `first descends at step ${lm.descent} (${lm.descent + odds(parityWord(f.map, lm.n, lm.descent))} standard steps)`) +
       (lm.imageAtStop !== null && lm.n > 0n
         ? `; at the stopping time T^${f.stoppingTime}(${abbreviate(String(lm.n), 40)}) = ${abbreviate(String(lm.imageAtStop), 40)} (` +
           `${lm.imageAtStop < lm.n ? "descends" : "does not descend: an exception of the sieve"})`
@@ -64,10 +67,16 @@ function numberText(map: CollatzMap, c: NumberCard): string {
       `  total stopping time (first T^j(n) = 1): ${c.delay ? `${c.delay.steps} (${c.delay.steps + c.delay.odd} standard steps)` : `1 not reached within ${t.steps} steps`}`,
     );
   if (c.form) lines.push(`  ${stopLine(c.form)}`);
-  lines.push(`  largest value ${abbreviate(String(t.max), 80)} at step ${t.maxAt}`);
+  // the standard convention first: published tables of 3n+1 use it (27 peaks at 9232 there, 4616 under T)
+  lines.push(
+    `  largest value in standard steps: ${abbreviate(String(t.standardMax), 80)} at standard step ${t.standardMaxAt}; ` +
+      `under T (${map.q}n${map.r < 0 ? "-" : "+"}${Math.abs(map.r)} halved in the same step): ${abbreviate(String(t.max), 80)} at step ${t.maxAt}`,
+  );
   lines.push(
     t.cycle
-      ? `  enters the cycle of ${t.cycle.min} (least |x|) (period ${t.cycle.period}, ${t.cycle.odd} odd) at step ${t.cycle.entry}`
+      ? `  enters a cycle at step ${t.cycle.entry} (${t.cycle.entry + oddBefore(t.cycle.entry)} standard steps): period ` +
+          `${t.cycle.period} (${t.cycle.period + t.cycle.odd} standard steps), ${t.cycle.odd} odd; its member of least ` +
+          `absolute value: ${t.cycle.min}`
       : `  no cycle reached within ${t.steps} steps`,
   );
   lines.push(

@@ -68,7 +68,8 @@ function renderCycles(r: CycleSearchResult): void {
     )
     .join("");
   $("cycles-table").innerHTML =
-    "<thead><tr><th>sign</th><th>minimum</th><th>least |x|</th><th>period</th><th>odd steps</th>" +
+    '<thead><tr><th>sign</th><th>minimum</th><th title="the member of least absolute value, with its sign">member of least |x|</th>' +
+    '<th title="in standard steps: the period plus the odd steps">period (steps of T)</th><th>odd steps</th>' +
     `<th class="left">elements</th></tr></thead><tbody>${rows}</tbody>`;
 }
 

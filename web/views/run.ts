@@ -70,7 +70,13 @@ export function readRunForm(): RunRequest | null {
 function renderLevels(map: CollatzMap, levels: readonly Level[]): void {
   const published = map.q === 3 && map.r === 1;
   const odds = stoppingOdds(map.q, levels.length - 1);
+  // what each column counts, in which convention, and why "std steps" is blank on some rows
+  const caption =
+    `<caption>depth j: steps of T. std steps: the stopping time j of the classes stopped at depth j, in standard ` +
+    `steps (j + m, each of the m odd steps counted twice); – where no class stops at depth j: a class with m odd ` +
+    `steps stops only at the first j with ${map.q}^m &lt; 2^j.</caption>`;
   const head =
+    caption +
     `<thead><tr><th>depth</th><th>survivors</th><th>stopped</th><th>density</th>` +
     `<th title="the same stopping time with odd steps counted twice (j + m)">std steps</th>` +
     `${published ? "<th>A076227</th><th>agrees</th>" : ""}</tr></thead>`;
@@ -85,7 +91,9 @@ function renderLevels(map: CollatzMap, levels: readonly Level[]): void {
         : "";
       return (
         `<tr><td>${l.depth}</td><td>${group(l.survivors)}</td><td>${group(l.stopped)}</td><td>${density(l.survivors, l.depth)}</td>` +
-        `<td>${l.stopped > 0n && odds[l.depth] != null ? l.depth + odds[l.depth]! : ""}</td>` +
+        (l.stopped > 0n && odds[l.depth] != null
+          ? `<td>${l.depth + odds[l.depth]!}</td>`
+          : `<td title="no class stops at depth ${l.depth}" aria-label="none: no class stops at this depth">–</td>`) +
         `${cells}</tr>`
       );
     })
@@ -115,7 +123,7 @@ function renderCensus(c: CensusResult): void {
     `coefficient stopping time: <strong>${group(c.differ.count)}</strong> (${group(c.differ.early)} descend earlier, ` +
     `${group(c.differ.count - c.differ.early)} not at it)` +
     (shown.length ? `; the smallest: ${shown.join(", ")}${more > 0n ? `, and ${group(more)} more` : ""}` : "") +
-    `.</p><p>Largest ratio T^j(a)/a over a in [1, 2^${K}) and j &le; ${K}: <strong>${ratioText(m.value, m.n)}</strong>, ` +
+    `.</p><p>Largest ratio T^j(a)/a over a in [1, 2^${K}) and j &le; ${K} steps of T: <strong>${ratioText(m.value, m.n)}</strong>, ` +
     `reached by a = ${m.n} at step j = ${m.step} (T^${m.step}(${m.n}) = ${m.value}).</p>`;
 }
 
@@ -183,10 +191,15 @@ async function renderRun(req: RunRequest, r: RunResult, exact: readonly Level[],
   const published = map.q === 3 && map.r === 1 ? A076227[depth] : undefined;
   $("run-intro").hidden = true;
   panel.shown(`${map.name}, depth ${depth}, ${mode === "full" ? "census" : "survivors"}`);
+  // what was walked: the sieve's pruned tree, or the part of the census's full tree its kernel walked
+  const walked = census
+    ? `all ${group(census.nodes)} parity vectors of length at most ${depth} counted, ${group(census.walked)} of them ` +
+      `walked one by one (the rest by lattice paths: subtrees with nothing that depends on the residue)`
+    : `${group(result.nodes)} nodes of the pruned tree walked (classes not yet stopped, depths 0 to ${depth})`;
   $("run-headline").innerHTML =
     `Survivors mod 2^${depth}: <strong>${group(last.survivors)}</strong> of ${group(1n << BigInt(depth))} classes ` +
     `<span class="sub">${map.name}: density ${density(last.survivors, depth)}, ` +
-    `${group(result.nodes)} nodes in ${seconds.toFixed(2)} s (${req.workers} worker` +
+    `${walked} in ${seconds.toFixed(2)} s (${req.workers} worker` +
     `${req.workers === 1 ? "" : "s"})` +
     `${published !== undefined ? `; A076227 ${published === last.survivors ? "agrees" : "DIFFERS"}` : ""}</span>`;
   renderLevels(map, levels);
