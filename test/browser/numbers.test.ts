@@ -58,6 +58,19 @@ function orbitT(map: CollatzMap, n: bigint): { max: bigint; maxAt: number; entry
   return { max, maxAt, entry: seen.get(v)!, entered: v };
 }
 
+/** T's highest value from n until it goes below n, for 3x+1; `standard` only names the glide's standard peak for the message. */
+function orbitTo(n: bigint, standard: bigint): bigint {
+  let v = n,
+    max = n;
+  while (n > 1n) {
+    v = v % 2n === 0n ? v / 2n : (3n * v + 1n) / 2n;
+    if (v > max) max = v;
+    if (v < n) break;
+  }
+  if (max > standard) throw new Error(`T's peak ${max} above the standard peak ${standard}`);
+  return max;
+}
+
 describe("the remaining-time estimate (no browser)", () => {
   it("says nothing while the rate is not yet measured or not steady; then is within 10% of the truth", () => {
     // a synthetic run: 3 s of setup with nothing done, a ramp of small first blocks, then 10^8 units a
@@ -117,6 +130,31 @@ describe.skipIf(!hasChromium)("web app: numbers that read right", () => {
     }
     expect(standardOrbit(parseMap("3x+1"), 27n).max).toBe(9232n);
     expect(orbitT(parseMap("3x+1"), 27n).max).toBe(4616n);
+    await page.close();
+  });
+
+  it("Verify's path records give the highest value in standard steps beside T's (BigInt standard map over each glide)", async () => {
+    const page = await open("?view=verify&vmap=3x%2B1&from=1&to=2%5E12&run=1");
+    await summaryOf(page);
+    const rows = await page.$$eval("#verify-path tbody tr", (trs) =>
+      trs.map((r) => [...r.children].map((c) => c.textContent!.replace(/,/g, ""))),
+    );
+    expect(rows.length).toBeGreaterThan(5);
+    for (const [n, standard, underT] of rows) {
+      // the standard map from n until it goes below n (1 stays at 1: a cycle member is recorded as itself)
+      let v = BigInt(n!),
+        max = v;
+      const start = v;
+      while (start > 1n) {
+        v = v % 2n === 0n ? v / 2n : 3n * v + 1n;
+        if (v > max) max = v;
+        if (v < start) break;
+      }
+      expect(BigInt(standard!)).toBe(max);
+      expect(BigInt(underT!)).toBe(orbitTo(start, max));
+    }
+    // 27: 9232 (OEIS A006884 and A006885, from memory)
+    expect(rows.find(([n]) => n === "27")?.[1]).toBe("9232");
     await page.close();
   });
 

@@ -221,7 +221,10 @@ function render(r: VerifyResult): void {
     ["enter a cycle of larger numbers", group(c.cycleEntrants)],
     [`unresolved after ${group(r.maxSteps)} step${r.maxSteps === 1 ? "" : "s"}`, group(c.unresolved)],
     ["largest glide (standard steps)", r.maxGlide ? `${r.maxGlide.standardSteps} at n = ${group(r.maxGlide.n)}` : "–"],
-    ["largest path (highest value under T)", r.maxPath ? `${group(r.maxPath.peakT)} at n = ${group(r.maxPath.n)}` : "–"],
+    [
+      "largest path (highest value: standard steps; under T)",
+      r.maxPath ? `${group(standardPeak(r.maxPath.n, r.maxPath.peakT))}; ${group(r.maxPath.peakT)} at n = ${group(r.maxPath.n)}` : "–",
+    ],
   ];
   $("verify-counts").innerHTML =
     `<tbody>${counts.map(([k, v]) => `<tr><th scope="row" class="left">${k}</th><td>${v}</td></tr>`).join("")}</tbody>`;
@@ -230,8 +233,8 @@ function render(r: VerifyResult): void {
     r.glideRecords.map((g) => [group(g.n), String(g.standardSteps), String(g.steps)]),
   );
   $("verify-path").innerHTML = rows(
-    ["path record n", "highest value under T"],
-    r.pathRecords.map((p) => [group(p.n), group(p.peakT)]),
+    ["path record n", "highest value in standard steps", "highest value under T"],
+    r.pathRecords.map((p) => [group(p.n), group(standardPeak(p.n, p.peakT)), group(p.peakT)]),
   );
   // the delays (steps to reach 1) when asked for: their records, and the n that do not reach 1
   $("verify-delay-box").hidden = r.delay === null;
