@@ -14,23 +14,34 @@ const { open } = browserSuite();
 const T = (n: bigint) => (n % 2n === 0n ? n / 2n : (3n * n + 1n) / 2n);
 
 /**
- * The cells of the page's visible tables that cannot be reached at this width: a cell is reachable
- * when it ends on screen, or inside a box that scrolls sideways (overflow-x auto or scroll) and
- * itself ends on screen.
+ * The cells of the page's visible tables (and the class table's grid) that cannot be reached at this
+ * width: a cell is reachable when it is shown and ends on screen, or inside a box that scrolls
+ * sideways (overflow-x auto or scroll) and itself ends on screen.
  */
 function unreachableCells(page: Page): Promise<string[]> {
   return page.evaluate(() => {
     const width = document.documentElement.clientWidth;
     const out: string[] = [];
-    for (const cell of document.querySelectorAll<HTMLElement>("table td, table th")) {
+    for (const cell of document.querySelectorAll<HTMLElement>("table td, table th, [role=gridcell], [role=columnheader]")) {
+      const table = cell.closest<HTMLElement>("table, [role=grid]")!;
+      if (table.offsetParent === null) continue; // the table is not shown (another view)
       const r = cell.getBoundingClientRect();
-      if (r.width === 0 || cell.offsetParent === null) continue; // not shown
+      if (getComputedStyle(cell).display === "none") {
+        out.push(`${table.id}: ${cell.textContent} (hidden)`);
+        continue;
+      }
       if (r.right <= width + 0.5) continue;
-      let box = cell.parentElement;
-      while (box && !["auto", "scroll"].includes(getComputedStyle(box).overflowX)) box = box.parentElement;
-      const reach = box ? box.getBoundingClientRect() : null;
-      if (!box || !reach || reach.right > width + 0.5 || r.right - reach.left - box.clientLeft > box.scrollWidth + 0.5)
-        out.push(`${cell.closest("table")?.id}: ${cell.textContent}`);
+      // out through each box that scrolls sideways: within its scroll width, until one ends on screen
+      let right = r.right;
+      let reached = false;
+      for (let box = cell.parentElement; box && !reached; box = box.parentElement) {
+        if (!["auto", "scroll"].includes(getComputedStyle(box).overflowX)) continue;
+        const b = box.getBoundingClientRect();
+        if (right - b.left - box.clientLeft > box.scrollWidth + 0.5) break;
+        reached = b.right <= width + 0.5;
+        right = b.right;
+      }
+      if (!reached) out.push(`${table.id}: ${cell.textContent}`);
     }
     return out;
   });
@@ -69,6 +80,10 @@ describe.skipIf(!hasChromium)("web app: phone, keyboard, schemes and layout", ()
     await summaryOf(page);
     // the By-depth table with OEIS A076227 and agrees (3x+1)
     expect(await page.locator("#run-levels th", { hasText: "agrees" }).count()).toBe(1);
+    expect(await unreachableCells(page)).toEqual([]);
+    // the class table of the same run: its parity words and affine forms too
+    await page.click("#tab-table");
+    await page.waitForSelector(".vlist-row");
     expect(await unreachableCells(page)).toEqual([]);
     // cycles of 5x+1: the elements column on screen, not only within reach
     await page.click("#tab-cycles");
