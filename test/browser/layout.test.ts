@@ -154,6 +154,17 @@ describe.skipIf(!hasChromium)("web app: phone, keyboard, schemes and layout", ()
     await page.mouse.click(five.x, five.y + 9);
     expect(await page.getAttribute("#tab-inspect", "aria-selected")).toBe("true");
     expect(await page.inputValue("#inspect-input")).toBe("5");
+    // a shallow tree leaves no empty box below its last row
+    await page.click("#tab-tree");
+    await page.fill("#tree-depth", "6");
+    await page.click("#tree-go");
+    // depths 0 to 6: 1, 1, 1, 1, 2, 3, 4 nodes (OEIS A060322), 13 in all
+    await page.waitForFunction(() => document.querySelectorAll("#tree-drawing circle[data-n]").length === 13);
+    const below = await page.$eval("#tree-drawing", (svg) => {
+      const bottom = Math.max(...[...svg.querySelectorAll("circle[data-n]")].map((c) => c.getBoundingClientRect().bottom));
+      return svg.getBoundingClientRect().bottom - bottom;
+    });
+    expect(below).toBeLessThan(40);
     await page.close();
   });
 

@@ -113,6 +113,7 @@ function renderDrawing(r: TreeResult): void {
     }
   }
   // rows spread over the drawing's own shape (in units where its width is WIDTH); node size from the widest row
+  svg.style.height = ""; // the stylesheet's height while the rows are laid out
   const box = svg.getBoundingClientRect();
   const height = box.width > 0 ? (WIDTH * box.height) / box.width : WIDTH / 2;
   const unit = box.width > 0 ? WIDTH / box.width : 1; // user units per screen pixel
@@ -175,6 +176,12 @@ function renderDrawing(r: TreeResult): void {
   current = r.n;
   // the whole tree and every label: the last label of a row may end past WIDTH
   whole = { x: -10, y: 0, w: right + 20, h: Math.max(height, depth * ROW + 40) };
+  // a shallow tree: the drawing as tall as its rows, not an empty box below them
+  const content = ((depth * ROW + 40) * box.width) / whole.w;
+  if (box.width > 0 && content < box.height) {
+    svg.style.height = `${Math.ceil(content)}px`;
+    whole = { ...whole, h: depth * ROW + 40 };
+  }
   setView(whole);
   $("tree-drawing-caption").textContent =
     `The tree of ${r.n} to depth ${depth} (${group(count)} nodes): one row per depth, nodes ordered by value, coloured by ` +
