@@ -410,6 +410,27 @@ const MUTANTS: Mutant[] = [
     replace: "export const MAX_CLASS_DEPTH = 61;",
     first: ["test/layout.test.ts"],
   },
+  {
+    name: "published: a glide record left out of A060412",
+    file: "src/core/published.ts",
+    find: "27, 703, 10087, 35655,",
+    replace: "27, 703, 10087,",
+    first: ["test/records.test.ts"],
+  },
+  {
+    name: "orbit: the standard orbit's odd step through twice the value before it, not after",
+    file: "src/core/orbit.ts",
+    find: "standard.push(2n * values[j + 1]!);",
+    replace: "standard.push(2n * values[j]!);",
+    first: ["test/records.test.ts"],
+  },
+  {
+    name: "orbit: a path that never rises above n doubled in standard steps",
+    file: "src/core/orbit.ts",
+    find: "return peakT > n ? 2n * peakT : n;",
+    replace: "return peakT >= n ? 2n * peakT : n;",
+    first: ["test/records.test.ts"],
+  },
 ];
 
 const root = resolve(new URL("../../", import.meta.url).pathname);
