@@ -277,4 +277,28 @@ describe.skipIf(!hasChromium)("exports of what is on screen: files, manifests, n
     expect(await page.$$("#verify-delay-exports button")).toHaveLength(0); // no delays asked for
     await page.close();
   });
+
+  it("Verify's delay records, when asked for, as CSV: the n below 2^10 whose steps to 1 beat every smaller n's (brute force)", async () => {
+    const page = await open("?view=verify&vmap=3x%2B1&from=1&to=2%5E10&vdelay=1&run=1");
+    await summaryOf(page);
+    const csv = withManifest(
+      await downloads(page, "#verify-delay-exports-csv"),
+      "verify-3x+1-1-1024-delay-records.csv",
+      "glidepath verify delay records",
+      "3x+1",
+      "csv",
+    );
+    const brute: [bigint, bigint][] = [];
+    let best = -1n;
+    for (let n = 1n; n < 1024n; n++) {
+      let steps = 0n;
+      for (let v = n; v !== 1n; v = v % 2n === 0n ? v / 2n : 3n * v + 1n) steps++;
+      if (steps > best) {
+        best = steps;
+        brute.push([n, steps]);
+      }
+    }
+    expect(readCsv(text(csv.data)).map((r) => [BigInt(r.n!), BigInt(r.standard_steps!)])).toEqual(brute);
+    await page.close();
+  });
 });
