@@ -338,6 +338,8 @@ export function drawTrajectory(values: readonly bigint[], id = "chart-trajectory
         z: 5,
         itemStyle: { color: palette()[i], borderColor: dark() ? "#e7e9ea" : "#1d1f21", borderWidth: 1 },
         label: { show: true, position: i === 0 ? "top" : "bottom", formatter: "{b}", color: base().textStyle.color, fontSize: 11 },
+        // a label that would cover another is left out (the marks are all said in words below the chart)
+        labelLayout: { hideOverlap: true },
         data: marks(v),
       })),
     ],
@@ -364,18 +366,23 @@ export interface RecordPoint {
 
 /**
  * A run's records, n against their value on log axes, and the published records that fall in the
- * range (`published`, null where none apply) as rings around them.
+ * range (`published`, null where none apply) as rings around them. A range [FROM, TO) with TO < 10·FROM
+ * would crowd its records into one line of a log n axis: its n axis is n − FROM, linear, instead.
  */
 export function drawRecords(
   id: string,
   what: { axis: string; unit: string },
+  range: { from: bigint; to: bigint },
   run: readonly RecordPoint[],
   published: { name: string; points: readonly RecordPoint[] } | null,
 ): void {
-  const data = (ps: readonly RecordPoint[]) => ps.map((p) => [Number(p.n), Number(p.value), String(p.n), String(p.value)]);
+  const narrow = range.to < 10n * range.from;
+  const x = (n: bigint) => (narrow ? Number(n - range.from) : Number(n));
+  const data = (ps: readonly RecordPoint[]) => ps.map((p) => [x(p.n), Number(p.value), String(p.n), String(p.value)]);
+  const label = { color: base().textStyle.color, formatter: power };
   draw(id, () => ({
     ...base(),
-    grid: { left: 64, right: 24, top: 30, bottom: 36 },
+    grid: { left: 64, right: 24, top: 30, bottom: narrow ? 44 : 36 },
     legend: { top: 0, textStyle: { color: base().textStyle.color } },
     tooltip: {
       trigger: "item",
@@ -383,20 +390,17 @@ export function drawRecords(
       formatter: (p: { seriesName: string; data: [number, number, string, string] }) =>
         `${p.seriesName}: n = ${group(BigInt(p.data[2]))}, ${group(BigInt(p.data[3]))} ${what.unit}`,
     },
-    xAxis: axis("log", "n", { axisLabel: { color: base().textStyle.color, formatter: power } }),
-    // the name along the axis, clear of the legend at any width; labels past a million as powers of 10
-    yAxis: axis("log", what.axis, {
-      min: 1,
-      nameLocation: "middle",
-      nameGap: 44,
-      axisLabel: { color: base().textStyle.color, formatter: power },
-    }),
+    xAxis: narrow
+      ? axis("value", `n − ${group(range.from)}`, { min: 0, nameLocation: "middle", nameGap: 26, axisLabel: label })
+      : axis("log", "n", { axisLabel: label }),
+    // the name along the axis, clear of the legend at any width; labels past a thousand as powers of 10
+    yAxis: axis("log", what.axis, { min: 1, nameLocation: "middle", nameGap: 44, axisLabel: label }),
     series: [
-      { name: "this run's records", type: "scatter", symbolSize: 7, data: data(run), itemStyle: { color: palette()[0] } },
+      { name: "this run", type: "scatter", symbolSize: 7, data: data(run), itemStyle: { color: palette()[0] } },
       ...(published
         ? [
             {
-              name: published.name,
+              name: published.points.length ? published.name : `${published.name}: none in range`,
               type: "scatter",
               symbol: "circle",
               symbolSize: 15,
