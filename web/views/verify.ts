@@ -292,6 +292,9 @@ function renderCharts(r: VerifyResult): void {
   const cut = r.counts.sievedByDepth.flatMap((c, j) => (c > 0n ? [[String(j), group(c)]] : []));
   $("verify-cut-depths").innerHTML = cut.length ? rows(["cut depth", "numbers sieved"], cut) : "";
   $("verify-cut-none").hidden = cut.length > 0;
+  // no empty bordered box where nothing was sieved: the note says so instead
+  $("verify-cut-depths").closest<HTMLElement>(".scroll")!.hidden = cut.length === 0;
+  $("chart-cut-depth").closest<HTMLElement>("figure")!.hidden = cut.length === 0;
   drawCutDepths(r.counts.sievedByDepth);
   const pub = (kind: "glide" | "path", name: string) => {
     const points = publishedIn(r, kind);
