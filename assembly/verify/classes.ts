@@ -46,7 +46,7 @@ import {
 } from "./books";
 import { prepareSkip, skipped } from "./preimage";
 import { HQ, Q, peakBound, qpowPtr, slackPtr } from "./state";
-import { descend, exact } from "./walk";
+import { descend, exact, setRuns } from "./walk";
 
 let classSlack: usize = 0; // u64 r (q/2)^j rounded up, j = 0..N
 let nTop: i32 = 0; // N
@@ -232,6 +232,7 @@ export function verifyClasses(
 ): u64 {
   assert(r > 0 && N >= 1 && N <= VERIFY_MAX_CLASS_DEPTH && D >= 0 && D <= N && first <= last && from >= 1 && from < (<u64>1) << <u64>N && stepDepth >= 1 && stepDepth <= VERIFY_MAX_STEP_DEPTH && cap >= 1);
   begin(q, r, N, stepDepth, steps, limit, tables, counts, scratch);
+  setRuns();
   slackPtr = slacks;
   lbPtr = lb;
   classSlack = cslack;

@@ -32,8 +32,8 @@ import {
   noteRecords,
   settle,
 } from "./books";
-import { peakBound, slackK, slackPtr, survA } from "./state";
-import { exact, fast } from "./walk";
+import { HQ, K, Q, peakBound, slackK, slackPtr, survA } from "./state";
+import { exact, fast, setRuns } from "./walk";
 
 /**
  * The gap [prev, next) of sieved n between two survivors: records are possible only while the
@@ -119,6 +119,7 @@ export function verifyAligned(
 ): u64 {
   assert(r != 0 && survivors > 0 && depth >= 1 && depth <= VERIFY_MAX_DEPTH && stepDepth >= 1 && stepDepth <= VERIFY_MAX_STEP_DEPTH && limit >= 1 && limit <= VERIFY_LIMIT_BITS);
   begin(q, r, depth, stepDepth, steps, limit, tables, counts, scratch);
+  setRuns();
   slackK = survivorSlack;
   slackPtr = slacks;
   const sievedPeakBits = dropDepth(sievedPeak) - sievedPeak; // bitlen(q^mp) - ip, the bound's extra bits
@@ -151,32 +152,100 @@ export function verifyAligned(
 
 
 /**
- * Any block first..last (inclusive; each a (lo, hi) pair below 2^127), every n iterated exactly
- * (the range's partial periods): sieved n are counted by their cut depth
- * (counts[VERIFY_COUNT_SIEVED + j]), survivors as checked, exceptions apart. Returns the numbers visited.
+ * The depth where the class of n's low bits is cut (its coefficient first drops below 1), for a
+ * sieved n: single steps on the low word (T^i(n) mod 2^(64 - i) is exact in wrapping arithmetic,
+ * and K <= 30 steps need only the low K bits).
  */
-export function verifyRange(
-  q: u32, r: i32, depth: i32, steps: i32, limit: i32, tables: usize, firstL: u64, firstH: u64, lastL: u64, lastH: u64,
-  counts: usize, scratch: usize,
-): u64 {
-  assert(r != 0 && depth >= 1 && depth <= VERIFY_MAX_DEPTH && (firstL | firstH) != 0 && leU(firstL, firstH, lastL, lastH) && limit >= 1 && limit <= VERIFY_LIMIT_BITS);
-  begin(q, r, depth, 1, steps, limit, tables, counts, scratch);
-  let nl = firstL, nh = firstH;
-  let visited: u64 = 0;
-  while (true) {
-    const done = exact(nl, nh);
-    if (done == DONE_DESCENT && cutDepth > 0) {
-      if (glideT == cutDepth) {
-        bump(VERIFY_COUNT_SIEVED + cutDepth);
-        noteRecords(nl, nh, glideT + glideOdd);
-      } else settle(nl, nh, done, VERIFY_COUNT_EXCEPTIONS);
-    } else if (cutDepth > 0) settle(nl, nh, done, VERIFY_COUNT_EXCEPTIONS);
-    else settle(nl, nh, done, VERIFY_COUNT_CHECKED);
-    visited++;
-    if (nl == lastL && nh == lastH) break;
+@inline function cutOf(n: u64): i32 {
+  let v = n, odd = 0;
+  for (let s = 1; s <= K; s++) {
+    if ((v & 1) == 0) v >>= 1;
+    else {
+      v = Q * (v >> 1) + HQ;
+      odd++;
+    }
+    if (s >= dropDepth(odd)) return s;
+  }
+  return 0;
+}
+
+/**
+ * Counts the sieved n of [nl, nh .. endL, endH) by their class's cut depth, the listed exceptions
+ * (exc[e..excN), ascending) left out. Returns the next exception.
+ */
+function countSieved(nl: u64, nh: u64, endL: u64, endH: u64, e: i32, exc: usize, excN: i32): i32 {
+  while (ltU(nl, nh, endL, endH)) {
+    while (e < excN && ltU(load<u64>(exc + (<usize>e << 3)), 0, nl, nh)) e++;
+    if (e < excN && nh == 0 && load<u64>(exc + (<usize>e << 3)) == nl) e++;
+    else if (nl != 0 || nh != 0) bump(VERIFY_COUNT_SIEVED + cutOf(nl));
     nl++;
     if (nl == 0) nh++;
   }
-  end();
-  return visited;
+  return e;
+}
+
+/**
+ * A block first..last (inclusive; each a (lo, hi) pair below 2^127) anywhere in the periods of the
+ * depth-K sieve, such as a range's partial periods: as an aligned block restricted to the block,
+ * survivors by fast(), sieved n iterated only where they could be records or are listed exceptions
+ * (exc[0..excN), ascending), and the sieved n counted by their cut depth here
+ * (counts[VERIFY_COUNT_SIEVED + j]). Returns the survivors visited.
+ */
+export function verifyRange(
+  q: u32, r: i32, depth: i32, stepDepth: i32, steps: i32, limit: i32, tables: usize, survivors: i32,
+  firstL: u64, firstH: u64, lastL: u64, lastH: u64, exc: usize, excN: i32, sievedGlide: i32, sievedPeak: i32,
+  sievedSlack: u64, survivorSlack: u64, slacks: usize, counts: usize, scratch: usize,
+): u64 {
+  assert(r != 0 && survivors > 0 && depth >= 1 && depth <= VERIFY_MAX_DEPTH && stepDepth >= 1 && stepDepth <= VERIFY_MAX_STEP_DEPTH);
+  assert((firstL | firstH) != 0 && leU(firstL, firstH, lastL, lastH) && (lastH >> 63) == 0 && limit >= 1 && limit <= VERIFY_LIMIT_BITS);
+  begin(q, r, depth, stepDepth, steps, limit, tables, counts, scratch);
+  setRuns();
+  slackK = survivorSlack;
+  slackPtr = slacks;
+  const sievedPeakBits = dropDepth(sievedPeak) - sievedPeak;
+  const Kd = <u64>depth;
+  const mask: u64 = ((<u64>1) << Kd) - 1;
+  // the end, last + 1 (below 2^127)
+  const endL = lastL + 1, endH = lastH + select<u64>(1, 0, endL == 0);
+  let hl = (firstL >> Kd) | (firstH << (64 - Kd)), hh = firstH >> Kd;
+  // the first survivor at or above first's residue
+  const r0 = <u32>(firstL & mask);
+  let lo = 0, hi = survivors;
+  while (lo < hi) {
+    const mid = (lo + hi) >> 1;
+    if (load<u32>(survA + (<usize>mid << 2)) < r0) lo = mid + 1;
+    else hi = mid;
+  }
+  let i = lo;
+  let e = 0, ec = 0; // next exception for the records, for the counts
+  let visited: u64 = 0;
+  let prevL = firstL, prevH = firstH;
+  while (true) {
+    const baseL = hl << Kd, baseH = (hh << Kd) | (hl >> (64 - Kd));
+    for (; i <= survivors; i++) {
+      const off: u64 = i < survivors ? <u64>load<u32>(survA + (<usize>i << 2)) : (<u64>1) << Kd;
+      let nextL = baseL + off, nextH = baseH + select<u64>(1, 0, baseL + off < baseL);
+      const past = !ltU(nextL, nextH, endL, endH);
+      if (past) {
+        nextL = endL;
+        nextH = endH;
+      }
+      if (ltU(prevL, prevH, nextL, nextH)) {
+        ec = countSieved(prevL, prevH, nextL, nextH, ec, exc, excN);
+        e = sievedGap(prevL, prevH, nextL, nextH, e, exc, excN, sievedGlide, sievedPeak, sievedPeakBits, sievedSlack);
+      }
+      if (past) {
+        end();
+        return visited;
+      }
+      if (i == survivors) break;
+      visited++;
+      survivor(nextL, nextH, i, hl, hh);
+      prevL = nextL + 1;
+      prevH = nextH + select<u64>(1, 0, prevL == 0);
+    }
+    i = 0;
+    hl++;
+    if (hl == 0) hh++;
+  }
 }

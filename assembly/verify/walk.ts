@@ -30,6 +30,7 @@ import {
   HQ,
   K,
   KS,
+  limitBits,
   NEG,
   Q,
   affine,
@@ -139,6 +140,13 @@ export function fast(nl: u64, nh: u64, i: i32, hl: u64, hh: u64): i32 {
  * exceededPath says at the end whether the path could beat (bestPathLo, bestPathHi).
  */
 export function descend(nl: u64, nh: u64, nBits: i32, vl: u64, vh: u64, steps: i32, odd: i32, bl: u64, bh: u64): i32 {
+  if (runs && vh == 0 && nh == 0) {
+    const done = runPairs(nl, vl, steps, odd, bl, bh);
+    if (done >= 0) return done;
+    vl = runV;
+    steps = runSteps;
+    odd = runOdd;
+  }
   while (true) {
     if (ltU(bl, bh, vl, vh)) {
       bl = vl;
@@ -211,3 +219,95 @@ export function descend(nl: u64, nh: u64, nBits: i32, vl: u64, vh: u64, steps: i
   return DONE_DESCENT;
 }
 
+
+// Run pairs (q = 3, r > 0, n and v in one word): with y = v + r, an odd step takes y to 3y/2, so the
+// odd run from v is alpha = ctz(v + r) steps at once, v + r = 2^alpha c -> 3^alpha c - r (alpha at
+// most RUN_MAX, 3^40 < 2^64: a partial run is exact too), then the even run by ctz. One compare per
+// run, c > runLimit(alpha) = floor(U / 3^alpha) with U = min(best path + r - 1, 2^64 - 1), catches
+// both a value that leaves the word and one that could reach the block's best path; such an n goes
+// on in descend's general steps from the value before that run, exactly.
+
+const RUN_MAX: i32 = 40;
+const runLimits = new StaticArray<u64>(RUN_MAX + 1);
+const runStamps = new StaticArray<u32>(RUN_MAX + 1);
+const runPow = new StaticArray<u64>(RUN_MAX + 1); // 3^alpha (the kernel's q^m table stops at the sieve depth)
+let runEpoch: u32 = 1;
+let runU: u64 = 0; // U for the current best path
+let runBestLo: u64 = 1, runBestHi: u64 = 1; // the best path U was made from
+let runR: u64 = 0;
+let runs = false; // run pairs apply: q = 3, r > 0, no lowered value limit below 64 bits
+let runV: u64 = 0, runSteps: i32 = 0, runOdd: i32 = 0; // where runPairs stopped (returned -1)
+
+/** Run pairs on or off for the block: q = 3, r > 0, values up to 2^64 allowed. */
+export function setRuns(): void {
+  runs = Q == 3 && !NEG && limitBits >= 64;
+  runR = HQ * 2 - 3;
+  let p: u64 = 1;
+  for (let a = 0; a <= RUN_MAX; a++) {
+    unchecked((runPow[a] = p));
+    p *= 3;
+  }
+  runBestLo = <u64>-1;
+  runBestHi = <u64>-1; // no U yet: made at the first call
+}
+
+@inline function runLimit(alpha: i32): u64 {
+  if (unchecked(runStamps[alpha]) == runEpoch) return unchecked(runLimits[alpha]);
+  const t = runU / unchecked(runPow[alpha]);
+  unchecked((runLimits[alpha] = t));
+  unchecked((runStamps[alpha] = runEpoch));
+  return t;
+}
+
+/**
+ * n's trajectory from v = T^steps(n) by run pairs while they stay in one word below the block's best
+ * path and the step cap is at least a run pair away. Returns DONE_DESCENT (glideT, glideOdd,
+ * exceededPath from the bound (bl, bh) on the values before v) or -1 with (runV, runSteps, runOdd)
+ * where descend goes on.
+ */
+function runPairs(n: u64, v: u64, steps: i32, odd: i32, bl: u64, bh: u64): i32 {
+  if (bestPathLo != runBestLo || bestPathHi != runBestHi) {
+    runBestLo = bestPathLo;
+    runBestHi = bestPathHi;
+    const u = bestPathLo + runR - 1;
+    runU = bestPathHi != 0 || u < bestPathLo ? <u64>-1 : u;
+    runEpoch++;
+  }
+  const r = runR;
+  // a run pair is at most RUN_MAX odd steps and 63 halvings
+  const cap = maxSteps - RUN_MAX - 64;
+  while (v >= n && v != n && steps < cap && v < <u64>-1 - r) {
+    const y = v + r;
+    let alpha = <i32>ctz(y);
+    if (alpha > RUN_MAX) alpha = RUN_MAX;
+    const c = y >> <u64>alpha;
+    if (c > runLimit(alpha)) break;
+    const x = c * unchecked(runPow[alpha]) - r;
+    steps += alpha;
+    odd += alpha;
+    const z = <i32>ctz(x);
+    const w = x >> <u64>z;
+    if (w < n) {
+      // the first halving below n: x >> t with t = bitlen(x) - bitlen(n), or one more
+      let t = <i32>clz(n) - <i32>clz(x);
+      const at = x >> <u64>t;
+      if (at == n) {
+        // n again at step steps + t (t < z: the halving is exact): a cycle
+        glideT = steps + t;
+        glideOdd = odd;
+        return DONE_CYCLE;
+      }
+      if (at > n) t++;
+      glideT = steps + t;
+      glideOdd = odd;
+      exceededPath = ltU(bestPathLo, bestPathHi, bl, bh);
+      return DONE_DESCENT;
+    }
+    steps += z;
+    v = w;
+  }
+  runV = v;
+  runSteps = steps;
+  runOdd = odd;
+  return -1;
+}

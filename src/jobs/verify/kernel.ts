@@ -141,9 +141,15 @@ interface ClassesCall extends BlockCommon {
   readonly glideCap: number;
 }
 
-/** verifyRange (assembly/verify/periods.ts, every n of first..last) or verifyDelays (assembly/verify/delays.ts). */
+/** verifyRange (assembly/verify/periods.ts): first..last anywhere in the periods of the depth-K sieve. */
+interface RangeCall extends Omit<AlignedCall, "h0" | "periods"> {
+  readonly first: bigint;
+  readonly last: bigint;
+}
+
+/** verifyDelays (assembly/verify/delays.ts): every n of first..last to 1. */
 interface SpanCall extends BlockCommon {
-  /** verifyRange: the sieve depth; verifyDelays: the table step depth. */
+  /** the table step depth */
   readonly depth: number;
   readonly first: bigint;
   readonly last: bigint;
@@ -167,10 +173,12 @@ const blockCalls = {
         c.tables, c.bounds, c.classSlacks, c.slacks, c.glideMin, c.glideCap, c.counts, c.scratch],
       sink,
     ),
-  range: (kernel: Kernel, s: SpanCall, sink: FlushSink) =>
+  range: (kernel: Kernel, a: RangeCall, sink: FlushSink) =>
     kernel.call(
       "verifyRange",
-      [s.q, s.r, s.depth, s.maxSteps, s.limitBits, s.tables, ...words(s.first), ...words(s.last), s.counts, s.scratch],
+      // biome-ignore format: the export's argument order, as assembly/verify/periods.ts declares it
+      [a.q, a.r, a.depth, a.stepDepth, a.maxSteps, a.limitBits, a.tables, a.survivors, ...words(a.first), ...words(a.last),
+        a.exceptions, a.exceptionCount, a.sievedGlide, a.sievedPeak, a.sievedSlack, a.survivorSlack, a.slacks, a.counts, a.scratch],
       sink,
     ),
   delay: (kernel: Kernel, s: SpanCall, sink: FlushSink) =>
@@ -186,16 +194,15 @@ function callBlock(kernel: Kernel, t: VerifyTables, block: VerifyBlock, common: 
   const slacks = kernel.region("verify.slacks", 8 * t.slacks.length);
   const span = { ...common, first: block.first, last: block.last };
   switch (block.kind) {
-    case "aligned": {
+    case "aligned":
+    case "range": {
       const exceptions = kernel.region("verify.exceptions", 8 * Math.max(1, block.exceptions.length));
       new BigUint64Array(kernel.memory, exceptions, block.exceptions.length).set(block.exceptions);
-      const aligned: AlignedCall = {
+      const sieve = {
         ...common,
         depth: t.depth,
         stepDepth: t.stepDepth,
         survivors: t.residues.length,
-        h0: block.h0,
-        periods: block.periods,
         exceptions,
         exceptionCount: block.exceptions.length,
         sievedGlide: t.sievedGlide,
@@ -204,7 +211,8 @@ function callBlock(kernel: Kernel, t: VerifyTables, block: VerifyBlock, common: 
         survivorSlack: t.survivorSlack,
         slacks,
       };
-      return blockCalls.aligned(kernel, aligned, sink);
+      if (block.kind === "range") return blockCalls.range(kernel, { ...sieve, first: block.first, last: block.last }, sink);
+      return blockCalls.aligned(kernel, { ...sieve, h0: block.h0, periods: block.periods }, sink);
     }
     case "classes": {
       const c = t.classes;
@@ -226,8 +234,6 @@ function callBlock(kernel: Kernel, t: VerifyTables, block: VerifyBlock, common: 
     }
     case "delay":
       return blockCalls.delay(kernel, { ...span, depth: t.stepDepth }, sink);
-    case "range":
-      return blockCalls.range(kernel, { ...span, depth: t.depth }, sink);
   }
 }
 

@@ -48,7 +48,7 @@ export interface VerifyBlock extends BlockSpec {
   readonly q: number;
   readonly r: number;
   readonly sieveDepth: number;
-  /** aligned: the sieve's exceptions in the block, ascending, and the depth of each one's class. */
+  /** aligned and range: the sieve's exceptions in the block, ascending, and the depth of each one's class. */
   readonly exceptions: BigUint64Array;
   readonly exceptionDepths: Uint8Array;
   readonly maxSteps: number;

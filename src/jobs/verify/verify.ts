@@ -48,7 +48,7 @@ export const breaksSkip = (e: BlockEntry): boolean => e.counts.unresolved > 0n |
 
 /** The message a worker gets for one block of a plan. */
 function blockMessage(plan: VerifyPlan, data: VerifyTableData | null, b: BlockSpec): VerifyBlock {
-  const exc = b.kind === "aligned" && data ? exceptionsIn(data, b.first, b.last) : [];
+  const exc = (b.kind === "aligned" || b.kind === "range") && data ? exceptionsIn(data, b.first, b.last) : [];
   return {
     ...b,
     key: plan.key,
