@@ -12,3 +12,4 @@ export { verifyDelays } from "./verify/delays";
 export { verifyClasses } from "./verify/classes";
 export { verifyPreimage } from "./verify/preimage";
 export { probe128 } from "./u128";
+export { probeRuns } from "./verify/walk";

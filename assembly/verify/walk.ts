@@ -48,8 +48,10 @@ import {
   survPeak,
   tight,
   tightHalf,
+  setMap,
   tooLarge,
 } from "./state";
+import { VERIFY_LIMIT_BITS } from "../layout";
 
 /**
  * n iterated one step at a time from step 0: the exact glide, odd steps and path, and the depth at
@@ -225,7 +227,8 @@ export function descend(nl: u64, nh: u64, nBits: i32, vl: u64, vh: u64, steps: i
 // most RUN_MAX, 3^40 < 2^64: a partial run is exact too), then the even run by ctz. One compare per
 // run, c > runLimit(alpha) = floor(U / 3^alpha) with U = min(best path + r - 1, 2^64 - 1), catches
 // both a value that leaves the word and one that could reach the block's best path; such an n goes
-// on in descend's general steps from the value before that run, exactly.
+// on in descend's general steps from the value before that run, exactly. (v itself is tested too:
+// an even v is a run of alpha = 0, whose value 3^0 c - r is v.)
 
 const RUN_MAX: i32 = 40;
 const runLimits = new StaticArray<u64>(RUN_MAX + 1);
@@ -233,7 +236,8 @@ const runStamps = new StaticArray<u32>(RUN_MAX + 1);
 const runPow = new StaticArray<u64>(RUN_MAX + 1); // 3^alpha (the kernel's q^m table stops at the sieve depth)
 let runEpoch: u32 = 1;
 let runU: u64 = 0; // U for the current best path
-let runBestLo: u64 = 1, runBestHi: u64 = 1; // the best path U was made from
+let runBestLo: u64 = 0, runBestHi: u64 = 0; // the best path U was made from
+let runStale = true; // U not made yet for this block
 let runR: u64 = 0;
 let runs = false; // run pairs apply: q = 3, r > 0, no lowered value limit below 64 bits
 let runV: u64 = 0, runSteps: i32 = 0, runOdd: i32 = 0; // where runPairs stopped (returned -1)
@@ -247,8 +251,7 @@ export function setRuns(): void {
     unchecked((runPow[a] = p));
     p *= 3;
   }
-  runBestLo = <u64>-1;
-  runBestHi = <u64>-1; // no U yet: made at the first call
+  runStale = true; // U is made at the first call
 }
 
 @inline function runLimit(alpha: i32): u64 {
@@ -266,7 +269,8 @@ export function setRuns(): void {
  * where descend goes on.
  */
 function runPairs(n: u64, v: u64, steps: i32, odd: i32, bl: u64, bh: u64): i32 {
-  if (bestPathLo != runBestLo || bestPathHi != runBestHi) {
+  if (runStale || bestPathLo != runBestLo || bestPathHi != runBestHi) {
+    runStale = false;
     runBestLo = bestPathLo;
     runBestHi = bestPathHi;
     const u = bestPathLo + runR - 1;
@@ -310,4 +314,25 @@ function runPairs(n: u64, v: u64, steps: i32, odd: i32, bl: u64, bh: u64): i32 {
   runSteps = steps;
   runOdd = odd;
   return -1;
+}
+
+/**
+ * runPairs on given operands, for the tests (test/runs.test.ts, against BigInt): the map 3x + r,
+ * n from v = T^steps(n), the best path (bestLo, bestHi) and the step cap. Stores at out: the
+ * outcome (DONE_DESCENT, DONE_CYCLE or -1), then glideT and glideOdd, or where it stopped (v, steps, odd),
+ * then 1 when run pairs apply, plus 2 when a descent's path could beat the best (exceededPath).
+ */
+export function probeRuns(r: i32, n: u64, v: u64, steps: i32, bestLo: u64, bestHi: u64, cap: i32, out: usize): void {
+  setMap(3, r);
+  maxSteps = cap;
+  limitBits = VERIFY_LIMIT_BITS;
+  bestPathLo = bestLo;
+  bestPathHi = bestHi;
+  setRuns();
+  const done = runPairs(n, v, steps, 0, n, 0);
+  store<i64>(out, done);
+  store<u64>(out, done < 0 ? runV : 0, 8);
+  store<i64>(out, done < 0 ? runSteps : glideT, 16);
+  store<i64>(out, done < 0 ? runOdd : glideOdd, 24);
+  store<i64>(out, (runs ? 1 : 0) | (done == DONE_DESCENT && exceededPath ? 2 : 0), 32);
 }

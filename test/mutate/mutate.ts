@@ -431,6 +431,55 @@ const MUTANTS: Mutant[] = [
     replace: "return peakT >= n ? 2n * peakT : n;",
     first: ["test/records.test.ts"],
   },
+  {
+    name: "run pairs: the descent's halving count one too many",
+    file: "assembly/verify/walk.ts",
+    find: "if (at > n) t++;",
+    replace: "if (at >= n) t++;\n      t++;",
+    first: ["test/runs.test.ts"],
+  },
+  {
+    name: "run pairs: a threshold table entry one too high (a run that reaches the best path stays in the lane)",
+    file: "assembly/verify/walk.ts",
+    find: "const t = runU / unchecked(runPow[alpha]);",
+    replace: "const t = runU / unchecked(runPow[alpha]) + 1;",
+    first: ["test/runs.test.ts"],
+  },
+  {
+    name: "run pairs: an odd run of 41 steps at once (3^41 wraps past 2^64)",
+    file: "assembly/verify/walk.ts",
+    find: "const RUN_MAX: i32 = 40;",
+    replace: "const RUN_MAX: i32 = 41;",
+    first: ["test/runs.test.ts"],
+  },
+  {
+    name: "run pairs: the step cap checked too late (a run pair may pass it)",
+    file: "assembly/verify/walk.ts",
+    find: "const cap = maxSteps - RUN_MAX - 64;",
+    replace: "const cap = maxSteps - 8;",
+    first: ["test/runs.test.ts"],
+  },
+  {
+    name: "run pairs: U one above the best path less one",
+    file: "assembly/verify/walk.ts",
+    find: "const u = bestPathLo + runR - 1;",
+    replace: "const u = bestPathLo + runR;",
+    first: ["test/runs.test.ts"],
+  },
+  {
+    name: "partial periods: an exception counted as sieved too",
+    file: "assembly/verify/periods.ts",
+    find: "    if (e < excN && nh == 0 && load<u64>(exc + (<usize>e << 3)) == nl) e++;\n    else if",
+    replace: "    if (e < excN && nh == 0 && load<u64>(exc + (<usize>e << 3)) == nl) e++;\n    if",
+    first: ["test/verify.test.ts"],
+  },
+  {
+    name: "partial periods: the first survivor searched one residue too far",
+    file: "assembly/verify/periods.ts",
+    find: "if (load<u32>(survA + (<usize>mid << 2)) < r0) lo = mid + 1;",
+    replace: "if (load<u32>(survA + (<usize>mid << 2)) <= r0) lo = mid + 1;",
+    first: ["test/verify.test.ts"],
+  },
 ];
 
 const root = resolve(new URL("../../", import.meta.url).pathname);
