@@ -32,8 +32,9 @@ import {
   noteRecords,
   settle,
 } from "./books";
-import { HQ, K, Q, peakBound, slackK, slackPtr, survA } from "./state";
-import { exact, fast, setRuns } from "./walk";
+import { HQ, K, Q, affine, peakBound, qpowPtr, slackK, slackPtr, survA, survB, survM } from "./state";
+import { LANE_BATCH, lDone, lM, lN, lOdd, lT, lV, lanesBegin, runLanes } from "./lanes";
+import { exact, fast, runs, setRuns, survivorBound } from "./walk";
 
 /**
  * The gap [prev, next) of sieved n between two survivors: records are possible only while the
@@ -103,6 +104,98 @@ import { exact, fast, setRuns } from "./walk";
   }
 }
 
+// The block's walk in n order, queued: each entry is a gap of sieved n [p, n) and then the survivor
+// n (i < 0: a gap only). A full queue runs its survivors through the lanes (lanes.ts) where they
+// apply, then books every entry in order: the gap (counted here in range blocks, iterated where it
+// could hold records), then the survivor from its lane's glide or by fast().
+const Q_PL = new StaticArray<u64>(LANE_BATCH);
+const Q_PH = new StaticArray<u64>(LANE_BATCH);
+const Q_NL = new StaticArray<u64>(LANE_BATCH);
+const Q_NH = new StaticArray<u64>(LANE_BATCH);
+const Q_I = new StaticArray<i32>(LANE_BATCH);
+const Q_HL = new StaticArray<u64>(LANE_BATCH);
+const Q_HH = new StaticArray<u64>(LANE_BATCH);
+const Q_LANE = new StaticArray<i32>(LANE_BATCH); // the entry's lane slot, or -1
+let queued = 0;
+// the block's sieve facts, for the gaps
+let gExc: usize = 0, gExcN: i32 = 0, gE: i32 = 0, gEc: i32 = 0, gCount = false;
+let gGlide: i32 = 0, gPeak: i32 = 0, gPeakBits: i32 = 0, gSlack: u64 = 0;
+
+function startQueue(exc: usize, excN: i32, count: bool, sievedGlide: i32, sievedPeak: i32, sievedSlack: u64): void {
+  queued = 0;
+  gExc = exc;
+  gExcN = excN;
+  gE = 0;
+  gEc = 0;
+  gCount = count;
+  gGlide = sievedGlide;
+  gPeak = sievedPeak;
+  gPeakBits = dropDepth(sievedPeak) - sievedPeak; // bitlen(q^mp) - ip, the bound's extra bits
+  gSlack = sievedSlack;
+  lanesBegin();
+}
+
+@inline function enqueue(pl: u64, ph: u64, nl: u64, nh: u64, i: i32, hl: u64, hh: u64): void {
+  const j = queued;
+  unchecked((Q_PL[j] = pl));
+  unchecked((Q_PH[j] = ph));
+  unchecked((Q_NL[j] = nl));
+  unchecked((Q_NH[j] = nh));
+  unchecked((Q_I[j] = i));
+  unchecked((Q_HL[j] = hl));
+  unchecked((Q_HH[j] = hh));
+  queued = j + 1;
+  if (queued == LANE_BATCH) flushQueue();
+}
+
+function flushQueue(): void {
+  // the lanes: survivors with n and T^K(n) = q^m h + b in one word (below 2^63, above n)
+  let lanes = 0;
+  for (let j = 0; j < queued; j++) {
+    unchecked((Q_LANE[j] = -1));
+    const i = unchecked(Q_I[j]);
+    if (!runs || i < 0 || unchecked(Q_NH[j]) != 0) continue;
+    const m = <i32>load<u8>(survM + <usize>i);
+    affine(unchecked(Q_HL[j]), unchecked(Q_HH[j]), load<u64>(qpowPtr + (<usize>m << 3)), load<u64>(survB + (<usize>i << 3)));
+    const n = unchecked(Q_NL[j]);
+    if (carry || rhi != 0 || rlo >> 63 != 0 || rlo <= n) continue;
+    unchecked((lN[lanes] = n));
+    unchecked((lV[lanes] = rlo));
+    unchecked((lM[lanes] = m));
+    unchecked((Q_LANE[j] = lanes));
+    lanes++;
+  }
+  if (lanes > 0) runLanes(lanes, K);
+  for (let j = 0; j < queued; j++) {
+    const pl = unchecked(Q_PL[j]), ph = unchecked(Q_PH[j]), nl = unchecked(Q_NL[j]), nh = unchecked(Q_NH[j]);
+    if (ltU(pl, ph, nl, nh)) {
+      if (gCount) gEc = countSieved(pl, ph, nl, nh, gEc, gExc, gExcN);
+      gE = sievedGap(pl, ph, nl, nh, gE, gExc, gExcN, gGlide, gPeak, gPeakBits, gSlack);
+    }
+    const i = unchecked(Q_I[j]);
+    if (i < 0) continue;
+    const l = unchecked(Q_LANE[j]);
+    if (l >= 0 && unchecked(lDone[l]) == DONE_DESCENT) laneSurvivor(nl, i, unchecked(lT[l]), unchecked(lOdd[l]));
+    else survivor(nl, nh, i, unchecked(Q_HL[j]), unchecked(Q_HH[j]));
+  }
+  queued = 0;
+}
+
+/**
+ * Survivor i, n below 2^63, whose lane found its glide (t steps, odd of them odd) with every value
+ * after step K below the best path at the batch's start (at most the best now): as survivor(), its
+ * path bounded by the first K steps' bound only.
+ */
+function laneSurvivor(n: u64, i: i32, t: i32, odd: i32): void {
+  bump(VERIFY_COUNT_CHECKED);
+  survivorBound(n, 0, i, 64 - <i32>clz(n));
+  if (ltU(bestPathLo, bestPathHi, rlo, rhi) || t + odd > bestGlide) {
+    const again = exact(n, 0);
+    if (again == DONE_DESCENT) noteRecords(n, 0, glideT + glideOdd);
+    else settle(n, 0, again, -1);
+  }
+}
+
 /**
  * An aligned block: n = a + 2^K h for h0 <= h < h0 + periods (h0 = (h0h, h0l)), in increasing n.
  * Survivors are iterated; sieved n only where they could be records (or are in the sorted exception
@@ -122,30 +215,30 @@ export function verifyAligned(
   setRuns();
   slackK = survivorSlack;
   slackPtr = slacks;
-  const sievedPeakBits = dropDepth(sievedPeak) - sievedPeak; // bitlen(q^mp) - ip, the bound's extra bits
-  const K = <u64>depth;
-  let e = 0; // next exception
+  startQueue(exc, excN, false, sievedGlide, sievedPeak, sievedSlack);
+  const Kd = <u64>depth;
   let visited: u64 = 0;
   let hl = h0l, hh = h0h;
   for (let p: u64 = 0; p < periods; p++) {
     // base = h 2^K (below 2^127: no bit is lost)
-    const baseL = hl << K, baseH = (hh << K) | (hl >> (64 - K));
+    const baseL = hl << Kd, baseH = (hh << Kd) | (hl >> (64 - Kd));
     let prevL = baseL, prevH = baseH; // first n of the current gap
     for (let i = 0; i <= survivors; i++) {
-      const off: u64 = i < survivors ? <u64>load<u32>(survA + (<usize>i << 2)) : (<u64>1) << K;
+      const off: u64 = i < survivors ? <u64>load<u32>(survA + (<usize>i << 2)) : (<u64>1) << Kd;
       const nextL = baseL + off, nextH = baseH + select<u64>(1, 0, baseL + off < baseL);
-      if (ltU(prevL, prevH, nextL, nextH)) {
-        e = sievedGap(prevL, prevH, nextL, nextH, e, exc, excN, sievedGlide, sievedPeak, sievedPeakBits, sievedSlack);
+      if (i == survivors) {
+        if (ltU(prevL, prevH, nextL, nextH)) enqueue(prevL, prevH, nextL, nextH, -1, hl, hh);
+        break;
       }
-      if (i == survivors) break;
       visited++;
-      survivor(nextL, nextH, i, hl, hh);
+      enqueue(prevL, prevH, nextL, nextH, i, hl, hh);
       prevL = nextL + 1;
       prevH = nextH + select<u64>(1, 0, prevL == 0);
     }
     hl++;
     if (hl == 0) hh++;
   }
+  flushQueue();
   end();
   return visited;
 }
@@ -202,7 +295,7 @@ export function verifyRange(
   setRuns();
   slackK = survivorSlack;
   slackPtr = slacks;
-  const sievedPeakBits = dropDepth(sievedPeak) - sievedPeak;
+  startQueue(exc, excN, true, sievedGlide, sievedPeak, sievedSlack);
   const Kd = <u64>depth;
   const mask: u64 = ((<u64>1) << Kd) - 1;
   // the end, last + 1 (below 2^127)
@@ -217,7 +310,6 @@ export function verifyRange(
     else hi = mid;
   }
   let i = lo;
-  let e = 0, ec = 0; // next exception for the records, for the counts
   let visited: u64 = 0;
   let prevL = firstL, prevH = firstH;
   while (true) {
@@ -230,17 +322,15 @@ export function verifyRange(
         nextL = endL;
         nextH = endH;
       }
-      if (ltU(prevL, prevH, nextL, nextH)) {
-        ec = countSieved(prevL, prevH, nextL, nextH, ec, exc, excN);
-        e = sievedGap(prevL, prevH, nextL, nextH, e, exc, excN, sievedGlide, sievedPeak, sievedPeakBits, sievedSlack);
-      }
-      if (past) {
+      if (past || i == survivors) {
+        if (ltU(prevL, prevH, nextL, nextH)) enqueue(prevL, prevH, nextL, nextH, -1, hl, hh);
+        if (!past) break;
+        flushQueue();
         end();
         return visited;
       }
-      if (i == survivors) break;
       visited++;
-      survivor(nextL, nextH, i, hl, hh);
+      enqueue(prevL, prevH, nextL, nextH, i, hl, hh);
       prevL = nextL + 1;
       prevH = nextH + select<u64>(1, 0, prevL == 0);
     }

@@ -103,19 +103,29 @@ export function exact(nl: u64, nh: u64): i32 {
  */
 export function fast(nl: u64, nh: u64, i: i32, hl: u64, hh: u64): i32 {
   const m = <i32>load<u8>(survM + <usize>i);
-  // values inside the first K steps: at most q^mp (n + r) / 2^ip
-  const pk = survPeak + (<usize>i << 1);
-  const ip = <i32>load<u8>(pk), mp = <i32>load<u8>(pk, 1);
   const nBits = bitlen(nl, nh);
-  let bl = nl, bh = nh;
-  if (nBits + dropDepth(mp) - ip + 2 >= bestPathBits || 64 - <i32>clz(slackK) > nBits) {
-    peakBound(nl, nh, ip, mp, slackK);
-    bl = rlo;
-    bh = carry ? <u64>-1 : rhi;
-  }
+  survivorBound(nl, nh, i, nBits);
+  const bl = rlo, bh = rhi;
   affine(hl, hh, load<u64>(qpowPtr + (<usize>m << 3)), load<u64>(survB + (<usize>i << 3)));
   if (carry || tooLarge(rlo, rhi)) return DONE_HANDOFF;
   return descend(nl, nh, nBits, rlo, rhi, K, m, bl, bh);
+}
+
+/**
+ * Survivor i's bound on its values inside the first K steps, into (rhi, rlo): at most
+ * q^mp (n + r) / 2^ip (peak ip, mp), or n itself while that bound cannot reach the block's best path
+ * (it is below 2^(nBits + bitlen(q^mp) - ip + 1) when the slack is below 2^nBits); all ones when unbounded.
+ */
+@inline export function survivorBound(nl: u64, nh: u64, i: i32, nBits: i32): void {
+  const pk = survPeak + (<usize>i << 1);
+  const ip = <i32>load<u8>(pk), mp = <i32>load<u8>(pk, 1);
+  if (nBits + dropDepth(mp) - ip + 2 >= bestPathBits || 64 - <i32>clz(slackK) > nBits) {
+    peakBound(nl, nh, ip, mp, slackK);
+    if (carry) rhi = <u64>-1;
+  } else {
+    rlo = nl;
+    rhi = nh;
+  }
 }
 
 /**
@@ -239,7 +249,7 @@ let runU: u64 = 0; // U for the current best path
 let runBestLo: u64 = 0, runBestHi: u64 = 0; // the best path U was made from
 let runStale = true; // U not made yet for this block
 let runR: u64 = 0;
-let runs = false; // run pairs apply: q = 3, r > 0, no lowered value limit below 64 bits
+export let runs = false; // run pairs apply: q = 3, r > 0, no lowered value limit below 64 bits
 let runV: u64 = 0, runSteps: i32 = 0, runOdd: i32 = 0; // where runPairs stopped (returned -1)
 
 /** Run pairs on or off for the block: q = 3, r > 0, values up to 2^64 allowed. */
