@@ -250,6 +250,9 @@ describe("verify: ends that are not aligned, shallow sieves, and numbers past 2^
     ["3x+1", (1n << 100n) + 1n, (1n << 100n) + 1500n, 16],
     ["3x+5", (1n << 65n) + (1n << 10n), (1n << 65n) + 3000n, 10],
     ["3x-1", (1n << 70n) + 7n, (1n << 70n) + 2000n, 12],
+    // cycle members of 3x-1 (5 -> 7 -> 10 -> 5, 17 -> ...: common practice) survive every sieve: a range's first
+    // period runs them from step K, where they are back at n after whole laps; their period is the first return
+    ["3x-1", 5n, 3000n, 9],
     // a large r: the path bounds' slack r (q/2)^L is as large as the values, so a bound without it would miss records
     ["3x+65535", 1n, 6000n, 8],
     ["5x+4095", 1n, 3000n, 6],

@@ -96,8 +96,11 @@ import { exact, fast, runs, setRuns, survivorBound } from "./walk";
       // counted as checked already; the host iterates it for its records
       else settle(nl, nh, again, -1);
     }
-  } else if (done == DONE_CYCLE) settle(nl, nh, done, -1);
-  else {
+  } else if (done == DONE_CYCLE) {
+    // back at n after K steps or more (a member below 2^K, in a range's first period): its period is
+    // the first return, from step 0
+    settle(nl, nh, exact(nl, nh), -1);
+  } else {
     // past the cap, or too large for the kernel: single steps settle which (and find the cycle)
     done = exact(nl, nh);
     settle(nl, nh, done, VERIFY_COUNT_CHECKED);

@@ -480,6 +480,13 @@ const MUTANTS: Mutant[] = [
     replace: "if (load<u32>(survA + (<usize>mid << 2)) <= r0) lo = mid + 1;",
     first: ["test/verify.test.ts"],
   },
+  {
+    name: "partial periods: a cycle member's period counted from step K (whole laps), not its first return",
+    file: "assembly/verify/periods.ts",
+    find: "settle(nl, nh, exact(nl, nh), -1);\n  } else {",
+    replace: "settle(nl, nh, done, -1);\n  } else {",
+    first: ["test/verify.test.ts", "test/certificate.test.ts"],
+  },
 ];
 
 const root = resolve(new URL("../../", import.meta.url).pathname);
