@@ -200,7 +200,8 @@ describe.skipIf(!hasChromium)("web app: numbers that read right", () => {
   });
 
   it("a verification's remaining time appears only once honest: rounded, and within a factor 3 of the real finish", async () => {
-    const page = await open("?view=verify&from=1&to=2%5E33&vmethod=periods&run=1");
+    // long enough on 2 cores (about 10 s) for an estimate to be stated and checked
+    const page = await open("?view=verify&from=1&to=2%5E34&vmethod=periods&run=1");
     const t0 = Date.now();
     const seen: [number, string][] = [];
     let status = "";
@@ -214,15 +215,17 @@ describe.skipIf(!hasChromium)("web app: numbers that read right", () => {
       const m = /, ([^,]*) left$/.exec(s);
       return m ? [[t, m[1]!] as const] : [];
     });
-    expect(stated.length, "an estimate at some point of a 2^33 run").toBeGreaterThan(0);
+    expect(stated.length, "an estimate at some point of a 2^34 run").toBeGreaterThan(0);
     for (const [t, said] of stated) {
       expect(said).toMatch(/^(a few seconds|about \d+ (s|min|h|days)( \d+ min)?)$/);
       const m = /^about (\d+) (s|min)$/.exec(said);
-      const seconds = said === "a few seconds" ? 10 : m ? Number(m[1]) * (m[2] === "min" ? 60 : 1) : Number.POSITIVE_INFINITY;
+      // "a few seconds" says less than 10 s
+      const seconds = said === "a few seconds" ? 0 : m ? Number(m[1]) * (m[2] === "min" ? 60 : 1) : Number.POSITIVE_INFINITY;
+      const upTo = said === "a few seconds" ? 10 : seconds;
       const truth = finish - t;
       // a factor 3 either way, with 5 s of slack for the sampling and the rounding
       expect(seconds, `${said} at ${t.toFixed(1)} s, finished at ${finish.toFixed(1)} s`).toBeLessThanOrEqual(3 * truth + 5);
-      expect(seconds, `${said} at ${t.toFixed(1)} s, finished at ${finish.toFixed(1)} s`).toBeGreaterThanOrEqual(truth / 3 - 5);
+      expect(upTo, `${said} at ${t.toFixed(1)} s, finished at ${finish.toFixed(1)} s`).toBeGreaterThanOrEqual(truth / 3 - 5);
     }
     await page.close();
   }, 300_000);
