@@ -139,6 +139,12 @@ function startQueue(exc: usize, excN: i32, count: bool, sievedGlide: i32, sieved
 }
 
 @inline function enqueue(pl: u64, ph: u64, nl: u64, nh: u64, i: i32, hl: u64, hh: u64): void {
+  if (!runs || nh != 0) {
+    // no lane for this map or this n: booked at once, after those queued before it
+    if (queued > 0) flushQueue();
+    book(pl, ph, nl, nh, i, hl, hh, -1);
+    return;
+  }
   const j = queued;
   unchecked((Q_PL[j] = pl));
   unchecked((Q_PH[j] = ph));
@@ -171,17 +177,20 @@ function flushQueue(): void {
   if (lanes > 0) runLanes(lanes, K);
   for (let j = 0; j < queued; j++) {
     const pl = unchecked(Q_PL[j]), ph = unchecked(Q_PH[j]), nl = unchecked(Q_NL[j]), nh = unchecked(Q_NH[j]);
-    if (ltU(pl, ph, nl, nh)) {
-      if (gCount) gEc = countSieved(pl, ph, nl, nh, gEc, gExc, gExcN);
-      gE = sievedGap(pl, ph, nl, nh, gE, gExc, gExcN, gGlide, gPeak, gPeakBits, gSlack);
-    }
-    const i = unchecked(Q_I[j]);
-    if (i < 0) continue;
-    const l = unchecked(Q_LANE[j]);
-    if (l >= 0 && unchecked(lDone[l]) == DONE_DESCENT) laneSurvivor(nl, i, unchecked(lT[l]), unchecked(lOdd[l]));
-    else survivor(nl, nh, i, unchecked(Q_HL[j]), unchecked(Q_HH[j]));
+    book(pl, ph, nl, nh, unchecked(Q_I[j]), unchecked(Q_HL[j]), unchecked(Q_HH[j]), unchecked(Q_LANE[j]));
   }
   queued = 0;
+}
+
+/** One entry in n order: its gap, then survivor i (none when i < 0), from its lane l when l >= 0. */
+@inline function book(pl: u64, ph: u64, nl: u64, nh: u64, i: i32, hl: u64, hh: u64, l: i32): void {
+  if (ltU(pl, ph, nl, nh)) {
+    if (gCount) gEc = countSieved(pl, ph, nl, nh, gEc, gExc, gExcN);
+    gE = sievedGap(pl, ph, nl, nh, gE, gExc, gExcN, gGlide, gPeak, gPeakBits, gSlack);
+  }
+  if (i < 0) return;
+  if (l >= 0 && unchecked(lDone[l]) == DONE_DESCENT) laneSurvivor(nl, i, unchecked(lT[l]), unchecked(lOdd[l]));
+  else survivor(nl, nh, i, hl, hh);
 }
 
 /**
