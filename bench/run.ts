@@ -11,6 +11,7 @@ import type { Mode } from "../src/engine/messages.js";
 import { nodePool } from "../src/node/kernel.js";
 import { enumeratePlain } from "./ts-enumerate.js";
 import { webBench } from "./web.js";
+import { frontierBench } from "./frontier.js";
 import { runCensus } from "../src/jobs/census/census.js";
 import { runTree } from "../src/jobs/tree/tree.js";
 import { searchCycles } from "../src/jobs/cycles/cycles.js";
@@ -188,6 +189,9 @@ try {
 } finally {
   rmSync(dir, { recursive: true, force: true });
 }
+
+// The frontier: verify on one worker beside the C reference (../shared/ref/verify-pub.c, -DSCALAR).
+for (const line of await frontierBench()) console.log(line);
 
 // The web app in headless Chromium (Debian's chromium).
 for (const r of await webBench()) console.log(r.join("  "));

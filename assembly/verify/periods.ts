@@ -208,6 +208,18 @@ function laneSurvivor(n: u64, i: i32, t: i32, odd: i32): void {
   }
 }
 
+/** A block of the depth-K sieve's periods starts: its parameters checked, the run's tables, run pairs, slacks. */
+function startSieveBlock(
+  q: u32, r: i32, depth: i32, stepDepth: i32, steps: i32, limit: i32, tables: usize, survivors: i32, counts: usize,
+  scratch: usize, survivorSlack: u64, slacks: usize,
+): void {
+  assert(r != 0 && survivors > 0 && depth >= 1 && depth <= VERIFY_MAX_DEPTH && stepDepth >= 1 && stepDepth <= VERIFY_MAX_STEP_DEPTH && limit >= 1 && limit <= VERIFY_LIMIT_BITS);
+  begin(q, r, depth, stepDepth, steps, limit, tables, counts, scratch);
+  setRuns();
+  slackK = survivorSlack;
+  slackPtr = slacks;
+}
+
 /**
  * An aligned block: n = a + 2^K h for h0 <= h < h0 + periods (h0 = (h0h, h0l)), in increasing n.
  * Survivors are iterated; sieved n only where they could be records (or are in the sorted exception
@@ -222,11 +234,7 @@ export function verifyAligned(
   h0l: u64, h0h: u64, periods: u64, exc: usize, excN: i32, sievedGlide: i32, sievedPeak: i32, sievedSlack: u64,
   survivorSlack: u64, slacks: usize, counts: usize, scratch: usize,
 ): u64 {
-  assert(r != 0 && survivors > 0 && depth >= 1 && depth <= VERIFY_MAX_DEPTH && stepDepth >= 1 && stepDepth <= VERIFY_MAX_STEP_DEPTH && limit >= 1 && limit <= VERIFY_LIMIT_BITS);
-  begin(q, r, depth, stepDepth, steps, limit, tables, counts, scratch);
-  setRuns();
-  slackK = survivorSlack;
-  slackPtr = slacks;
+  startSieveBlock(q, r, depth, stepDepth, steps, limit, tables, survivors, counts, scratch, survivorSlack, slacks);
   startQueue(exc, excN, false, sievedGlide, sievedPeak, sievedSlack);
   const Kd = <u64>depth;
   let visited: u64 = 0;
@@ -301,12 +309,8 @@ export function verifyRange(
   firstL: u64, firstH: u64, lastL: u64, lastH: u64, exc: usize, excN: i32, sievedGlide: i32, sievedPeak: i32,
   sievedSlack: u64, survivorSlack: u64, slacks: usize, counts: usize, scratch: usize,
 ): u64 {
-  assert(r != 0 && survivors > 0 && depth >= 1 && depth <= VERIFY_MAX_DEPTH && stepDepth >= 1 && stepDepth <= VERIFY_MAX_STEP_DEPTH);
-  assert((firstL | firstH) != 0 && leU(firstL, firstH, lastL, lastH) && (lastH >> 63) == 0 && limit >= 1 && limit <= VERIFY_LIMIT_BITS);
-  begin(q, r, depth, stepDepth, steps, limit, tables, counts, scratch);
-  setRuns();
-  slackK = survivorSlack;
-  slackPtr = slacks;
+  assert((firstL | firstH) != 0 && leU(firstL, firstH, lastL, lastH) && (lastH >> 63) == 0);
+  startSieveBlock(q, r, depth, stepDepth, steps, limit, tables, survivors, counts, scratch, survivorSlack, slacks);
   startQueue(exc, excN, true, sievedGlide, sievedPeak, sievedSlack);
   const Kd = <u64>depth;
   const mask: u64 = ((<u64>1) << Kd) - 1;

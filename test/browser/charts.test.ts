@@ -1,10 +1,7 @@
-// The page's charts read back from the page (each chart's option as drawn) and compared with a
-// BigInt brute force written here or with the run's own result; each chart's PNG and SVG download.
-import { readFileSync } from "node:fs";
 import { describe, expect, it } from "vitest";
-import type { Download, Page } from "playwright-core";
+import type { Page } from "playwright-core";
 import { parseExactJson } from "../../src/core/json.js";
-import { summaryOf } from "./harness.js";
+import { downloads, summaryOf } from "./harness.js";
 import { browserSuite, hasChromium } from "./suite.js";
 
 const { open } = browserSuite();
@@ -70,17 +67,6 @@ const optionOf = (page: Page, id: string) =>
   ) as Promise<Option>;
 /** A series' exact values: the third and fourth data dimensions hold them as digits. */
 const exact = (data: unknown[]) => (data as [number, number, string, string][]).map((d) => [BigInt(d[2]), BigInt(d[3])]);
-
-/** The files a click hands over. */
-async function downloads(page: Page, selector: string, count: number): Promise<{ name: string; bytes: Buffer }[]> {
-  const got: Download[] = [];
-  const take = (d: Download) => got.push(d);
-  page.on("download", take);
-  await page.click(selector);
-  for (let i = 0; i < 200 && got.length < count; i++) await page.waitForTimeout(50);
-  page.off("download", take);
-  return Promise.all(got.map(async (d) => ({ name: d.suggestedFilename(), bytes: readFileSync((await d.path())!) })));
-}
 
 describe.skipIf(!hasChromium)("charts: the points drawn are the brute force's and the run's", () => {
   it("Verify 3x+1 over [1, 2^20): records against n with OEIS A060412 and A006884 as rings, the cut depths, a record's orbit", async () => {

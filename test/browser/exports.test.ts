@@ -3,12 +3,11 @@
 // the run's own JSON and a BigInt brute force; each with the CLI's manifest (sha256 checked here)
 // and named after its map and parameters.
 import { createHash } from "node:crypto";
-import { readFileSync } from "node:fs";
 import { tableFromIPC } from "apache-arrow";
 import { describe, expect, it } from "vitest";
-import type { Download, Page } from "playwright-core";
+import type { Page } from "playwright-core";
 import { parseExactJson } from "../../src/core/json.js";
-import { summaryOf } from "./harness.js";
+import { downloads, summaryOf } from "./harness.js";
 import { browserSuite, hasChromium } from "./suite.js";
 
 const { open } = browserSuite();
@@ -19,15 +18,10 @@ interface File {
 }
 
 /** The files a click hands over (a data file and its manifest). */
-async function downloads(page: Page, selector: string, count = 2): Promise<File[]> {
-  const got: Download[] = [];
-  const take = (d: Download) => got.push(d);
-  page.on("download", take);
-  await page.click(selector);
-  for (let i = 0; i < 200 && got.length < count; i++) await page.waitForTimeout(50);
-  page.off("download", take);
+async function downloadsOf(page: Page, selector: string, count = 2): Promise<File[]> {
+  const got = await downloads(page, selector, count);
   expect(got).toHaveLength(count);
-  return Promise.all(got.map(async (d) => ({ name: d.suggestedFilename(), bytes: readFileSync((await d.path())!) })));
+  return got;
 }
 
 /**
@@ -105,7 +99,7 @@ describe.skipIf(!hasChromium)("exports of what is on screen: files, manifests, n
     const s = parseExactJson(await summaryOf(page)) as { levels: { depth: bigint; survivors: bigint; stopped: bigint }[] };
     const screen = await screenTable(page, "run-levels");
     const csv = withManifest(
-      await downloads(page, "#run-levels-exports-csv"),
+      await downloadsOf(page, "#run-levels-exports-csv"),
       "sieve-3x+1-12-levels.csv",
       "glidepath levels",
       "3x+1",
@@ -116,7 +110,7 @@ describe.skipIf(!hasChromium)("exports of what is on screen: files, manifests, n
     expect(csv.manifest.depth).toBe(12n);
     expect(csv.manifest.rows).toBe(13n);
     const json = withManifest(
-      await downloads(page, "#run-levels-exports-json"),
+      await downloadsOf(page, "#run-levels-exports-json"),
       "sieve-3x+1-12-levels.json",
       "glidepath levels",
       "3x+1",
@@ -132,7 +126,7 @@ describe.skipIf(!hasChromium)("exports of what is on screen: files, manifests, n
     const page = await open("?mode=full&depth=10&run=1");
     const s = parseExactJson(await summaryOf(page)) as { census: unknown; levels: { survivors: bigint }[] };
     const name = "census-3x+1-10";
-    const csv = withManifest(await downloads(page, "#run-census-exports-csv"), `${name}.csv`, "glidepath census", "3x+1", "csv");
+    const csv = withManifest(await downloadsOf(page, "#run-census-exports-csv"), `${name}.csv`, "glidepath census", "3x+1", "csv");
     expect(csv.manifest.depth).toBe(10n);
     const rows = readCsv(text(csv.data));
     // every parity vector of length j with m odd steps is counted once: C(j, m) (common practice)
@@ -144,11 +138,11 @@ describe.skipIf(!hasChromium)("exports of what is on screen: files, manifests, n
     const screen = await screenTable(page, "run-levels");
     expect(String(live)).toBe(screen.find((r) => r.depth === "10")!.survivors);
     expect(live).toBe(s.levels[10]!.survivors);
-    const arrow = withManifest(await downloads(page, "#run-census-exports-arrow"), `${name}.arrow`, "glidepath census", "3x+1", "arrow");
+    const arrow = withManifest(await downloadsOf(page, "#run-census-exports-arrow"), `${name}.arrow`, "glidepath census", "3x+1", "arrow");
     const table = tableFromIPC(arrow.data.bytes);
     expect(table.schema.fields.map((f) => f.name)).toEqual(["tally", "depth", "odd_steps", "bin", "count"]);
     expect(table.toArray().map((r) => Object.values(r.toJSON()).map(String))).toEqual(rows.map((r) => Object.values(r)));
-    const json = withManifest(await downloads(page, "#run-census-exports-json"), `${name}.json`, "glidepath census", "3x+1", "json");
+    const json = withManifest(await downloadsOf(page, "#run-census-exports-json"), `${name}.json`, "glidepath census", "3x+1", "json");
     expect(parseExactJson(text(json.data))).toEqual(s.census);
     await page.close();
   });
@@ -159,7 +153,7 @@ describe.skipIf(!hasChromium)("exports of what is on screen: files, manifests, n
     await page.waitForSelector("#cycles-exports-csv");
     const screen = await screenTable(page, "cycles-table");
     const name = "cycles-3x+5-period-12";
-    const csv = withManifest(await downloads(page, "#cycles-exports-csv"), `${name}.csv`, "glidepath cycles", "3x+5", "csv");
+    const csv = withManifest(await downloadsOf(page, "#cycles-exports-csv"), `${name}.csv`, "glidepath cycles", "3x+5", "csv");
     const rows = readCsv(text(csv.data));
     // the screen's columns by the start of their headings (sign, minimum, ..., period (steps of T), odd steps, elements)
     const col = (r: Record<string, string>, start: string) => Object.entries(r).find(([h]) => h.startsWith(start))![1];
@@ -169,7 +163,7 @@ describe.skipIf(!hasChromium)("exports of what is on screen: files, manifests, n
     expect([csv.manifest.maxPeriod, csv.manifest.rows]).toEqual([12n, BigInt(screen.length)]);
     // 3x+5's positive cycles up to period 12 have least elements 1, 5, 19, 23 (common practice; the Cycles view's list)
     expect(rows.filter((r) => r.sign === "positive").map((r) => r.minimum)).toEqual(["1", "5", "19", "23"]);
-    const arrow = withManifest(await downloads(page, "#cycles-exports-arrow"), `${name}.arrow`, "glidepath cycles", "3x+5", "arrow");
+    const arrow = withManifest(await downloadsOf(page, "#cycles-exports-arrow"), `${name}.arrow`, "glidepath cycles", "3x+5", "arrow");
     const t = tableFromIPC(arrow.data.bytes);
     expect(t.getChild("min")!.toArray()).toEqual(rows.map((r) => r.minimum));
     expect(
@@ -178,7 +172,7 @@ describe.skipIf(!hasChromium)("exports of what is on screen: files, manifests, n
         .toArray()
         .map((e: { toArray: () => string[] }) => e.toArray().join(" ")),
     ).toEqual(rows.map((r) => r.elements));
-    const json = withManifest(await downloads(page, "#cycles-exports-json"), `${name}.json`, "glidepath cycles", "3x+5", "json");
+    const json = withManifest(await downloadsOf(page, "#cycles-exports-json"), `${name}.json`, "glidepath cycles", "3x+5", "json");
     expect((parseExactJson(text(json.data)) as { cycles: { min: bigint }[] }).cycles.map((c) => String(c.min))).toEqual(
       rows.map((r) => r.minimum),
     );
@@ -190,7 +184,7 @@ describe.skipIf(!hasChromium)("exports of what is on screen: files, manifests, n
     const s = parseExactJson(await summaryOf(page)) as { tree: { levels: { nodes: bigint }[] } };
     const screen = await screenTable(page, "tree-levels");
     const name = "tree-3x+1-1-depth-12-levels";
-    const csv = withManifest(await downloads(page, "#tree-levels-exports-csv"), `${name}.csv`, "glidepath tree levels", "3x+1", "csv");
+    const csv = withManifest(await downloadsOf(page, "#tree-levels-exports-csv"), `${name}.csv`, "glidepath tree levels", "3x+1", "csv");
     const rows = readCsv(text(csv.data));
     expect(rows.map((r) => [r.depth, r.nodes])).toEqual(screen.map((r) => [r.depth, r.nodes]));
     // the n that reach 1 first after exactly j steps of T, by a BigInt search over n <= 2^12: a node of depth j is at
@@ -207,7 +201,13 @@ describe.skipIf(!hasChromium)("exports of what is on screen: files, manifests, n
       if (v === 1n && j <= 12) counts[j]!++;
     }
     expect(rows.map((r) => BigInt(r.nodes!))).toEqual(counts);
-    const json = withManifest(await downloads(page, "#tree-levels-exports-json"), `${name}.json`, "glidepath tree levels", "3x+1", "json");
+    const json = withManifest(
+      await downloadsOf(page, "#tree-levels-exports-json"),
+      `${name}.json`,
+      "glidepath tree levels",
+      "3x+1",
+      "json",
+    );
     expect((parseExactJson(text(json.data)) as typeof s.tree).levels).toEqual(s.tree.levels);
     await page.close();
   });
@@ -223,7 +223,7 @@ describe.skipIf(!hasChromium)("exports of what is on screen: files, manifests, n
     };
     const base = "verify-3x+1-1-65536";
     const glide = withManifest(
-      await downloads(page, "#verify-glide-exports-csv"),
+      await downloadsOf(page, "#verify-glide-exports-csv"),
       `${base}-glide-records.csv`,
       "glidepath verify glide records",
       "3x+1",
@@ -236,7 +236,7 @@ describe.skipIf(!hasChromium)("exports of what is on screen: files, manifests, n
       s.verify.glideRecords.map((x) => [x.n, x.standardSteps, x.steps]),
     );
     const path = withManifest(
-      await downloads(page, "#verify-path-exports-csv"),
+      await downloadsOf(page, "#verify-path-exports-csv"),
       `${base}-path-records.csv`,
       "glidepath verify path records",
       "3x+1",
@@ -257,7 +257,7 @@ describe.skipIf(!hasChromium)("exports of what is on screen: files, manifests, n
     }
     expect(p.map((r) => BigInt(r.highest_T!))).toEqual(s.verify.pathRecords.map((x) => x.peakT));
     const json = withManifest(
-      await downloads(page, "#verify-glide-exports-json"),
+      await downloadsOf(page, "#verify-glide-exports-json"),
       `${base}-glide-records.json`,
       "glidepath verify glide records",
       "3x+1",
@@ -265,7 +265,7 @@ describe.skipIf(!hasChromium)("exports of what is on screen: files, manifests, n
     );
     expect((parseExactJson(text(json.data)) as typeof s.verify).glideRecords).toEqual(s.verify.glideRecords);
     const cut = withManifest(
-      await downloads(page, "#verify-cut-exports-csv"),
+      await downloadsOf(page, "#verify-cut-exports-csv"),
       `${base}-cut-depths.csv`,
       "glidepath verify cut depths",
       "3x+1",
@@ -282,7 +282,7 @@ describe.skipIf(!hasChromium)("exports of what is on screen: files, manifests, n
     const page = await open("?view=verify&vmap=3x%2B1&from=1&to=2%5E10&vdelay=1&run=1");
     await summaryOf(page);
     const csv = withManifest(
-      await downloads(page, "#verify-delay-exports-csv"),
+      await downloadsOf(page, "#verify-delay-exports-csv"),
       "verify-3x+1-1-1024-delay-records.csv",
       "glidepath verify delay records",
       "3x+1",

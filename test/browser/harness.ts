@@ -2,11 +2,11 @@
 import { createServer } from "node:http";
 import type { Server } from "node:http";
 import { readFile } from "node:fs/promises";
-import { mkdtempSync, rmSync } from "node:fs";
+import { mkdtempSync, readFileSync, rmSync } from "node:fs";
 import { extname, join, normalize } from "node:path";
 import { tmpdir } from "node:os";
 import { chromium } from "playwright-core";
-import type { BrowserContext, Page } from "playwright-core";
+import type { BrowserContext, Download, Page } from "playwright-core";
 
 /** The built app: dist/, or the folder GLIDEPATH_DIST names (a build of its own, `vite build --outDir`). */
 const DIST = process.env.GLIDEPATH_DIST ?? new URL("../../dist/", import.meta.url).pathname;
@@ -87,4 +87,15 @@ export async function openPage(browser: BrowserContext, url: string): Promise<Pa
 export async function summaryOf(page: Page, timeout = 120_000): Promise<string> {
   await page.waitForFunction(() => (document.querySelector("[data-run-summary]")?.textContent ?? "") !== "", undefined, { timeout });
   return (await page.textContent("[data-run-summary]"))!;
+}
+
+/** The files a click hands over (waits up to 10 s for `count` of them): their suggested names and bytes. */
+export async function downloads(page: Page, selector: string, count: number): Promise<{ name: string; bytes: Buffer }[]> {
+  const got: Download[] = [];
+  const take = (d: Download) => got.push(d);
+  page.on("download", take);
+  await page.click(selector);
+  for (let i = 0; i < 200 && got.length < count; i++) await page.waitForTimeout(50);
+  page.off("download", take);
+  return Promise.all(got.map(async (d) => ({ name: d.suggestedFilename(), bytes: readFileSync((await d.path())!) })));
 }

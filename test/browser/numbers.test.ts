@@ -17,13 +17,10 @@ const text = async (page: Page, sel: string) => ((await page.textContent(sel)) ?
 const grouped = (n: bigint) => n.toLocaleString("en-US");
 
 /**
- * The standard map (n/2 for even n, q·n + r for odd n) iterated in BigInt until a value repeats:
- * the largest value and its first step, the cycle's member of least |x| (its sign kept), and the
- * first step of each value.
+ * A map iterated in BigInt until a value repeats: the largest value and its first step, the cycle's
+ * entry step, the value there and its member of least |x| (its sign kept), and the first step of each value.
  */
-function standardOrbit(map: CollatzMap, n: bigint): { max: bigint; maxAt: number; least: bigint; at: Map<bigint, number> } {
-  const q = BigInt(map.q),
-    r = BigInt(map.r);
+function orbitBy(n: bigint, step: (v: bigint) => bigint) {
   const seen = new Map<bigint, number>();
   let v = n,
     max = n,
@@ -32,31 +29,19 @@ function standardOrbit(map: CollatzMap, n: bigint): { max: bigint; maxAt: number
     if (j > 100_000) throw new Error(`no cycle within 100,000 steps from ${n}`);
     seen.set(v, j);
     if (v > max) [max, maxAt] = [v, j];
-    v = v % 2n === 0n ? v / 2n : q * v + r;
+    v = step(v);
   }
   const entry = seen.get(v)!;
   const cycle = [...seen].filter(([, j]) => j >= entry).map(([x]) => x);
   const abs = (x: bigint) => (x < 0n ? -x : x);
   const least = cycle.reduce((a, b) => (abs(b) < abs(a) ? b : a));
-  return { max, maxAt, least, at: seen };
+  return { max, maxAt, entry, entered: v, least, at: seen };
 }
 
-/** The same under T (an odd step is (q·v + r)/2): the largest value and its first step, the cycle's entry and the value there. */
-function orbitT(map: CollatzMap, n: bigint): { max: bigint; maxAt: number; entry: number; entered: bigint } {
-  const q = BigInt(map.q),
-    r = BigInt(map.r);
-  const seen = new Map<bigint, number>();
-  let v = n,
-    max = n,
-    maxAt = 0;
-  for (let j = 0; !seen.has(v); j++) {
-    if (j > 100_000) throw new Error(`no cycle within 100,000 steps from ${n}`);
-    seen.set(v, j);
-    if (v > max) [max, maxAt] = [v, j];
-    v = v % 2n === 0n ? v / 2n : (q * v + r) / 2n;
-  }
-  return { max, maxAt, entry: seen.get(v)!, entered: v };
-}
+/** The standard map: n/2 for even n, q·n + r for odd n. */
+const standardOrbit = (map: CollatzMap, n: bigint) => orbitBy(n, (v) => (v % 2n === 0n ? v / 2n : BigInt(map.q) * v + BigInt(map.r)));
+/** T: an odd step is (q·v + r)/2. */
+const orbitT = (map: CollatzMap, n: bigint) => orbitBy(n, (v) => (v % 2n === 0n ? v / 2n : (BigInt(map.q) * v + BigInt(map.r)) / 2n));
 
 /** T's highest value from n until it goes below n, for 3x+1; `standard` only names the glide's standard peak for the message. */
 function orbitTo(n: bigint, standard: bigint): bigint {
