@@ -155,6 +155,23 @@ describe.skipIf(!hasChromium)("charts: the points drawn are the brute force's an
   });
 });
 
+describe.skipIf(!hasChromium)("charts: a 10,000-step orbit of a 3,010-digit number", () => {
+  it("2^9999 - 1 in the Inspector: its tooltips give the power of ten past 60 digits, its note the leading digits and their count", async () => {
+    // log10(2^9999 - 1) = 9999 log10(2) = 3009.99... (common practice); decimal strings of thousands of such values
+    // would hold the page for seconds
+    const page = await open("?view=inspect&inspect=2%5E9999-1&imap=3x%2B1&run=1");
+    await page.waitForSelector("#chart-trajectory-marks", { timeout: 120_000 });
+    const opt = await optionOf(page, "chart-trajectory");
+    const first = (opt.series[0]!.data as [number, number, string][])[0]!;
+    expect(first[0]).toBe(0);
+    expect(first[2]).toBe("about 10^3010.00");
+    expect(await page.textContent("#chart-trajectory-marks")).toMatch(
+      /^9,975,315,584,403,791,[0-9,]*\.\.\. \(4,?013 in all\): in steps of T,/,
+    );
+    await page.close();
+  }, 180_000);
+});
+
 /** The chart `id` draws n's orbit under T and in standard steps, with the glide, the arrival at 1 and the maximum marked in each. */
 async function expectOrbit(page: Page, id: string, n: bigint): Promise<void> {
   const o = orbit(n);

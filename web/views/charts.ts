@@ -8,6 +8,7 @@ import type { Level } from "../../src/core/exact.js";
 import { bothConventions } from "../../src/core/orbit.js";
 import type { OrbitView } from "../../src/core/orbit.js";
 import { group } from "../../src/outputs/format.js";
+import { abbreviate } from "../../src/outputs/card.js";
 import { download } from "../dom.js";
 
 echarts.use([
@@ -282,10 +283,18 @@ export function drawCensus(peaks: { log2: number; count: bigint }[], bins: { bin
 function log10(v: bigint): number {
   const a = v < 0n ? -v : v;
   if (a === 0n) return 0;
-  const bits = a.toString(2).length;
-  if (bits <= 1000) return Math.log10(Number(a));
+  if (a < 1n << 1000n) return Math.log10(Number(a));
+  // the bit length from the hexadecimal digits (a quarter of the binary string's length)
+  const hex = a.toString(16);
+  const bits = 4 * (hex.length - 1) + Number.parseInt(hex[0]!, 16).toString(2).length;
   return Math.log10(Number(a >> BigInt(bits - 60))) + (bits - 60) * Math.log10(2);
 }
+
+/** A value for a tooltip: its digits up to 60 of them; past that (a 10,000-step orbit of 2^9999 − 1
+ * has thousands of values of thousands of digits, whose decimal strings alone take seconds) its
+ * power of ten, the exact values being in the card and the exports. */
+const BIG_FOR_TOOLTIP = 10n ** 60n;
+const tooltipValue = (x: bigint, lg: number) => (x < BIG_FOR_TOOLTIP && x > -BIG_FOR_TOOLTIP ? String(x) : `about 10^${lg.toFixed(2)}`);
 
 /** An orbit's marks in one convention: the glide, the step it reaches 1 and its maximum, where they fall. */
 function marks(o: OrbitView): { name: string; value: [number, number, string] }[] {
@@ -299,7 +308,7 @@ function marksText(o: OrbitView): string {
   return [
     o.glide === null ? "no glide within the steps shown" : `glide ${o.glide}`,
     ...(o.one === null || o.one === 0 ? [] : [`reaches 1 at step ${o.one}`]),
-    `highest ${group(o.max)} at step ${o.maxAt}`,
+    `highest ${abbreviate(group(o.max), 80)} at step ${o.maxAt}`,
   ].join(", ");
 }
 
@@ -310,7 +319,11 @@ function marksText(o: OrbitView): string {
  */
 export function drawTrajectory(values: readonly bigint[], id = "chart-trajectory"): void {
   const o = bothConventions(values);
-  const line = (v: OrbitView) => v.values.map((x, j) => [j, log10(x), String(x)]);
+  const line = (v: OrbitView) =>
+    v.values.map((x, j) => {
+      const lg = log10(x);
+      return [j, lg, tooltipValue(x, lg)];
+    });
   const names = ["steps of T", "standard steps"] as const;
   draw(id, () => ({
     ...base(),
@@ -352,7 +365,7 @@ export function drawTrajectory(values: readonly bigint[], id = "chart-trajectory
     note.className = "hint";
     el.after(note);
   }
-  note.textContent = `${group(values[0]!)}: in steps of T, ${marksText(o.T)}; in standard steps (3n + 1 and n/2 each a step), ${marksText(o.standard)}.`;
+  note.textContent = `${abbreviate(group(values[0]!), 80)}: in steps of T, ${marksText(o.T)}; in standard steps (3n + 1 and n/2 each a step), ${marksText(o.standard)}.`;
 }
 
 /** A log axis's label: digits up to a thousand, then 1e4, 1e5, ... (the ticks are powers of 10; short enough for a phone). */
