@@ -112,7 +112,7 @@ const TEXT_RECORDS = 40;
 /** The range and its parameters, for `verify` and `batch verify`. */
 function rangeOptions(cmd: Command): Command {
   return cmd
-    .option("--from <FROM>", "first number (decimal, or a sum of powers such as 2^50+2^32)")
+    .option("--from <FROM>", "first number (decimal, or sums and differences of powers such as 2^50+2^32, 2^61-1)")
     .option("--to <TO>", "the end of the range, not included")
     .option(
       "--sieve-depth <K>",
