@@ -4,7 +4,8 @@
 // The lanes stop where walk.ts runPairs stops (a value that would leave the word or reach the best
 // path at the batch's start, the step cap a run pair away, a return to n): such a survivor is walked
 // again by the caller in general steps. The caller books every survivor in n order, so records and
-// counts are those of one survivor after another.
+// counts are those of one survivor after another. The four lanes are written out one after another
+// on purpose: each keeps its state in locals (a helper would pass it through globals, in memory).
 
 import { DONE_DESCENT, bestPathHi, bestPathLo } from "./books";
 import { HQ, maxSteps } from "./state";
