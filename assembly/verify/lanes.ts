@@ -7,11 +7,10 @@
 // counts are those of one survivor after another. The four lanes are written out one after another
 // on purpose: each keeps its state in locals (a helper would pass it through globals, in memory).
 
-import { DONE_DESCENT, bestPathHi, bestPathLo } from "./books";
-import { HQ, maxSteps } from "./state";
+import { DONE_DESCENT } from "./books";
+import { RUN_MAX, fillRunLimits, firstHalvingBelow, runLimits, runPow, runR, runStepCap } from "./walk";
 
 export const LANE_BATCH: i32 = 256;
-const RUN_MAX: i32 = 40; // 3^40 < 2^64 < 3^41
 /** A batch: n, v = T^K(n), its odd steps among the first K (set by the caller). */
 export const lN = new StaticArray<u64>(LANE_BATCH);
 export const lV = new StaticArray<u64>(LANE_BATCH);
@@ -20,30 +19,14 @@ export const lM = new StaticArray<i32>(LANE_BATCH);
 export const lDone = new StaticArray<i32>(LANE_BATCH);
 export const lT = new StaticArray<i32>(LANE_BATCH);
 export const lOdd = new StaticArray<i32>(LANE_BATCH);
-const pow3 = new StaticArray<u64>(RUN_MAX + 1);
-const limits = new StaticArray<u64>(RUN_MAX + 1); // floor(U / 3^a), U = min(best path + r - 1, 2^64 - 1)
-let madeLo: u64 = 0, madeHi: u64 = 0; // the best path the limits were made from
-let stale = true;
 
-/** A new block (and map): the limits are made again at the next batch. */
-export function lanesBegin(): void {
-  stale = true;
-  let p: u64 = 1;
-  for (let a = 0; a <= RUN_MAX; a++) {
-    unchecked((pow3[a] = p));
-    p *= 3;
-  }
-}
-
-/** A lane's descent: the first halving of x below n (t = bitlen(x) - bitlen(n), or one more), or n again. */
+/** A lane's descent at the first halving of x below n, or n again (-1: the caller's general steps report the cycle). */
 @inline function finish(j: i32, n: u64, x: u64, s: i32, o: i32): void {
-  let t = <i32>clz(n) - <i32>clz(x);
-  const at = x >> <u64>t;
-  if (at == n) {
-    unchecked((lDone[j] = -1)); // back at n: the caller's general steps report the cycle
+  const t = firstHalvingBelow(n, x);
+  if (t < 0) {
+    unchecked((lDone[j] = -1));
     return;
   }
-  if (at > n) t++;
   unchecked((lDone[j] = DONE_DESCENT));
   unchecked((lT[j] = s + t));
   unchecked((lOdd[j] = o));
@@ -51,16 +34,9 @@ export function lanesBegin(): void {
 
 /** Runs the batch's entries 0..count-1 (each from step K). */
 export function runLanes(count: i32, K: i32): void {
-  const r: u64 = HQ * 2 - 3;
-  if (stale || bestPathLo != madeLo || bestPathHi != madeHi) {
-    stale = false;
-    madeLo = bestPathLo;
-    madeHi = bestPathHi;
-    const u = bestPathLo + r - 1;
-    const U: u64 = bestPathHi != 0 || u < bestPathLo ? <u64>-1 : u;
-    for (let a = 0; a <= RUN_MAX; a++) unchecked((limits[a] = U / unchecked(pow3[a])));
-  }
-  const cap = maxSteps - RUN_MAX - 64;
+  fillRunLimits();
+  const r = runR;
+  const cap = runStepCap();
   let next = 0;
   let j0: i32 = -1, n0: u64 = 0, v0: u64 = 0, s0: i32 = 0, o0: i32 = 0;
   if (next < count) {
@@ -100,11 +76,11 @@ export function runLanes(count: i32, K: i32): void {
       let a = <i32>ctz(y);
       if (a > RUN_MAX) a = RUN_MAX;
       const c = y >> <u64>a;
-      if (c > unchecked(limits[a]) || s0 >= cap) {
+      if (c > unchecked(runLimits[a]) || s0 >= cap) {
         unchecked((lDone[j0] = -1));
         j0 = -1;
       } else {
-        const x = c * unchecked(pow3[a]) - r;
+        const x = c * unchecked(runPow[a]) - r;
         s0 += a;
         o0 += a;
         const z = <i32>ctz(x);
@@ -130,11 +106,11 @@ export function runLanes(count: i32, K: i32): void {
       let a = <i32>ctz(y);
       if (a > RUN_MAX) a = RUN_MAX;
       const c = y >> <u64>a;
-      if (c > unchecked(limits[a]) || s1 >= cap) {
+      if (c > unchecked(runLimits[a]) || s1 >= cap) {
         unchecked((lDone[j1] = -1));
         j1 = -1;
       } else {
-        const x = c * unchecked(pow3[a]) - r;
+        const x = c * unchecked(runPow[a]) - r;
         s1 += a;
         o1 += a;
         const z = <i32>ctz(x);
@@ -160,11 +136,11 @@ export function runLanes(count: i32, K: i32): void {
       let a = <i32>ctz(y);
       if (a > RUN_MAX) a = RUN_MAX;
       const c = y >> <u64>a;
-      if (c > unchecked(limits[a]) || s2 >= cap) {
+      if (c > unchecked(runLimits[a]) || s2 >= cap) {
         unchecked((lDone[j2] = -1));
         j2 = -1;
       } else {
-        const x = c * unchecked(pow3[a]) - r;
+        const x = c * unchecked(runPow[a]) - r;
         s2 += a;
         o2 += a;
         const z = <i32>ctz(x);
@@ -190,11 +166,11 @@ export function runLanes(count: i32, K: i32): void {
       let a = <i32>ctz(y);
       if (a > RUN_MAX) a = RUN_MAX;
       const c = y >> <u64>a;
-      if (c > unchecked(limits[a]) || s3 >= cap) {
+      if (c > unchecked(runLimits[a]) || s3 >= cap) {
         unchecked((lDone[j3] = -1));
         j3 = -1;
       } else {
-        const x = c * unchecked(pow3[a]) - r;
+        const x = c * unchecked(runPow[a]) - r;
         s3 += a;
         o3 += a;
         const z = <i32>ctz(x);

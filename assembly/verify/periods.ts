@@ -33,7 +33,7 @@ import {
   settle,
 } from "./books";
 import { HQ, K, Q, affine, peakBound, qpowPtr, slackK, slackPtr, survA, survB, survM } from "./state";
-import { LANE_BATCH, lDone, lM, lN, lOdd, lT, lV, lanesBegin, runLanes } from "./lanes";
+import { LANE_BATCH, lDone, lM, lN, lOdd, lT, lV, runLanes } from "./lanes";
 import { exact, fast, runs, setRuns, survivorBound } from "./walk";
 
 /**
@@ -135,7 +135,6 @@ function startQueue(exc: usize, excN: i32, count: bool, sievedGlide: i32, sieved
   gPeak = sievedPeak;
   gPeakBits = dropDepth(sievedPeak) - sievedPeak; // bitlen(q^mp) - ip, the bound's extra bits
   gSlack = sievedSlack;
-  lanesBegin();
 }
 
 @inline function enqueue(pl: u64, ph: u64, nl: u64, nh: u64, i: i32, hl: u64, hh: u64): void {

@@ -240,15 +240,18 @@ export function descend(nl: u64, nh: u64, nBits: i32, vl: u64, vh: u64, steps: i
 // on in descend's general steps from the value before that run, exactly. (v itself is tested too:
 // an even v is a run of alpha = 0, whose value 3^0 c - r is v.)
 
-const RUN_MAX: i32 = 40;
-const runLimits = new StaticArray<u64>(RUN_MAX + 1);
+/** The longest odd run taken at once: 3^40 < 2^64 < 3^41. */
+export const RUN_MAX: i32 = 40;
+/** floor(U / 3^alpha), made when first needed for the current U (runStamps) or all at once (fillRunLimits). */
+export const runLimits = new StaticArray<u64>(RUN_MAX + 1);
 const runStamps = new StaticArray<u32>(RUN_MAX + 1);
-const runPow = new StaticArray<u64>(RUN_MAX + 1); // 3^alpha (the kernel's q^m table stops at the sieve depth)
+/** 3^alpha (the kernel's q^m table stops at the sieve depth). */
+export const runPow = new StaticArray<u64>(RUN_MAX + 1);
 let runEpoch: u32 = 1;
 let runU: u64 = 0; // U for the current best path
 let runBestLo: u64 = 0, runBestHi: u64 = 0; // the best path U was made from
 let runStale = true; // U not made yet for this block
-let runR: u64 = 0;
+export let runR: u64 = 0; // r
 export let runs = false; // run pairs apply: q = 3, r > 0, no lowered value limit below 64 bits
 let runV: u64 = 0, runSteps: i32 = 0, runOdd: i32 = 0; // where runPairs stopped (returned -1)
 
@@ -262,6 +265,40 @@ export function setRuns(): void {
     p *= 3;
   }
   runStale = true; // U is made at the first call
+}
+
+/** U = min(best path + r - 1, 2^64 - 1) made again when the best path has changed (a new epoch: every limit stale). */
+@inline function refreshRunU(): void {
+  if (!runStale && bestPathLo == runBestLo && bestPathHi == runBestHi) return;
+  runStale = false;
+  runBestLo = bestPathLo;
+  runBestHi = bestPathHi;
+  const u = bestPathLo + runR - 1;
+  runU = bestPathHi != 0 || u < bestPathLo ? <u64>-1 : u;
+  runEpoch++;
+}
+
+/** Every limit of the current best path at once, for the lanes (lanes.ts), which read runLimits directly. */
+export function fillRunLimits(): void {
+  refreshRunU();
+  for (let a = 0; a <= RUN_MAX; a++) runLimit(a);
+}
+
+/** The last step count from which a whole run pair (RUN_MAX odd steps and 63 halvings) stays within the cap. */
+@inline export function runStepCap(): i32 {
+  return maxSteps - RUN_MAX - 64;
+}
+
+/**
+ * The first halving of x that goes below n (x >= n, x >> z < n for its trailing zeros z): x >> t with
+ * t = bitlen(x) - bitlen(n), or one more; -1 when x >> t is n itself (t < z: the halving is exact, so
+ * the trajectory is back at n, a cycle).
+ */
+@inline export function firstHalvingBelow(n: u64, x: u64): i32 {
+  const t = <i32>clz(n) - <i32>clz(x);
+  const at = x >> <u64>t;
+  if (at == n) return -1;
+  return at > n ? t + 1 : t;
 }
 
 @inline function runLimit(alpha: i32): u64 {
@@ -279,17 +316,9 @@ export function setRuns(): void {
  * where descend goes on.
  */
 function runPairs(n: u64, v: u64, steps: i32, odd: i32, bl: u64, bh: u64): i32 {
-  if (runStale || bestPathLo != runBestLo || bestPathHi != runBestHi) {
-    runStale = false;
-    runBestLo = bestPathLo;
-    runBestHi = bestPathHi;
-    const u = bestPathLo + runR - 1;
-    runU = bestPathHi != 0 || u < bestPathLo ? <u64>-1 : u;
-    runEpoch++;
-  }
+  refreshRunU();
   const r = runR;
-  // a run pair is at most RUN_MAX odd steps and 63 halvings
-  const cap = maxSteps - RUN_MAX - 64;
+  const cap = runStepCap();
   while (v >= n && v != n && steps < cap && v < <u64>-1 - r) {
     const y = v + r;
     let alpha = <i32>ctz(y);
@@ -302,16 +331,13 @@ function runPairs(n: u64, v: u64, steps: i32, odd: i32, bl: u64, bh: u64): i32 {
     const z = <i32>ctz(x);
     const w = x >> <u64>z;
     if (w < n) {
-      // the first halving below n: x >> t with t = bitlen(x) - bitlen(n), or one more
-      let t = <i32>clz(n) - <i32>clz(x);
-      const at = x >> <u64>t;
-      if (at == n) {
-        // n again at step steps + t (t < z: the halving is exact): a cycle
-        glideT = steps + t;
+      const t = firstHalvingBelow(n, x);
+      if (t < 0) {
+        // n again at halving bitlen(x) - bitlen(n): a cycle
+        glideT = steps + <i32>clz(n) - <i32>clz(x);
         glideOdd = odd;
         return DONE_CYCLE;
       }
-      if (at > n) t++;
       glideT = steps + t;
       glideOdd = odd;
       exceededPath = ltU(bestPathLo, bestPathHi, bl, bh);
