@@ -68,6 +68,8 @@ for (const flavour of ["debug", "release"] as const) {
       expect(got.odd, `n = ${n}: odd steps`).toBe(odd);
       if (got.done === DESCENT) {
         expect(v < n, `n = ${n}: the value at the glide is below n`).toBe(true);
+        // a descent after the cap is an unresolved n (single steps stop at the cap): the lane never reports one
+        expect(got.steps, `n = ${n}: a descent past the cap ${cap}`).toBeLessThanOrEqual(cap);
         expect(got.exceeded, `n = ${n}: its path ${peak} against the best ${best}`).toBe(peak > best);
       } else if (got.done === CYCLE) expect(v, `n = ${n}: back at n`).toBe(n);
       else {
@@ -128,6 +130,19 @@ for (const flavour of ["debug", "release"] as const) {
       for (let i = 0; i < 200; i++) {
         const got = check(1n, next(50), 1, (1n << 128n) - 1n, 120 + (i % 200));
         if (got.done === STOPPED) expect(got.steps).toBeLessThan(120 + (i % 200));
+      }
+    });
+
+    it("the step cap just below a long glide: the lane never reports a descent past the cap", () => {
+      // glide records of 3x+1 (OEIS A060412, from memory; their glides are counted here in BigInt)
+      for (const n of [63728127n, 1200991791n, 2788008987n]) {
+        let v = n;
+        let glide = 0;
+        do {
+          v = step(v, 1n);
+          glide++;
+        } while (v >= n);
+        for (let cap = glide - 110; cap < glide; cap++) expect(check(1n, n, 1, (1n << 128n) - 1n, cap).done).toBe(STOPPED);
       }
     });
 

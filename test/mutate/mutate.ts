@@ -434,8 +434,8 @@ const MUTANTS: Mutant[] = [
   {
     name: "run pairs: the descent's halving count one too many",
     file: "assembly/verify/walk.ts",
-    find: "if (at > n) t++;",
-    replace: "if (at >= n) t++;\n      t++;",
+    find: "return at > n ? t + 1 : t;",
+    replace: "return at > n ? t + 2 : t + 1;",
     first: ["test/runs.test.ts"],
   },
   {
@@ -455,8 +455,8 @@ const MUTANTS: Mutant[] = [
   {
     name: "run pairs: the step cap checked too late (a run pair may pass it)",
     file: "assembly/verify/walk.ts",
-    find: "const cap = maxSteps - RUN_MAX - 64;",
-    replace: "const cap = maxSteps - 8;",
+    find: "return maxSteps - RUN_MAX - 64;",
+    replace: "return maxSteps;",
     first: ["test/runs.test.ts"],
   },
   {
