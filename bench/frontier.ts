@@ -18,7 +18,7 @@ const cpu = () => {
   return (u.user + u.system) / 1e6;
 };
 
-/** The reference's CPU seconds and its maxima line ("glide N G / path N P"), or null without a compiler. */
+/** The reference built here (its scalar build), or null without a C compiler or without its source. */
 function buildReference(dir: string): string | null {
   if (!existsSync(REFERENCE)) return null;
   const bin = join(dir, "verify-pub-scalar");
@@ -26,6 +26,7 @@ function buildReference(dir: string): string | null {
   return cc.status === 0 ? bin : null;
 }
 
+/** One run of the reference: its CPU seconds (user and system) and its two maxima as "n value". */
 function runReference(bin: string, from: bigint, to: bigint) {
   const r = spawnSync("bash", ["-c", `TIMEFORMAT='%3U %3S'; time "${bin}" ${from} ${to}`], { encoding: "utf8" });
   const [u, s] = r.stderr.trim().split(/\s+/).slice(-2).map(Number);
@@ -43,8 +44,7 @@ async function runOurs(workers: number, from: bigint, to: bigint) {
     const r = await runVerify(pool, { map, from, to });
     const g = r.glideRecords.at(-1)!;
     const p = r.pathRecords.at(-1)!;
-    // the reference's path is the standard maximum (its largest value of 3n+1 steps is T's maximum for n >= 3 here):
-    // both print the highest value under T
+    // both print the largest glide in standard steps and the highest value under T before the first descent
     return { seconds: cpu() - c0, wall: (performance.now() - t0) / 1000, glide: `${g.n} ${g.standardSteps}`, path: `${p.n} ${p.peakT}` };
   } finally {
     pool.terminate();
