@@ -110,14 +110,12 @@ import { exact, fast, runs, setRuns, survivorBound } from "./walk";
 // The block's walk in n order, queued: each entry is a gap of sieved n [p, n) and then the survivor
 // n (i < 0: a gap only). A full queue runs its survivors through the lanes (lanes.ts) where they
 // apply, then books every entry in order: the gap (counted here in range blocks, iterated where it
-// could hold records), then the survivor from its lane's glide or by fast().
+// could hold records), then the survivor from its lane's glide or by fast(). Only n below 2^64 is
+// queued (the gap's start p and the period h too, then), so each entry keeps low words alone.
 const Q_PL = new StaticArray<u64>(LANE_BATCH);
-const Q_PH = new StaticArray<u64>(LANE_BATCH);
 const Q_NL = new StaticArray<u64>(LANE_BATCH);
-const Q_NH = new StaticArray<u64>(LANE_BATCH);
 const Q_I = new StaticArray<i32>(LANE_BATCH);
 const Q_HL = new StaticArray<u64>(LANE_BATCH);
-const Q_HH = new StaticArray<u64>(LANE_BATCH);
 const Q_LANE = new StaticArray<i32>(LANE_BATCH); // the entry's lane slot, or -1
 let queued = 0;
 // the block's sieve facts, for the gaps
@@ -146,12 +144,9 @@ function startQueue(exc: usize, excN: i32, count: bool, sievedGlide: i32, sieved
   }
   const j = queued;
   unchecked((Q_PL[j] = pl));
-  unchecked((Q_PH[j] = ph));
   unchecked((Q_NL[j] = nl));
-  unchecked((Q_NH[j] = nh));
   unchecked((Q_I[j] = i));
   unchecked((Q_HL[j] = hl));
-  unchecked((Q_HH[j] = hh));
   queued = j + 1;
   if (queued == LANE_BATCH) flushQueue();
 }
@@ -162,9 +157,9 @@ function flushQueue(): void {
   for (let j = 0; j < queued; j++) {
     unchecked((Q_LANE[j] = -1));
     const i = unchecked(Q_I[j]);
-    if (!runs || i < 0 || unchecked(Q_NH[j]) != 0) continue;
+    if (i < 0) continue;
     const m = <i32>load<u8>(survM + <usize>i);
-    affine(unchecked(Q_HL[j]), unchecked(Q_HH[j]), load<u64>(qpowPtr + (<usize>m << 3)), load<u64>(survB + (<usize>i << 3)));
+    affine(unchecked(Q_HL[j]), 0, load<u64>(qpowPtr + (<usize>m << 3)), load<u64>(survB + (<usize>i << 3)));
     const n = unchecked(Q_NL[j]);
     if (carry || rhi != 0 || rlo >> 63 != 0 || rlo <= n) continue;
     unchecked((lN[lanes] = n));
@@ -175,8 +170,7 @@ function flushQueue(): void {
   }
   if (lanes > 0) runLanes(lanes, K);
   for (let j = 0; j < queued; j++) {
-    const pl = unchecked(Q_PL[j]), ph = unchecked(Q_PH[j]), nl = unchecked(Q_NL[j]), nh = unchecked(Q_NH[j]);
-    book(pl, ph, nl, nh, unchecked(Q_I[j]), unchecked(Q_HL[j]), unchecked(Q_HH[j]), unchecked(Q_LANE[j]));
+    book(unchecked(Q_PL[j]), 0, unchecked(Q_NL[j]), 0, unchecked(Q_I[j]), unchecked(Q_HL[j]), 0, unchecked(Q_LANE[j]));
   }
   queued = 0;
 }
