@@ -121,10 +121,11 @@ const MUTANTS: Mutant[] = [
   {
     name: "kernel: the carry into the high word of the next survivor or period end dropped",
     file: "assembly/verify/periods.ts",
-    find: "nextH = baseH + select<u64>(1, 0, baseL + off < baseL);",
-    replace: "nextH = baseH;",
+    find: "const nextL = baseL + off, nextH = baseH + select<u64>(1, 0, baseL + off < baseL);",
+    replace: "const nextL = baseL + off, nextH = baseH;",
     first: ["test/verify.test.ts"],
   },
+
   {
     name: "check: the step table's hash not compared",
     file: "src/jobs/verify/check.ts",
@@ -385,8 +386,8 @@ const MUTANTS: Mutant[] = [
   {
     name: "verify: no report when the certificate cannot be written",
     file: "src/cli/verify.ts",
-    find: "  print(o.json ? `${jsonText({",
-    replace: "  if (!unwritten) print(o.json ? `${jsonText({",
+    find: "  print(\n    o.json\n      ? `${jsonText({ ...verifyJson(result, known)",
+    replace: "  if (!unwritten) print(\n    o.json\n      ? `${jsonText({ ...verifyJson(result, known)",
     first: ["test/verify-run.test.ts"],
   },
   {
