@@ -10,6 +10,6 @@ export { verifyPrepare } from "./verify/prepare";
 export { verifyAligned, verifyRange } from "./verify/periods";
 export { verifyDelays } from "./verify/delays";
 export { verifyClasses } from "./verify/classes";
-export { verifyPreimage } from "./verify/preimage";
+export { verifyPreimage, verifySliceSkip } from "./verify/preimage";
 export { probe128 } from "./u128";
 export { probeRuns } from "./verify/walk";

@@ -208,6 +208,7 @@ const CODEC_CASES: Record<JobName, AnyCase> = {
       delay: true,
       classes: false,
       preimage: false,
+      skipReached: true,
     },
     other: {
       map: parseMap("3x-1"),
@@ -221,6 +222,7 @@ const CODEC_CASES: Record<JobName, AnyCase> = {
       delay: false,
       classes: true,
       preimage: true,
+      skipReached: false,
     },
     minimal: { map: parseMap("3x+1"), from: 1n, to: 1n << 16n },
   }),

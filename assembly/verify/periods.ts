@@ -8,6 +8,7 @@
 import {
   VERIFY_COUNT_CHECKED,
   VERIFY_COUNT_EXCEPTIONS,
+  VERIFY_COUNT_PREIMAGE,
   VERIFY_COUNT_SIEVED,
   VERIFY_LIMIT_BITS,
   VERIFY_MAX_DEPTH,
@@ -35,6 +36,7 @@ import {
 import { HQ, K, Q, affine, peakBound, qpowPtr, slackK, slackPtr, survA, survB, survM } from "./state";
 import { LANE_BATCH, lDone, lM, lN, lOdd, lT, lV, runLanes } from "./lanes";
 import { exact, fast, runs, setRuns, survivorBound } from "./walk";
+import { prepareSkip, reachedFromBelow } from "./preimage";
 
 /**
  * The gap [prev, next) of sieved n between two survivors: records are possible only while the
@@ -135,7 +137,17 @@ function startQueue(exc: usize, excN: i32, count: bool, sievedGlide: i32, sieved
   gSlack = sievedSlack;
 }
 
+// The skip of slices (the blocks' skipReached; README: global records): a survivor that a smaller
+// number reaches is counted, not walked, and its gap stays. Such n is never a new record among all n,
+// so the records of the numbers not skipped hold every new one.
+let skipSlice = false;
+
 @inline function enqueue(pl: u64, ph: u64, nl: u64, nh: u64, i: i32, hl: u64, hh: u64): void {
+  if (skipSlice && i >= 0 && reachedFromBelow(nl, nh)) {
+    bump(VERIFY_COUNT_PREIMAGE);
+    if (!ltU(pl, ph, nl, nh)) return;
+    i = -1;
+  }
   if (!runs || nh != 0) {
     // no lane for this map or this n: booked at once, after those queued before it
     if (queued > 0) flushQueue();
@@ -225,9 +237,11 @@ function startSieveBlock(
 export function verifyAligned(
   q: u32, r: i32, depth: i32, stepDepth: i32, steps: i32, limit: i32, tables: usize, survivors: i32,
   h0l: u64, h0h: u64, periods: u64, exc: usize, excN: i32, sievedGlide: i32, sievedPeak: i32, sievedSlack: u64,
-  survivorSlack: u64, slacks: usize, counts: usize, scratch: usize,
+  survivorSlack: u64, slacks: usize, counts: usize, scratch: usize, skipReached: i32,
 ): u64 {
   startSieveBlock(q, r, depth, stepDepth, steps, limit, tables, survivors, counts, scratch, survivorSlack, slacks);
+  skipSlice = skipReached != 0;
+  if (skipSlice) prepareSkip(); // (r > 0 and q < 256: the host's plan refuses the skip otherwise)
   startQueue(exc, excN, false, sievedGlide, sievedPeak, sievedSlack);
   const Kd = <u64>depth;
   let visited: u64 = 0;
@@ -300,10 +314,12 @@ function countSieved(nl: u64, nh: u64, endL: u64, endH: u64, e: i32, exc: usize,
 export function verifyRange(
   q: u32, r: i32, depth: i32, stepDepth: i32, steps: i32, limit: i32, tables: usize, survivors: i32,
   firstL: u64, firstH: u64, lastL: u64, lastH: u64, exc: usize, excN: i32, sievedGlide: i32, sievedPeak: i32,
-  sievedSlack: u64, survivorSlack: u64, slacks: usize, counts: usize, scratch: usize,
+  sievedSlack: u64, survivorSlack: u64, slacks: usize, counts: usize, scratch: usize, skipReached: i32,
 ): u64 {
   assert((firstL | firstH) != 0 && leU(firstL, firstH, lastL, lastH) && (lastH >> 63) == 0);
   startSieveBlock(q, r, depth, stepDepth, steps, limit, tables, survivors, counts, scratch, survivorSlack, slacks);
+  skipSlice = skipReached != 0;
+  if (skipSlice) prepareSkip();
   startQueue(exc, excN, true, sievedGlide, sievedPeak, sievedSlack);
   const Kd = <u64>depth;
   const mask: u64 = ((<u64>1) << Kd) - 1;

@@ -46,8 +46,14 @@ let skipFrom: u64 = 0;
 let skipPeriod: u64 = 1;
 const skipTable: usize = memory.data(256 * 256);
 
+let skipQ: u64 = 0, skipHQ: u64 = 0; // the map the table holds (the table depends on it alone)
+let skipWrap: u64 = 0; // 2^64 mod skipPeriod
+
 /** Fills the residue table of the preimage skip (q < 256), or makes every n take the direct test. */
 export function prepareSkip(): void {
+  if (skipQ == Q && skipHQ == HQ) return;
+  skipQ = Q;
+  skipHQ = HQ;
   const r = <u64>(HQ * 2 - Q);
   if (Q >= 256) {
     skipFrom = <u64>-1;
@@ -60,6 +66,28 @@ export function prepareSkip(): void {
     const n = skipFrom + ((t + skipPeriod - (skipFrom % skipPeriod)) % skipPeriod);
     store<u8>(skipTable + <usize>(n % skipPeriod), preimageBelow(n) != 0 ? 1 : 0);
   }
+  skipWrap = ((<u64>-1 % skipPeriod) + 1) % skipPeriod;
+}
+
+/**
+ * The skip of slices (verifyAligned and verifyRange with the skip on; README: global records): whether
+ * a number u < n, wherever it lies, reaches n (n = (nh, nl) below 2^127; q < 256, r > 0, prepareSkip
+ * first). From skipFrom on by the table at n mod q^2, taken from both words exactly:
+ * n = nh 2^64 + nl, so n mod q^2 = ((nh mod q^2)(2^64 mod q^2) + nl mod q^2) mod q^2 (each product
+ * below 2^32); below it by preimageBelow.
+ */
+@inline export function reachedFromBelow(nl: u64, nh: u64): bool {
+  if (nh == 0 && nl < skipFrom) return preimageBelow(nl) != 0;
+  const t = ((nh % skipPeriod) * skipWrap + (nl % skipPeriod)) % skipPeriod;
+  return load<u8>(skipTable + <usize>t) != 0;
+}
+
+/** The skip of slices for one n, as a block takes it (1: skipped), for the tests' BigInt search. */
+export function verifySliceSkip(q: u32, r: i32, nl: u64, nh: u64): u32 {
+  assert(r > 0 && q < 256 && (nl | nh) != 0 && nh >> 63 == 0);
+  setMap(q, r);
+  prepareSkip();
+  return reachedFromBelow(nl, nh) ? 1 : 0;
 }
 
 /** Whether a leaf n is skipped (prepareSkip first). */

@@ -57,6 +57,7 @@ interface VerifyOptions extends RawOptions {
   readonly knownPublished?: boolean;
   readonly knownGlide?: string;
   readonly knownPath?: string;
+  readonly skipReached?: boolean;
 }
 
 /** A table file named on the command line, read with its manifest (FILE.json) and checked against it. */
@@ -133,6 +134,8 @@ export const verifyBatch: BatchJob<VerifyParams, VerifyResult> = {
   job: verifyJob,
   options: rangeOptions,
   params: (o: VerifyOptions) => {
+    if ((o as { skipReached?: boolean }).skipReached)
+      throw new UsageError("batch verify does not carry the records known below FROM, which --skip-reached needs: run it with verify");
     const req = request(o, mapOption(o.map));
     planOf(req); // checks it (and is the plan the batch lays out)
     return req;
@@ -176,6 +179,10 @@ export function verifyCommand(program: Command): Command {
     .option("--known-published", "the same from the published lists glidepath ships for 3x+1 (OEIS A060412 and A006884)")
     .option("--known-glide <S>", "the largest glide (standard steps) of any n below FROM; with --known-path")
     .option("--known-path <P>", "the largest path (highest value under T before the descent) of any n below FROM; with --known-glide")
+    .option(
+      "--skip-reached",
+      "with known records, by periods, r > 0: skip the survivors a smaller number reaches within three steps (4/9 of them for 3x+1); records are then those among the numbers not skipped, new records among all n stay exact",
+    )
     .action((o: VerifyOptions) => (o.check !== undefined ? check(o) : verify(o)));
 }
 
@@ -206,6 +213,7 @@ function request(o: VerifyOptions, map: CollatzMap): VerifyRequest {
     delay: o.delay === true,
     ...(o.periods === true ? { classes: false } : {}),
     ...(o.preimage === false ? { preimage: false } : {}),
+    ...(o.skipReached === true ? { skipReached: true } : {}),
   };
 }
 
@@ -256,6 +264,7 @@ function startOrResume(o: VerifyOptions) {
     o.delay === true ||
     o.periods === true ||
     o.preimage === false ||
+    o.skipReached === true ||
     o.map !== "3x+1"
   )
     throw new UsageError("--resume takes the run's options from the checkpoint: give no --map, --from, --to or depths");
@@ -281,6 +290,10 @@ async function verify(o: VerifyOptions): Promise<void> {
     throw new UsageError("--out and --checkpoint name the same file: give each its own");
   const checkTables = tableFiles(o, plan);
   const known = knownOption(o, plan.map, plan.from);
+  if (plan.skipReached && known === null)
+    throw new UsageError(
+      "--skip-reached needs the records known below FROM (--known FILE, --known-published, or --known-glide with --known-path): only the new records among all n survive the skip",
+    );
   const workers = workersOption(o.workers);
   const stamp = await toolStamp();
   const started = new Date().toISOString();
@@ -361,11 +374,13 @@ function processJson(r: VerifyResult) {
 }
 
 /** The report's first line, printed before the run starts. */
-function verifyHeader(p: Pick<VerifyPlan, "map" | "from" | "to" | "sieveDepth" | "stepDepth" | "method" | "preimage">): string {
+function verifyHeader(
+  p: Pick<VerifyPlan, "map" | "from" | "to" | "sieveDepth" | "stepDepth" | "method" | "preimage" | "skipReached">,
+): string {
   const how =
     p.method === "classes"
       ? `classes settled bit by bit to depth ${p.sieveDepth}${p.preimage ? ", leaves with a smaller preimage skipped" : ""}`
-      : `sieve depth ${p.sieveDepth}`;
+      : `sieve depth ${p.sieveDepth}${p.skipReached ? ", survivors a smaller number reaches skipped" : ""}`;
   return `verification of ${p.map.name} over [${p.from}, ${p.to}): ${group(p.to - p.from)} numbers, ${how}, table steps of ${p.stepDepth}`;
 }
 
@@ -376,6 +391,11 @@ function globalText(r: VerifyResult, known: KnownRecords): string[] {
   return [
     `known below ${r.from}: largest glide ${known.glide.standardSteps} standard steps${at(known.glide.n)}; largest path (under T) ${known.path.peakT}${at(known.path.n)}`,
     `  (assumed, not checked by this run: ${known.source})`,
+    ...(r.skipReached
+      ? [
+          `  (exact although ${group(r.counts.preimage)} survivors were skipped: a number a smaller number reaches beats neither the known values nor every smaller n of the range)`,
+        ]
+      : []),
     `new glide records among all n (beat the known glide and every smaller n of the range; standard steps): ${g.glideRecords.length}`,
     ...g.glideRecords.slice(0, TEXT_RECORDS).map((x) => `  ${String(x.n).padStart(22)}  ${x.standardSteps}`),
     ...(g.glideRecords.length > TEXT_RECORDS ? [`  ... and ${g.glideRecords.length - TEXT_RECORDS} more (--json lists them all)`] : []),
@@ -388,6 +408,8 @@ function globalText(r: VerifyResult, known: KnownRecords): string[] {
 /** The report after its first line. */
 function verifyText(r: VerifyResult, workers: number, known: KnownRecords | null): string {
   const c = r.counts;
+  // with the skip, the range's records and maxima are those of the numbers it iterated
+  const among = r.skipReached ? " among the numbers not skipped" : "";
   // what the run proves, from its counts (the page states the same lines)
   const claim = verifyClaim(r);
   const lines = [
@@ -399,20 +421,20 @@ function verifyText(r: VerifyResult, workers: number, known: KnownRecords | null
     `  sieved (descend at their class's depth)  ${group(c.sieved).padStart(22)}`,
     `  checked (survivors iterated)             ${group(c.checked).padStart(22)}`,
     `  exceptions of the sieve (iterated)       ${group(c.exceptions).padStart(22)}`,
-    ...(r.method === "classes" ? [`  reached from a smaller n (skipped)       ${group(c.preimage).padStart(22)}`] : []),
+    ...(r.method === "classes" || r.skipReached ? [`  reached from a smaller n (skipped)       ${group(c.preimage).padStart(22)}`] : []),
     `  cycle members                            ${group(c.cycleMembers).padStart(22)}`,
     `  enter a cycle of larger numbers          ${group(c.cycleEntrants).padStart(22)}`,
     `  ${`unresolved after ${plural(r.maxSteps, "step")}`.padEnd(39)}  ${group(c.unresolved).padStart(22)}`,
     "",
     r.maxGlide
-      ? `largest glide: ${r.maxGlide.standardSteps} standard steps (${r.maxGlide.steps} steps of T), n = ${r.maxGlide.n}`
+      ? `largest glide${among}: ${r.maxGlide.standardSteps} standard steps (${r.maxGlide.steps} steps of T), n = ${r.maxGlide.n}`
       : "largest glide: none (no n in the range descends)",
-    r.maxPath ? `largest path (highest value under T, steps of T): ${r.maxPath.peakT}, n = ${r.maxPath.n}` : "largest path: none",
+    r.maxPath ? `largest path${among} (highest value under T, steps of T): ${r.maxPath.peakT}, n = ${r.maxPath.n}` : "largest path: none",
     "",
-    `glide records (n whose glide beats every smaller n of the range; standard steps): ${r.glideRecords.length}`,
+    `glide records${among} (n whose glide beats every smaller n of the range${r.skipReached ? " not skipped" : ""}; standard steps): ${r.glideRecords.length}`,
     ...r.glideRecords.slice(0, TEXT_RECORDS).map((g) => `  ${String(g.n).padStart(22)}  ${g.standardSteps}`),
     ...(r.glideRecords.length > TEXT_RECORDS ? [`  ... and ${r.glideRecords.length - TEXT_RECORDS} more (--json lists them all)`] : []),
-    `path records (n whose highest value under T beats every smaller n of the range): ${r.pathRecords.length}`,
+    `path records${among} (n whose highest value under T beats every smaller n of the range${r.skipReached ? " not skipped" : ""}): ${r.pathRecords.length}`,
     ...r.pathRecords.slice(0, TEXT_RECORDS).map((p) => `  ${String(p.n).padStart(22)}  ${p.peakT}`),
     ...(r.pathRecords.length > TEXT_RECORDS ? [`  ... and ${r.pathRecords.length - TEXT_RECORDS} more (--json lists them all)`] : []),
     ...(known ? globalText(r, known) : []),
@@ -456,7 +478,9 @@ function timeLine(r: VerifyResult, workers: number): string {
   const rate = r.blocksRun === 0 ? "" : `, ${group(BigInt(Math.round(Number(r.numbersRun) / Math.max(r.seconds, 1e-9))))} numbers/s`;
   const passes =
     r.passes === 2
-      ? ` in two passes (the first, ${r.firstPassSeconds!.toFixed(2)} s with the preimage skip, met a cycle entrant or an unresolved number; the second iterated every leaf)`
+      ? r.method === "periods"
+        ? ` in two passes (the first, ${r.firstPassSeconds!.toFixed(2)} s with the skip of numbers a smaller number reaches, met a cycle member, a cycle entrant or an unresolved number; the second iterated every survivor)`
+        : ` in two passes (the first, ${r.firstPassSeconds!.toFixed(2)} s with the preimage skip, met a cycle entrant or an unresolved number; the second iterated every leaf)`
       : "";
   const held = all - r.blocksRun;
   const part =

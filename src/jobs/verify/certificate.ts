@@ -56,8 +56,8 @@ export function entryJson(e: BlockEntry) {
       cycleMembers: e.counts.cycleMembers,
       cycleEntrants: e.counts.cycleEntrants,
       unresolved: e.counts.unresolved,
-      // (runs by classes only: entries of other runs keep their digests)
-      ...(e.kind === "classes" ? { preimage: e.counts.preimage } : {}),
+      // (runs by classes, and blocks that skipped survivors: entries of other runs keep their digests)
+      ...(e.kind === "classes" || e.counts.preimage > 0n ? { preimage: e.counts.preimage } : {}),
     },
     glideRecords: e.glideRecords.map(glideJson),
     pathRecords: e.pathRecords.map(pathJson),
@@ -86,7 +86,7 @@ export function verifyCountsJson(r: VerifyResult) {
     cycleMembers: c.cycleMembers,
     cycleEntrants: c.cycleEntrants,
     unresolved: c.unresolved,
-    ...(r.method === "classes" ? { preimage: c.preimage } : {}),
+    ...(r.method === "classes" || r.skipReached ? { preimage: c.preimage } : {}),
   };
 }
 
@@ -122,12 +122,26 @@ export function globalFindings(r: Pick<VerifyResult, "glideRecords" | "pathRecor
 
 /** The fields of `glidepath verify --json`: the certificate's, less the block table and provenance, plus the time. */
 export function verifyJson(r: VerifyResult, known: KnownRecords | null = null) {
-  return { ...paramsJson(r), engine: r.engine, ...verifyFindings(r), ...globalFindings(r, known), seconds: Number(r.seconds.toFixed(3)) };
+  return {
+    ...paramsJson(r),
+    ...(r.skipReached ? { skipped: SKIP_WORDS } : {}),
+    engine: r.engine,
+    ...verifyFindings(r),
+    ...globalFindings(r, known),
+    seconds: Number(r.seconds.toFixed(3)),
+  };
 }
+
+/** What `--json` says of a run with the skip of slices (README: global records). */
+export const SKIP_WORDS =
+  "counts.preimage survivors that a smaller number reaches within three steps (every value between above it) were not iterated: maxGlide, maxPath, glideRecords and pathRecords are those among the numbers not skipped; globalRecords, the new records among all n, are exact (no skipped number is one)";
 
 /** The run's parameters as a certificate names them (verify --check compares each with the plan). */
 export function paramsJson(
-  r: Pick<VerifyResult, "map" | "from" | "to" | "sieveDepth" | "stepDepth" | "maxSteps" | "blockTarget" | "method" | "preimage">,
+  r: Pick<
+    VerifyResult,
+    "map" | "from" | "to" | "sieveDepth" | "stepDepth" | "maxSteps" | "blockTarget" | "method" | "preimage" | "skipReached"
+  >,
 ) {
   return {
     map: r.map.name,
@@ -142,6 +156,8 @@ export function paramsJson(
     // which sieves ran: the depth-K sieve by periods, or classes settled bit by bit to depth N (and the preimage skip)
     method: r.method,
     preimage: r.preimage,
+    // (written only when on: the records are then those among the numbers not skipped)
+    ...(r.skipReached ? { skipReached: true } : {}),
   };
 }
 
@@ -200,6 +216,7 @@ export function checkpoint(req: VerifyRequest, key: string, blocks: number, done
       blockTarget: req.blocks ?? null,
       classes: req.classes ?? null,
       preimage: req.preimage ?? null,
+      ...(req.skipReached ? { skipReached: true } : {}),
     },
     blocks,
     done: [...done.values()].sort((u, v) => u.index - v.index).map(entryJson),
@@ -314,7 +331,7 @@ export function readEntry(x: unknown, path: string): BlockEntry {
       cycleMembers: big(c, "cycleMembers", cp),
       cycleEntrants: big(c, "cycleEntrants", cp),
       unresolved: big(c, "unresolved", cp),
-      preimage: kind === "classes" ? big(c, "preimage", cp) : 0n,
+      preimage: kind === "classes" || "preimage" in (c as Json) ? big(c, "preimage", cp) : 0n,
     },
     glideRecords: readList(x, "glideRecords", path, readGlide),
     pathRecords: readList(x, "pathRecords", path, readPath),
@@ -342,6 +359,13 @@ function parseDocument(text: string, what: string): Json {
   }
   if (j === null || typeof j !== "object" || Array.isArray(j)) throw new UsageError(`the ${what} is not a JSON object`);
   return j as Json;
+}
+
+/** The skip of slices, a field written only when on: true, or absent. */
+function skipReached(j: unknown, path: string): boolean {
+  if (!("skipReached" in (j as Json))) return false;
+  if ((j as Json).skipReached !== true) throw new UsageError(`${where(path, "skipReached")} must be true or absent`);
+  return true;
 }
 
 /** The request a checkpoint or certificate names, read strictly. */
@@ -376,6 +400,7 @@ function readRequest(j: unknown, path: string, delaySection = false): VerifyRequ
     to: big(j, "to", path, 1n),
     classes,
     preimage: bool("preimage"),
+    ...(skipReached(j, path) ? { skipReached: true } : {}),
     sieveDepth: classes === true || o.sieveDepth === null ? undefined : int(j, "sieveDepth", path, 1),
     stepDepth: int(j, "stepDepth", path, 1),
     maxSteps: int(j, "maxSteps", path, 1),
@@ -453,6 +478,9 @@ const CERTIFICATE_FIELDS = [
   "digest",
 ] as const;
 
+/** The one field a version 2 certificate writes only when on (after preimage): the skip of slices. */
+const OPTIONAL_FIELD = "skipReached";
+
 /** The findings of a certificate read strictly, in the shape verifyFindings writes (compared with the block table's). */
 function readFindings(j: Json) {
   const counts = field(j, "counts", "");
@@ -521,7 +549,7 @@ export function readCertificate(source: string): ReadCertificate {
       `certificate version ${typeof version === "bigint" ? version : describe(version)}: this glidepath checks version ${CERTIFICATE_VERSION} (re-run the range to get one)`,
     );
   for (const k of CERTIFICATE_FIELDS) field(j, k, "");
-  const extra = Object.keys(j).find((k) => !(CERTIFICATE_FIELDS as readonly string[]).includes(k));
+  const extra = Object.keys(j).find((k) => !(CERTIFICATE_FIELDS as readonly string[]).includes(k) && k !== OPTIONAL_FIELD);
   if (extra !== undefined) throw new UsageError(`${extra} is not a field of a version ${CERTIFICATE_VERSION} certificate`);
   const t = field(j, "tables", "");
   const table = (key: string) => ({

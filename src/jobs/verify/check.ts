@@ -22,6 +22,7 @@ import { cycleBudget, cycleEntry, traceBig } from "./trace.js";
 import { delayBig } from "../../core/padic.js";
 import { runBlocks } from "./verify.js";
 import { knownMismatch } from "./known.js";
+import { isSurvivor, skippedAt, skippedIn, sliceSkip } from "./skip.js";
 import type { VerifyResult } from "./merge.js";
 
 /** What a check did, line by line, and the first difference found (null: the certificate holds). */
@@ -338,7 +339,7 @@ function entryChecks(plan: VerifyPlan, data: VerifyTableData | null, e: BlockEnt
     ascending(e.delay.unreachedList, "delay.unreachedList");
     length(e.delay.unreachedList, capped(e.delay.unreached), "delay.unreachedList");
   }
-  if (!plan.preimage && e.counts.preimage !== 0n)
+  if (!plan.preimage && !plan.skipReached && e.counts.preimage !== 0n)
     throw new Differs(`${at}.counts.preimage: ${e.counts.preimage} in the certificate; the plan has no preimage skip, so 0`);
   const b = plan.blocks[i]!;
   if (b.kind === "aligned" && data) {
@@ -348,6 +349,45 @@ function entryChecks(plan: VerifyPlan, data: VerifyTableData | null, e: BlockEnt
     for (const x of exceptionsIn(data, b.first, b.last)) sieved[x.classDepth]!--;
     expectSame(e.counts.sievedByDepth, sieved, `${at}.counts.sievedByDepth`, "the exact counter's classes less the block's exceptions");
   }
+}
+
+/**
+ * The skip of slices (skipReached): each aligned and range block's skipped count against the survivors
+ * of its span that a smaller number reaches (skip.ts: by residue mod q^2, one by one below skipFrom),
+ * and no record the certificate lists (its own, each block's, the new ones among all n) at a skipped
+ * survivor: such n was never iterated. A global record cannot be skipped (README: a number reached
+ * from a smaller one is no new record), so one listed there is a false claim too.
+ */
+function checkSkip(plan: VerifyPlan, c: ReadCertificate, data: VerifyTableData): string {
+  const s = sliceSkip(plan.map, plan.sieveDepth, data.tables.residues);
+  for (const [i, e] of c.entries.entries()) {
+    if (e.kind !== "aligned" && e.kind !== "range") continue;
+    expectSame(
+      e.counts.preimage,
+      skippedIn(s, e.first, e.last),
+      `blockTable[${i}].counts.preimage`,
+      `the block's survivors a smaller number reaches`,
+    );
+  }
+  const listed: [string, bigint][] = [
+    ...c.findings.glideRecords.map((g, k) => [`glideRecords[${k}]`, g.n] as [string, bigint]),
+    ...c.findings.pathRecords.map((p, k) => [`pathRecords[${k}]`, p.n] as [string, bigint]),
+    ...(c.findings.maxGlide ? [["maxGlide", c.findings.maxGlide.n] as [string, bigint]] : []),
+    ...(c.findings.maxPath ? [["maxPath", c.findings.maxPath.n] as [string, bigint]] : []),
+    ...(c.globalRecords?.glideRecords ?? []).map((g, k) => [`globalRecords.glideRecords[${k}]`, g.n] as [string, bigint]),
+    ...(c.globalRecords?.pathRecords ?? []).map((p, k) => [`globalRecords.pathRecords[${k}]`, p.n] as [string, bigint]),
+    ...c.entries.flatMap((e, i) => [
+      ...e.glideRecords.map((g, k) => [`blockTable[${i}].glideRecords[${k}]`, g.n] as [string, bigint]),
+      ...e.pathRecords.map((p, k) => [`blockTable[${i}].pathRecords[${k}]`, p.n] as [string, bigint]),
+    ]),
+  ];
+  for (const [what, n] of listed)
+    if (isSurvivor(s, n) && skippedAt(s, n))
+      throw new Differs(`${what}: ${n} is a survivor a smaller number reaches, skipped by the run: it cannot be a record it iterated`);
+  return (
+    `the skip of numbers a smaller number reaches: each block's skipped count equal to its survivors with a smaller number reaching them within three steps ` +
+    `(by residue mod ${s.M}, from ${s.from} on; one by one below), and none of the ${listed.length} listed records at such a survivor`
+  );
 }
 
 /** Whether n lies in block i of the plan (a block by classes: in the range and in one of its roots' classes mod 2^D). */
@@ -479,7 +519,7 @@ export async function checkCertificate(c: ReadCertificate, o: CheckOptions): Pro
     for (const [key, value] of Object.entries({ method, preimage, ...rest })) expectSame(c.document[key], value, key, "the plan");
     expectSame(c.engine, plan.engine, "engine", "the plan");
     checked.push(
-      "the parameters (map, range, depths, step cap, blocks, method, preimage skip, engine): those of the plan re-made from them",
+      `the parameters (map, range, depths, step cap, blocks, method, preimage skip${plan.skipReached ? ", the skip of numbers a smaller number reaches" : ""}, engine): those of the plan re-made from them`,
     );
     checked.push(await checkBlockTable(plan, c));
     const merged = mergeVerify(plan, c.entries, 0);
@@ -495,10 +535,11 @@ export async function checkCertificate(c: ReadCertificate, o: CheckOptions): Pro
     for (const [i, e] of c.entries.entries()) entryChecks(plan, data, e, i);
     checked.push(
       "each block entry: its lists ascending, within its block and as long as its counts say; its records each beating the one before; " +
-        (plan.preimage ? "" : "no preimage skip (the plan has none); ") +
+        (plan.preimage || plan.skipReached ? "" : "no preimage skip (the plan has none); ") +
         "the sieved counts by depth of each aligned block from the exact counter",
     );
     checked.push(...(await checkTables(plan, c, data, merged.counts, o)));
+    if (plan.skipReached && data) checked.push(checkSkip(plan, c, data));
     // (the certificate's own lists are those of the block table, re-derived above: each n is placed in its block below)
     const seen = new Set<string>();
     let listed = 0;

@@ -47,6 +47,8 @@ export const CLAIM_CAPS = { members: 50, entrants: 20, unresolved: 50 } as const
 
 type ClaimInput = Pick<VerifyResult, "from" | "to" | "maxSteps" | "counts" | "cycleMembers" | "cycleEntrants" | "unresolvedList"> & {
   readonly map: Pick<CollatzMap, "name">;
+  /** The skip of slices was on (its count: counts.preimage). */
+  readonly skipReached?: boolean;
 };
 
 function list<T>(title: string, count: bigint, items: readonly T[], cap: number, text: (x: T) => string): ClaimList {
@@ -78,8 +80,14 @@ export function verifyClaim(r: ClaimInput, caps: { members: number; entrants: nu
     ...(c.cycleEntrants > 0n ? [plural(c.cycleEntrants, "cycle entrant")] : []),
     ...(c.unresolved > 0n ? [plural(c.unresolved, "unresolved number")] : []),
   ];
+  // a skipped n lies on the trajectory of a smaller u, every value between above u: once u goes below
+  // itself, n has gone below u < n on the way (u in the range: iterated here; u below FROM: assumed)
+  const skipped =
+    r.skipReached === true
+      ? ` (${plural(c.preimage, "number")} of them skipped, each reached within three steps from a smaller u with every value between above u: it goes below u, hence below itself, once u goes below itself, which a u in the range is shown to here and a u below ${group(r.from)} is assumed to)`
+      : "";
   const descent =
-    `Every n in ${range(r.from, r.to)} of ${r.map.name} reaches a value below n` +
+    `Every n in ${range(r.from, r.to)} of ${r.map.name} reaches a value below n${skipped}` +
     (exceptions.length
       ? `, except the ${exceptions.length > 1 ? `${exceptions.slice(0, -1).join(", ")} and ${exceptions.at(-1)}` : exceptions[0]} listed below.`
       : ".");
@@ -114,10 +122,13 @@ export function verifyClaim(r: ClaimInput, caps: { members: number; entrants: nu
   }
 
   const assumption =
-    r.from === 1n
+    (r.from === 1n
       ? "By induction from 1: an n that goes below itself lands on a smaller number, already covered."
       : `Given the numbers below ${group(r.from)}: the claim assumes that every n below ${group(r.from)} reaches a cycle ` +
-        "(the induction assumption of a range that does not start at 1; this run does not check it).";
+        "(the induction assumption of a range that does not start at 1; this run does not check it).") +
+    (r.skipReached === true && r.from > 1n
+      ? ` The skip also assumes that every u below ${group(r.from)} that reaches a number of the range within three steps, every value between above u, goes below itself (it fails only where u is a cycle's least element).`
+      : "");
 
   const lists = [
     list(

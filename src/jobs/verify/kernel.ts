@@ -118,6 +118,8 @@ interface AlignedCall extends BlockCommon {
   readonly periods: bigint;
   readonly exceptions: number;
   readonly exceptionCount: number;
+  /** Survivors a smaller number reaches are counted, not walked (README: global records). */
+  readonly skipReached: boolean;
   readonly sievedGlide: number;
   readonly sievedPeak: number;
   readonly sievedSlack: bigint;
@@ -162,7 +164,8 @@ const blockCalls = {
       "verifyAligned",
       // biome-ignore format: the export's argument order, as assembly/verify/periods.ts declares it
       [a.q, a.r, a.depth, a.stepDepth, a.maxSteps, a.limitBits, a.tables, a.survivors, ...words(a.h0), a.periods,
-        a.exceptions, a.exceptionCount, a.sievedGlide, a.sievedPeak, a.sievedSlack, a.survivorSlack, a.slacks, a.counts, a.scratch],
+        a.exceptions, a.exceptionCount, a.sievedGlide, a.sievedPeak, a.sievedSlack, a.survivorSlack, a.slacks, a.counts, a.scratch,
+        a.skipReached ? 1 : 0],
       sink,
     ),
   classes: (kernel: Kernel, c: ClassesCall, sink: FlushSink) =>
@@ -178,7 +181,8 @@ const blockCalls = {
       "verifyRange",
       // biome-ignore format: the export's argument order, as assembly/verify/periods.ts declares it
       [a.q, a.r, a.depth, a.stepDepth, a.maxSteps, a.limitBits, a.tables, a.survivors, ...words(a.first), ...words(a.last),
-        a.exceptions, a.exceptionCount, a.sievedGlide, a.sievedPeak, a.sievedSlack, a.survivorSlack, a.slacks, a.counts, a.scratch],
+        a.exceptions, a.exceptionCount, a.sievedGlide, a.sievedPeak, a.sievedSlack, a.survivorSlack, a.slacks, a.counts, a.scratch,
+        a.skipReached ? 1 : 0],
       sink,
     ),
   delay: (kernel: Kernel, s: SpanCall, sink: FlushSink) =>
@@ -205,6 +209,7 @@ function callBlock(kernel: Kernel, t: VerifyTables, block: VerifyBlock, common: 
         survivors: t.residues.length,
         exceptions,
         exceptionCount: block.exceptions.length,
+        skipReached: block.skipReached,
         sievedGlide: t.sievedGlide,
         sievedPeak: t.sievedPeak,
         sievedSlack: t.sievedSlack,

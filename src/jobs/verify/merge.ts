@@ -31,7 +31,7 @@ export interface VerifyCounts {
   /** n whose trajectory enters a cycle of larger numbers (shown by Brent's method) instead of descending. */
   readonly cycleEntrants: bigint;
   readonly unresolved: bigint;
-  /** Runs by classes: leaves skipped because a smaller number's trajectory reaches them. */
+  /** Leaves (runs by classes) or survivors (skipReached) skipped because a smaller number's trajectory reaches them. */
   readonly preimage: bigint;
 }
 
@@ -39,7 +39,7 @@ export interface VerifyCounts {
 export interface VerifyResult
   extends Pick<
     VerifyPlan,
-    "map" | "from" | "to" | "sieveDepth" | "stepDepth" | "maxSteps" | "blockTarget" | "engine" | "method" | "preimage"
+    "map" | "from" | "to" | "sieveDepth" | "stepDepth" | "maxSteps" | "blockTarget" | "engine" | "method" | "preimage" | "skipReached"
   > {
   readonly counts: VerifyCounts;
   /** Each n whose glide (standard steps), or path, beats every smaller n of the range. */
@@ -90,8 +90,8 @@ export function entryMismatch(blocks: readonly BlockSpec[], entries: readonly Bl
 
 /** The plan's parameters a result repeats. */
 function pickParams(p: VerifyPlan) {
-  const { map, from, to, sieveDepth, stepDepth, maxSteps, blockTarget, engine, method, preimage } = p;
-  return { map, from, to, sieveDepth, stepDepth, maxSteps, blockTarget, engine, method, preimage };
+  const { map, from, to, sieveDepth, stepDepth, maxSteps, blockTarget, engine, method, preimage, skipReached } = p;
+  return { map, from, to, sieveDepth, stepDepth, maxSteps, blockTarget, engine, method, preimage, skipReached };
 }
 
 /** Records of consecutive candidate lists: each list swept against the best of all before it. */
@@ -161,6 +161,11 @@ export function mergeVerify(plan: VerifyPlan, entries: readonly BlockEntry[], se
   if (plan.preimage && (unresolved > 0n || entrants > 0n))
     throw new UsageError(
       `the run met ${unresolved} unresolved numbers and ${entrants} cycle entrants with the preimage sieve on, which may have skipped more of them: plan it again with --no-preimage (glidepath batch verify ... --no-preimage)`,
+    );
+  // (the skip of slices: a cycle member u of the range could hide the other members of its cycle, which descend but past u's)
+  if (plan.skipReached && (unresolved > 0n || entrants > 0n || cycles > 0n))
+    throw new UsageError(
+      `the run met ${unresolved} unresolved numbers, ${entrants} cycle entrants and ${cycles} cycle members with the skip of numbers a smaller number reaches on, which may have skipped numbers they reach: plan it again without --skip-reached`,
     );
   const glideRecords = glides.records;
   const pathRecords = paths.records;

@@ -54,6 +54,8 @@ export interface VerifyBlock extends BlockSpec {
   readonly maxSteps: number;
   /** Values at or above 2^limitBits go to BigInt (128; lower only in tests). */
   readonly limitBits: number;
+  /** aligned and range: survivors a smaller number reaches are counted, not walked (the plan's skipReached). */
+  readonly skipReached: boolean;
 }
 
 /** What the kernel found in a block: counts (layout VERIFY_COUNT_*) and lists of 4 u64 entries. */

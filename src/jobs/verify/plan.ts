@@ -46,6 +46,13 @@ export interface VerifyRequest {
    */
   readonly classes?: boolean;
   readonly preimage?: boolean;
+  /**
+   * By periods: survivors that a smaller number reaches within three steps (every value between above
+   * it), wherever that number lies, are counted, not iterated (README: global records). The records
+   * are then those among the numbers not skipped; with the records known below FROM the new records
+   * among all n stay exact. r > 0, q < 256, n below 2^127.
+   */
+  readonly skipReached?: boolean;
 }
 
 /** One block of a plan: first..last (inclusive); aligned blocks are n = a + 2^K h, h0 <= h < h0 + periods. */
@@ -79,6 +86,8 @@ export interface VerifyPlan {
   readonly method: "classes" | "periods";
   /** classes: leaves with a smaller number reaching them are skipped (the preimage sieve). */
   readonly preimage: boolean;
+  /** periods: survivors a smaller number reaches are skipped, wherever it lies (the request's skipReached). */
+  readonly skipReached: boolean;
   /** The request's block count (null: from the range's size), which certificates keep to re-plan the run. */
   readonly blockTarget: number | null;
   /** Names the parameters: checkpoints and blocks of another plan are refused. */
@@ -126,6 +135,19 @@ export function planVerify(req: VerifyRequest): VerifyPlan {
   const classDepth = req.classes === false || req.sieveDepth !== undefined ? null : fits(classDepthOf(map, from, to));
   const method = classDepth === null ? "periods" : "classes";
   const preimage = method === "classes" && req.preimage !== false;
+  const skipReached = req.skipReached === true;
+  if (skipReached) {
+    if (map.r < 0)
+      throw new UsageError(`the skip of numbers a smaller number reaches needs r > 0 (README: global records), not ${map.name}`);
+    if (map.q >= 256)
+      throw new LimitError(`the skip of numbers a smaller number reaches is for q below 256 (its residue table mod q^2), not ${map.name}`);
+    if (method === "classes")
+      throw new UsageError(
+        `[${from}, ${to}) goes class by class, whose preimage skip is on already (behind a smaller number in the range): give --periods to skip behind any smaller number`,
+      );
+    if (to > KERNEL_LIMIT)
+      throw new LimitError(`the skip of numbers a smaller number reaches runs in the kernel: n below 2^${KERNEL_N_BITS}`);
+  }
   const sieveDepth = classDepth ?? req.sieveDepth ?? DEFAULT_SIEVE_DEPTH;
   const stepDepth = req.stepDepth ?? DEFAULT_STEP_DEPTH;
   const limitBits = req.limitBits ?? MAX_LIMIT_BITS;
@@ -153,7 +175,7 @@ export function planVerify(req: VerifyRequest): VerifyPlan {
   const blockTarget = req.blocks ?? null;
   if (blockTarget !== null && (!Number.isInteger(blockTarget) || blockTarget < 1))
     throw new UsageError("blocks must be a positive whole number");
-  const key = `${map.name}|${from}|${to}|${sieveDepth}|${stepDepth}|${maxSteps}|${limitBits}${delay ? "|delay" : ""}${blockTarget === null ? "" : `|blocks ${blockTarget}`}${method === "classes" ? `|classes${preimage ? "+preimage" : ""}` : ""}`;
+  const key = `${map.name}|${from}|${to}|${sieveDepth}|${stepDepth}|${maxSteps}|${limitBits}${delay ? "|delay" : ""}${blockTarget === null ? "" : `|blocks ${blockTarget}`}${method === "classes" ? `|classes${preimage ? "+preimage" : ""}` : ""}${skipReached ? "|skip-reached" : ""}`;
   const blocks: BlockSpec[] = [];
   const push = (kind: BlockSpec["kind"], first: bigint, last: bigint, h0 = 0n, periods = 0n, below = 0n, rootDepth = 0) =>
     blocks.push({ index: blocks.length, kind, first, last, h0, periods, rootDepth, below });
@@ -163,7 +185,23 @@ export function planVerify(req: VerifyRequest): VerifyPlan {
   if (engine === "bigint") {
     chunks("range", from, to, BIGINT_BLOCK);
     if (delay) chunks("delay", from, to, BIGINT_BLOCK);
-    return { map, from, to, sieveDepth, stepDepth, maxSteps, limitBits, engine, delay, method, preimage, blockTarget, key, blocks };
+    return {
+      map,
+      from,
+      to,
+      sieveDepth,
+      stepDepth,
+      maxSteps,
+      limitBits,
+      engine,
+      delay,
+      method,
+      preimage,
+      skipReached,
+      blockTarget,
+      key,
+      blocks,
+    };
   }
   if (method === "classes") {
     const D = Math.min(sieveDepth, ROOT_DEPTH);
@@ -175,7 +213,23 @@ export function planVerify(req: VerifyRequest): VerifyPlan {
       push("classes", c, last, 0n, 1n << BigInt(sieveDepth - D), belowFrom(from, D, c, last), D);
     }
     if (delay) chunks("delay", from, to, RANGE_BLOCK);
-    return { map, from, to, sieveDepth, stepDepth, maxSteps, limitBits, engine, delay, method, preimage, blockTarget, key, blocks };
+    return {
+      map,
+      from,
+      to,
+      sieveDepth,
+      stepDepth,
+      maxSteps,
+      limitBits,
+      engine,
+      delay,
+      method,
+      preimage,
+      skipReached,
+      blockTarget,
+      key,
+      blocks,
+    };
   }
   const period = 1n << BigInt(sieveDepth);
   // aligned periods: [hA 2^K, hB 2^K), all below 2^127
@@ -194,5 +248,21 @@ export function planVerify(req: VerifyRequest): VerifyPlan {
     if (hB * period < to) chunks("range", hB * period, to, RANGE_BLOCK);
   }
   if (delay) chunks("delay", from, to, RANGE_BLOCK);
-  return { map, from, to, sieveDepth, stepDepth, maxSteps, limitBits, engine, delay, method, preimage, blockTarget, key, blocks };
+  return {
+    map,
+    from,
+    to,
+    sieveDepth,
+    stepDepth,
+    maxSteps,
+    limitBits,
+    engine,
+    delay,
+    method,
+    preimage,
+    skipReached,
+    blockTarget,
+    key,
+    blocks,
+  };
 }

@@ -46,6 +46,15 @@ export interface VerifyOptions extends ShardOptions {
  */
 export const breaksSkip = (e: BlockEntry): boolean => e.counts.unresolved > 0n || e.counts.cycleEntrants > 0n;
 
+/**
+ * A block that ends the skip of slices (skipReached): as breaksSkip, or a cycle member, whose cycle's
+ * other members it reaches (they descend, onto it, but their glides are not bounded by its).
+ */
+export const breaksSliceSkip = (e: BlockEntry): boolean => breaksSkip(e) || e.counts.cycleMembers > 0n;
+
+/** The blocks that end a plan's skip, or null when it has none. */
+const skipBreaker = (plan: VerifyPlan) => (plan.skipReached ? breaksSliceSkip : plan.preimage ? breaksSkip : null);
+
 /** The message a worker gets for one block of a plan. */
 function blockMessage(plan: VerifyPlan, data: VerifyTableData | null, b: BlockSpec): VerifyBlock {
   const exc = (b.kind === "aligned" || b.kind === "range") && data ? exceptionsIn(data, b.first, b.last) : [];
@@ -58,6 +67,7 @@ function blockMessage(plan: VerifyPlan, data: VerifyTableData | null, b: BlockSp
     sieveDepth: plan.sieveDepth,
     maxSteps: plan.maxSteps,
     limitBits: plan.limitBits,
+    skipReached: plan.skipReached,
     exceptions: BigUint64Array.from(exc, (e) => e.n),
     exceptionDepths: Uint8Array.from(exc, (e) => e.classDepth),
   };
@@ -132,10 +142,10 @@ async function runPass(
   run: VerifyRunState & { readonly done: Map<number, BlockEntry> },
   mine: readonly BlockSpec[],
   options: VerifyOptions,
-  watchSkip: boolean,
+  watchSkip: ((e: BlockEntry) => boolean) | null,
 ): Promise<{ complete: boolean; data: VerifyTableData | null }> {
   const { plan, done } = run;
-  if (watchSkip && [...done.values()].some(breaksSkip)) return { complete: false, data: options.tables ?? null };
+  if (watchSkip && [...done.values()].some(watchSkip)) return { complete: false, data: options.tables ?? null };
   const todo = mine.filter((b) => !done.has(b.index));
   const data = plan.engine === "kernel" && todo.length > 0 ? (options.tables ?? (await verifyTables(pool, plan, options))) : null;
   const progress = numberProgress(mine, (b) => done.has(b.index), options.onProgress);
@@ -149,7 +159,7 @@ async function runPass(
       if (broken) return;
       done.set(entry.index, entry);
       progress(plan.blocks[entry.index]!);
-      broken = watchSkip && breaksSkip(entry);
+      broken = watchSkip?.(entry) === true;
       await options.onBlock?.(entry, run);
     },
     options.signal,
@@ -158,7 +168,7 @@ async function runPass(
   return { complete: !broken, data };
 }
 
-/** The tables of a run by classes under the plan of its fallback: the same tables, the skip off. */
+/** The tables of a run under the plan of its fallback: the same tables, the skip off (and the fallback's plan key). */
 function withoutSkip(data: VerifyTableData, plan: VerifyPlan): VerifyTableData {
   const { classes } = data.tables;
   return { ...data, tables: { ...data.tables, key: plan.key, classes: classes && { ...classes, preimage: false } } };
@@ -206,6 +216,7 @@ export const verifyCodec = paramsCodec<VerifyParams>({
   delay: optional(boolField),
   classes: optional(boolField),
   preimage: optional(boolField),
+  skipReached: optional(boolField),
 });
 
 /** A shard's finished blocks, ascending by block. */
@@ -240,7 +251,7 @@ export const verifyJob: JobKind<VerifyParams, VerifyPart, VerifyResult, VerifyOp
     const mine = vplan.blocks.slice(range.first, range.end);
     // blocks already done (a resumed run) are kept as they are
     const results = new Map<number, BlockEntry>([...(options.done ?? [])].filter(([i]) => i >= range.first && i < range.end));
-    await runPass(pool, { request: plan.params, plan: vplan, done: results }, mine, options, false);
+    await runPass(pool, { request: plan.params, plan: vplan, done: results }, mine, options, null);
     const blocks = mine.map((b) => results.get(b.index)!);
     return { blocks, seconds: (performance.now() - started) / 1000 };
   },
@@ -281,14 +292,14 @@ export async function runVerify(pool: KernelPool, req: VerifyRequest, options: V
   };
   const plan = planOf(req);
   const first = { request: req, plan, done: new Map(options.done) };
-  const pass = await runPass(pool, first, plan.blocks, options, plan.preimage);
+  const pass = await runPass(pool, first, plan.blocks, options, skipBreaker(plan));
   if (pass.complete) return timed(plan, first.done, given, null);
   // the fallback: the plan without the skip, its tables those of the first pass with the skip off
   const firstPassSeconds = (performance.now() - started) / 1000;
-  const request = { ...req, preimage: false };
+  const request = plan.skipReached ? { ...req, skipReached: false } : { ...req, preimage: false };
   const second = planOf(request);
   const kept = new Map([...first.done].filter(([, e]) => e.kind === "delay"));
   const tables = pass.data ? withoutSkip(pass.data, second) : undefined;
-  await runPass(pool, { request, plan: second, done: kept }, second.blocks, { ...options, tables }, false);
+  await runPass(pool, { request, plan: second, done: kept }, second.blocks, { ...options, tables }, null);
   return timed(second, kept, new Set([...given].filter((i) => second.blocks[i]?.kind === "delay")), firstPassSeconds);
 }
