@@ -51,6 +51,9 @@ const show = (v: unknown) => {
 
 /** The first path at which two JSON values differ, with both values shown, or null. */
 export function firstDifference(stated: unknown, derived: unknown, path: string): { path: string; stated: string; derived: string } | null {
+  // (a key on one side only: JSON has no text for undefined)
+  if (stated === undefined || derived === undefined)
+    return stated === derived ? null : { path, stated: show(stated), derived: show(derived) };
   if (toExactJson(stated) === toExactJson(derived)) return null;
   const isObj = (v: unknown) => v !== null && typeof v === "object";
   if (Array.isArray(stated) && Array.isArray(derived)) {
