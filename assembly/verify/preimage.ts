@@ -78,7 +78,8 @@ export function prepareSkip(): void {
  */
 @inline export function reachedFromBelow(nl: u64, nh: u64): bool {
   if (nh == 0 && nl < skipFrom) return preimageBelow(nl) != 0;
-  const t = ((nh % skipPeriod) * skipWrap + (nl % skipPeriod)) % skipPeriod;
+  // (one word: one division)
+  const t = nh == 0 ? nl % skipPeriod : ((nh % skipPeriod) * skipWrap + (nl % skipPeriod)) % skipPeriod;
   return load<u8>(skipTable + <usize>t) != 0;
 }
 
