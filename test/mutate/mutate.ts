@@ -224,9 +224,30 @@ const MUTANTS: Mutant[] = [
   {
     name: "check: skipped leaves accepted under a plan without the skip",
     file: "src/jobs/verify/check.ts",
-    find: "if (!plan.preimage && e.counts.preimage !== 0n)",
+    find: "if (!plan.preimage && !plan.skipReached && e.counts.preimage !== 0n)",
     replace: "if (false)",
     first: ["test/certificate.test.ts"],
+  },
+  {
+    name: "skip of slices: a wrong residue in the table mod q^2",
+    file: "assembly/verify/preimage.ts",
+    find: "return load<u8>(skipTable + <usize>t) != 0;",
+    replace: "return load<u8>(skipTable + <usize>((t + 1) % skipPeriod)) != 0;",
+    first: ["test/skip.test.ts"],
+  },
+  {
+    name: "skip of slices: n's high word dropped from its residue mod q^2",
+    file: "assembly/verify/preimage.ts",
+    find: ": ((nh % skipPeriod) * skipWrap + (nl % skipPeriod)) % skipPeriod;",
+    replace: ": nl % skipPeriod;",
+    first: ["test/skip.test.ts"],
+  },
+  {
+    name: "skip of slices: a skipped survivor still walked and booked (its records too)",
+    file: "assembly/verify/periods.ts",
+    find: "    if (!ltU(pl, ph, nl, nh)) return;\n    i = -1;",
+    replace: "    if (false) return;",
+    first: ["test/skip.test.ts"],
   },
   {
     name: "check: numbers said not to reach 1 not iterated",
