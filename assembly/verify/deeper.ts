@@ -40,7 +40,7 @@ const pow3 = new StaticArray<u64>(DEEPER_BITS + 1);
  * deepest cut stays within the step cap.
  */
 export function deeperBegin(runsOn: bool, K: i32, r: u64, maxSteps: i32): void {
-  deeperOn = runsOn && K >= 1 && K <= DEEPER_M && K + DEEPER_BITS <= maxSteps;
+  deeperOn = runsOn && K >= 1 && K <= DEEPER_M && K + DEEPER_BITS <= 40 && K + DEEPER_BITS <= maxSteps;
   if (!deeperOn) return;
   deeperK = K;
   deeperR = r;
