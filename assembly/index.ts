@@ -13,3 +13,4 @@ export { verifyClasses } from "./verify/classes";
 export { verifyPreimage, verifySliceSkip } from "./verify/preimage";
 export { probe128 } from "./u128";
 export { probeRuns } from "./verify/walk";
+export { probeDeeper } from "./verify/deeper";

@@ -35,8 +35,9 @@ import {
 } from "./books";
 import { HQ, K, Q, affine, peakBound, qpowPtr, slackK, slackPtr, survA, survB, survM } from "./state";
 import { LANE_BATCH, lDone, lM, lN, lOdd, lT, lV, runLanes } from "./lanes";
-import { exact, fast, runs, setRuns, survivorBound } from "./walk";
+import { exact, fast, runR, runs, setRuns, survivorBound } from "./walk";
 import { prepareSkip, reachedFromBelow } from "./preimage";
+import { deeperBegin } from "./deeper";
 
 /**
  * The gap [prev, next) of sieved n between two survivors: records are possible only while the
@@ -221,6 +222,7 @@ function startSieveBlock(
   assert(r != 0 && survivors > 0 && depth >= 1 && depth <= VERIFY_MAX_DEPTH && stepDepth >= 1 && stepDepth <= VERIFY_MAX_STEP_DEPTH && limit >= 1 && limit <= VERIFY_LIMIT_BITS);
   begin(q, r, depth, stepDepth, steps, limit, tables, counts, scratch);
   setRuns();
+  deeperBegin(runs, depth, runR, steps);
   slackK = survivorSlack;
   slackPtr = slacks;
 }

@@ -52,6 +52,7 @@ import {
   tooLarge,
 } from "./state";
 import { VERIFY_LIMIT_BITS } from "../layout";
+import { DEEPER_ON, deeperBh, deeperBl, deeperDescent, deeperOdd, deeperOn, deeperSteps, deeperVh, deeperVl } from "./deeper";
 
 /**
  * n iterated one step at a time from step 0: the exact glide, odd steps and path, and the depth at
@@ -108,7 +109,13 @@ export function fast(nl: u64, nh: u64, i: i32, hl: u64, hh: u64): i32 {
   const bl = rlo, bh = rhi;
   affine(hl, hh, load<u64>(qpowPtr + (<usize>m << 3)), load<u64>(survB + (<usize>i << 3)));
   if (carry || tooLarge(rlo, rhi)) return DONE_HANDOFF;
-  return descend(nl, nh, nBits, rlo, rhi, K, m, bl, bh);
+  const vl = rlo, vh = rhi;
+  if (deeperOn) {
+    const done = deeperDescent(nl, nh, vl, vh, m, bl, bh);
+    if (done >= 0) return done;
+    if (done == DEEPER_ON) return descend(nl, nh, nBits, deeperVl, deeperVh, deeperSteps, deeperOdd, deeperBl, deeperBh);
+  }
+  return descend(nl, nh, nBits, vl, vh, K, m, bl, bh);
 }
 
 /**
