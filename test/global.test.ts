@@ -209,6 +209,12 @@ describe("new records of a slice against a brute force given the floor below it"
     }
     expect(b.glides.length + b.paths.length).toBeGreaterThan(0); // (the range holds new records)
   });
+  it("--known-path is written as --from is (2^100, 2^61-1); --known-glide is a count of steps", () => {
+    expect(givenKnown(1000n, "3", "2^100").path.peakT).toBe(1n << 100n);
+    expect(givenKnown(1000n, "3", "2^61-1").path.peakT).toBe((1n << 61n) - 1n);
+    expect(() => givenKnown(1000n, "2^3", "5")).toThrow(/--known-glide must be a whole number/);
+    expect(() => givenKnown(1000n, "3", "-5")).toThrow(/--known-path must be a whole number/);
+  });
 });
 
 describe("a known-records file", () => {

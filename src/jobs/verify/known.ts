@@ -6,6 +6,7 @@
 // Also the host's copy of the preimage skip's test (README: a number a smaller number's trajectory
 // reaches is no new record).
 import { LimitError, UsageError } from "../../core/errors.js";
+import { parseWhole } from "../../core/parse.js";
 import { parseExactJson } from "../../core/json.js";
 import type { CollatzMap } from "../../core/map.js";
 import { parseMap, step } from "../../core/map.js";
@@ -138,16 +139,14 @@ export function publishedKnown(map: CollatzMap, from: bigint): KnownRecords {
  * @example givenKnown(1000n, "132", "125252") // below 1000, glide 132, path 125252, no n
  */
 export function givenKnown(from: bigint, glide: string, path: string): KnownRecords {
-  const whole = (name: string, v: string) => {
-    if (!/^\d+$/.test(v.trim())) throw new UsageError(`${name} must be a whole number (0 or more), got "${v}"`);
-    return BigInt(v.trim());
-  };
-  const g = whole("--known-glide", glide);
+  // the glide is a count of steps (digits); the path a value, written as --from is (2^100, 2^61-1)
+  if (!/^\d+$/.test(glide.trim())) throw new UsageError(`--known-glide must be a whole number (0 or more), got "${glide}"`);
+  const g = BigInt(glide.trim());
   if (g > BigInt(Number.MAX_SAFE_INTEGER)) throw new UsageError(`--known-glide is too large: ${g} standard steps`);
   return {
     below: from,
     glide: { n: null, standardSteps: Number(g) },
-    path: { n: null, peakT: whole("--known-path", path) },
+    path: { n: null, peakT: parseWhole("--known-path", path) },
     source: "given on the command line (--known-glide, --known-path)",
   };
 }
