@@ -178,7 +178,10 @@ export function verifyCommand(program: Command): Command {
     )
     .option("--known-published", "the same from the published lists glidepath ships for 3x+1 (OEIS A060412 and A006884)")
     .option("--known-glide <S>", "the largest glide (standard steps) of any n below FROM; with --known-path")
-    .option("--known-path <P>", "the largest path (highest value under T before the descent) of any n below FROM, written as FROM is; with --known-glide")
+    .option(
+      "--known-path <P>",
+      "the largest path (highest value under T before the descent) of any n below FROM, written as FROM is; with --known-glide",
+    )
     .option(
       "--skip-reached",
       "with known records, by periods, r > 0: skip the survivors a smaller number reaches within three steps (4/9 of them for 3x+1); records are then those among the numbers not skipped, new records among all n stay exact",
