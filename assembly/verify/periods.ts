@@ -36,7 +36,7 @@ import {
 import { HQ, K, Q, affine, peakBound, qpowPtr, slackK, slackPtr, survA, survB, survM } from "./state";
 import { LANE_BATCH, lDone, lM, lN, lOdd, lT, lV, runLanes } from "./lanes";
 import { exact, fast, runR, runs, setRuns, survivorBound } from "./walk";
-import { prepareSkip, reachedFromBelow } from "./preimage";
+import { prepareSkip, prepareSkipResidues, reachedFromBelow, skipBase, skipPeriodStart, survivorReached } from "./preimage";
 import { deeperBegin } from "./deeper";
 
 /**
@@ -144,7 +144,7 @@ function startQueue(exc: usize, excN: i32, count: bool, sievedGlide: i32, sieved
 let skipSlice = false;
 
 @inline function enqueue(pl: u64, ph: u64, nl: u64, nh: u64, i: i32, hl: u64, hh: u64): void {
-  if (skipSlice && i >= 0 && reachedFromBelow(nl, nh)) {
+  if (skipSlice && i >= 0 && (skipBase >= 0 ? survivorReached(i) : reachedFromBelow(nl, nh))) {
     bump(VERIFY_COUNT_PREIMAGE);
     if (!ltU(pl, ph, nl, nh)) return;
     i = -1;
@@ -243,7 +243,10 @@ export function verifyAligned(
 ): u64 {
   startSieveBlock(q, r, depth, stepDepth, steps, limit, tables, survivors, counts, scratch, survivorSlack, slacks);
   skipSlice = skipReached != 0;
-  if (skipSlice) prepareSkip(); // (r > 0 and q < 256: the host's plan refuses the skip otherwise)
+  if (skipSlice) {
+    prepareSkip(); // (r > 0 and q < 256: the host's plan refuses the skip otherwise)
+    prepareSkipResidues(survA, survivors, depth);
+  }
   startQueue(exc, excN, false, sievedGlide, sievedPeak, sievedSlack);
   const Kd = <u64>depth;
   let visited: u64 = 0;
@@ -251,6 +254,7 @@ export function verifyAligned(
   for (let p: u64 = 0; p < periods; p++) {
     // base = h 2^K (below 2^127: no bit is lost)
     const baseL = hl << Kd, baseH = (hh << Kd) | (hl >> (64 - Kd));
+    if (skipSlice) skipPeriodStart(baseL, baseH);
     let prevL = baseL, prevH = baseH; // first n of the current gap
     for (let i = 0; i <= survivors; i++) {
       const off: u64 = i < survivors ? <u64>load<u32>(survA + (<usize>i << 2)) : (<u64>1) << Kd;
@@ -321,7 +325,10 @@ export function verifyRange(
   assert((firstL | firstH) != 0 && leU(firstL, firstH, lastL, lastH) && (lastH >> 63) == 0);
   startSieveBlock(q, r, depth, stepDepth, steps, limit, tables, survivors, counts, scratch, survivorSlack, slacks);
   skipSlice = skipReached != 0;
-  if (skipSlice) prepareSkip();
+  if (skipSlice) {
+    prepareSkip();
+    prepareSkipResidues(survA, survivors, depth);
+  }
   startQueue(exc, excN, true, sievedGlide, sievedPeak, sievedSlack);
   const Kd = <u64>depth;
   const mask: u64 = ((<u64>1) << Kd) - 1;
@@ -341,6 +348,7 @@ export function verifyRange(
   let prevL = firstL, prevH = firstH;
   while (true) {
     const baseL = hl << Kd, baseH = (hh << Kd) | (hl >> (64 - Kd));
+    if (skipSlice) skipPeriodStart(baseL, baseH);
     for (; i <= survivors; i++) {
       const off: u64 = i < survivors ? <u64>load<u32>(survA + (<usize>i << 2)) : (<u64>1) << Kd;
       let nextL = baseL + off, nextH = baseH + select<u64>(1, 0, baseL + off < baseL);

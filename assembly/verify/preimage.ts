@@ -78,8 +78,48 @@ export function prepareSkip(): void {
  */
 @inline export function reachedFromBelow(nl: u64, nh: u64): bool {
   if (nh == 0 && nl < skipFrom) return preimageBelow(nl) != 0;
-  // (one word: one division)
-  const t = nh == 0 ? nl % skipPeriod : ((nh % skipPeriod) * skipWrap + (nl % skipPeriod)) % skipPeriod;
+  return load<u8>(skipTable + <usize>residueOf(nl, nh)) != 0;
+}
+
+/** n mod q^2 (prepareSkip first), exactly from both words (one word: one division). */
+@inline function residueOf(nl: u64, nh: u64): u64 {
+  return nh == 0 ? nl % skipPeriod : ((nh % skipPeriod) * skipWrap + (nl % skipPeriod)) % skipPeriod;
+}
+
+// The skip's residues by period, for the blocks' survivors n = base + a (base = h 2^K): n mod q^2 is
+// a mod q^2 (per survivor, once per table) plus base mod q^2 (once per period), less q^2 if past it,
+// a table read a survivor instead of a 64-bit division.
+let amod: usize = 0; // u8 a mod q^2 per survivor
+let amodCap: i32 = 0;
+let amodA: usize = 0, amodN: i32 = -1, amodQ: u64 = 0, amodHQ: u64 = 0, amodK: i32 = 0;
+/** base mod q^2 of the current period, or -1 (a period below skipFrom: each n by reachedFromBelow). */
+export let skipBase: i32 = -1;
+
+/** The survivors' a mod q^2 (survivors residues a < 2^K at survA), made again only for another table (prepareSkip first). */
+export function prepareSkipResidues(survA: usize, survivors: i32, K: i32): void {
+  skipBase = -1;
+  if (amodA == survA && amodN == survivors && amodQ == Q && amodHQ == HQ && amodK == K) return;
+  if (survivors > amodCap) {
+    amod = heap.alloc(<usize>survivors);
+    amodCap = survivors;
+  }
+  for (let i = 0; i < survivors; i++) store<u8>(amod + <usize>i, <u8>(<u64>load<u32>(survA + (<usize>i << 2)) % skipPeriod));
+  amodA = survA;
+  amodN = survivors;
+  amodQ = Q;
+  amodHQ = HQ;
+  amodK = K;
+}
+
+/** A period starts at base = (baseH, baseL): its residue, when every n of it is at or past skipFrom. */
+@inline export function skipPeriodStart(baseL: u64, baseH: u64): void {
+  skipBase = baseH == 0 && baseL < skipFrom ? -1 : <i32>residueOf(baseL, baseH);
+}
+
+/** reachedFromBelow for survivor i of the current period (skipBase >= 0). */
+@inline export function survivorReached(i: i32): bool {
+  let t = <i32>load<u8>(amod + <usize>i) + skipBase;
+  if (t >= <i32>skipPeriod) t -= <i32>skipPeriod;
   return load<u8>(skipTable + <usize>t) != 0;
 }
 
