@@ -179,29 +179,18 @@ export function planVerify(req: VerifyRequest): VerifyPlan {
   const blocks: BlockSpec[] = [];
   const push = (kind: BlockSpec["kind"], first: bigint, last: bigint, h0 = 0n, periods = 0n, below = 0n, rootDepth = 0) =>
     blocks.push({ index: blocks.length, kind, first, last, h0, periods, rootDepth, below });
+  // the plan, with the blocks pushed so far
+  const planned = (): VerifyPlan => {
+    const params = { map, from, to, sieveDepth, stepDepth, maxSteps, limitBits, engine, delay, method, preimage, skipReached };
+    return { ...params, blockTarget, key, blocks };
+  };
   const chunks = (kind: "range" | "delay", first: bigint, end: bigint, size: bigint) => {
     for (let s = first; s < end; s += size) push(kind, s, s + size < end ? s + size - 1n : end - 1n);
   };
   if (engine === "bigint") {
     chunks("range", from, to, BIGINT_BLOCK);
     if (delay) chunks("delay", from, to, BIGINT_BLOCK);
-    return {
-      map,
-      from,
-      to,
-      sieveDepth,
-      stepDepth,
-      maxSteps,
-      limitBits,
-      engine,
-      delay,
-      method,
-      preimage,
-      skipReached,
-      blockTarget,
-      key,
-      blocks,
-    };
+    return planned();
   }
   if (method === "classes") {
     const D = Math.min(sieveDepth, ROOT_DEPTH);
@@ -213,23 +202,7 @@ export function planVerify(req: VerifyRequest): VerifyPlan {
       push("classes", c, last, 0n, 1n << BigInt(sieveDepth - D), belowFrom(from, D, c, last), D);
     }
     if (delay) chunks("delay", from, to, RANGE_BLOCK);
-    return {
-      map,
-      from,
-      to,
-      sieveDepth,
-      stepDepth,
-      maxSteps,
-      limitBits,
-      engine,
-      delay,
-      method,
-      preimage,
-      skipReached,
-      blockTarget,
-      key,
-      blocks,
-    };
+    return planned();
   }
   const period = 1n << BigInt(sieveDepth);
   // aligned periods: [hA 2^K, hB 2^K), all below 2^127
@@ -248,21 +221,5 @@ export function planVerify(req: VerifyRequest): VerifyPlan {
     if (hB * period < to) chunks("range", hB * period, to, RANGE_BLOCK);
   }
   if (delay) chunks("delay", from, to, RANGE_BLOCK);
-  return {
-    map,
-    from,
-    to,
-    sieveDepth,
-    stepDepth,
-    maxSteps,
-    limitBits,
-    engine,
-    delay,
-    method,
-    preimage,
-    skipReached,
-    blockTarget,
-    key,
-    blocks,
-  };
+  return planned();
 }
