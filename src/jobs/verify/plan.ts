@@ -181,7 +181,20 @@ export function planVerify(req: VerifyRequest): VerifyPlan {
     blocks.push({ index: blocks.length, kind, first, last, h0, periods, rootDepth, below });
   // the plan, with the blocks pushed so far
   const planned = (): VerifyPlan => {
-    const params = { map, from, to, sieveDepth, stepDepth, maxSteps, limitBits, engine, delay, method, preimage, skipReached };
+    const params: Omit<VerifyPlan, "blockTarget" | "key" | "blocks"> = {
+      map,
+      from,
+      to,
+      sieveDepth,
+      stepDepth,
+      maxSteps,
+      limitBits,
+      engine,
+      delay,
+      method,
+      preimage,
+      skipReached,
+    };
     return { ...params, blockTarget, key, blocks };
   };
   const chunks = (kind: "range" | "delay", first: bigint, end: bigint, size: bigint) => {
