@@ -209,6 +209,8 @@ const CODEC_CASES: Record<JobName, AnyCase> = {
       classes: false,
       preimage: false,
       skipReached: true,
+      // (values for the codec only, no claim: the run does not read them)
+      known: { below: (1n << 20n) + 5n, glide: { n: null, standardSteps: 443 }, path: { n: null, peakT: 10n ** 14n }, source: "codec" },
     },
     other: {
       map: parseMap("3x-1"),
@@ -223,6 +225,8 @@ const CODEC_CASES: Record<JobName, AnyCase> = {
       classes: true,
       preimage: true,
       skipReached: false,
+      // (codec values; under 3x+1 they are the records below 7: n = 3, 3 5 8 4 2, glide 4 steps of T, 2 odd, 6 standard, highest 8)
+      known: { below: 7n, glide: { n: 3n, standardSteps: 6 }, path: { n: 3n, peakT: 8n }, source: "records below 7" },
     },
     minimal: { map: parseMap("3x+1"), from: 1n, to: 1n << 16n },
   }),

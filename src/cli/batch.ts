@@ -31,7 +31,8 @@ export interface BatchJob<P, R> {
   /** The job's own options (the same as its one-machine command's). */
   options(cmd: Command): Command;
   params(o: RawOptions): P;
-  json(result: R): unknown;
+  /** The merged result's JSON (params: the plan's, as the merge read them). */
+  json(result: R, params: P): unknown;
   /** Its shards write their sorted part of the class table (RUN/parts/I.table). */
   readonly table?: boolean;
   readonly out?: MergeOutput<P, R>;

@@ -257,7 +257,7 @@ async function merge(dir: string, o: RawOptions): Promise<void> {
         },
         run.plan.params,
       );
-    print(`${toExactJson(spec.json(result))}\n`);
+    print(`${toExactJson(spec.json(result, run.plan.params))}\n`);
     if (out) process.stderr.write(`wrote ${spec.out!.what} to ${out.path}\n`);
     if (spec.check)
       process.stderr.write(

@@ -126,6 +126,20 @@ function rangeOptions(cmd: Command): Command {
     .option(
       "--max-steps <S>",
       `steps after which a trajectory is reported unresolved (default ${DEFAULT_MAX_STEPS}; at least the sieve depth)`,
+    )
+    .option(
+      "--known <FILE>",
+      "the records known below FROM (a JSON file, README: global records): report which records of the range are new among all n",
+    )
+    .option("--known-published", "the same from the published lists glidepath ships for 3x+1 (OEIS A060412 and A006884)")
+    .option("--known-glide <S>", "the largest glide (standard steps) of any n below FROM; with --known-path")
+    .option(
+      "--known-path <P>",
+      "the largest path (highest value under T before the descent) of any n below FROM, written as FROM is; with --known-glide",
+    )
+    .option(
+      "--skip-reached",
+      "with known records, by periods, r > 0: skip the survivors a smaller number reaches within three steps (4/9 of them for 3x+1); records are then those among the numbers not skipped, new records among all n stay exact",
     );
 }
 
@@ -134,13 +148,13 @@ export const verifyBatch: BatchJob<VerifyParams, VerifyResult> = {
   job: verifyJob,
   options: rangeOptions,
   params: (o: VerifyOptions) => {
-    if ((o as { skipReached?: boolean }).skipReached)
-      throw new UsageError("batch verify does not carry the records known below FROM, which --skip-reached needs: run it with verify");
     const req = request(o, mapOption(o.map));
-    planOf(req); // checks it (and is the plan the batch lays out)
-    return req;
+    const plan = planOf(req); // checks it (and is the plan the batch lays out)
+    const known = knownOption(o, plan.map, plan.from);
+    if (plan.skipReached && known === null) throw new UsageError(SKIP_NEEDS_KNOWN);
+    return known === null ? req : { ...req, known };
   },
-  json: verifyJson,
+  json: (result, params) => verifyJson(result, params.known ?? null),
   check: { file: "certificate.json", command: (file) => `glidepath verify --check ${file} --full` },
   out: {
     formats: ["raw"],
@@ -149,7 +163,7 @@ export const verifyBatch: BatchJob<VerifyParams, VerifyResult> = {
     async write(pool, result, out, stamp, _tables, span, params) {
       // the merged plan's tables, hashed: the plan is the one the merge read (planOf)
       const { hashes } = await verificationTables(pool, planOf(params), sha256);
-      await writeFileAtomic(out.path, await certificateText(result, hashes, stamp, { ...span, workers: pool.size }));
+      await writeFileAtomic(out.path, await certificateText(result, hashes, stamp, { ...span, workers: pool.size }, params.known ?? null));
     },
   },
 };
@@ -172,22 +186,11 @@ export function verifyCommand(program: Command): Command {
     .option("--sample <N>", "with --check: blocks to run again, chosen at random (default 8)")
     .option("--full", "with --check: run every block again")
     .option("--string-integers", "with --json: write integers as strings (for readers that parse numbers as doubles)")
-    .option(
-      "--known <FILE>",
-      "the records known below FROM (a JSON file, README: global records): report which records of the range are new among all n",
-    )
-    .option("--known-published", "the same from the published lists glidepath ships for 3x+1 (OEIS A060412 and A006884)")
-    .option("--known-glide <S>", "the largest glide (standard steps) of any n below FROM; with --known-path")
-    .option(
-      "--known-path <P>",
-      "the largest path (highest value under T before the descent) of any n below FROM, written as FROM is; with --known-glide",
-    )
-    .option(
-      "--skip-reached",
-      "with known records, by periods, r > 0: skip the survivors a smaller number reaches within three steps (4/9 of them for 3x+1); records are then those among the numbers not skipped, new records among all n stay exact",
-    )
     .action((o: VerifyOptions) => (o.check !== undefined ? check(o) : verify(o)));
 }
+
+const SKIP_NEEDS_KNOWN =
+  "--skip-reached needs the records known below FROM (--known FILE, --known-published, or --known-glide with --known-path): only the new records among all n survive the skip";
 
 /** The records known below the range (--known FILE, --known-published, or --known-glide with --known-path), or null. */
 function knownOption(o: VerifyOptions, map: CollatzMap, from: bigint): KnownRecords | null {
@@ -293,10 +296,7 @@ async function verify(o: VerifyOptions): Promise<void> {
     throw new UsageError("--out and --checkpoint name the same file: give each its own");
   const checkTables = tableFiles(o, plan);
   const known = knownOption(o, plan.map, plan.from);
-  if (plan.skipReached && known === null)
-    throw new UsageError(
-      "--skip-reached needs the records known below FROM (--known FILE, --known-published, or --known-glide with --known-path): only the new records among all n survive the skip",
-    );
+  if (plan.skipReached && known === null) throw new UsageError(SKIP_NEEDS_KNOWN);
   const workers = workersOption(o.workers);
   const stamp = await toolStamp();
   const started = new Date().toISOString();

@@ -350,6 +350,14 @@ const OPTION_CASES: { job: string; opts: string[]; single?: string[]; shards: nu
   { job: "verify", opts: ["--from", "2^20", "--to", "2^21", "--sieve-depth", "14", "--max-steps", "20"], shards: 2, out: "cert.json" },
   { job: "verify", opts: ["--map", "3x+5", "--from", "1", "--to", "2^16", "--no-preimage"], shards: 2, out: "cert.json" },
   { job: "verify", opts: ["--map", "3x-1", "--from", "1", "--to", "5000", "--sieve-depth", "8", "--delay"], shards: 2, out: "cert.json" },
+  // the records known below FROM travel too: merge reports the new records and writes them in the certificate
+  { job: "verify", opts: ["--from", "10^6", "--to", "2^20+2^18", "--known-published", "--skip-reached"], shards: 3, out: "cert.json" },
+  {
+    job: "verify",
+    opts: ["--from", "2^30", "--to", "2^30+2^20", "--known-glide", "300", "--known-path", "2^36"],
+    shards: 2,
+    out: "cert.json",
+  },
   { job: "sieve", opts: ["--map", "3x-1", "--depth", "16"], shards: 3, out: "table.u32" },
   { job: "census", opts: ["--map", "5x+1", "--depth", "12"], shards: 3, out: "census.arrow" },
   { job: "cycles", opts: ["--map", "3x+5", "--max-period", "14"], shards: 3, out: "cycles.arrow" },

@@ -18,6 +18,8 @@ import { blockSize, planVerify } from "./plan.js";
 import type { BlockSpec, VerifyPlan, VerifyRequest } from "./plan.js";
 import { exceptionsIn, verifyTables } from "./tables.js";
 import type { VerifyTableData } from "./tables.js";
+import { knownField } from "./known.js";
+import type { KnownRecords } from "./known.js";
 import type { JobApi } from "../../engine/worker.js";
 import type { verifyHandlers } from "./kernel.js";
 
@@ -200,8 +202,11 @@ export function planOf(req: VerifyRequest): VerifyPlan {
   return plan;
 }
 
-/** What plan.json keeps of a verification run: its request, every field of it. */
-export type VerifyParams = VerifyRequest;
+/**
+ * What plan.json keeps of a verification run: its request, every field of it, and the records known
+ * below FROM when they were given (a cluster run's merge reports the new records among all n).
+ */
+export type VerifyParams = VerifyRequest & { readonly known?: KnownRecords };
 
 /** The request's codec: a field of VerifyRequest missing here does not compile. */
 export const verifyCodec = paramsCodec<VerifyParams>({
@@ -217,6 +222,7 @@ export const verifyCodec = paramsCodec<VerifyParams>({
   classes: optional(boolField),
   preimage: optional(boolField),
   skipReached: optional(boolField),
+  known: optional(knownField),
 });
 
 /** A shard's finished blocks, ascending by block. */
