@@ -330,6 +330,7 @@ describe("plan layer: every field of every job's request survives plan.json", ()
       ["delay", "yes", /plan\.json is damaged: params\.delay must be true or false, got "yes"/],
       ["sieveDepth", 12.5, /plan\.json is damaged: params\.sieveDepth must be a whole number, got 12\.5/],
       ["map", "3X + 1", /plan\.json is damaged: params\.map must be a map's canonical name/],
+      ["known", { below: 5, glide: 3 }, /plan\.json is damaged: params\.known must be the records known below FROM/],
     ];
     try {
       for (const [key, value, why] of cases) {
