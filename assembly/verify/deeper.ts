@@ -14,25 +14,23 @@
 
 import { carry, ltU, mulAdd, rhi, rlo } from "../u128";
 import { DONE_DESCENT, bestPathHi, bestPathLo, exceededPath, glideOdd, glideT } from "./books";
-import { setMap } from "./state";
+import { VERIFY_MAX_DEPTH } from "../layout";
 
 /** How many steps deeper the table looks: 2^E entries per m. */
 export const DEEPER_BITS: i32 = 10;
 const DEEPER_SIZE: usize = (<usize>1) << DEEPER_BITS;
 const DEEPER_MASK: u64 = ((<u64>1) << <u64>DEEPER_BITS) - 1;
-/** The largest m a table holds (a survivor's m is at most K <= VERIFY_MAX_DEPTH). */
-const DEEPER_M: i32 = 30;
+/** The largest m a table holds (a survivor's m is at most K). */
+const DEEPER_M: i32 = VERIFY_MAX_DEPTH;
 
 // Per (m, t mod 2^E): 0, or the cut s (bits 0..7; ON when not cut within E steps, s = E then),
 // m'_s (bits 8..15) and d_s (bits 16..).
 const ON: u64 = 0x80;
 let table: usize = 0;
-let tableK: i32 = -1;
+let tableK: i32 = -1; // the K and r the table was made for (those of the block while deeperOn)
 let tableR: u64 = 0;
 /** The table applies to the block (set by deeperBegin). */
 export let deeperOn = false;
-let deeperK: i32 = 0;
-let deeperR: u64 = 0;
 const pow3 = new StaticArray<u64>(DEEPER_BITS + 1);
 
 /**
@@ -42,8 +40,6 @@ const pow3 = new StaticArray<u64>(DEEPER_BITS + 1);
 export function deeperBegin(runsOn: bool, K: i32, r: u64, maxSteps: i32): void {
   deeperOn = runsOn && K >= 1 && K <= DEEPER_M && K + DEEPER_BITS <= 40 && K + DEEPER_BITS <= maxSteps;
   if (!deeperOn) return;
-  deeperK = K;
-  deeperR = r;
   if (table == 0) table = heap.alloc(<usize>(DEEPER_M + 1) * DEEPER_SIZE * 8);
   if (tableK == K && tableR == r) return;
   tableK = K;
@@ -82,13 +78,13 @@ export function deeperBegin(runsOn: bool, K: i32, r: u64, maxSteps: i32): void {
   }
 }
 
-/** Where deeperDescent and deeperLane leave a survivor not cut within E steps: T^(K+E)(n), its odd steps, a bound on the values before. */
+/** Where deeperDescent leaves a survivor not cut within E steps: T^(K+E)(n), its odd steps, a bound on the values before. */
 export let deeperVl: u64 = 0, deeperVh: u64 = 0;
 export let deeperOdd: i32 = 0;
 /** The step count there, K + E. */
 export let deeperSteps: i32 = 0;
 export let deeperBl: u64 = 0, deeperBh: u64 = 0;
-/** deeperDescent and deeperLane: not settled, on from step K + E at (deeperVh, deeperVl) with deeperOdd odd steps. */
+/** deeperDescent: not settled, on from step K + E at (deeperVh, deeperVl) with deeperOdd odd steps. */
 export const DEEPER_ON: i32 = -2;
 
 /**
@@ -99,7 +95,7 @@ export const DEEPER_ON: i32 = -2;
  * bound on the values before it, v 2^(E - 1) or (bl, bh), in deeperBl/Bh). -1: walk on from v as before.
  */
 @inline export function deeperDescent(nl: u64, nh: u64, vl: u64, vh: u64, m: i32, bl: u64, bh: u64): i32 {
-  if (nh == 0 && nl < deeperR) return -1;
+  if (nh == 0 && nl < tableR) return -1;
   const e = load<u64>(table + (((<usize>m << DEEPER_BITS) + <usize>(vl & DEEPER_MASK)) << 3));
   if (e == 0) return -1;
   const on = (e & ON) != 0;
@@ -121,12 +117,12 @@ export const DEEPER_ON: i32 = -2;
     deeperVl = wl;
     deeperVh = wh;
     deeperOdd = m + mm;
-    deeperSteps = deeperK + s;
+    deeperSteps = tableK + s;
     deeperBl = pl;
     deeperBh = ph;
     return DEEPER_ON;
   }
-  glideT = deeperK + s;
+  glideT = tableK + s;
   glideOdd = m + mm;
   exceededPath = ltU(bestPathLo, bestPathHi, pl, ph);
   return DONE_DESCENT;
@@ -134,13 +130,12 @@ export const DEEPER_ON: i32 = -2;
 
 /**
  * deeperDescent on given operands, for the tests (test/deeper.test.ts, against BigInt): the map
- * 3x + r, sieve depth K, n and v = T^K(n) with m odd steps, the best path, a bound (bl, bh) on the
+ * 3x + r (the table needs r alone), sieve depth K, n and v = T^K(n) with m odd steps, the best path, a bound (bl, bh) on the
  * values before step K. Stores at out: the outcome (DONE_DESCENT, DEEPER_ON or -1), then the step
  * count and odd steps (of the glide, or where it goes on), the value there (lo, hi; DEEPER_ON), and
  * 1 when the table applies plus 2 when a descent's path could beat the best (exceededPath).
  */
 export function probeDeeper(r: i32, K: i32, nl: u64, nh: u64, vl: u64, vh: u64, m: i32, bestLo: u64, bestHi: u64, out: usize): void {
-  setMap(3, r);
   deeperBegin(true, K, <u64>r, 100000);
   bestPathLo = bestLo;
   bestPathHi = bestHi;

@@ -36,7 +36,7 @@ import {
 import { HQ, K, Q, affine, peakBound, qpowPtr, slackK, slackPtr, survA, survB, survM } from "./state";
 import { LANE_BATCH, lDone, lM, lN, lOdd, lT, lV, runLanes } from "./lanes";
 import { exact, fast, runR, runs, setRuns, survivorBound } from "./walk";
-import { prepareSkip, prepareSkipResidues, reachedFromBelow, skipBase, skipPeriodStart, survivorReached } from "./preimage";
+import { prepareSkip, prepareSkipResidues, skipPeriodStart, survivorReached } from "./preimage";
 import { deeperBegin } from "./deeper";
 
 /**
@@ -144,7 +144,7 @@ function startQueue(exc: usize, excN: i32, count: bool, sievedGlide: i32, sieved
 let skipSlice = false;
 
 @inline function enqueue(pl: u64, ph: u64, nl: u64, nh: u64, i: i32, hl: u64, hh: u64): void {
-  if (skipSlice && i >= 0 && (skipBase >= 0 ? survivorReached(i) : reachedFromBelow(nl, nh))) {
+  if (skipSlice && i >= 0 && survivorReached(i, nl, nh)) {
     bump(VERIFY_COUNT_PREIMAGE);
     if (!ltU(pl, ph, nl, nh)) return;
     i = -1;
@@ -214,10 +214,10 @@ function laneSurvivor(n: u64, i: i32, t: i32, odd: i32): void {
   }
 }
 
-/** A block of the depth-K sieve's periods starts: its parameters checked, the run's tables, run pairs, slacks. */
+/** A block of the depth-K sieve's periods starts: its parameters checked, the run's tables, run pairs, slacks, the skip of slices. */
 function startSieveBlock(
   q: u32, r: i32, depth: i32, stepDepth: i32, steps: i32, limit: i32, tables: usize, survivors: i32, counts: usize,
-  scratch: usize, survivorSlack: u64, slacks: usize,
+  scratch: usize, survivorSlack: u64, slacks: usize, skipReached: i32,
 ): void {
   assert(r != 0 && survivors > 0 && depth >= 1 && depth <= VERIFY_MAX_DEPTH && stepDepth >= 1 && stepDepth <= VERIFY_MAX_STEP_DEPTH && limit >= 1 && limit <= VERIFY_LIMIT_BITS);
   begin(q, r, depth, stepDepth, steps, limit, tables, counts, scratch);
@@ -225,6 +225,11 @@ function startSieveBlock(
   deeperBegin(runs, depth, runR, steps);
   slackK = survivorSlack;
   slackPtr = slacks;
+  skipSlice = skipReached != 0;
+  if (skipSlice) {
+    prepareSkip(); // (r > 0 and q < 256: the host's plan refuses the skip otherwise)
+    prepareSkipResidues(survA, survivors, depth);
+  }
 }
 
 /**
@@ -241,12 +246,7 @@ export function verifyAligned(
   h0l: u64, h0h: u64, periods: u64, exc: usize, excN: i32, sievedGlide: i32, sievedPeak: i32, sievedSlack: u64,
   survivorSlack: u64, slacks: usize, counts: usize, scratch: usize, skipReached: i32,
 ): u64 {
-  startSieveBlock(q, r, depth, stepDepth, steps, limit, tables, survivors, counts, scratch, survivorSlack, slacks);
-  skipSlice = skipReached != 0;
-  if (skipSlice) {
-    prepareSkip(); // (r > 0 and q < 256: the host's plan refuses the skip otherwise)
-    prepareSkipResidues(survA, survivors, depth);
-  }
+  startSieveBlock(q, r, depth, stepDepth, steps, limit, tables, survivors, counts, scratch, survivorSlack, slacks, skipReached);
   startQueue(exc, excN, false, sievedGlide, sievedPeak, sievedSlack);
   const Kd = <u64>depth;
   let visited: u64 = 0;
@@ -323,12 +323,7 @@ export function verifyRange(
   sievedSlack: u64, survivorSlack: u64, slacks: usize, counts: usize, scratch: usize, skipReached: i32,
 ): u64 {
   assert((firstL | firstH) != 0 && leU(firstL, firstH, lastL, lastH) && (lastH >> 63) == 0);
-  startSieveBlock(q, r, depth, stepDepth, steps, limit, tables, survivors, counts, scratch, survivorSlack, slacks);
-  skipSlice = skipReached != 0;
-  if (skipSlice) {
-    prepareSkip();
-    prepareSkipResidues(survA, survivors, depth);
-  }
+  startSieveBlock(q, r, depth, stepDepth, steps, limit, tables, survivors, counts, scratch, survivorSlack, slacks, skipReached);
   startQueue(exc, excN, true, sievedGlide, sievedPeak, sievedSlack);
   const Kd = <u64>depth;
   const mask: u64 = ((<u64>1) << Kd) - 1;

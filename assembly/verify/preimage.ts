@@ -93,7 +93,7 @@ let amod: usize = 0; // u8 a mod q^2 per survivor
 let amodCap: i32 = 0;
 let amodA: usize = 0, amodN: i32 = -1, amodQ: u64 = 0, amodHQ: u64 = 0, amodK: i32 = 0;
 /** base mod q^2 of the current period, or -1 (a period below skipFrom: each n by reachedFromBelow). */
-export let skipBase: i32 = -1;
+let skipBase: i32 = -1;
 
 /** The survivors' a mod q^2 (survivors residues a < 2^K at survA), made again only for another table (prepareSkip first). */
 export function prepareSkipResidues(survA: usize, survivors: i32, K: i32): void {
@@ -116,8 +116,9 @@ export function prepareSkipResidues(survA: usize, survivors: i32, K: i32): void 
   skipBase = baseH == 0 && baseL < skipFrom ? -1 : <i32>residueOf(baseL, baseH);
 }
 
-/** reachedFromBelow for survivor i of the current period (skipBase >= 0). */
-@inline export function survivorReached(i: i32): bool {
+/** reachedFromBelow for survivor i of the current period, n = (nh, nl): by its residues from skipFrom on. */
+@inline export function survivorReached(i: i32, nl: u64, nh: u64): bool {
+  if (skipBase < 0) return reachedFromBelow(nl, nh);
   let t = <i32>load<u8>(amod + <usize>i) + skipBase;
   if (t >= <i32>skipPeriod) t -= <i32>skipPeriod;
   return load<u8>(skipTable + <usize>t) != 0;

@@ -505,8 +505,8 @@ const MUTANTS: Mutant[] = [
   {
     name: "deeper sieve: the continuation one step early",
     file: "assembly/verify/deeper.ts",
-    find: "    deeperSteps = deeperK + s;",
-    replace: "    deeperSteps = deeperK + s - 1;",
+    find: "    deeperSteps = tableK + s;",
+    replace: "    deeperSteps = tableK + s - 1;",
     first: ["test/deeper.test.ts"],
   },
   {
@@ -533,8 +533,8 @@ const MUTANTS: Mutant[] = [
   {
     name: "deeper sieve: a cut class's glide one step short",
     file: "assembly/verify/deeper.ts",
-    find: "  glideT = deeperK + s;",
-    replace: "  glideT = deeperK + s - 1;",
+    find: "  glideT = tableK + s;",
+    replace: "  glideT = tableK + s - 1;",
     first: ["test/deeper.test.ts"],
   },
   {
