@@ -7,6 +7,7 @@ import type { CollatzMap } from "../../core/map.js";
 import { parseMap } from "../../core/map.js";
 import { sha256Hex } from "../../engine/plan.js";
 import type { ToolStamp } from "../../engine/messages.js";
+import type { FieldCodec } from "../../engine/codec.js";
 import { parseExactJson, toExactJson } from "../../core/json.js";
 import type { BlockEntry, CycleEntrant, CycleMember, GlideRecord, PathRecord } from "./block.js";
 import type { VerifyResult } from "./merge.js";
@@ -531,6 +532,22 @@ function readKnown(x: unknown, p: string): KnownRecords {
     source: text(x, "source", p),
   };
 }
+
+/**
+ * The known values as a cluster run's plan.json keeps them (so `merge` reports the new records), and
+ * back, read as strictly as a certificate's: a value that is not the records known below FROM is an
+ * error saying so.
+ */
+export const knownField: FieldCodec<KnownRecords> = {
+  encode: (k) => ({ ...knownJson(k), glide: { n: k.glide.n, standardSteps: BigInt(k.glide.standardSteps) } }),
+  decode: (v) => {
+    try {
+      return readKnown(v, "known");
+    } catch (e) {
+      throw new Error(`must be the records known below FROM: ${e instanceof Error ? e.message : String(e)}`);
+    }
+  },
+};
 
 /** The new records a certificate claims, read strictly. */
 const readGlobal = (x: unknown, p: string): GlobalRecords => ({

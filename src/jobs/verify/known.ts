@@ -7,7 +7,6 @@
 // reaches is no new record).
 import { LimitError, UsageError } from "../../core/errors.js";
 import { parseWhole } from "../../core/parse.js";
-import type { FieldCodec } from "../../engine/codec.js";
 import { parseExactJson } from "../../core/json.js";
 import type { CollatzMap } from "../../core/map.js";
 import { parseMap, step } from "../../core/map.js";
@@ -57,41 +56,6 @@ export function knownJson(k: KnownRecords) {
     source: k.source,
   };
 }
-
-/**
- * The known values as a cluster run's plan.json keeps them (so `merge` reports the new records), and
- * back, strictly: a value that is not the records known below FROM is an error saying so.
- */
-export const knownField: FieldCodec<KnownRecords> = {
-  encode: (k) => knownJson(k),
-  decode: (v) => {
-    const o = v as { below?: unknown; glide?: Record<string, unknown>; path?: Record<string, unknown>; source?: unknown } | null;
-    const nOrNull = (x: unknown) => x === null || (typeof x === "bigint" && x >= 1n);
-    const steps = o?.glide?.standardSteps;
-    if (
-      typeof o !== "object" ||
-      o === null ||
-      Object.keys(o).join() !== "below,glide,path,source" ||
-      typeof o.below !== "bigint" ||
-      o.below < 1n ||
-      typeof steps !== "number" ||
-      !Number.isSafeInteger(steps) ||
-      steps < 0 ||
-      !nOrNull(o.glide?.n) ||
-      typeof o.path?.peakT !== "bigint" ||
-      o.path.peakT < 0n ||
-      !nOrNull(o.path?.n) ||
-      typeof o.source !== "string"
-    )
-      throw new Error("must be the records known below FROM: { below, glide: { n, standardSteps }, path: { n, peakT }, source }");
-    return {
-      below: o.below,
-      glide: { n: o.glide!.n as bigint | null, standardSteps: steps },
-      path: { n: o.path.n as bigint | null, peakT: o.path.peakT },
-      source: o.source,
-    };
-  },
-};
 
 /** The new records as `--json` and the certificate write them. */
 export function globalJson(g: GlobalRecords) {

@@ -47,14 +47,7 @@ export function skippedAt(s: SliceSkip, n: bigint): boolean {
 /** Whether n is a survivor of the depth-K sieve (its residue mod 2^K is in the table). */
 export function isSurvivor(s: SliceSkip, n: bigint): boolean {
   const a = Number(n & ((1n << BigInt(s.K)) - 1n));
-  let lo = 0;
-  let hi = s.residues.length;
-  while (lo < hi) {
-    const mid = (lo + hi) >> 1;
-    if (s.residues[mid]! < a) lo = mid + 1;
-    else hi = mid;
-  }
-  return lo < s.residues.length && s.residues[lo] === a;
+  return s.residues[lowerBound(s.residues, a)] === a;
 }
 
 /** The first index of the residues at or above a. */

@@ -18,7 +18,7 @@ import { blockSize, planVerify } from "./plan.js";
 import type { BlockSpec, VerifyPlan, VerifyRequest } from "./plan.js";
 import { exceptionsIn, verifyTables } from "./tables.js";
 import type { VerifyTableData } from "./tables.js";
-import { knownField } from "./known.js";
+import { knownField } from "./certificate.js";
 import type { KnownRecords } from "./known.js";
 import type { JobApi } from "../../engine/worker.js";
 import type { verifyHandlers } from "./kernel.js";
